@@ -1,0 +1,1 @@
+"""The project document: TOML files, units, validation, and building the core model."""
