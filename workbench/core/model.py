@@ -254,3 +254,22 @@ def reservoir_head(res: Reservoir, density: float, level: float | None = None) -
 def receiver_head(rec: Receiver, density: float) -> float:
     """Piezometric head at a receiver, gauge based [m]: ``z + p/(rho*g)``."""
     return rec.elevation + rec.pressure / (density * G)
+
+
+Severity = Literal["info", "caution", "danger"]
+
+
+@dataclass(frozen=True)
+class Finding:
+    """Something the engineer should see about a result: a warning with a stable code.
+
+    ``code`` is stable across versions (e.g. ``"profile.vapor"``) because files, scripts and
+    tests match on it; ``message`` is words a user can act on; ``source`` names the published
+    reference or says ``"common practice"``.
+    """
+
+    code: str
+    element: str
+    message: str
+    severity: Severity = "caution"
+    source: str = ""
