@@ -1,0 +1,82 @@
+"""The safety cautions shown in the README, the app, the CLI and the calculation record.
+
+Plain text with no UI imports, so every front end shows the same words.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+
+@dataclass(frozen=True)
+class Caution:
+    topic: str
+    text: str
+
+
+PREAMBLE = (
+    "Results are screening estimates for trained people. They do not replace a design check, "
+    "and they defer to local codes, company standards and licensed engineering practice."
+)
+
+CAUTIONS: tuple[Caution, ...] = (
+    Caution(
+        "Surge",
+        "Fast valve closures, pump trips and slamming check valves raise pressure by the "
+        "Joukowsky amount (rho*a*dv) and more. A rigid-column estimate is not valid for fast "
+        "closures: where the tool flags rapid closure, get an elastic (wave) analysis before "
+        "relying on the pipe's rating.",
+    ),
+    Caution(
+        "Sub-atmospheric pressure and vacuum collapse",
+        "Lines over high points, siphons and drains can run below atmospheric pressure. Thin-walled "
+        "and plastic pipe, flexible hoses and tanks drained with a blocked or undersized vent can "
+        "collapse. Air drawn in at joints changes the flow.",
+    ),
+    Caution(
+        "Siphon break and column separation",
+        "Where the computed pressure nears the liquid's vapour pressure, dissolved air and vapour "
+        "come out, the column separates and the computed full-bore flow is not possible. Keep "
+        "crests well below the limit; hot liquids flash at high points.",
+    ),
+    Caution(
+        "Back-siphonage",
+        "A line that can run full from a lower tank or process back towards a potable or clean "
+        "source needs an air gap or backflow protection as local codes require.",
+    ),
+    Caution(
+        "Overflow",
+        "Check overflow capacity for the worst-case inflow with the outlet shut, including air "
+        "entrainment and blocked screens; alarms and trips are not shown by this tool.",
+    ),
+    Caution(
+        "Vortexing and air entrainment",
+        "Low submergence over an outlet draws air, cuts the flow and can make a drain surge; "
+        "the submergence check is a screening rule only.",
+    ),
+    Caution(
+        "Static electricity",
+        "Free-fall filling and high velocities of low-conductivity flammable liquids build "
+        "static charge: follow the relevant standards for bottom filling and velocity limits.",
+    ),
+    Caution(
+        "Confined spaces",
+        "Tanks, wet wells, chambers and pits are confined spaces with toxic or oxygen-deficient "
+        "atmospheres. A computed 'drained' time is never proof that a tank is empty or safe to "
+        "enter: isolate, verify, ventilate, test the atmosphere and hold a permit.",
+    ),
+    Caution(
+        "Model limits",
+        "Rigid-column transients, Newtonian single-phase liquid, uncertain friction in the "
+        "transitional regime, roughness that grows with age, and full-bore flow assumed "
+        "throughout. Verify critical results by an independent method.",
+    ),
+)
+
+
+def cautions_text(width_hint: int = 0) -> str:
+    """All cautions as plain text paragraphs (Markdown-friendly)."""
+    lines = [PREAMBLE, ""]
+    for c in CAUTIONS:
+        lines.append(f"- {c.topic}: {c.text}")
+    return "\n".join(lines)
