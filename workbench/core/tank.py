@@ -145,16 +145,25 @@ def _prismatic(kind: str, area: float, overflow: float | None) -> TankGeometry:
 def _horizontal_cylinder(diameter: float, length: float, overflow: float | None) -> TankGeometry:
     r = 0.5 * diameter
 
+    v_full = math.pi * r * r * length
+
+    def _theta_minus_sin(theta: float) -> float:
+        if theta < 1e-2:  # series: no cancellation for tiny segments
+            t2 = theta * theta
+            return theta * t2 / 6.0 * (1.0 - t2 / 20.0 + t2 * t2 / 840.0)
+        return theta - math.sin(theta)
+
     def volume(h: float) -> float:
-        # Segment area R^2*acos((R-h)/R) - (R-h)*sqrt(2Rh - h^2), times the length.
-        y = r - h
-        return length * (r * r * math.acos(max(-1.0, min(1.0, y / r)))
-                         - y * math.sqrt(max(0.0, h * (diameter - h))))
+        # Segment of central angle theta: V = L*R^2*(theta - sin(theta))/2, with
+        # sin(theta/4) = sqrt(h/D) (accurate for small h); upper half by symmetry.
+        hh = min(max(h, 0.0), diameter)
+        low = min(hh, diameter - hh)
+        theta = 4.0 * math.asin(math.sqrt(low / diameter))
+        v_low = 0.5 * length * r * r * _theta_minus_sin(theta)
+        return v_low if hh <= r else v_full - v_low
 
     def area(h: float) -> float:
         return 2.0 * length * math.sqrt(max(0.0, h * (diameter - h)))
-
-    v_full = math.pi * r * r * length
 
     def level(v: float) -> float:
         if v <= 0.0:
@@ -169,7 +178,7 @@ def _horizontal_cylinder(diameter: float, length: float, overflow: float | None)
         rhs = 2.0 * math.pi * vv / v_full
         theta = min((6.0 * rhs) ** (1.0 / 3.0), math.pi)
         for _ in range(50):
-            fval = theta - math.sin(theta) - rhs
+            fval = _theta_minus_sin(theta) - rhs
             dfd = 1.0 - math.cos(theta)
             if dfd <= 0.0:
                 break

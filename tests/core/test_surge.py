@@ -1,0 +1,146 @@
+"""Wave speed, Joukowsky rise and effective closure time against hand calculations."""
+
+from __future__ import annotations
+
+import math
+
+import pytest
+
+from workbench.core.model import Valve, ValveSchedule
+from workbench.core.surge import (
+    effective_closure_time,
+    is_rapid_closure,
+    joukowsky,
+    round_trip,
+    wave_speed,
+)
+from workbench.core.valve import relative_flow_coefficient
+
+WATER_K = 2.19e9  # bulk modulus of water near 20 degC [Pa] (common practice, no source)
+WATER_RHO = 998.2  # IAPWS-95 at 20 degC (HYDRAULICS notes table: 998.207)
+
+# Steel NPS 12 Sch 40: ID 303.18 mm, wall 10.31 mm (ASME B36.10M); E 207 GPa, nu 0.30
+# (common practice for carbon steel).
+STEEL = dict(diameter=0.30318, wall_thickness=0.01031, elastic_modulus=207e9, poisson_ratio=0.30)
+
+
+@pytest.mark.parametrize(
+    ("support", "expected"),
+    [
+        # HYDRAULICS notes, computed from the Korteweg formula with thin-wall c1 = 1, 1 - nu^2,
+        # 1 - nu/2 (labels per Wylie & Streeter 1993 ch. 2, from memory).
+        ("expansion_joints", 1293.6),
+        ("anchored", 1307.6),
+        ("anchored_upstream", 1317.2),
+    ],
+)
+def test_steel_wave_speed_matches_the_computed_values_for_each_support(support, expected):
+    ws = wave_speed(WATER_K, WATER_RHO, support=support, **STEEL)
+    assert ws.speed == pytest.approx(expected, abs=0.06)
+    assert ws.wall == "thin"  # D/e = 29.4 > 25
+
+
+def _korteweg_by_hand(k, rho, d, e, modulus, c1):
+    # Korteweg (1878) as written in Wylie & Streeter (1993), eq. for a in ch. 2 (from memory).
+    return math.sqrt((k / rho) / (1.0 + c1 * k * d / (modulus * e)))
+
+
+def test_pe_wave_speed_uses_the_thick_wall_factor_and_matches_a_hand_calculation():
+    # PE 100 SDR 11, DN 110: OD 110 mm, e 10.0 mm, ID 90 mm (EN 12201-2 dimensions, from
+    # memory); short-term E 1.0 GPa and nu 0.45 (from memory). D/e = 9: thick wall.
+    d, e, modulus, nu = 0.090, 0.010, 1.0e9, 0.45
+    c1 = 2 * e / d * (1 + nu) + d * (1 - nu**2) / (d + e)  # anchored, thick wall
+    ws = wave_speed(WATER_K, WATER_RHO, d, e, modulus, nu, "anchored")
+    assert ws.wall == "thick"
+    assert ws.c1 == pytest.approx(c1, rel=1e-14)
+    assert ws.speed == pytest.approx(_korteweg_by_hand(WATER_K, WATER_RHO, d, e, modulus, c1),
+                                     rel=1e-12)
+
+
+@pytest.mark.parametrize(
+    ("pipe", "low", "high"),
+    [
+        # Steel water mains roughly 1000-1400 m/s (common practice, no source).
+        (STEEL, 1000.0, 1400.0),
+        # PE roughly 200-400 m/s (common practice, no source): SDR 11 and SDR 17 DN 110.
+        (dict(diameter=0.090, wall_thickness=0.010, elastic_modulus=1.0e9, poisson_ratio=0.45),
+         200.0, 400.0),
+        (dict(diameter=0.0970, wall_thickness=0.0066, elastic_modulus=1.0e9, poisson_ratio=0.45),
+         200.0, 400.0),
+    ],
+)
+def test_wave_speeds_fall_in_the_common_practice_ranges(pipe, low, high):
+    for support in ("anchored_upstream", "anchored", "expansion_joints"):
+        assert low <= wave_speed(WATER_K, WATER_RHO, support=support, **pipe).speed <= high
+
+
+def test_the_formula_and_support_factor_are_printed():
+    ws = wave_speed(WATER_K, WATER_RHO, support="anchored", **STEEL)
+    assert "1 - nu^2" in ws.formula and "0.9100" in ws.formula and "from memory" in ws.formula
+
+
+def test_a_pipe_without_wall_data_is_rigid_at_the_liquid_sound_speed():
+    # a = sqrt(K/rho) for a rigid pipe (Wylie & Streeter 1993, limit of Korteweg).
+    ws = wave_speed(WATER_K, WATER_RHO, 0.3, None, None)
+    assert ws.speed == pytest.approx(math.sqrt(WATER_K / WATER_RHO), rel=1e-15)
+
+
+def test_an_unknown_support_is_refused_with_the_choices():
+    with pytest.raises(ValueError, match="expansion_joints"):
+        wave_speed(WATER_K, WATER_RHO, support="welded", **STEEL)
+
+
+def test_joukowsky_rise_is_rho_a_dv():
+    # Joukowsky (1898): dp = rho*a*dv; 2 m/s stopped in a steel line at 1294 m/s -> about
+    # 2.58 MPa, i.e. dH = a*dv/g = 263.9 m (hand calculation).
+    dp = joukowsky(WATER_RHO, 1294.0, 2.0)
+    assert dp == pytest.approx(998.2 * 1294.0 * 2.0, rel=1e-15)
+    assert dp / (WATER_RHO * 9.80665) == pytest.approx(263.9, abs=0.05)
+
+
+def test_round_trip_is_two_l_over_a():
+    # 600 m at 1300 m/s: 2L/a = 0.923 s (HYDRAULICS notes: "2L/a ~ 0.92 s").
+    assert round_trip(600.0, 1300.0) == pytest.approx(0.923, abs=5e-4)
+
+
+def _closing(characteristic: str, stroke: float, rangeability: float = 50.0) -> Valve:
+    return Valve(characteristic, k_open=2.0, opening=1.0, rangeability=rangeability,
+                 schedule=ValveSchedule((0.0, 5.0, 5.0 + stroke), (1.0, 1.0, 0.0)))
+
+
+def _c(valve: Valve):
+    return lambda x: relative_flow_coefficient(valve.characteristic, x, valve.rangeability)
+
+
+@pytest.mark.parametrize("k_line", [0.0, 2.0, 30.0])
+def test_effective_closure_of_a_linear_valve_follows_the_quasi_steady_orifice_relation(k_line):
+    """Linear travel and c = x over stroke T_s: r = c*sqrt((Kl + K0)/(Kl*c^2 + K0)), whose
+    steepest fall (at c -> 0) is sqrt((Kl + K0)/K0)/T_s, so T_e = T_s*sqrt(K0/(Kl + K0)).
+    Derived here from the orifice relation Q ~ 1/sqrt(K_total) (no further source)."""
+    valve = _closing("linear", 12.0)
+    est = effective_closure_time(valve, _c(valve), k_line)
+    assert est.effective_time == pytest.approx(12.0 * math.sqrt(2.0 / (k_line + 2.0)), rel=2e-3)
+    assert est.stroke_time == pytest.approx(12.0) and est.flow_ratio_end == 0.0
+
+
+def test_effective_closure_of_an_equal_percentage_valve_is_the_stroke_over_ln_r():
+    """With the valve controlling all the loss, r = c(x)/c(1) and the steepest fall of
+    c = R^(x-1) (IEC 60534-2-4) is ln R at x = 1, so T_e = T_s/ln R: 12 s / ln 50 = 3.07 s."""
+    valve = _closing("equal_percentage", 12.0)
+    est = effective_closure_time(valve, _c(valve), 0.0)
+    assert est.effective_time == pytest.approx(12.0 / math.log(50.0), rel=2e-3)
+
+
+def test_a_valve_that_never_closes_has_no_effective_closure():
+    valve = Valve("linear", 2.0, schedule=ValveSchedule((0.0, 10.0), (0.2, 1.0)))
+    assert effective_closure_time(valve, _c(valve), 1.0) is None
+
+
+@pytest.mark.parametrize(
+    ("effective", "trip", "rapid"),
+    # Rigid column within 3 % of an elastic solution only from about 5 round trips
+    # (HYDRAULICS notes: computed against an independent method of characteristics).
+    [(2.0, 0.92, True), (4.5, 0.92, True), (4.7, 0.92, False), (20.0, 0.92, False)],
+)
+def test_closure_shorter_than_five_round_trips_is_rapid(effective, trip, rapid):
+    assert is_rapid_closure(effective, trip) is rapid
