@@ -192,3 +192,37 @@ def test_re_dependent_fitting_terms_are_included() -> None:
     b = k1 * nu / d / (2 * G)
     v = (-b + math.sqrt(b * b + 4 * a * h)) / (2 * a)
     assert float(solve_line_cases(cases).velocity) == pytest.approx(v, rel=1e-12)
+
+
+def _single_line_system(diameter: float, level: float, valve_opening: float | None = None):
+    from workbench.core.model import (
+        Fitting, FluidProps, Line, Receiver, Reservoir, System, Valve,
+    )
+
+    valve = None if valve_opening is None else Valve("equal_percentage", 0.2, valve_opening)
+    line = Line("L1", "T1", "OUT", length=85.0, diameter=diameter, roughness=4.5e-5,
+                fittings=(Fitting(type="elbow_90_standard", count=3), Fitting(k=0.9)), valve=valve)
+    return System(
+        title="drain", fluid=FluidProps("water", 998.207, 1.0016e-3),
+        reservoirs={"T1": Reservoir("T1", "constant_level", 6.0, level)},
+        junctions={}, receivers={"OUT": Receiver("OUT", "open_discharge", 0.5)},
+        lines={"L1": line},
+    )
+
+
+@pytest.mark.parametrize("valve_opening", [None, 0.6])
+def test_cases_built_from_systems_balance_the_network_line_model_head_loss(valve_opening) -> None:
+    # Outside reference: the line model the network solver uses (workbench.core.line.LineSet,
+    # itself checked against fluids' 2-K/3-K tables); at the vectorised flow its head loss
+    # must equal the head difference between the two ends.
+    from workbench.core.line import LineSet
+    from workbench.core.sweep import line_cases_from_systems
+
+    systems = [_single_line_system(d, lv, valve_opening) for d in (0.0525, 0.0779, 0.10226)
+               for lv in (0.5, 2.0, 4.0)]
+    cases = line_cases_from_systems(systems)
+    result = solve_line_cases(cases)
+    assert result.success
+    for system, q, dh in zip(systems, result.flow, cases.head_from - cases.head_to):
+        h, _ = LineSet(system).head_loss(np.array([q]))
+        assert float(h[0]) == pytest.approx(dh, rel=1e-9)

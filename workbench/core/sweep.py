@@ -32,6 +32,7 @@ __all__ = [
     "LineCasesResult",
     "colebrook_friction",
     "darcy_friction_vectorised",
+    "line_cases_from_systems",
     "single_line_ends",
     "solve_line_cases",
 ]
@@ -421,3 +422,49 @@ def single_line_ends(system: System) -> str | None:
     if line.from_node in fixed and line.to_node in fixed:
         return line_id
     return None
+
+
+def line_cases_from_systems(systems, line_id: str | None = None) -> LineCases:
+    """Stack single-line systems (one per case) into :class:`LineCases`.
+
+    Each system must be one line between two fixed heads (:func:`single_line_ends`). The
+    loss coefficients come from :class:`workbench.core.line.LineSet`, the same line model the
+    network solver uses: entrance and exit by flow direction, fittings split into
+    ``k_re/Re + k_const`` at each case's size, the valve at its steady opening.
+
+    Parameters
+    ----------
+    systems : sequence of System
+        One system per case.
+    line_id : str, optional
+        The line; default the only line of each system.
+
+    Raises
+    ------
+    ValueError
+        When a system is not a single line between two fixed heads.
+    """
+    from workbench.core.line import LineSet
+
+    columns: dict[str, list[float]] = {f.name: [] for f in fields(LineCases)}
+    for n, system in enumerate(systems):
+        only = single_line_ends(system)
+        if only is None or (line_id is not None and only != line_id):
+            raise ValueError(f"case {n}: the system is not one line between two fixed heads")
+        line = system.lines[only]
+        rho = system.fluid.density
+        lines = LineSet(system)
+        kv = float(lines.valve_k()[0])
+        const = float(lines.fittings_k_const[0]) + kv
+        columns["head_from"].append(_fixed_head(system, line.from_node, rho))
+        columns["head_to"].append(_fixed_head(system, line.to_node, rho))
+        columns["length"].append(line.length)
+        columns["diameter"].append(line.diameter)
+        columns["roughness"].append(line.roughness)
+        columns["density"].append(rho)
+        columns["viscosity"].append(system.fluid.viscosity)
+        columns["k_forward"].append(const + float(lines.entrance_forward[0] + lines.exit_forward[0]))
+        columns["k_reverse"].append(const + float(lines.entrance_reverse[0] + lines.exit_reverse[0]))
+        columns["k_re"].append(float(lines.fittings_k_re[0]))
+        columns["friction_factor"].append(np.nan if line.friction_factor is None else line.friction_factor)
+    return LineCases(**{k: np.asarray(v, dtype=float) for k, v in columns.items()})
