@@ -1,0 +1,416 @@
+"""Steady flow in a network of lines between fixed heads: Newton's method on heads and flows.
+
+Unknowns: the head ``H`` of every junction and the flow ``q`` of every line. Equations:
+
+* continuity at each junction, ``A q = 0`` (``A`` the junction incidence matrix of
+  :mod:`workbench.core.topology`: net inflow is zero);
+* energy along each line, ``H_from - H_to - h(q) = 0`` with ``h`` the line head loss of
+  :class:`workbench.core.line.LineSet` (friction, fittings, valve, entrance and exit by
+  flow direction).
+
+Newton's method with the analytic sparse Jacobian ``[[0, A], [-A^T, -diag(dh/dq)]]``
+(``scipy.sparse``, solved by ``spsolve``), started from a linearisation of every line at a
+velocity its end heads could drive, with a backtracking line search on the scaled residual.
+``h`` is continuously differentiable through zero flow and reversal (laminar friction is
+linear in ``q``); where ``dh/dq`` vanishes at ``q = 0`` (lines with a fixed friction factor
+and no laminar term) the Jacobian uses a small positive floor, which changes the path but
+not the answer.
+
+Lines whose valve is shut carry ``q = 0`` (their energy equation is replaced by ``q = 0``).
+
+An open discharge (a line ending in the air) cannot supply liquid: when the solution would
+send flow *out* of an open discharge into a line, that line is set to zero flow, the
+network is solved again, and a ``line.drains_back`` finding says the line stands part-full
+or drains back. The line is released again if, with it at zero flow, the head upstream of
+the discharge rises above it (an active-set loop, at most one pass per line).
+
+Junctions left with no open path to a known head (all their lines shut) have an
+undetermined head; they are pinned internally, reported as ``nan`` and flagged
+``node.isolated``.
+"""
+
+from __future__ import annotations
+
+import time
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from workbench.core.checks import ProfileResult, line_profile, steady_findings
+from workbench.core.line import LineSet
+from workbench.core.model import Finding, G, System, receiver_head, reservoir_head
+from workbench.core.topology import Topology, TopologyError, build_topology
+
+#: Energy residual tolerance [m].
+ENERGY_TOL = 1e-9
+#: Continuity residual tolerance [m^3/s] (absolute part; a relative part scales with the flows).
+CONTINUITY_TOL = 1e-12
+MAX_ITERATIONS = 100
+
+STATUS_MESSAGES = {
+    0: "converged",
+    1: "did not converge within the iteration limit",
+    2: "the linear system became singular or the iteration produced non-finite numbers",
+    3: "invalid network",
+}
+
+
+@dataclass(frozen=True)
+class LineResult:
+    """One line of a steady solution. Losses are magnitudes [m]."""
+
+    flow: float
+    """[m^3/s], positive from the from-node to the to-node."""
+    velocity: float
+    """Mean velocity, signed like the flow [m/s]."""
+    reynolds: float
+    """[-]"""
+    regime: str
+    """``"laminar"``, ``"transitional"``, ``"turbulent"`` or ``"no flow"``."""
+    friction_factor: float | None
+    """Darcy f [-]; ``None`` without flow."""
+    friction_method: str
+    friction_loss: float
+    fittings_loss: float
+    valve_loss: float
+    entrance_loss: float
+    exit_loss: float
+    minor_loss: float
+    """Fittings + valve + entrance + exit [m]."""
+    head_loss: float
+    """Friction + minor [m]."""
+    velocity_head: float
+    """v^2/2g [m]."""
+    status: str
+    """``"flowing"``, ``"closed"`` (valve shut) or ``"drains_back"``."""
+    from_node: str
+    to_node: str
+
+
+@dataclass(frozen=True)
+class NodeResult:
+    """One node of a steady solution."""
+
+    head: float
+    """Piezometric head [m] (``nan`` for an isolated junction)."""
+    pressure: float
+    """Gauge pressure at the node elevation [Pa]."""
+    elevation: float
+    """[m]"""
+    kind: str
+    """``"junction"``, ``"reservoir"``, ``"open_discharge"`` or ``"vessel"``."""
+
+
+@dataclass(frozen=True, eq=False)
+class SteadyResult:
+    """Outcome of :func:`solve_steady`, shaped like scipy's results.
+
+    ``success`` and ``status`` (0 converged, 1 iteration limit, 2 singular, 3 invalid
+    network) with ``message`` in words; ``iterations`` (Newton steps over every pass) and
+    ``residuals`` (``{"continuity": max |A q| [m^3/s], "energy": max |energy| [m]}``).
+    """
+
+    success: bool
+    status: int
+    message: str
+    iterations: int = 0
+    residuals: dict[str, float] = field(default_factory=dict)
+    lines: dict[str, LineResult] = field(default_factory=dict)
+    nodes: dict[str, NodeResult] = field(default_factory=dict)
+    profiles: dict[str, ProfileResult] = field(default_factory=dict)
+    warnings: list[Finding] = field(default_factory=list)
+    flows: np.ndarray | None = None
+    """Flow per line in :attr:`line_ids` order [m^3/s]."""
+    line_ids: tuple[str, ...] = ()
+    levels: dict[str, float] = field(default_factory=dict)
+    """Reservoir levels used [m above bottom]."""
+    openings: dict[str, float] = field(default_factory=dict)
+    """Valve openings used, per line with a valve [-]."""
+    solve_time: float = 0.0
+    """Wall-clock time of the solve [s]."""
+
+
+def fixed_heads(system: System, topo: Topology, levels: dict[str, float] | None = None):
+    """Head of every fixed node in ``topo.fixed_ids`` order [m]."""
+    rho = system.fluid.density
+    levels = levels or {}
+    out = np.empty(topo.n_fixed)
+    for k, nid in enumerate(topo.fixed_ids):
+        if nid in system.reservoirs:
+            out[k] = reservoir_head(system.reservoirs[nid], rho, levels.get(nid))
+        else:
+            out[k] = receiver_head(system.receivers[nid], rho)
+    return out
+
+
+class _Newton:
+    """Newton iteration on ``x = [H_junctions, q]`` for a fixed set of blocked lines."""
+
+    def __init__(self, lines: LineSet, topo: Topology, h_fixed: np.ndarray,
+                 openings: np.ndarray, blocked: np.ndarray):
+        from scipy import sparse
+
+        self.sparse = sparse
+        self.lines, self.topo = lines, topo
+        self.h_fixed = h_fixed
+        self.openings = openings
+        self.blocked = blocked
+        nj, nl = topo.n_junctions, topo.n_lines
+        self.nj, self.nl = nj, nl
+        a = topo.incidence.tocoo()
+        self.A = topo.incidence.tocsr()
+        self.Af = topo.fixed_incidence.tocsr()
+        reached = ~np.isin(np.arange(nj), [topo.junction_ids.index(j) for j in
+                                          topo.unreached_junctions(~blocked)])
+        self.isolated = ~reached
+        # Pins for isolated junctions: their elevation (any value works; reported as nan).
+        elev = np.array([lines.system.junctions[j].elevation for j in topo.junction_ids])
+        self.pin = elev
+        # Static sparsity pattern: rows 0..nj-1 continuity, nj.. energy; cols H then q.
+        keep_a = ~self.isolated[a.row] & ~blocked[a.col]
+        rows = [a.row[keep_a], nj + a.col[keep_a], np.flatnonzero(self.isolated),
+                nj + np.arange(nl)]
+        cols = [nj + a.col[keep_a], a.row[keep_a], np.flatnonzero(self.isolated),
+                nj + np.arange(nl)]
+        self._rows = np.concatenate(rows)
+        self._cols = np.concatenate(cols)
+        self._const = np.concatenate([
+            a.data[keep_a], -a.data[keep_a], np.ones(int(self.isolated.sum())),
+        ])
+        self._n_const = self._const.size
+        # Head scale for the merit function and tolerances.
+        self.head_span = max(float(np.ptp(h_fixed)) if h_fixed.size else 0.0, 1e-3)
+
+    def residual(self, x: np.ndarray):
+        nj = self.nj
+        hj, q = x[:nj], x[nj:]
+        h, dh = self.lines.head_loss(q, self.openings)
+        # H_from - H_to = -(A^T H_j + Af^T H_f)
+        dhead = -(self.A.T @ hj + self.Af.T @ self.h_fixed)
+        fe = dhead - h
+        fe = np.where(self.blocked, q, fe)
+        fc = self.A @ q
+        fc = np.where(self.isolated, hj - self.pin, fc)
+        return fc, fe, dh
+
+    def jacobian(self, dh: np.ndarray, q: np.ndarray):
+        diag = np.where(self.blocked, 1.0, -np.maximum(dh, self._dh_floor))
+        data = np.concatenate([self._const, diag])
+        n = self.nj + self.nl
+        return self.sparse.csc_matrix((data, (self._rows, self._cols)), shape=(n, n))
+
+    def start(self) -> np.ndarray:
+        """Laminar-style linearisation: each line as a linear resistance at a plausible speed."""
+        lines, topo = self.lines, self.topo
+        span = self.head_span
+        # A velocity the whole head span could drive through the line with f = 0.02.
+        k_tot = 1.0 + lines.fittings_k_const + 0.02 * lines.length / lines.diameter
+        v_ref = np.clip(np.sqrt(2.0 * G * span / k_tot), 0.05, 5.0)
+        q_ref = v_ref * lines.area
+        h_ref, dh_ref = lines.head_loss(q_ref, self.openings)
+        r = np.where(self.blocked, np.inf, np.maximum(h_ref / q_ref, 1e-12))
+        self._dh_floor = 1e-6 * np.where(np.isfinite(r), r, 1.0)
+        g = np.where(self.blocked, 0.0, 1.0 / r)
+        sparse = self.sparse
+        gd = sparse.diags(g)
+        lap = (self.A @ gd @ self.A.T).tolil()
+        rhs = -(self.A @ (g * (self.Af.T @ self.h_fixed)))
+        iso = np.flatnonzero(self.isolated)
+        for j in iso:
+            lap.rows[j] = [j]
+            lap.data[j] = [1.0]
+            rhs[j] = self.pin[j]
+        hj = np.zeros(self.nj)
+        if self.nj:
+            from scipy.sparse.linalg import spsolve
+
+            hj = np.atleast_1d(spsolve(lap.tocsc(), rhs))
+        dhead = -(self.A.T @ hj + self.Af.T @ self.h_fixed)
+        q = np.where(self.blocked, 0.0, g * dhead)
+        return np.concatenate([hj, q])
+
+    def merit(self, fc, fe, qscale):
+        return float(np.sum((fc / qscale) ** 2) + np.sum((fe / self.head_span) ** 2))
+
+    def solve(self, x0: np.ndarray, max_iter: int):
+        from scipy.sparse.linalg import spsolve
+
+        x = x0.copy()
+        fc, fe, dh = self.residual(x)
+        it = 0
+        status = 1
+        while it < max_iter:
+            q = x[self.nj:]
+            qscale = max(float(np.max(np.abs(q))) if q.size else 0.0, 1e-9)
+            if self.converged(fc, fe, qscale):
+                status = 0
+                break
+            jac = self.jacobian(dh, q)
+            rhs = -np.concatenate([fc, fe])
+            with np.errstate(all="ignore"):
+                step = spsolve(jac, rhs)
+            if not np.all(np.isfinite(step)):
+                status = 2
+                break
+            it += 1
+            m0 = self.merit(fc, fe, qscale)
+            lam = 1.0
+            for _ in range(30):
+                xn = x + lam * step
+                fcn, fen, dhn = self.residual(xn)
+                if np.all(np.isfinite(fen)) and self.merit(fcn, fen, qscale) <= (1 - 1e-4 * lam) * m0:
+                    break
+                lam *= 0.5
+            x, fc, fe, dh = xn, fcn, fen, dhn
+        else:
+            q = x[self.nj:]
+            qscale = max(float(np.max(np.abs(q))) if q.size else 0.0, 1e-9)
+            if self.converged(fc, fe, qscale):
+                status = 0
+        return x, fc, fe, it, status
+
+    def converged(self, fc, fe, qscale) -> bool:
+        cont = float(np.max(np.abs(fc))) if fc.size else 0.0
+        en = float(np.max(np.abs(fe))) if fe.size else 0.0
+        return cont <= CONTINUITY_TOL + 1e-13 * qscale and en <= ENERGY_TOL
+
+
+def solve_steady(system: System, *, levels: dict[str, float] | None = None,
+                 openings: dict[str, float] | None = None,
+                 max_iterations: int = MAX_ITERATIONS) -> SteadyResult:
+    """Solve the steady flows and heads of ``system``.
+
+    Parameters
+    ----------
+    system : System
+    levels : dict, optional
+        Reservoir id -> liquid level [m above bottom] replacing the stored level (a tank
+        at its current level).
+    openings : dict, optional
+        Line id -> valve opening 0..1 replacing the valve's steady opening.
+    max_iterations : int
+        Newton steps allowed per pass.
+
+    Returns
+    -------
+    SteadyResult
+        ``success`` False with the reason in ``message`` when the network is invalid (no
+        fixed head reachable, unknown node) or Newton's method does not converge.
+    """
+    t0 = time.perf_counter()
+    levels = dict(levels or {})
+    for rid in levels:
+        if rid not in system.reservoirs:
+            return SteadyResult(False, 3, f"level given for {rid!r}, which is not a reservoir")
+    try:
+        topo = build_topology(system)
+        lines = LineSet(system, topo)
+        x_open = lines.steady_openings(openings)
+    except (TopologyError, KeyError, ValueError) as exc:
+        msg = exc.args[0] if exc.args else str(exc)
+        return SteadyResult(False, 3, f"invalid network: {msg}")
+    h_fixed = fixed_heads(system, topo, levels)
+    shut = lines.closed(x_open)
+    rec_from = np.array([k == "open_discharge" for k in lines.from_kind])
+    rec_to = np.array([k == "open_discharge" for k in lines.to_kind])
+    back = np.zeros(lines.n, bool)
+    total_it = 0
+    x = fc = fe = None
+    status = 1
+    newton = None
+    for _pass in range(lines.n + 1):
+        blocked = shut | back
+        newton = _Newton(lines, topo, h_fixed, x_open, blocked)
+        x0 = newton.start()
+        if x is not None:
+            x0[newton.nj:] = np.where(blocked, 0.0, x[newton.nj:])
+            x0[:newton.nj] = np.where(newton.isolated, newton.pin, x[:newton.nj])
+        x, fc, fe, it, status = newton.solve(x0, max_iterations)
+        total_it += it
+        if status != 0:
+            break
+        q = x[newton.nj:]
+        hj = x[:newton.nj]
+        node_h = np.concatenate([hj, h_fixed])
+        dhead = node_h[topo.line_from] - node_h[topo.line_to]
+        # Flow out of an open discharge is impossible: block those lines.
+        new_back = (rec_from & (q > 0.0)) | (rec_to & (q < 0.0))
+        # A blocked line is released when the head upstream of its discharge rises above it.
+        release = back & ((rec_to & (dhead > 0.0)) | (rec_from & (dhead < 0.0))) & ~shut
+        if not new_back.any() and not release.any():
+            break
+        back = (back | new_back) & ~release
+    residuals = {
+        "continuity": float(np.max(np.abs(fc))) if fc is not None and fc.size else 0.0,
+        "energy": float(np.max(np.abs(fe))) if fe is not None and fe.size else 0.0,
+    }
+    if status != 0:
+        msg = (
+            f"no steady solution found: {STATUS_MESSAGES[status]} after {total_it} Newton "
+            f"steps (largest continuity error {residuals['continuity']:.3g} m3/s, energy "
+            f"error {residuals['energy']:.3g} m); check for lines with almost no resistance, "
+            "valves nearly shut or inconsistent levels"
+        )
+        return SteadyResult(False, status, msg, total_it, residuals,
+                            line_ids=topo.line_ids, solve_time=time.perf_counter() - t0)
+    return _assemble(system, topo, lines, newton, x, h_fixed, x_open, shut, back, levels,
+                     total_it, residuals, t0)
+
+
+def _assemble(system, topo, lines, newton, x, h_fixed, x_open, shut, back, levels,
+              iterations, residuals, t0) -> SteadyResult:
+    nj = topo.n_junctions
+    hj = x[:nj].copy()
+    hj[newton.isolated] = np.nan
+    q = x[nj:].copy()
+    q[shut | back] = 0.0
+    rho = system.fluid.density
+    det = lines.details(q, x_open)
+    node_h = np.concatenate([hj, h_fixed])
+    status = ["closed" if shut[i] else "drains_back" if back[i] else "flowing"
+              for i in range(lines.n)]
+    line_results: dict[str, LineResult] = {}
+    profiles: dict[str, ProfileResult] = {}
+    for i, lid in enumerate(topo.line_ids):
+        flowing = status[i] == "flowing" and q[i] != 0.0
+        f = float(det["friction_factor"][i])
+        losses = {k: abs(float(det[k][i])) for k in (
+            "friction_loss", "fittings_loss", "valve_loss", "entrance_loss", "exit_loss",
+            "minor_loss", "head_loss", "velocity_head")}
+        line_results[lid] = LineResult(
+            flow=float(q[i]),
+            velocity=float(det["velocity"][i]),
+            reynolds=float(det["reynolds"][i]),
+            regime=str(det["regime"][i]) if flowing else "no flow",
+            friction_factor=f if flowing and np.isfinite(f) else None,
+            friction_method=str(det["method"][i]) if flowing else "",
+            status=status[i],
+            from_node=system.lines[lid].from_node,
+            to_node=system.lines[lid].to_node,
+            **losses,
+        )
+        profiles[lid] = line_profile(system, lid, float(q[i]), float(node_h[topo.line_from[i]]),
+                                     float(node_h[topo.line_to[i]]), losses, status[i])
+    nodes: dict[str, NodeResult] = {}
+    kinds = ("junction",) * nj + tuple(topo.fixed_kind)
+    for k, nid in enumerate(topo.node_ids):
+        z = system.node_elevation(nid)
+        hk = float(node_h[k])
+        p = rho * G * (hk - z)  # at a reservoir: at the bottom, where the lines connect
+        nodes[nid] = NodeResult(head=hk, pressure=float(p), elevation=z, kind=kinds[k])
+    lv = {rid: levels.get(rid, r.level) for rid, r in system.reservoirs.items()}
+    isolated = tuple(j for j, iso in zip(topo.junction_ids, newton.isolated, strict=True) if iso)
+    findings = steady_findings(system, topo.line_ids, det, q, status, profiles, lv, isolated)
+    openings_used = {lid: float(x_open[i]) for i, lid in enumerate(topo.line_ids)
+                     if lines.has_valve[i]}
+    n_passes_note = ""
+    if back.any():
+        n_passes_note = f"; {int(back.sum())} line(s) set to no flow at an open discharge"
+    msg = (f"converged in {iterations} Newton steps (continuity {residuals['continuity']:.2g} "
+           f"m3/s, energy {residuals['energy']:.2g} m){n_passes_note}")
+    return SteadyResult(
+        success=True, status=0, message=msg, iterations=iterations, residuals=residuals,
+        lines=line_results, nodes=nodes, profiles=profiles, warnings=findings, flows=q,
+        line_ids=topo.line_ids, levels=lv, openings=openings_used,
+        solve_time=time.perf_counter() - t0,
+    )
