@@ -1,0 +1,197 @@
+"""Loading project files: TOML text -> a validated :class:`Project`.
+
+The text is read twice: by ``tomllib`` (the standard parser, whose data is what the
+project means, and whose syntax errors give line and column) and by ``tomlkit`` (a
+document that keeps comments and layout, so saves and edits change only what changed).
+Version-control conflict markers are recognised and named as such.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import re
+import tomllib
+from dataclasses import dataclass
+from pathlib import Path
+from typing import TYPE_CHECKING, Any
+
+from workbench.project.problems import Problem, ProjectError
+
+if TYPE_CHECKING:  # pragma: no cover
+    import tomlkit
+
+    from workbench.core.model import System
+
+__all__ = ["Project", "load_project", "load_project_text", "locate_key", "parse_toml", "project_from_doc"]
+
+_CONFLICT = re.compile(r"^(<{7}|={7}|>{7}|\|{7})(\s|$)")
+_TOML_POSITION = re.compile(r"\s*\(at line (\d+), column (\d+)\)\s*$")
+_TOML_END = re.compile(r"\s*\(at end of document\)\s*$")
+
+
+@dataclass(frozen=True, eq=False)
+class Project:
+    """One loaded, validated project.
+
+    Edits (:mod:`workbench.project.edit`) return new Project objects; a Project is never
+    changed in place (its ``doc`` must be treated as read-only).
+    """
+
+    path: Path | None
+    """File it was loaded from, or ``None`` for text."""
+    text: str
+    """The document's text (as loaded, or as edited)."""
+    doc: "tomlkit.TOMLDocument"
+    """Comment-preserving document; saves write it."""
+    data: dict
+    """Plain data, as ``tomllib`` reads ``text``."""
+    system: "System"
+    """The validated core model, SI units."""
+    unit_system: str
+    """Display preference: ``"SI"`` or ``"US"``."""
+    loaded_hash: str
+    """sha256 (hex) of the bytes as loaded from disk (or of the text given)."""
+    name: str = "<text>"
+    """File name used in messages."""
+
+    @property
+    def modified(self) -> bool:
+        """True when the text differs from what was loaded or last saved."""
+        return hashlib.sha256(self.text.encode("utf-8")).hexdigest() != self.loaded_hash
+
+
+def _syntax_problem(exc: tomllib.TOMLDecodeError, name: str) -> Problem:
+    message = str(exc)
+    match = _TOML_POSITION.search(message)
+    if match:
+        text = _TOML_POSITION.sub("", message)
+        return Problem(name, "", f"TOML syntax error: {text}", int(match.group(1)),
+                       int(match.group(2)))
+    text = _TOML_END.sub("", message)
+    return Problem(name, "", f"TOML syntax error at the end of the file: {text}")
+
+
+def _conflict_markers(text: str, name: str) -> list[Problem]:
+    problems = []
+    for number, line in enumerate(text.splitlines(), start=1):
+        match = _CONFLICT.match(line)
+        if match:
+            problems.append(Problem(
+                name, "", f"version-control conflict marker '{match.group(1)}': the file was "
+                "left in the middle of a merge; keep one side of each conflict and delete the "
+                "marker lines", number, 1))
+    return problems
+
+
+def parse_toml(text: str, name: str | None) -> tuple[dict, "tomlkit.TOMLDocument"]:
+    """Parse text as TOML twice: plain data (tomllib) and the layout-keeping document.
+
+    Raises
+    ------
+    ProjectError
+        For conflict markers or syntax errors, with line and column.
+    """
+    label = name or "<text>"
+    if not isinstance(text, str):
+        raise ProjectError(Problem(label, "", f"expected text, got {type(text).__name__}"))
+    markers = _conflict_markers(text, label)
+    if markers:
+        raise ProjectError(markers)
+    try:
+        data = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise ProjectError(_syntax_problem(exc, label)) from None
+    import tomlkit
+    from tomlkit.exceptions import TOMLKitError
+
+    try:
+        doc = tomlkit.parse(text)
+    except (TOMLKitError, ValueError, KeyError, IndexError) as exc:
+        line = getattr(exc, "line", None)
+        col = getattr(exc, "col", None)
+        raise ProjectError(Problem(label, "", f"TOML the editor cannot keep: {exc}", line,
+                                   col)) from None
+    return data, doc
+
+
+def locate_key(text: str, key: str) -> int | None:
+    """Best-effort line number (1-based) of a key path such as ``lines.L1.length``."""
+    parts = [re.sub(r"\[\d+\]$", "", p) for p in key.split(".") if p]
+    if not parts:
+        return None
+    header = re.compile(r"^\s*\[\s*([^\[\]]+?)\s*\]\s*(#.*)?$")
+    assign = re.compile(r"^\s*(\"[^\"]*\"|'[^']*'|[A-Za-z0-9_-]+)\s*=")
+    lines = text.splitlines()
+    current: list[str] = []
+    best: tuple[int, int] | None = None  # (matched parts, line)
+    for number, line in enumerate(lines, start=1):
+        h = header.match(line)
+        if h:
+            current = [p.strip().strip("\"'") for p in h.group(1).split(".")]
+            if current == parts[: len(current)]:
+                if best is None or len(current) > best[0]:
+                    best = (len(current), number)
+            continue
+        a = assign.match(line)
+        if a:
+            name = a.group(1).strip("\"'")
+            full = [*current, name]
+            if full == parts[: len(full)] and (best is None or len(full) > best[0]):
+                best = (len(full), number)
+    return best[1] if best else None
+
+
+def _with_lines(problems: list[Problem], text: str) -> list[Problem]:
+    out = []
+    for p in problems:
+        if p.line is None and p.key:
+            out.append(Problem(p.file, p.key, p.message, locate_key(text, p.key), None))
+        else:
+            out.append(p)
+    return out
+
+
+def project_from_doc(text: str, *, path: Path | None, name: str, loaded_hash: str,
+                     doc: Any = None, data: dict | None = None) -> Project:
+    """Validate text (already parsed when ``doc``/``data`` are given) into a Project."""
+    from workbench.project.validate import check_data
+
+    if doc is None or data is None:
+        data, doc = parse_toml(text, name)
+    system, problems = check_data(data, name)
+    if problems or system is None:
+        raise ProjectError(_with_lines(problems, text) or [Problem(name, "", "cannot build")])
+    units = data.get("project", {}).get("units", "SI")
+    return Project(path=path, text=text, doc=doc, data=data, system=system,
+                   unit_system=units, loaded_hash=loaded_hash, name=name)
+
+
+def load_project_text(text: str, name: str = "<text>") -> Project:
+    """Load a project from TOML text; raises :class:`ProjectError` with every problem."""
+    digest = hashlib.sha256(text.encode("utf-8")).hexdigest() if isinstance(text, str) else ""
+    return project_from_doc(text, path=None, name=name, loaded_hash=digest)
+
+
+def load_project(path) -> Project:
+    """Load a project file; raises :class:`ProjectError` with every problem (never another
+    exception for bad input)."""
+    path = Path(path)
+    name = str(path)
+    try:
+        raw = path.read_bytes()
+    except FileNotFoundError:
+        raise ProjectError(Problem(name, "", "no such file")) from None
+    except IsADirectoryError:
+        raise ProjectError(Problem(name, "", "is a folder, not a project file")) from None
+    except OSError as exc:
+        raise ProjectError(Problem(name, "", f"cannot read: {exc.strerror or exc}")) from None
+    try:
+        text = raw.decode("utf-8")
+    except UnicodeDecodeError as exc:
+        line = raw[: exc.start].count(b"\n") + 1
+        raise ProjectError(Problem(name, "", "not UTF-8 text (project files are UTF-8)", line,
+                                   None)) from None
+    if text.startswith("\ufeff"):
+        text = text[1:]
+    return project_from_doc(text, path=path, name=name,
+                            loaded_hash=hashlib.sha256(raw).hexdigest())

@@ -1,0 +1,268 @@
+"""Schema 1 of the project file: the one description of every section and key.
+
+Validation (:mod:`workbench.project.validate`), the terminal app's forms and the docs all
+read these tables, so a key is described once. A :class:`FieldSpec` says what a key holds
+(a quantity kind from :data:`workbench.project.units.QUANTITY_KINDS`, or ``"number"``,
+``"int"``, ``"text"``, ``"choice"``, ``"bool"``, ``"list"``), whether it is required and a
+one-line help text. Keys required only in some cases (``shape`` for a tank, ``pressure``
+for a vessel) are marked ``required=False`` and say so in ``help``; validation checks them.
+
+Element sections (``reservoirs``, ``junctions``, ``receivers``, ``lines``) hold one table per
+element, keyed by the element id; their FieldSpecs describe the keys of one element.
+``lines.valve`` and ``lines.surge`` are the sub-tables ``[lines.ID.valve]`` and
+``[lines.ID.surge]``. :data:`LIST_ITEMS` describes the entries of list-valued keys.
+
+This module imports nothing heavy: it is read at start-up.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+__all__ = [
+    "ELEMENT_SECTIONS",
+    "FieldSpec",
+    "LIST_ITEMS",
+    "ROOT_KEYS",
+    "SCHEMA_VERSION",
+    "SECTIONS",
+    "choices_for",
+    "field",
+    "spec_for",
+]
+
+#: The schema version this program reads and writes (the top-level ``schema`` key).
+SCHEMA_VERSION = 1
+
+
+@dataclass(frozen=True)
+class FieldSpec:
+    """One key of a section: what it holds, whether it is needed, and help for forms."""
+
+    name: str
+    kind: str
+    """A quantity kind (``"length"``, ``"pressure"`` ...), or ``"number"``, ``"int"``,
+    ``"text"``, ``"choice"``, ``"bool"``, ``"list"``, ``"table"`` (a sub-table)."""
+    required: bool
+    help: str
+    choices: tuple[str, ...] = ()
+    """For ``"choice"``: the valid words. Empty when the words come from a core table at
+    run time (fluid kinds, pipe materials, fitting types)."""
+    default: object = None
+    """The value used when the key is absent (as the file would write it), or ``None``."""
+    minimum: float | None = None
+    """For ``"number"``/``"int"``: smallest valid value (inclusive)."""
+    maximum: float | None = None
+    """For ``"number"``/``"int"``: largest valid value (inclusive)."""
+    example: str = ""
+    """A valid value as it would be typed, for forms and the starter file."""
+
+
+def field(name, kind, required=False, help="", **kw) -> FieldSpec:  # noqa: A002 - mirrors FieldSpec
+    """Shorthand used by the tables below."""
+    return FieldSpec(name, kind, required, help, **kw)
+
+
+_DESCRIPTION = field("description", "text", help="free text: what this element is")
+
+SECTIONS: dict[str, tuple[FieldSpec, ...]] = {
+    "project": (
+        field("title", "text", True, "name of the system, shown in reports", example="Tank drain"),
+        field("description", "text", help="what the system is and what the study is for"),
+        field("units", "choice", help="display units: SI or US customary (files keep what you typed)",
+              choices=("SI", "US"), default="SI"),
+        field("site_elevation", "elevation",
+              help="site elevation above sea level; sets the atmospheric pressure for vapour "
+              "and sub-atmospheric checks (standard atmosphere)", default="0 m", example="120 m"),
+    ),
+    "fluid": (
+        field("kind", "choice", True,
+              "'water' (IAPWS formulations from temperature), a catalogue liquid, or 'custom'",
+              example="water"),
+        field("temperature", "temperature", help="liquid temperature; required for water and "
+              "catalogue liquids", example="20 degC"),
+        field("name", "text", help="custom liquid: its name"),
+        field("density", "density", help="custom liquid: density (required)", example="998 kg/m3"),
+        field("viscosity", "viscosity", help="custom liquid: dynamic viscosity (required)",
+              example="1.0 mPa*s"),
+        field("vapor_pressure", "pressure_abs",
+              help="custom liquid: vapour pressure, absolute (optional; without it vapour "
+              "checks are skipped with a note)", example="2.34 kPa"),
+        field("bulk_modulus", "modulus",
+              help="custom liquid: bulk modulus (optional; surge wave speeds need it)",
+              example="2.2 GPa"),
+    ),
+    "reservoirs": (
+        field("kind", "choice", True, "'constant_level' (level held) or 'tank' (level changes "
+              "with flow)", choices=("constant_level", "tank")),
+        field("bottom_elevation", "elevation", True,
+              "elevation of the bottom, where outlet lines leave or enter", example="12 m"),
+        field("level", "length", True,
+              "liquid depth above the bottom (the initial level of a tank)", example="4.5 m"),
+        field("surface_pressure", "pressure", help="gauge gas pressure on the surface",
+              default="0 kPa", example="0 kPa"),
+        field("shape", "choice", help="tank: vertical_cylinder, horizontal_cylinder, "
+              "rectangular or cone_bottom (required for a tank)",
+              choices=("vertical_cylinder", "horizontal_cylinder", "rectangular", "cone_bottom")),
+        field("diameter", "length", help="tank: inside diameter (vertical and horizontal "
+              "cylinder, cone bottom)", example="3 m"),
+        field("length", "length", help="tank: length (horizontal cylinder, rectangular)"),
+        field("width", "length", help="tank: width (rectangular)"),
+        field("cone_angle", "angle", help="cone bottom: included angle at the apex "
+              "(or give cone_height)", example="60 deg"),
+        field("cone_height", "length", help="cone bottom: height of the cone, apex at the "
+              "bottom (or give cone_angle)"),
+        field("height", "length", help="tank: level at which it overflows, above the bottom"),
+        field("min_level", "length", help="tank: the level counted as drained",
+              default="0 m"),
+        _DESCRIPTION,
+    ),
+    "junctions": (
+        field("elevation", "elevation", True, "elevation of the junction", example="10 m"),
+        _DESCRIPTION,
+    ),
+    "receivers": (
+        field("kind", "choice", True, "'open_discharge' (free discharge to air) or 'vessel' "
+              "(a closed vessel at a fixed gauge pressure)", choices=("open_discharge", "vessel")),
+        field("elevation", "elevation", True, "elevation of the discharge point or vessel inlet",
+              example="2 m"),
+        field("pressure", "pressure", help="vessel: gauge pressure (required for a vessel)",
+              example="50 kPa"),
+        _DESCRIPTION,
+    ),
+    "lines": (
+        field("from", "text", True, "id of the node where the line starts (positive flow "
+              "runs from -> to)"),
+        field("to", "text", True, "id of the node where the line ends"),
+        field("length", "length", True, "developed length of the line", example="120 m"),
+        field("inner_diameter", "diameter", help="inside diameter (or nominal_size with "
+              "schedule)", example="102.26 mm"),
+        field("nominal_size", "text", help="nominal size, e.g. '4 in' or 'DN100' (with "
+              "schedule), instead of inner_diameter", example="4 in"),
+        field("schedule", "text", help="pipe schedule for nominal_size: '40', 'STD', '10S' ...",
+              default="40", example="40"),
+        field("roughness", "roughness", help="absolute wall roughness (or give material)",
+              example="0.045 mm"),
+        field("material", "choice", help="pipe material from the materials table: sets "
+              "roughness, and the elastic modulus for surge", example="commercial_steel"),
+        field("friction_factor", "number", help="a fixed Darcy friction factor instead of "
+              "the correlation", minimum=0.0, maximum=1.0),
+        field("entrance", "choice", help="where flow leaves a free surface into the line: "
+              "a named shape (sharp, inward_projecting, rounded, well_rounded ...) or a "
+              "number K", default="sharp"),
+        field("fittings", "list", help="minor losses: { type = '...', count = n } or "
+              "{ k = 0.9, label = '...' }"),
+        field("profile", "list", help="centreline profile: { distance = '...', elevation = "
+              "'...' } points with increasing distance"),
+        field("wall_thickness", "thickness", help="wall thickness, for the surge wave speed "
+              "(taken from the schedule when nominal_size is given)", example="6 mm"),
+        field("elastic_modulus", "modulus", help="Young's modulus of the wall, for the surge "
+              "wave speed (taken from material when given)", example="207 GPa"),
+        field("poisson_ratio", "number", help="Poisson's ratio of the wall (taken from "
+              "material when given)", minimum=0.0, maximum=0.5, default=0.3),
+        field("support", "choice", help="pipe restraint for the wave speed",
+              choices=("anchored", "anchored_upstream", "expansion_joints"), default="anchored"),
+        field("pressure_rating", "pressure", help="allowable gauge pressure", example="10 bar"),
+        field("valve", "table", help="a throttling valve on the line: [lines.ID.valve]"),
+        field("surge", "table", help="how surge is computed: [lines.ID.surge]"),
+        _DESCRIPTION,
+    ),
+    "lines.valve": (
+        field("characteristic", "choice", True, "inherent characteristic (IEC 60534-2-4)",
+              choices=("linear", "equal_percentage", "quick_opening")),
+        field("k_open", "number", help="loss coefficient at full opening, on the line's "
+              "velocity head (or kv_open)", minimum=0.0),
+        field("kv_open", "kv", help="flow coefficient Kv at full opening (or k_open)",
+              example="250 m3/h"),
+        field("opening", "number", help="steady opening, relative travel 0..1", minimum=0.0,
+              maximum=1.0, default=1.0),
+        field("rangeability", "number", help="equal-percentage rangeability R", minimum=1.0,
+              default=50.0),
+        field("position", "choice", help="end of the line where the valve sits",
+              choices=("from", "to"), default="to"),
+        field("schedule", "list", help="opening in time for simulations: { time = '...', "
+              "opening = x } points with increasing time"),
+    ),
+    "lines.surge": (
+        field("model", "choice", help="'rigid' column or 'elastic' (method of characteristics)",
+              choices=("rigid", "elastic"), default="rigid"),
+        field("reaches", "int", help="reaches for the elastic model (automatic when absent)",
+              minimum=1),
+    ),
+    "simulation": (
+        field("duration", "time", True, "simulated time", example="2 h"),
+        field("initial_state", "choice", help="'steady' (start from the steady state) or "
+              "'at_rest' (lines full, no flow)", choices=("steady", "at_rest"), default="steady"),
+        field("stop_when", "choice", help="stop early when every tank has drained",
+              choices=("drained",)),
+        field("output_interval", "time", help="spacing of the reported time series "
+              "(automatic when absent)", example="10 s"),
+    ),
+}
+
+#: Entries of list-valued keys: "section.key" -> FieldSpecs of one entry (an inline table).
+LIST_ITEMS: dict[str, tuple[FieldSpec, ...]] = {
+    "lines.fittings": (
+        field("type", "choice", help="a named fitting from the fittings table (or give k)"),
+        field("k", "number", help="a fixed loss coefficient (or give type)", minimum=0.0),
+        field("count", "int", help="how many", minimum=1, default=1),
+        field("label", "text", help="what the loss is, e.g. 'strainer'"),
+        field("method", "choice", help="published method for a named fitting",
+              choices=("darby_3k", "hooper_2k"), default="darby_3k"),
+    ),
+    "lines.profile": (
+        field("distance", "length", True, "distance along the line from its from-end"),
+        field("elevation", "elevation", True, "centreline elevation there"),
+    ),
+    "lines.valve.schedule": (
+        field("time", "time", True, "time from the start of the simulation"),
+        field("opening", "number", True, "relative travel 0..1", minimum=0.0, maximum=1.0),
+    ),
+}
+
+#: Keys of the top level of the file.
+ROOT_KEYS: tuple[FieldSpec, ...] = (
+    field("schema", "int", True, "schema version of the file", default=SCHEMA_VERSION),
+    field("project", "table", True, "title, display units and site"),
+    field("fluid", "table", True, "the liquid"),
+    field("reservoirs", "table", help="free liquid surfaces: sources, sinks and tanks"),
+    field("junctions", "table", help="points where lines meet"),
+    field("receivers", "table", help="open discharges and closed vessels"),
+    field("lines", "table", True, "pipe runs between nodes"),
+    field("simulation", "table", help="settings for simulations in time"),
+)
+
+#: Sections whose tables are keyed by element id, in the order files list them.
+ELEMENT_SECTIONS: tuple[str, ...] = ("reservoirs", "junctions", "receivers", "lines")
+
+
+def spec_for(section: str, key: str) -> FieldSpec | None:
+    """The FieldSpec of ``key`` in ``section`` (``"lines.valve"`` etc.), or ``None``."""
+    for spec in SECTIONS.get(section, ()) or LIST_ITEMS.get(section, ()):
+        if spec.name == key:
+            return spec
+    return None
+
+
+def choices_for(section: str, name: str) -> tuple[str, ...]:
+    """Valid words for a choice key, including those that come from the core's tables
+    (fluid kinds, pipe materials, fitting types, entrance shapes). Imports those tables."""
+    key = f"{section}.{name}"
+    if key == "fluid.kind":
+        from workbench.core.fluid import CATALOGUE
+
+        return ("water", *(k for k in CATALOGUE if k != "water"), "custom")
+    if key == "lines.material":
+        from workbench.core.pipes import ROUGHNESS
+
+        return tuple(ROUGHNESS)
+    if key == "lines.fittings.type":
+        from workbench.core.fittings import FITTINGS
+
+        return tuple(FITTINGS)
+    if key == "lines.entrance":
+        from workbench.core.fittings import ENTRANCES
+
+        return tuple(ENTRANCES)
+    spec = spec_for(section, name)
+    return spec.choices if spec is not None else ()

@@ -1,0 +1,77 @@
+"""The commented starter project that ``workbench new`` writes."""
+
+from __future__ import annotations
+
+__all__ = ["STARTER", "starter_text"]
+
+STARTER = '''\
+# A gravity-flow system for the workbench (project file, schema 1).
+#
+# Quantities are text with units: "150 mm", "6 in", "20 degC", "3.5 m3/h", "120 gpm".
+# Plain numbers only where the quantity has no unit (friction factors, K values,
+# valve openings). Pressures are gauge unless the unit says absolute ("bara", "psia",
+# "kPa abs"). Ids are the table keys ([reservoirs.TK1]) and are unique across all kinds.
+# Check the file with:  workbench check THIS_FILE
+#
+# Results are screening estimates for trained people. Surge, sub-atmospheric pressure
+# (pipe and tank collapse), siphon break, overflow and confined spaces need the care of
+# local codes, company standards and licensed engineering practice.
+schema = 1
+
+[project]
+title = "New gravity system"
+description = "Describe the system and what the study is for."
+units = "SI"  # display units: "SI" or "US" (files keep what you typed)
+site_elevation = "0 m"  # sets the atmospheric pressure for vapour checks
+
+[fluid]
+kind = "water"  # "water", a catalogue liquid (e.g. "ethylene_glycol"), or "custom"
+temperature = "20 degC"
+# kind = "custom" takes: name, density, viscosity, vapor_pressure (absolute), bulk_modulus
+
+# A tank whose level falls as it drains. For a constant level use kind = "constant_level"
+# and leave out the tank keys (shape, diameter, height, min_level ...).
+[reservoirs.TK1]
+kind = "tank"
+shape = "vertical_cylinder"  # or horizontal_cylinder, rectangular, cone_bottom
+diameter = "3 m"
+height = "5 m"  # level at which the tank overflows
+bottom_elevation = "10 m"  # outlet lines leave at this elevation
+level = "4 m"  # initial liquid depth above the bottom
+min_level = "0.1 m"  # the level counted as drained
+surface_pressure = "0 kPa"  # gauge gas pressure on the surface (vented tank: 0)
+
+# Where the line ends: free discharge to air, or kind = "vessel" with a gauge pressure.
+[receivers.OUT]
+kind = "open_discharge"
+elevation = "2 m"
+
+[lines.L1]
+from = "TK1"  # positive flow runs from -> to
+to = "OUT"
+length = "60 m"
+nominal_size = "3 in"  # or inner_diameter = "77.9 mm"
+schedule = "40"
+material = "commercial_steel"  # sets roughness (or give roughness = "0.045 mm")
+entrance = "sharp"  # inlet shape, or a loss coefficient K
+fittings = [{ type = "elbow_90_standard", count = 2 }, { type = "gate_valve" }]
+# profile = [{ distance = "0 m", elevation = "10 m" }, { distance = "60 m", elevation = "2 m" }]
+# pressure_rating = "10 bar"
+
+# An optional throttling valve on the line:
+# [lines.L1.valve]
+# characteristic = "equal_percentage"   # linear | equal_percentage | quick_opening
+# k_open = 0.5                          # K at full opening, or kv_open = "120 m3/h"
+# opening = 1.0
+# schedule = [{ time = "0 s", opening = 1.0 }, { time = "30 s", opening = 0.0 }]
+
+[simulation]
+duration = "2 h"
+initial_state = "steady"  # or "at_rest" (lines full, no flow)
+stop_when = "drained"  # stop when every tank reaches its min_level
+'''
+
+
+def starter_text() -> str:
+    """The commented starter project (valid: it passes ``workbench check``)."""
+    return STARTER
