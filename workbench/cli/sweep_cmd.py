@@ -1,0 +1,171 @@
+"""``workbench sweep PROJECT --vary KEYPATH=VALUES ...``: what-if sweeps from the command line."""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+from pathlib import Path
+
+from workbench.cli.exit_codes import ExitCode
+
+_EPILOG = """\
+values:   a comma-separated list as the file would hold them ('80 mm,100 mm,150 mm',
+          '3 in,4 in,6 in', 'linear,equal_percentage') or a range with a point count,
+          ends included ('0.5 m..4 m/8'). Several --vary make a grid; the first --vary
+          changes slowest (sweep order).
+require:  METRIC(ID) OP THRESHOLD, with OP one of < <= > >=, or 'no CODE' / 'no CODE(ID)'.
+          Metrics: flow, velocity, head_loss, reynolds (lines); pressure, head (nodes);
+          drain_time, overflow_time (tanks, from the simulation); max_pressure,
+          min_pressure (lines, from the simulation). Every --require must hold for a case
+          to pass; the first passing case in sweep order is named.
+examples:
+  workbench sweep drain.toml --vary lines.L1.nominal_size='2 in,3 in,4 in' \\
+      --require 'drain_time(T1) < 30 min' --require 'no profile.vapor'
+  workbench sweep transfer.toml --vary reservoirs.T1.level='0.5 m..4 m/8' --json
+"""
+
+
+def add_parser(subparsers, name: str, help_text: str) -> None:
+    parser = subparsers.add_parser(
+        name, help=help_text, epilog=_EPILOG, formatter_class=argparse.RawDescriptionHelpFormatter,
+        description="Solve the project once per combination of the varied values and judge each "
+        "case against the criteria. Cases run in parallel when the project has a simulation; "
+        "results come back in sweep order, and a case that fails does not stop the sweep.",
+    )
+    parser.add_argument("project", type=Path, help="project file (.toml)")
+    parser.add_argument("--vary", action="append", default=[], metavar="KEYPATH=VALUES",
+                        help="a key to vary and its values (repeat for a grid)")
+    parser.add_argument("--require", action="append", default=[], metavar="CRITERION",
+                        help="a pass criterion, e.g. 'drain_time(T1) < 30 min' (repeatable)")
+    out = parser.add_mutually_exclusive_group()
+    out.add_argument("--json", action="store_true", help="print the results as JSON on stdout")
+    out.add_argument("--csv", type=Path, metavar="PATH", help="write the results table as CSV (SI units)")
+    parser.add_argument("--steady-only", action="store_true",
+                        help="skip the simulation even when the project has one")
+    parser.add_argument("--quick", action="store_true",
+                        help="steady flows of a one-line project only, all cases in one vectorised "
+                        "solve (for dense sweeps; no profiles, warnings or simulation)")
+    parser.add_argument("--workers", type=int, default=None, metavar="N",
+                        help="processes for simulated cases (default: the machine's cores)")
+
+
+def _progress_bar():
+    """A rich progress bar on stderr, or ``None`` when stderr is not a terminal."""
+    if not sys.stderr.isatty():
+        return None
+    from rich.console import Console
+    from rich.progress import BarColumn, MofNCompleteColumn, Progress, TextColumn, TimeRemainingColumn
+
+    return Progress(TextColumn("sweep"), BarColumn(), MofNCompleteColumn(), TimeRemainingColumn(),
+                    console=Console(stderr=True), transient=True)
+
+
+def _print_table(project, sweep: dict, keypaths) -> None:
+    from rich.console import Console
+    from rich.table import Table
+
+    from workbench.output.sweep_table import display_rows, sweep_table
+
+    columns, rows = sweep_table(sweep, keypaths)
+    table = Table(title=f"Sweep of {project.system.title}", title_justify="left")
+    for col in columns:
+        table.add_column(col.title, justify="right" if col.kind or col.key == "case" else "left",
+                         overflow="fold")
+    for cells in display_rows(columns, rows, project.unit_system):
+        table.add_row(*cells)
+    console = Console()
+    console.print(table)
+    first = sweep.get("first_passing")
+    if any(c.get("pass") is not None for c in sweep["cases"]) or sweep.get("criteria"):
+        if first is None:
+            console.print("No case passes every criterion.")
+        else:
+            values = ", ".join(f"{k} = {v}" for k, v in sweep["cases"][first]["values"].items())
+            console.print(f"First passing case in sweep order: #{first} ({values}).")
+
+
+def run(args: argparse.Namespace) -> ExitCode:
+    if not args.vary:
+        print("workbench sweep: give at least one --vary KEYPATH=VALUES", file=sys.stderr)
+        return ExitCode.USAGE
+    if args.workers is not None and args.workers < 1:
+        print("workbench sweep: --workers must be at least 1", file=sys.stderr)
+        return ExitCode.USAGE
+    from workbench.project.document import ProjectError, load_project
+    from workbench.project.sweep_spec import SweepSpecError
+    from workbench.sweep_runner import plan_sweep, quick_sweep_json, run_quick_sweep, run_sweep
+
+    try:
+        project = load_project(args.project)
+    except ProjectError as exc:
+        for problem in exc.problems:
+            print(problem, file=sys.stderr)
+        return ExitCode.INVALID
+    except OSError as exc:
+        print(f"{args.project}: {exc.strerror or exc}", file=sys.stderr)
+        return ExitCode.INVALID
+    try:
+        plan = plan_sweep(project, args.vary, args.require,
+                          simulate=False if (args.steady_only or args.quick) else None)
+    except SweepSpecError as exc:
+        print(f"{args.project}: {exc}", file=sys.stderr)
+        return ExitCode.USAGE
+
+    if args.quick:
+        try:
+            sweep = quick_sweep_json(run_quick_sweep(project, plan), plan)
+        except SweepSpecError as exc:
+            print(f"{args.project}: {exc}", file=sys.stderr)
+            return ExitCode.USAGE
+    else:
+        bar = _progress_bar()
+        if bar is None:
+            outcome = run_sweep(project, plan, workers=args.workers)
+        else:
+            with bar:
+                task = bar.add_task("sweep", total=len(plan.cases))
+                outcome = run_sweep(project, plan, workers=args.workers,
+                                    progress=lambda done, total: bar.update(task, completed=done))
+        sweep = outcome.to_json()
+    if plan.criteria:
+        sweep["criteria"] = [c.text for c in plan.criteria]
+
+    keypaths = [a.keypath for a in plan.axes]
+    if args.json:
+        json.dump(_finite(sweep), sys.stdout, indent=2, allow_nan=False)
+        sys.stdout.write("\n")
+    elif args.csv:
+        from workbench.output.sweep_table import sweep_table, write_csv
+
+        columns, rows = sweep_table(sweep, keypaths)
+        try:
+            write_csv(args.csv, columns, rows)
+        except OSError as exc:
+            print(f"{args.csv}: cannot write: {exc.strerror or exc}", file=sys.stderr)
+            return ExitCode.INVALID
+        print(f"wrote {len(rows)} cases to {args.csv}", file=sys.stderr)
+    else:
+        _print_table(project, sweep, keypaths)
+
+    failed = [c for c in sweep["cases"] if c["error"]]
+    for i, c in enumerate(sweep["cases"]):
+        if c["error"]:
+            print(f"case {i} ({', '.join(f'{k} = {v}' for k, v in c['values'].items())}): {c['error']}",
+                  file=sys.stderr)
+    if sweep["cases"] and len(failed) == len(sweep["cases"]):
+        return ExitCode.INVALID
+    return ExitCode.OK
+
+
+def _finite(obj):
+    """Replace non-finite floats by None, recursively (JSON has no inf or nan)."""
+    import math
+
+    if isinstance(obj, float):
+        return obj if math.isfinite(obj) else None
+    if isinstance(obj, dict):
+        return {k: _finite(v) for k, v in obj.items()}
+    if isinstance(obj, list | tuple):
+        return [_finite(v) for v in obj]
+    return obj
