@@ -12,9 +12,10 @@ the exact table entries of the two published Reynolds- and size-dependent method
 Both split into a part proportional to ``1/Re`` and a constant part, which is how the line
 model keeps its head loss smooth through zero flow: ``(K1/Re) v|v|/2g = K1 nu v/(2 g D)``.
 
-Size: a line in the model carries its inside diameter only. We use it (in inches) for both
-methods, as fluids' ``Darby3K`` does when given ``Di``; pass ``nominal_in`` where the
-nominal size is known. At NPS 4 Sch 40 the two differ by about 0.1 % in K.
+Size: a line in the model carries its inside diameter only. The 2-K method takes it in
+inches; for the 3-K size term the nominal size is estimated from it by interpolation in the
+ASME B36.10M Schedule 40 table (as fluids' ``Darby3K`` does when given ``Di``), or passed as
+``nominal_in`` where known.
 
 Exit: one velocity head (``K = 1``) where the line discharges into a free surface, a vessel
 or the air, for turbulent flow (about 2 for a fully developed laminar profile; the model
@@ -184,6 +185,16 @@ def _tables():
     return Hooper, Darby
 
 
+def _nominal_from_inside(diameter_m: float) -> float:
+    """Nominal size [in] of the Schedule 40 pipe with this inside diameter, interpolated
+    (extrapolated outside the table) in ASME B36.10M Schedule 40, as fluids' ``Darby3K``
+    does when given ``Di``."""
+    from fluids.numerics import interp
+    from fluids.piping import NPS40, S40i
+
+    return float(interp(diameter_m * 1000.0, S40i, NPS40, extrapolate=True))
+
+
 @dataclass(frozen=True)
 class FittingLoss:
     """A fitting's K split as ``K = k_re/Re + k_const`` at one size."""
@@ -211,7 +222,8 @@ def fitting_constants(fitting: Fitting, diameter_m: float,
     diameter_m : float
         Inside diameter [m].
     nominal_in : float, optional
-        Nominal size [in] for the 3-K size term; default the inside diameter in inches.
+        Nominal size [in] for the 3-K size term; default: estimated from the inside
+        diameter as the Schedule 40 size with that bore.
 
     Raises
     ------
@@ -235,7 +247,7 @@ def fitting_constants(fitting: Fitting, diameter_m: float,
         k1, kinf = hooper[data.hooper]
         return FittingLoss(float(k1), float(kinf * (1.0 + 1.0 / d_in)), method, data.hooper)
     k1, ki, kd = darby[data.darby]
-    size = d_in if nominal_in is None else nominal_in
+    size = _nominal_from_inside(diameter_m) if nominal_in is None else nominal_in
     return FittingLoss(float(k1), float(ki * (1.0 + kd / size**0.3)), method, data.darby)
 
 
