@@ -20,6 +20,7 @@ COMMANDS: dict[str, tuple[str, str]] = {
     "check": ("workbench.cli.check_cmd", "validate project files and report every problem"),
     "new": ("workbench.cli.new_cmd", "write a commented starter project"),
     "format": ("workbench.cli.format_cmd", "rewrite project files in canonical form"),
+    "open": ("workbench.cli.open_cmd", "open a project in the keyboard-driven terminal workbench"),
 }
 
 

@@ -1,0 +1,400 @@
+"""The workbench app: the open project, its edit history, and the background solves.
+
+The app owns the state every view shows (the project, the steady result, the last
+simulation, the display unit system) as reactive variables; the views watch them. Long
+work runs in thread workers (:mod:`workbench.app.jobs`) that post a message named for what
+happened; one handler turns any worker failure into words.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import Any, ClassVar
+
+from textual import work
+from textual.app import App
+from textual.binding import Binding
+from textual.message import Message
+from textual.reactive import var
+from textual.worker import Worker, WorkerState, get_current_worker
+
+from workbench.app import jobs
+from workbench.app.commands import WorkbenchCommands
+from workbench.app.history import History
+
+#: Seconds between the last edit and the start of a steady solve.
+DEBOUNCE = 0.3
+
+VIEWS = ("system", "flows", "grade", "run", "events")
+
+
+class WorkbenchApp(App[int]):
+    """A gravity-system workbench around one project file."""
+
+    CSS_PATH = "workbench.tcss"
+    TITLE = "Gravity workbench"
+    COMMANDS = App.COMMANDS | {WorkbenchCommands}
+    ENABLE_COMMAND_PALETTE = True
+
+    BINDINGS: ClassVar = [
+        Binding("f1", "keys", "Keys", key_display="F1", id="app.keys"),
+        Binding("f2", "view('system')", "System", key_display="F2", id="view.system",
+                show=False),
+        Binding("f3", "view('flows')", "Flows", key_display="F3", id="view.flows",
+                show=False),
+        Binding("f4", "view('grade')", "Grade", key_display="F4", id="view.grade",
+                show=False),
+        Binding("f5", "view('run')", "Run", key_display="F5", id="view.run",
+                show=False),
+        Binding("f6", "view('events')", "Events", key_display="F6", id="view.events",
+                show=False),
+        Binding("f7", "toggle_units", "SI/US", key_display="F7", id="app.units"),
+        Binding("f8", "cautions", "Cautions", key_display="F8", id="app.cautions"),
+        Binding("ctrl+s", "save", "Save", id="file.save"),
+        Binding("ctrl+z", "undo", "Undo", id="edit.undo"),
+        Binding("ctrl+y", "redo", "Redo", id="edit.redo"),
+        Binding("ctrl+r", "simulate", "Simulate", id="run.simulate"),
+        Binding("escape", "stop_run", "Stop", id="run.stop"),
+        Binding("ctrl+o", "open", "Open", id="file.open"),
+        Binding("ctrl+p", "command_palette", "Commands", id="app.palette"),
+        Binding("ctrl+q", "quit", "Quit", id="app.quit", priority=True),
+    ]
+
+    # --- state the views watch ---------------------------------------------------------
+    project: var[Any] = var(None, always_update=True)
+    """The current ``Project`` (``None`` until one is loaded)."""
+    unit_system: var[str] = var("SI")
+    """Display units, ``"SI"`` or ``"US"``; never changes a stored value."""
+    steady: var[Any] = var(None, always_update=True)
+    """The last steady result (``SteadyResult``), possibly for an older edit."""
+    steady_status: var[str] = var("idle")
+    """``idle``, ``stale`` (an edit is waiting), ``solving``, ``fresh`` or ``failed``."""
+    steady_message: var[str] = var("")
+    run_status: var[str] = var("idle")
+    """``idle``, ``running``, ``done``, ``cancelled`` or ``failed``."""
+    run_progress: var[float] = var(0.0)
+    transient: var[Any] = var(None, always_update=True)
+    """The last ``TransientResult``."""
+    modified: var[bool] = var(False)
+    path: var[Path | None] = var(None)
+
+    # --- messages posted by the workers ------------------------------------------------
+    class ProjectLoaded(Message):
+        """A project file was read and validated."""
+
+        def __init__(self, project: Any, path: Path | None) -> None:
+            super().__init__()
+            self.project = project
+            self.path = path
+
+    class SteadySolved(Message):
+        """A steady solve finished for the edit numbered ``generation``."""
+
+        def __init__(self, generation: int, result: Any) -> None:
+            super().__init__()
+            self.generation = generation
+            self.result = result
+
+    class SimulationProgressed(Message):
+        """The running simulation reached ``fraction`` (0..1) of its duration."""
+
+        def __init__(self, fraction: float) -> None:
+            super().__init__()
+            self.fraction = fraction
+
+    class SimulationFinished(Message):
+        """A simulation ended (completed, stopped by an event, or cancelled)."""
+
+        def __init__(self, result: Any, system: Any, cancelled: bool) -> None:
+            super().__init__()
+            self.result = result
+            self.system = system
+            self.cancelled = cancelled
+
+    def __init__(
+        self,
+        project: Any = None,
+        *,
+        path: Path | None = None,
+        offer_new: bool = False,
+        unit_system: str | None = None,
+        debounce: float = DEBOUNCE,
+    ) -> None:
+        super().__init__()
+        self._initial_project = project
+        self._initial_path = Path(path) if path is not None else None
+        self._offer_new = offer_new
+        self._unit_override = unit_system
+        self.debounce = debounce
+        self.history: History[Any] | None = None
+        self.disk_hash: str | None = None
+        self.transient_system: Any = None
+        self._generation = 0
+        self._steady_timer = None
+
+    # --- start-up ----------------------------------------------------------------------
+    def get_default_screen(self):
+        from workbench.app.screens.desk import DeskScreen
+
+        return DeskScreen()
+
+    def on_mount(self) -> None:
+        if self._initial_project is not None:
+            self._adopt(self._initial_project, self._initial_path or self._initial_project.path)
+        elif self._initial_path is not None:
+            self.notify(f"loading {self._initial_path} …", timeout=2)
+            self.load_worker(self._initial_path)
+        elif self._offer_new:
+            self.call_after_refresh(self._ask_new)
+
+    def _ask_new(self) -> None:
+        from workbench.app.screens.dialogs import AskScreen
+
+        def answered(key: str | None) -> None:
+            if key == "n":
+                self.load_worker(None)
+            elif key == "q":
+                self.exit(0)
+
+        self.push_screen(
+            AskScreen(
+                "No project file was given. Start a new project from the commented starter "
+                "template? (It is saved only when you press Ctrl+S.)",
+                [("n", "new project from the starter"), ("o", "open a file…"), ("q", "quit")],
+                title="Open",
+            ),
+            lambda key: self.action_open() if key == "o" else answered(key),
+        )
+
+    @work(thread=True, exclusive=True, exit_on_error=False, group="load")
+    def load_worker(self, path: Path | None) -> None:
+        project = jobs.load_starter() if path is None else jobs.load(path)
+        self.post_message(self.ProjectLoaded(project, path))
+
+    def on_workbench_app_project_loaded(self, message: ProjectLoaded) -> None:
+        self._adopt(message.project, message.path)
+        self.notify(f"opened {message.path}" if message.path else "new project from the starter")
+
+    def _adopt(self, project: Any, path: Path | None) -> None:
+        """Make ``project`` the open document with a fresh history."""
+        self.history = History.start(project, saved=path is not None)
+        self.path = Path(path) if path is not None else None
+        self.disk_hash = getattr(project, "loaded_hash", None) if path is not None else None
+        if self.path is not None and self.disk_hash is None:
+            self.disk_hash = jobs.file_hash(self.path)
+        self.unit_system = self._unit_override or getattr(project, "unit_system", "SI") or "SI"
+        self.transient = None
+        self.transient_system = None
+        self.run_status = "idle"
+        self.run_progress = 0.0
+        self.steady = None
+        self._set_project(project)
+
+    # --- edits -------------------------------------------------------------------------
+    def apply_edit(self, change, *args: Any, label: str = "edit") -> Any:
+        """Apply one document operation (``set_value``, ``add_element`` ...) to the project.
+
+        Returns:
+            The new project, or raises the project's ``ProjectError`` unchanged so the caller
+            can show its problems beside the field; the model keeps its value then.
+        """
+        new = change(self.project, *args)
+        self.history.push(new, label)
+        self._set_project(new)
+        return new
+
+    def project_saved(self, project: Any) -> None:
+        """Swap in the project as saved (same model, new path and hash); no re-solve."""
+        self.set_reactive(WorkbenchApp.project, project)
+        self.refresh_bindings()
+
+    def _set_project(self, project: Any) -> None:
+        self.project = project
+        self.modified = self.history.modified if self.history else False
+        self.schedule_steady()
+        self.refresh_bindings()
+
+    def schedule_steady(self) -> None:
+        """Mark results stale and solve again once edits pause (newer edits win)."""
+        if self.project is None:
+            return
+        self._generation += 1
+        self.workers.cancel_group(self, "steady")
+        if self._steady_timer is not None:
+            self._steady_timer.stop()
+        self.steady_status = "stale"
+        self._steady_timer = self.set_timer(self.debounce, self._start_steady)
+
+    def _start_steady(self) -> None:
+        self._steady_timer = None
+        self.steady_status = "solving"
+        self.steady_worker(self.project.system, self._generation)
+
+    @work(thread=True, exclusive=True, exit_on_error=False, group="steady")
+    def steady_worker(self, system: Any, generation: int) -> None:
+        worker = get_current_worker()
+        result = jobs.solve(system)
+        if not worker.is_cancelled:
+            self.post_message(self.SteadySolved(generation, result))
+
+    def on_workbench_app_steady_solved(self, message: SteadySolved) -> None:
+        if message.generation != self._generation:
+            return  # an older edit's answer
+        result = message.result
+        self.steady = result
+        if getattr(result, "success", True):
+            self.steady_status = "fresh"
+            self.steady_message = f"{getattr(result, 'iterations', '?')} iterations"
+        else:
+            self.steady_status = "failed"
+            self.steady_message = str(getattr(result, "message", "no solution"))
+
+    # --- simulation --------------------------------------------------------------------
+    def action_simulate(self) -> None:
+        if self.project is None or self.run_status == "running":
+            return
+        self.run_status = "running"
+        self.run_progress = 0.0
+        self.action_view("run")
+        self.simulation_worker(self.project.system)
+        self.refresh_bindings()
+
+    @work(thread=True, exclusive=True, exit_on_error=False, group="simulation")
+    def simulation_worker(self, system: Any) -> None:
+        worker = get_current_worker()
+        last = [-1.0]
+
+        def progress(fraction: float) -> None:
+            if fraction - last[0] >= 0.005 or fraction >= 1.0:
+                last[0] = fraction
+                self.post_message(self.SimulationProgressed(float(fraction)))
+
+        result = jobs.simulate(system, progress, lambda: worker.is_cancelled)
+        self.post_message(self.SimulationFinished(result, system, worker.is_cancelled))
+
+    def on_workbench_app_simulation_progressed(self, message: SimulationProgressed) -> None:
+        if self.run_status == "running":
+            self.run_progress = message.fraction
+
+    def on_workbench_app_simulation_finished(self, message: SimulationFinished) -> None:
+        self.transient_system = message.system
+        self.transient = message.result
+        if message.cancelled:
+            self.run_status = "cancelled"
+        elif getattr(message.result, "success", True):
+            self.run_status = "done"
+            self.run_progress = 1.0
+        else:
+            self.run_status = "failed"
+            self.notify(str(getattr(message.result, "message", "simulation failed")),
+                        title="Simulation", severity="error", timeout=8)
+        self.refresh_bindings()
+
+    def action_stop_run(self) -> None:
+        if self.run_status == "running":
+            self.workers.cancel_group(self, "simulation")
+            self.run_status = "cancelled"
+            self.notify("simulation stopped")
+            self.refresh_bindings()
+
+    # --- the one place worker failures become words ------------------------------------
+    def on_worker_state_changed(self, event: Worker.StateChanged) -> None:
+        worker = event.worker
+        if event.state != WorkerState.ERROR:
+            return
+        text = jobs.explain(worker.error)
+        if worker.group == "steady":
+            self.steady_status = "failed"
+            self.steady_message = text.splitlines()[0] if text else "failed"
+        elif worker.group == "simulation":
+            self.run_status = "failed"
+            self.refresh_bindings()
+        elif worker.group == "load" and self.project is None:
+            self._show_load_problems(text)
+            return
+        title = {"steady": "Steady solve", "simulation": "Simulation", "load": "Open"}.get(
+            worker.group, "Background work")
+        self.notify(text, title=title, severity="error", timeout=10)
+
+    def _show_load_problems(self, text: str) -> None:
+        from workbench.app.screens.dialogs import AskScreen
+
+        def answered(key: str | None) -> None:
+            if key == "o":
+                self.action_open()
+            else:
+                self.exit(1)
+
+        self.push_screen(
+            AskScreen(f"The project could not be opened:\n\n{text}",
+                      [("o", "open another file…"), ("q", "quit")], title="Problems"),
+            answered,
+        )
+
+    # --- actions -----------------------------------------------------------------------
+    def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
+        """Grey out what cannot run now (``None`` shows the key dimmed)."""
+        has_project = self.project is not None
+        if action == "undo":
+            return bool(self.history and self.history.can_undo) or None
+        if action == "redo":
+            return bool(self.history and self.history.can_redo) or None
+        if action == "save":
+            return has_project or None
+        if action in {"simulate", "toggle_units"}:
+            return (has_project and self.run_status != "running") or None
+        if action == "stop_run":
+            return self.run_status == "running" or None
+        return True
+
+    def action_view(self, name: str) -> None:
+        from workbench.app.screens.desk import DeskScreen
+
+        if isinstance(self.screen, DeskScreen):
+            self.screen.show_view(name)
+
+    def action_keys(self) -> None:
+        from workbench.app.screens.keys import KeysScreen
+
+        self.push_screen(KeysScreen())
+
+    def action_cautions(self) -> None:
+        from workbench.app.screens.cautions import CautionsScreen
+
+        self.push_screen(CautionsScreen())
+
+    def action_toggle_units(self) -> None:
+        self.unit_system = "US" if self.unit_system == "SI" else "SI"
+        self.notify(f"showing {self.unit_system} units (the file is unchanged)", timeout=2)
+
+    def action_undo(self) -> None:
+        if self.history and self.history.can_undo:
+            project, label = self.history.undo()
+            self._set_project(project)
+            self.notify(f"undid: {label}", timeout=2)
+
+    def action_redo(self) -> None:
+        if self.history and self.history.can_redo:
+            project, label = self.history.redo()
+            self._set_project(project)
+            self.notify(f"redid: {label}", timeout=2)
+
+    def action_save(self) -> None:
+        from workbench.app import files
+
+        files.save(self)
+
+    def action_save_as(self) -> None:
+        from workbench.app import files
+
+        files.save(self, ask_name=True)
+
+    def action_open(self) -> None:
+        from workbench.app import files
+
+        files.open_other(self)
+
+    async def action_quit(self) -> None:
+        from workbench.app import files
+
+        files.leave(self)

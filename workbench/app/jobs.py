@@ -1,0 +1,67 @@
+"""The work done off the UI thread: loading a file, the steady solve, a simulation.
+
+Plain functions, no Textual: each imports its heavy modules on first use (so the app paints
+before scipy, pint and the solvers load) and calls the project layer or the core only.
+"""
+
+from __future__ import annotations
+
+import hashlib
+from collections.abc import Callable
+from pathlib import Path
+from typing import Any
+
+
+def load(path: Path) -> Any:
+    """Load and validate a project file (raises ``ProjectError`` with every problem)."""
+    from workbench.project.document import load_project
+
+    return load_project(path)
+
+
+def load_starter() -> Any:
+    """A new, unsaved project made from the commented starter template."""
+    from workbench.project.document import load_project_text, starter_text
+
+    return load_project_text(starter_text(), name="<new project>")
+
+
+def solve(system: Any) -> Any:
+    """The steady solution of a system (a ``SteadyResult``)."""
+    from workbench.core.network import solve_steady
+
+    return solve_steady(system)
+
+
+def simulate(
+    system: Any,
+    progress: Callable[[float], None],
+    cancel: Callable[[], bool],
+) -> Any:
+    """Run the transient simulation (a ``TransientResult``), reporting the fraction done."""
+    from workbench.core.transient import simulate as run
+
+    return run(system, progress=progress, cancel=cancel)
+
+
+def file_hash(path: Path) -> str | None:
+    """sha256 of the file's bytes now, or ``None`` when it is gone."""
+    try:
+        return hashlib.sha256(Path(path).read_bytes()).hexdigest()
+    except OSError:
+        return None
+
+
+def explain(error: BaseException) -> str:
+    """A failure in words a user can act on, never a traceback.
+
+    The project's own errors carry their problems (file, key path, message); anything else
+    is a bug in the tool and says so, naming the exception.
+    """
+    problems = getattr(error, "problems", None)
+    if problems:
+        return "\n".join(str(p) for p in problems)
+    if isinstance(error, OSError):
+        return f"{error.filename or 'file'}: {error.strerror or error}"
+    text = str(error) or type(error).__name__
+    return f"internal error ({type(error).__name__}): {text} — please report it"

@@ -1,0 +1,224 @@
+"""What the System view lists and edits, worked out from the project's plain data.
+
+No Textual here: the element list, the key paths of a form, the text shown for a stored
+value and the starting fields of a new element are plain functions, easy to test.
+"""
+
+from __future__ import annotations
+
+import json
+import re
+import tomllib
+from dataclasses import dataclass
+from typing import Any
+
+from workbench.project.schema import ELEMENT_SECTIONS, SECTIONS, FieldSpec
+
+#: Singular words for the element sections, as the list and the questions say them.
+NOUN = {"reservoirs": "reservoir", "junctions": "junction", "receivers": "receiver",
+        "lines": "line"}
+#: Settings sections shown above the elements.
+SETTINGS = ("project", "fluid", "simulation")
+ID_PATTERN = re.compile(r"^[A-Za-z][A-Za-z0-9_-]*$")
+
+
+@dataclass(frozen=True)
+class Entry:
+    """One row of the element list: a settings section or an element."""
+
+    section: str
+    element: str | None = None
+
+    @property
+    def key(self) -> str:
+        return f"{self.section}:{self.element}" if self.element else self.section
+
+    @classmethod
+    def from_key(cls, key: str) -> "Entry":
+        section, _, element = key.partition(":")
+        return cls(section, element or None)
+
+
+def entries(data: dict) -> list[Entry]:
+    """Settings first, then every element by section, in file order."""
+    found = [Entry(s) for s in SETTINGS]
+    for section in ELEMENT_SECTIONS:
+        for element in (data.get(section) or {}):
+            found.append(Entry(section, element))
+    return found
+
+
+@dataclass(frozen=True)
+class Field:
+    """One input of a form: the key path it edits and the schema entry describing it."""
+
+    keypath: str
+    spec: FieldSpec
+    group: str = ""
+    """Heading the field sits under (``"valve"``, ``"surge"``) or ``""``."""
+
+
+def form_fields(entry: Entry) -> list[Field]:
+    """Every editable key of an entry, with its key path, in schema order."""
+    if entry.element is None:
+        return [Field(f"{entry.section}.{s.name}", s) for s in SECTIONS[entry.section]]
+    base = f"{entry.section}.{entry.element}"
+    fields = [Field(f"{base}.{s.name}", s) for s in SECTIONS[entry.section] if s.kind != "table"]
+    for sub in (s for s in SECTIONS[entry.section] if s.kind == "table"):
+        sub_specs = SECTIONS.get(f"{entry.section}.{sub.name}", ())
+        fields += [Field(f"{base}.{sub.name}.{s.name}", s, sub.name) for s in sub_specs]
+    return fields
+
+
+def lookup(data: dict, keypath: str) -> Any:
+    """The stored value at a key path, or ``None`` when absent."""
+    node: Any = data
+    for part in _split(keypath):
+        if not isinstance(node, dict) or part not in node:
+            return None
+        node = node[part]
+    return node
+
+
+def _split(keypath: str) -> list[str]:
+    """Key path to parts; element ids never contain dots (see :data:`ID_PATTERN`)."""
+    return keypath.split(".")
+
+
+def value_text(value: Any) -> str:
+    """A stored value as the user would type it (inline TOML for lists)."""
+    if value is None:
+        return ""
+    if isinstance(value, bool):
+        return "true" if value else "false"
+    if isinstance(value, str):
+        return value
+    if isinstance(value, (list, tuple)):
+        return "[" + ", ".join(_inline(v) for v in value) + "]"
+    return str(value)
+
+
+def _inline(value: Any) -> str:
+    if isinstance(value, dict):
+        return "{ " + ", ".join(f"{k} = {_inline(v)}" for k, v in value.items()) + " }"
+    if isinstance(value, bool):
+        return "true" if value else "false"
+    if isinstance(value, str):
+        return json.dumps(value, ensure_ascii=False)
+    if isinstance(value, (list, tuple)):
+        return "[" + ", ".join(_inline(v) for v in value) + "]"
+    return repr(value)
+
+
+class EntryError(ValueError):
+    """Text in a field that cannot even be read as the kind of value it should hold."""
+
+
+def typed_value(text: str, spec: FieldSpec) -> Any:
+    """Turn the text of a field into the value handed to ``set_value``.
+
+    Quantities and words stay text (the project layer parses units and says what is
+    wrong); numbers become numbers; lists are read as inline TOML; empty text removes
+    the key (``None``).
+    """
+    text = text.strip()
+    if text == "":
+        return None
+    if spec.kind == "list":
+        try:
+            value = tomllib.loads(f"v = {text}")["v"]
+        except tomllib.TOMLDecodeError as error:
+            raise EntryError(f"not a list in TOML form ({error}); e.g. "
+                             "[{ k = 0.9, label = \"strainer\" }]") from None
+        if not isinstance(value, list):
+            raise EntryError("expected a list in square brackets: [ ... ]")
+        return value
+    if spec.kind == "int":
+        try:
+            return int(text)
+        except ValueError:
+            raise EntryError(f"'{text}' is not a whole number") from None
+    if spec.kind == "number":
+        try:
+            return float(text)
+        except ValueError:
+            if spec.name == "entrance":
+                return text
+            raise EntryError(f"'{text}' is not a number") from None
+    if spec.kind == "bool":
+        return text.lower() in {"true", "yes", "on", "1"}
+    if spec.name == "entrance":  # a named shape or a number K
+        try:
+            return float(text)
+        except ValueError:
+            return text
+    return text
+
+
+def check_new_id(data: dict, text: str) -> str:
+    """Why ``text`` cannot be a new element id, or ``""`` when it can."""
+    if not ID_PATTERN.match(text):
+        return "an id starts with a letter and holds letters, digits, _ or -"
+    for section in ELEMENT_SECTIONS:
+        if text in (data.get(section) or {}):
+            return f"'{text}' is already used by a {NOUN[section]}"
+    return ""
+
+
+def suggest_id(data: dict, stem: str) -> str:
+    """The first free id ``stem1``, ``stem2`` ... (or ``stem_2`` after an existing id)."""
+    used = {e for s in ELEMENT_SECTIONS for e in (data.get(s) or {})}
+    if stem in used or stem[-1:].isdigit():
+        base = re.sub(r"\d+$", "", stem) or stem
+    else:
+        base = stem
+    n = 1
+    while f"{base}{n}" in used:
+        n += 1
+    return f"{base}{n}"
+
+
+STEMS = {"reservoirs": "T", "junctions": "J", "receivers": "OUT", "lines": "L"}
+
+
+def starting_fields(data: dict, section: str) -> dict[str, Any]:
+    """Fields of a new element: valid as they stand, for the user to edit next."""
+    if section == "reservoirs":
+        return {"kind": "constant_level", "bottom_elevation": "0 m", "level": "1 m"}
+    if section == "junctions":
+        return {"elevation": "0 m"}
+    if section == "receivers":
+        return {"kind": "open_discharge", "elevation": "0 m"}
+    nodes = [e for s in ("reservoirs", "junctions", "receivers") for e in (data.get(s) or {})]
+    start = nodes[0] if nodes else ""
+    end = next((n for n in reversed(nodes) if n != start), start)
+    return {"from": start, "to": end, "length": "10 m", "inner_diameter": "50 mm",
+            "roughness": "0.045 mm"}
+
+
+#: Keys a sub-table gets when a form creates it, so it is valid from the first edit:
+#: a valve needs a characteristic and a loss at full opening (K 0.2 is a common-practice
+#: figure for a fully open full-bore valve, no source; the user sets the real value).
+SUB_TABLE_START = {"valve": {"characteristic": "linear", "k_open": 0.2}, "surge": {}}
+
+
+def edit_target(data: dict, field: Field, value: Any) -> tuple[str, Any]:
+    """The key path and value ``set_value`` gets for an edit of ``field``.
+
+    Fields of an absent sub-table (``[lines.L1.valve]``) create it with
+    :data:`SUB_TABLE_START`; clearing a required key of a sub-table removes the table.
+    """
+    if not field.group:
+        return field.keypath, value
+    base = field.keypath.rsplit(".", 1)[0]
+    if lookup(data, base) is None:
+        if value is None:
+            return field.keypath, None
+        fields = dict(SUB_TABLE_START.get(field.group, {}))
+        if field.spec.name == "kv_open":
+            fields.pop("k_open", None)
+        fields[field.spec.name] = value
+        return base, fields
+    if value is None and field.spec.required:
+        return base, None
+    return field.keypath, value

@@ -1,0 +1,1 @@
+"""The views of the desk: System, Flows, Grade line, Run and Events."""

@@ -1,0 +1,268 @@
+"""Forms built from the schema: one row per key, the value as typed, the display unit beside it.
+
+An entry goes to the project only through ``set_value``; when that refuses, the reason is
+shown under the field and the model keeps its value.
+"""
+
+from __future__ import annotations
+
+from typing import Any
+
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Horizontal, Vertical, VerticalScroll
+from textual.message import Message
+from textual.widgets import Input, Label, Select, Static
+
+from workbench.app.outline import (Entry, EntryError, Field, edit_target, form_fields, lookup,
+                                   typed_value, value_text)
+from workbench.project.units import QUANTITY_KINDS
+
+NODE_SECTIONS = ("reservoirs", "junctions", "receivers")
+
+
+class FieldInput(Input):
+    """A text field bound to one key path of the project."""
+
+    BINDINGS = [
+        Binding("enter", "submit", "Apply", id="field.apply"),
+        Binding("escape", "revert", "Revert", id="field.revert"),
+    ]
+
+    def __init__(self, field: Field, value: str) -> None:
+        super().__init__(value, compact=True, placeholder=_placeholder(field),
+                         id=None, classes="field-editor")
+        self.field = field
+
+    def action_revert(self) -> None:
+        """Put back the stored value and clear the message."""
+        row = self.parent.parent
+        if isinstance(row, FieldRow):
+            row.revert()
+
+
+def _placeholder(field: Field) -> str:
+    spec = field.spec
+    if spec.default not in (None, ""):
+        return f"{spec.default} (default)"
+    if spec.example:
+        return f"e.g. {spec.example}"
+    return "required" if spec.required else ""
+
+
+class FieldRow(Vertical):
+    """Name, editor and display-unit hint on one line, the problem (if any) under them."""
+
+    class Focused(Message):
+        def __init__(self, field: Field) -> None:
+            super().__init__()
+            self.field = field
+
+    def __init__(self, field: Field, stored: Any, choices: tuple[str, ...] | None) -> None:
+        super().__init__(classes="field-row")
+        self.field = field
+        self.stored = stored
+        self.choices = choices
+
+    def compose(self) -> ComposeResult:
+        spec = self.field.spec
+        with Horizontal(classes="field-line"):
+            mark = "*" if spec.required else " "
+            yield Label(f"{spec.name}{mark}", classes="field-name")
+            if self.choices:
+                options = [(c, c) for c in self.choices]
+                current = value_text(self.stored)
+                if current and current not in self.choices:
+                    options.append((current, current))
+                yield Select(options, value=current if current else Select.NULL,
+                             allow_blank=True, compact=True, classes="field-editor",
+                             prompt=str(spec.default) if spec.default is not None else "—")
+            else:
+                yield FieldInput(self.field, value_text(self.stored))
+            yield Static("", classes="field-hint")
+        yield Static("", classes="problem")
+
+    @property
+    def editor(self) -> Input | Select:
+        return self.query_one(".field-editor")
+
+    def show_problem(self, text: str) -> None:
+        problem = self.query_one(".problem", Static)
+        problem.update(f"✗ {text}" if text else "")
+        problem.display = bool(text)
+        self.set_class(bool(text), "-invalid")
+
+    def set_stored(self, stored: Any, unit_system: str) -> None:
+        """Show a new stored value (after an edit, undo or redo elsewhere)."""
+        changed = stored != self.stored
+        self.stored = stored
+        editor = self.editor
+        text = value_text(stored)
+        if isinstance(editor, Select):
+            target = text if text else Select.NULL
+            if editor.value != target:
+                with editor.prevent(Select.Changed):
+                    if text and text not in (self.choices or ()):
+                        editor.set_options([(c, c) for c in (*self.choices, text)])
+                    editor.value = target
+        elif changed or not self.has_class("-invalid"):
+            if editor.value != text and not (editor.has_focus and self.has_class("-invalid")):
+                editor.value = text
+        if changed:
+            self.show_problem("")
+        self.show_hint(unit_system)
+
+    def revert(self) -> None:
+        editor = self.editor
+        if isinstance(editor, Input):
+            editor.value = value_text(self.stored)
+        self.show_problem("")
+
+    def show_hint(self, unit_system: str) -> None:
+        self.query_one(".field-hint", Static).update(hint(self.field, self.stored, unit_system))
+
+    def on_descendant_focus(self) -> None:
+        self.post_message(self.Focused(self.field))
+
+
+def hint(field: Field, stored: Any, unit_system: str) -> str:
+    """The stored value in the display unit (``= 4.03 in``), or the unit expected."""
+    kind = field.spec.kind
+    if kind not in QUANTITY_KINDS:
+        return ""
+    from workbench.project.units import display_unit, format_quantity, parse_quantity
+
+    if stored in (None, ""):
+        return f"[{display_unit(kind, unit_system)}]"
+    try:
+        return "= " + format_quantity(parse_quantity(stored, kind), kind, unit_system)
+    except Exception:  # noqa: BLE001 - a hint only; validation reports the real problem
+        return f"[{display_unit(kind, unit_system)}]"
+
+
+class FieldForm(VerticalScroll):
+    """The form for one entry of the element list."""
+
+    class Committed(Message):
+        """A field's new value was accepted into the project."""
+
+        def __init__(self, keypath: str) -> None:
+            super().__init__()
+            self.keypath = keypath
+
+    def __init__(self, **kwargs) -> None:
+        super().__init__(**kwargs)
+        self.entry: Entry | None = None
+
+    async def show(self, entry: Entry | None, data: dict, unit_system: str) -> None:
+        """Build the form for ``entry`` (or refresh values when it is already shown)."""
+        if entry == self.entry and self.query(FieldRow):
+            self.refresh_values(data, unit_system)
+            return
+        self.entry = entry
+        await self.remove_children()
+        if entry is None:
+            return
+        rows: list = []
+        group = ""
+        for field in form_fields(entry):
+            if field.group != group:
+                group = field.group
+                rows.append(Static(f"── {group} ──", classes="field-group"))
+            rows.append(FieldRow(field, lookup(data, field.keypath), choices_for(field, data)))
+        await self.mount_all(rows)
+        self.refresh_values(data, unit_system)
+
+    def refresh_values(self, data: dict, unit_system: str) -> None:
+        for row in self.query(FieldRow):
+            row.set_stored(lookup(data, row.field.keypath), unit_system)
+
+    def focus_first(self) -> None:
+        editors = self.query(".field-editor")
+        if editors:
+            editors.first().focus()
+
+    # --- committing --------------------------------------------------------------------
+    def on_input_submitted(self, event: Input.Submitted) -> None:
+        if isinstance(event.input, FieldInput):
+            event.stop()
+            self._commit(event.input.parent.parent, event.value)
+
+    def on_descendant_blur(self, event) -> None:
+        widget = event.control if hasattr(event, "control") else None
+        if isinstance(widget, FieldInput):
+            row = widget.parent.parent
+            if isinstance(row, FieldRow) and widget.value != value_text(row.stored):
+                self._commit(row, widget.value)
+
+    def on_select_changed(self, event: Select.Changed) -> None:
+        event.stop()
+        row = event.select.parent.parent
+        if isinstance(row, FieldRow):
+            value = "" if event.value is Select.NULL else str(event.value)
+            self._commit(row, value)
+
+    def _commit(self, row: FieldRow, text: str) -> None:
+        if self.app.project is None:
+            return
+        try:
+            value = typed_value(text, row.field.spec)
+        except EntryError as error:
+            row.show_problem(str(error))
+            return
+        if value == row.stored or (value is None and row.stored is None):
+            row.show_problem("")
+            return
+        from workbench.project.document import set_value
+        from workbench.project.problems import ProjectError
+
+        keypath, target = edit_target(self.app.project.data, row.field, value)
+        try:
+            self.app.apply_edit(set_value, keypath, target,
+                                label=f"{row.field.keypath} = {text.strip() or '(removed)'}")
+        except ProjectError as error:
+            row.show_problem(problem_text(error, row.field.keypath))
+            return
+        row.show_problem("")
+        self.post_message(self.Committed(row.field.keypath))
+
+
+def problem_text(error: Exception, keypath: str) -> str:
+    """The messages of a refused edit, those about this key first, without the file name."""
+    problems = list(getattr(error, "problems", []) or [])
+    if not problems:
+        return str(error)
+    mine = [p for p in problems if p.key == keypath or p.key.startswith(keypath)]
+    others = [p for p in problems if p not in mine]
+    parts = [p.message for p in mine] + [f"{p.key}: {p.message}" for p in others]
+    return "; ".join(parts)
+
+
+def choices_for(field: Field, data: dict) -> tuple[str, ...] | None:
+    """The words a field can take, for a drop-down; ``None`` for free text."""
+    spec = field.spec
+    if spec.name in ("from", "to") and field.keypath.startswith("lines."):
+        return tuple(e for s in NODE_SECTIONS for e in (data.get(s) or {}))
+    if spec.kind != "choice":
+        return None
+    if spec.name == "entrance":
+        return None  # a named shape or a number K: free text
+    if spec.choices:
+        return spec.choices
+    return _runtime_choices(spec.name)
+
+
+def _runtime_choices(name: str) -> tuple[str, ...] | None:
+    """Words that come from a core table (fluids, materials, fittings), if it is there."""
+    try:
+        if name == "kind":
+            from workbench.core.fluid import CATALOGUE
+
+            return ("water", *sorted(k for k in CATALOGUE if k != "water"), "custom")
+        if name == "material":
+            from workbench.core.pipes import ROUGHNESS
+
+            return tuple(sorted(ROUGHNESS))
+    except ImportError:
+        return None
+    return None

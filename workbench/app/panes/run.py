@@ -1,0 +1,136 @@
+"""The Run view: the simulation's progress, and trend plots of the series the user picks.
+
+Levels are drawn against the left axis and flows against the right one, each in the
+display unit; the series list (Space toggles) chooses what is drawn.
+"""
+
+from __future__ import annotations
+
+from typing import Any
+
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Horizontal, Vertical
+from textual.widgets import ProgressBar, SelectionList, Static
+
+from workbench.app.results import _get
+
+RUN_WORDS = {
+    "idle": "not run yet: Ctrl+R simulates",
+    "running": "running … Esc stops",
+    "done": "done",
+    "cancelled": "stopped by the user (partial results)",
+    "failed": "FAILED",
+}
+
+
+def trend_series(result: Any) -> list[tuple[str, str, str, list[float]]]:
+    """``(key, label, kind, values SI)`` for every level and flow series of a run."""
+    found: list[tuple[str, str, str, list[float]]] = []
+    levels = _get(result, "levels", default={}) or {}
+    for tank, values in levels.items():
+        values = _get(values, "level", "level_m", default=values)
+        found.append((f"level:{tank}", f"level {tank}", "length", [float(v) for v in values]))
+    flows = _get(result, "flows", default={}) or {}
+    if isinstance(flows, dict):
+        items = flows.items()
+    else:  # an array, lines x time, in the order of line_ids
+        ids = _get(result, "line_ids", default=None) or []
+        items = zip(ids, flows)
+    for line, values in items:
+        values = _get(values, "flow", "flow_m3_s", default=values)
+        found.append((f"flow:{line}", f"flow {line}", "flow", [float(v) for v in values]))
+    return found
+
+
+class RunPane(Vertical):
+    """Simulation progress and trends."""
+
+    BINDINGS = [
+        Binding("space", "toggle_series", "Show/hide", id="run.toggle_series"),
+    ]
+
+    def compose(self) -> ComposeResult:
+        with Horizontal(id="run-head"):
+            yield Static("", id="run-status")
+            yield ProgressBar(total=1.0, show_eta=False, id="run-progress")
+        with Horizontal(id="run-body"):
+            yield SelectionList[str](id="run-series")
+            yield Vertical(id="run-plot-holder")
+
+    def on_mount(self) -> None:
+        self._plot = None
+        self._series: list[tuple[str, str, str, list[float]]] = []
+        self._chosen: set[str] | None = None
+        self.watch(self.app, "run_status", self._show_status)
+        self.watch(self.app, "run_progress", self._show_progress)
+        self.watch(self.app, "transient", self._show_result, init=False)
+        self.watch(self.app, "unit_system", self._redraw, init=False)
+
+    def _show_status(self, status: str) -> None:
+        self.query_one("#run-status", Static).update(f"Run: {RUN_WORDS.get(status, status)}")
+        self.set_class(status == "running", "-running")
+
+    def _show_progress(self, fraction: float) -> None:
+        self.query_one("#run-progress", ProgressBar).update(progress=fraction)
+
+    def activate(self) -> None:
+        if self._plot is None:
+            from textual_plotext import PlotextPlot
+
+            self._plot = PlotextPlot(id="run-plot")
+            self.query_one("#run-plot-holder").mount(self._plot)
+        self.query_one("#run-series").focus()
+        self.call_after_refresh(self._redraw)
+
+    def _show_result(self, result) -> None:
+        box = self.query_one("#run-series", SelectionList)
+        self._series = trend_series(result) if result is not None else []
+        if self._chosen is None:  # first run: every level and the first flow
+            flows = [k for k, _l, kind, _v in self._series if kind == "flow"]
+            self._chosen = {k for k, _l, kind, _v in self._series if kind == "length"}
+            self._chosen |= set(flows[:1])
+        box.clear_options()
+        box.add_options([(label, key, key in self._chosen)
+                         for key, label, _kind, _values in self._series])
+        self._redraw()
+
+    def on_selection_list_selected_changed(self, event: SelectionList.SelectedChanged) -> None:
+        event.stop()
+        self._chosen = set(event.selection_list.selected)
+        self._redraw()
+
+    def action_toggle_series(self) -> None:
+        box = self.query_one("#run-series", SelectionList)
+        if box.highlighted is not None:
+            box.toggle(box.get_option_at_index(box.highlighted))
+
+    def _redraw(self, _value=None) -> None:
+        if self._plot is None:
+            return
+        plt = self._plot.plt
+        plt.clear_data()
+        plt.clear_figure()
+        result = self.app.transient
+        if result is None:
+            plt.title("no simulation yet: Ctrl+R runs one")
+            self._plot.refresh()
+            return
+        from workbench.project.units import display_unit, to_display
+
+        units = self.app.unit_system
+        t = [float(v) for v in _get(result, "t", "time", "time_s", default=[])]
+        hours = bool(t) and t[-1] > 7200
+        x = [v / 3600 if hours else v for v in t]
+        markers = "•+ox*#@%&"
+        for n, (key, label, kind, values) in enumerate(self._series):
+            if key not in (self._chosen or set()) or len(values) != len(x):
+                continue
+            side = "left" if kind == "length" else "right"
+            y = [float(to_display(v, kind, units)) for v in values]
+            plt.plot(x, y, label=f"{label} [{display_unit(kind, units)}]",
+                     marker=markers[n % len(markers)], yside=side)
+        plt.xlabel("time [h]" if hours else "time [s]")
+        plt.ylabel(f"level [{display_unit('length', units)}]", yside="left")
+        plt.ylabel(f"flow [{display_unit('flow', units)}]", yside="right")
+        self._plot.refresh()

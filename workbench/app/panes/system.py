@@ -1,0 +1,56 @@
+"""The System view: the element list on the left, the chosen element's form on the right."""
+
+from __future__ import annotations
+
+from textual.app import ComposeResult
+from textual.containers import Horizontal, Vertical
+from textual.widgets import Static
+
+from workbench.app.outline import NOUN, Entry
+from workbench.app.panes.elements import ElementList
+from workbench.app.panes.form import FieldForm, FieldRow
+
+
+class SystemPane(Horizontal):
+    """Browse and edit every element and setting of the project."""
+
+    def compose(self) -> ComposeResult:
+        yield ElementList(id="elements")
+        with Vertical(id="form-side"):
+            yield Static("", id="form-title")
+            yield FieldForm(id="form")
+            yield Static("", id="field-help")
+
+    def on_mount(self) -> None:
+        self.watch(self.app, "project", self._project_changed)
+        self.watch(self.app, "unit_system", self._units_changed, init=False)
+
+    async def _project_changed(self, project) -> None:
+        if project is None:
+            return
+        elements = self.query_one(ElementList)
+        elements.show(project.data)
+        await self._show_entry(elements.entry)
+
+    async def _units_changed(self, _units: str) -> None:
+        if self.app.project is not None:
+            self.query_one(FieldForm).refresh_values(self.app.project.data, self.app.unit_system)
+
+    async def _show_entry(self, entry: Entry | None) -> None:
+        if entry is None or self.app.project is None:
+            return
+        title = (f"{NOUN[entry.section]} {entry.element}" if entry.element
+                 else f"{entry.section} settings")
+        self.query_one("#form-title", Static).update(
+            f"{title}   (* required · Enter applies · Esc reverts)")
+        await self.query_one(FieldForm).show(entry, self.app.project.data, self.app.unit_system)
+
+    async def on_element_list_chosen(self, message: ElementList.Chosen) -> None:
+        await self._show_entry(message.entry)
+
+    def on_element_list_edit_requested(self, _message: ElementList.EditRequested) -> None:
+        self.query_one(FieldForm).focus_first()
+
+    def on_field_row_focused(self, message: FieldRow.Focused) -> None:
+        spec = message.field.spec
+        self.query_one("#field-help", Static).update(f"{message.field.keypath}: {spec.help}")

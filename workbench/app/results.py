@@ -1,0 +1,120 @@
+"""Rows of text for the result tables, in the display units. No Textual here.
+
+Severity is always carried by a word and a symbol, never by colour alone.
+"""
+
+from __future__ import annotations
+
+import math
+from typing import Any
+
+#: severity -> (symbol, word) shown in every findings table.
+SEVERITY = {
+    "danger": ("‼", "DANGER"),
+    "caution": ("!", "caution"),
+    "info": ("i", "info"),
+}
+
+
+def severity_label(severity: str) -> str:
+    symbol, word = SEVERITY.get(severity, ("?", severity))
+    return f"{symbol} {word}"
+
+
+def _get(obj: Any, *names: str, default: Any = None) -> Any:
+    for name in names:
+        if isinstance(obj, dict) and name in obj:
+            return obj[name]
+        if hasattr(obj, name):
+            return getattr(obj, name)
+    return default
+
+
+def _num(value: Any, kind: str | None, units: str, digits: int = 4) -> str:
+    if value is None:
+        return "—"
+    try:
+        value = float(value)
+    except (TypeError, ValueError):
+        return str(value)
+    if not math.isfinite(value):
+        return "—"
+    if kind is None:
+        return _plain(value, digits)
+    from workbench.project.units import to_display
+
+    return _plain(float(to_display(value, kind, units)), digits)
+
+
+def _plain(x: float, digits: int) -> str:
+    if x == 0:
+        return "0"
+    magnitude = math.floor(math.log10(abs(x)))
+    if magnitude >= 6 or magnitude < -3:
+        return f"{x:.{max(digits - 1, 0)}e}"
+    decimals = max(0, digits - 1 - magnitude)
+    text = f"{x:.{decimals}f}"
+    return text
+
+
+def unit(kind: str, units: str) -> str:
+    from workbench.project.units import display_unit
+
+    return display_unit(kind, units)
+
+
+def line_columns(units: str) -> list[str]:
+    return ["line", f"flow {unit('flow', units)}", f"v {unit('velocity', units)}", "Re",
+            "regime", "f", f"loss {unit('head', units)}"]
+
+
+def line_rows(result: Any, units: str) -> list[tuple[str, ...]]:
+    """One row per line: flow, velocity, Reynolds number, regime, friction factor, loss."""
+    rows = []
+    for line_id, line in (_get(result, "lines", default={}) or {}).items():
+        rows.append((
+            line_id,
+            _num(_get(line, "flow", "flow_m3_s"), "flow", units),
+            _num(_get(line, "velocity", "velocity_m_s"), "velocity", units, 3),
+            _num(_get(line, "reynolds"), None, units, 3),
+            str(_get(line, "regime", default="—")),
+            _num(_get(line, "friction_factor", "f"), None, units, 3),
+            _num(_get(line, "head_loss", "head_loss_m", "total_loss"), "head", units),
+        ))
+    return rows
+
+
+def node_columns(units: str) -> list[str]:
+    return ["node", "kind", f"head {unit('head', units)}", f"p {unit('pressure', units)} g",
+            f"z {unit('elevation', units)}"]
+
+
+def node_rows(result: Any, units: str) -> list[tuple[str, ...]]:
+    """One row per node: kind, piezometric head, gauge pressure, elevation."""
+    rows = []
+    for node_id, node in (_get(result, "nodes", default={}) or {}).items():
+        rows.append((
+            node_id,
+            str(_get(node, "kind", default="")),
+            _num(_get(node, "head", "head_m"), "head", units),
+            _num(_get(node, "pressure", "pressure_pa"), "pressure", units),
+            _num(_get(node, "elevation"), "elevation", units),
+        ))
+    return rows
+
+
+FINDING_COLUMNS = ["severity", "code", "element", "message"]
+
+
+def finding_rows(findings: Any) -> list[tuple[str, str, str, str]]:
+    """Findings with the most serious first (order otherwise kept)."""
+    rank = {"danger": 0, "caution": 1, "info": 2}
+    items = sorted(list(findings or []), key=lambda f: rank.get(_get(f, "severity"), 3))
+    return [(severity_label(_get(f, "severity", default="caution")), _get(f, "code", default=""),
+             _get(f, "element", default=""), _get(f, "message", default=""))
+            for f in items]
+
+
+def sorted_findings(findings: Any) -> list[Any]:
+    rank = {"danger": 0, "caution": 1, "info": 2}
+    return sorted(list(findings or []), key=lambda f: rank.get(_get(f, "severity"), 3))

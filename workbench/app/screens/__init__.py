@@ -1,0 +1,1 @@
+"""Modal screens: questions, the key list and the cautions."""
