@@ -252,6 +252,17 @@ def test_out_of_range_temperature_gives_a_note():
     assert any("outside the range" in n and "extrapolated" in n for n in props.notes)
 
 
+def test_temperature_where_a_correlation_breaks_down_is_refused_with_its_range():
+    # Ethanol's critical temperature is 514 K (Perry's table 2-32 ends there): no liquid.
+    with pytest.raises(FluidPropertyError, match=r"ethanol.*critical temperature.*hold from"):
+        liquid_properties("ethanol", 600.0)
+
+
+def test_hot_brine_at_one_atmosphere_warns_that_it_may_boil():
+    props = liquid_properties("sodium_chloride_3_5", 373.0 + 0.5)
+    assert any("may boil" in n for n in props.notes)
+
+
 def test_liquid_above_its_boiling_point_gives_a_note():
     # Acetone boils at 56 degC at one atmosphere (CRC, from memory).
     props = liquid_properties("acetone", 60.0 + 273.15)

@@ -323,6 +323,18 @@ def _entry(name: str) -> LiquidEntry:
     )
 
 
+def _refuse_supercritical(entry: LiquidEntry, t: float) -> None:
+    from chemicals.critical import Tc
+
+    t_c = Tc(entry.cas)
+    if t_c is not None and t >= t_c:
+        raise FluidPropertyError(
+            f"{entry.name} at {_celsius(t)} is above its critical temperature "
+            f"({_celsius(t_c)}): there is no liquid; its correlations hold from "
+            f"{_celsius(entry.t_min)} to {_celsius(entry.t_max)}"
+        )
+
+
 def _perry_dippr(entry: LiquidEntry, t: float) -> tuple[float, float, float | None]:
     import chemicals
     from chemicals.dippr import EQ101, EQ105
@@ -330,6 +342,7 @@ def _perry_dippr(entry: LiquidEntry, t: float) -> tuple[float, float, float | No
     from chemicals.viscosity import mu_data_Perrys_8E_2_313
     from chemicals.volume import rho_data_Perry_8E_105_l
 
+    _refuse_supercritical(entry, t)
     cas = entry.cas
     r = rho_data_Perry_8E_105_l.loc[cas]
     rho = EQ105(t, r["C1"], r["C2"], r["C3"], r["C4"]) * chemicals.MW(cas) / 1000.0
@@ -344,6 +357,7 @@ def _vdi_ppds(entry: LiquidEntry, t: float) -> tuple[float, float, float | None]
     from chemicals.viscosity import PPDS9, mu_data_VDI_PPDS_7
     from chemicals.volume import rho_data_VDI_PPDS_2, volume_VDI_PPDS
 
+    _refuse_supercritical(entry, t)
     r = rho_data_VDI_PPDS_2.loc[entry.cas]
     rho = volume_VDI_PPDS(t, r["Tc"], r["rhoc"], r["A"], r["B"], r["C"], r["D"])
     m = mu_data_VDI_PPDS_7.loc[entry.cas]
@@ -411,6 +425,12 @@ def _liquid_cached(key: str, t: float, p: float) -> FluidProps:
         )
     if entry.method == "laliberte":
         notes.append("vapour pressure is pure water's: an upper bound for the solution")
+        if psat is not None and psat >= p:
+            notes.append(
+                f"at {_celsius(t)} water's vapour pressure ({psat / 1000:.4g} kPa) reaches "
+                f"{p / 1000:.3g} kPa abs: the solution may boil (its boiling point is higher "
+                "than water's, by an amount not computed here)"
+            )
     formulation = entry.source
     if entry.mass_fraction is not None:
         formulation = f"{entry.name}: {entry.source}"
