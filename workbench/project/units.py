@@ -176,6 +176,11 @@ class ParsedQuantity:
     """``"gauge"`` or ``"absolute"`` when the unit said so; ``None`` when it did not."""
 
 
+def _a(word: str) -> str:
+    """``"a length"``, ``"an elevation"``."""
+    return f"an {word}" if word[:1].lower() in "aeiou" else f"a {word}"
+
+
 def _dimension_word(units: "pint.Unit") -> str:
     ureg = get_registry()
     dim = units.dimensionality
@@ -183,7 +188,7 @@ def _dimension_word(units: "pint.Unit") -> str:
         return "a plain number"
     for unit, word in _DIMENSION_WORDS:
         if ureg.parse_units(unit).dimensionality == dim:
-            return f"a {word}"
+            return _a(word)
     return f"a quantity in {dim}"
 
 
@@ -192,18 +197,18 @@ def _split_number(text: str, what: str) -> tuple[float, str]:
     if match is None:
         stripped = text.strip()
         if re.match(r"^[+-]?(inf|infinity|nan)\b", stripped, re.I):
-            raise UnitError(f"{text!r} is not a {what}: the value must be a finite number")
-        raise UnitError(f"{text!r} is not a {what}: it must start with a number, e.g. "
+            raise UnitError(f"{text!r} is not {_a(what)}: the value must be a finite number")
+        raise UnitError(f"{text!r} is not {_a(what)}: it must start with a number, e.g. "
                         f"{_example(what)!r}")
     number, rest = match.group("num"), match.group("rest")
     if rest[:1] in {",", "_"} or re.match(r"\s+\d", rest) or rest[:1].isdigit():
         raise UnitError(
-            f"{text!r} is not a {what}: write the number without spaces or separators and "
+            f"{text!r} is not {_a(what)}: write the number without spaces or separators and "
             "with a decimal point (e.g. 1000 or 1.5)"
         )
     value = float(number)
     if not math.isfinite(value):
-        raise UnitError(f"{text!r} is not a {what}: the value must be a finite number")
+        raise UnitError(f"{text!r} is not {_a(what)}: the value must be a finite number")
     return value, rest.strip()
 
 
@@ -216,14 +221,14 @@ def _example(what: str) -> str:
 
 def _parse_units(text: str, unit_text: str, what: str) -> "pint.Unit":
     if not re.match(r"^[A-Za-z°µμΩ%]", unit_text):
-        raise UnitError(f"{text!r} is not a {what}: expected a number followed by a unit, "
+        raise UnitError(f"{text!r} is not {_a(what)}: expected a number followed by a unit, "
                         f"e.g. {_example(what)!r}")
     if not re.fullmatch(r"[A-Za-z0-9_°µμΩ%\s\*/\^\(\)\.·-]+", unit_text):
-        raise UnitError(f"{text!r} is not a {what}: the unit {unit_text!r} has characters a "
+        raise UnitError(f"{text!r} is not {_a(what)}: the unit {unit_text!r} has characters a "
                         "unit cannot have")
     without_exponents = _EXPONENT.sub("", unit_text)
     if re.search(r"(^|[^A-Za-z0-9_])[\d.]", without_exponents):
-        raise UnitError(f"{text!r} is not a {what}: numbers are not allowed inside the unit "
+        raise UnitError(f"{text!r} is not {_a(what)}: numbers are not allowed inside the unit "
                         f"{unit_text!r}; write one number, then the unit")
     ureg = get_registry()
     import pint
@@ -233,9 +238,9 @@ def _parse_units(text: str, unit_text: str, what: str) -> "pint.Unit":
     except pint.UndefinedUnitError as exc:
         names = getattr(exc, "unit_names", None) or (unit_text,)
         name = names[0] if isinstance(names, (list, tuple)) else names
-        raise UnitError(f"{text!r} is not a {what}: unknown unit {name!r}") from None
+        raise UnitError(f"{text!r} is not {_a(what)}: unknown unit {name!r}") from None
     except Exception:  # pint's tokenizer raises assorted errors on malformed text
-        raise UnitError(f"{text!r} is not a {what}: cannot read the unit {unit_text!r}") from None
+        raise UnitError(f"{text!r} is not {_a(what)}: cannot read the unit {unit_text!r}") from None
 
 
 def _split_reference(unit_text: str) -> tuple[str, Reference | None]:
@@ -296,13 +301,13 @@ def parse_value(text: object, kind: str) -> ParsedQuantity:
     what = spec.name
     if isinstance(text, bool) or not isinstance(text, str):
         if isinstance(text, (int, float)):
-            raise UnitError(f"expected a {what} with a unit, e.g. {spec.example!r}, "
+            raise UnitError(f"expected {_a(what)} with a unit, e.g. {spec.example!r}, "
                             f"got the bare number {text!r}")
-        raise UnitError(f"expected a {what} as text with a unit, e.g. {spec.example!r}, "
+        raise UnitError(f"expected {_a(what)} as text with a unit, e.g. {spec.example!r}, "
                         f"got {type(text).__name__} {text!r}")
     value, unit_text = _split_number(text, what)
     if not unit_text:
-        raise UnitError(f"{text!r} is not a {what}: a unit is needed, e.g. {spec.example!r}")
+        raise UnitError(f"{text!r} is not {_a(what)}: a unit is needed, e.g. {spec.example!r}")
     reference: Reference | None = None
     is_pressure = kind in {"pressure", "pressure_abs"}
     if is_pressure:
@@ -312,7 +317,7 @@ def parse_value(text: object, kind: str) -> ParsedQuantity:
             if suffixed is not None:
                 unit_text, reference = suffixed
     elif _is_pressure_with_reference(unit_text):
-        raise UnitError(f"{text!r}: expected a {what}, got a pressure")
+        raise UnitError(f"{text!r}: expected {_a(what)}, got a pressure")
     units = _parse_units(text, unit_text, what)
     ureg = get_registry()
     target = ureg.parse_units(spec.si_unit)
@@ -320,14 +325,14 @@ def parse_value(text: object, kind: str) -> ParsedQuantity:
         if str(units) not in _ANGLE_UNITS:
             raise UnitError(f"{text!r} is not an angle: use deg or rad")
     elif units.dimensionality != target.dimensionality:
-        raise UnitError(f"{text!r}: expected a {what}, got {_dimension_word(units)}")
+        raise UnitError(f"{text!r}: expected {_a(what)}, got {_dimension_word(units)}")
     try:
         si = ureg.Quantity(value, units).to(target).magnitude
     except Exception:  # e.g. offset units combined with others ("degC/s")
-        raise UnitError(f"{text!r} is not a {what}: cannot convert {unit_text!r}") from None
+        raise UnitError(f"{text!r} is not {_a(what)}: cannot convert {unit_text!r}") from None
     si = float(si)
     if not math.isfinite(si):
-        raise UnitError(f"{text!r} is not a {what}: the value must be a finite number")
+        raise UnitError(f"{text!r} is not {_a(what)}: the value must be a finite number")
     if kind == "temperature" and si < 0.0:
         raise UnitError(f"{text!r} is below absolute zero")
     return ParsedQuantity(si, reference)

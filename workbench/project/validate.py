@@ -134,14 +134,18 @@ class _Checker:
             self.add(key, f"expected a finite number, got {value!r}")
             return None
         low, high = spec.minimum, spec.maximum
-        if low is not None and (value < low or (exclusive_minimum and value <= low)):
-            relation = "above" if exclusive_minimum else "at least"
-            self.add(key, f"{value!r} is out of range: expected {relation} {low:g}"
-                     + (f" and at most {high:g}" if high is not None else ""))
-            return None
-        if high is not None and value > high:
-            self.add(key, f"{value!r} is out of range: expected at most {high:g}"
-                     + (f" and at least {low:g}" if low is not None else ""))
+        too_low = low is not None and (value < low or (exclusive_minimum and value <= low))
+        too_high = high is not None and value > high
+        if too_low or too_high:
+            if low is not None and high is not None:
+                expected = f"a value from {low:g} to {high:g}"
+                if exclusive_minimum:
+                    expected = f"a value above {low:g} and at most {high:g}"
+            elif low is not None:
+                expected = f"a value above {low:g}" if exclusive_minimum else f"at least {low:g}"
+            else:
+                expected = f"at most {high:g}"
+            self.add(key, f"{value!r} is out of range: expected {expected}")
             return None
         return value
 
@@ -168,8 +172,8 @@ class _Checker:
             self.add(key, f"expected one of {_words(choices)}, got {describe(value)}")
             return None
         if value not in choices:
-            self.add(key, f"'{value}' is not valid{did_you_mean(value, choices)}; "
-                     f"expected one of {_words(choices)}")
+            self.add(key, f"'{value}' is not valid; expected one of {_words(choices)}"
+                     f"{did_you_mean(value, choices)}")
             return None
         return value
 
@@ -453,7 +457,9 @@ def _check_fittings(c: _Checker, t: dict, path: str) -> tuple[m.Fitting, ...] | 
         label = c.text(item, "label", key, default="") or ""
         method = c.choice(item, _spec("lines.fittings", "method"), key)
         if ("type" in item) == ("k" in item):
-            c.add(key, "give either type (a named fitting) or k (a fixed loss coefficient)")
+            c.add(key, "give either type (a named fitting) or k (a fixed loss coefficient), "
+                  "not both" if "type" in item else "give type (a named fitting) or k (a fixed "
+                  "loss coefficient)")
         if len(c.problems) == n0:
             out.append(m.Fitting(type=ftype, k=k, count=count or 1, label=label,
                                  method=method or "darby_3k"))

@@ -1,0 +1,59 @@
+"""``workbench check PROJECT...``: validate project files and report every problem.
+
+Exit status 0 when every file is valid (a one-line summary per file on stdout), 1 when any
+is not (every problem on stderr, as ``FILE: KEY: MESSAGE``), 2 for wrong usage.
+"""
+
+from __future__ import annotations
+
+import argparse
+import sys
+
+from workbench.cli.exit_codes import ExitCode
+
+
+def add_parser(subparsers, name: str, help_text: str) -> argparse.ArgumentParser:
+    parser = subparsers.add_parser(
+        name, help=help_text, description="Validate project files. Every problem is reported, "
+        "each with its file, key path, what was found and what was expected.")
+    parser.add_argument("projects", nargs="+", metavar="PROJECT", help="project file (.toml)")
+    return parser
+
+
+def summary(project) -> str:
+    """One line describing a valid project."""
+    from workbench.project.units import format_quantity
+
+    system = project.system
+    counts = []
+    for label, items in (("reservoir", system.reservoirs), ("junction", system.junctions),
+                         ("receiver", system.receivers), ("line", system.lines)):
+        if items:
+            counts.append(f"{len(items)} {label}{'' if len(items) == 1 else 's'}")
+    fluid = system.fluid.name
+    if system.fluid.temperature is not None:
+        fluid += " at " + format_quantity(system.fluid.temperature, "temperature",
+                                          project.unit_system, 3)
+    parts = [", ".join(counts), fluid]
+    if system.simulation is not None:
+        parts.append("simulation " + format_quantity(system.simulation.duration, "time",
+                                                     project.unit_system, 4))
+    return f"{project.name}: valid — {system.title!r}: " + "; ".join(parts)
+
+
+def run(args: argparse.Namespace) -> ExitCode:
+    from workbench.project.document import ProjectError, load_project
+
+    status = ExitCode.OK
+    for path in args.projects:
+        try:
+            project = load_project(path)
+        except ProjectError as exc:
+            for problem in exc.problems:
+                print(problem, file=sys.stderr)
+            status = ExitCode.INVALID
+            continue
+        print(summary(project))
+        for note in project.system.fluid.notes:
+            print(f"{project.name}: fluid: note: {note}", file=sys.stderr)
+    return status
