@@ -1,0 +1,156 @@
+"""Grade-line checks and findings of a steady solution."""
+
+from __future__ import annotations
+
+import math
+
+import pytest
+from steady_cases import WATER_20C, make_system, pipe, tank
+
+from workbench.core.checks import (
+    SELF_VENTING_FROUDE,
+    VAPOR_MARGIN_PA,
+    VELOCITY_HIGH,
+    VELOCITY_LOW,
+)
+from workbench.core.model import G, FluidProps, Receiver
+from workbench.core.network import solve_steady
+
+RHO = WATER_20C.density
+
+
+def _codes(result, element=None):
+    return {w.code for w in result.warnings if element is None or w.element == element}
+
+
+def _siphon(crest: float):
+    """A siphon of our own: tank surface at 12 m, a crest at ``crest`` m, lower tank at 1 m."""
+    return make_system(
+        reservoirs=[tank("source", 10.0, 2.0), tank("receiver", 0.0, 1.0)],
+        lines=[pipe("siphon", "source", "receiver", 100.0, 0.08, entrance_k=0.5,
+                    profile=((0.0, 10.0), (20.0, crest), (60.0, crest), (100.0, 0.0)))],
+    )
+
+
+def test_a_line_cresting_above_the_source_runs_below_atmospheric_at_the_crest():
+    # Source: energy equation with Darcy-Weisbach (friction in proportion to length) and
+    # fluids.Colebrook for f: p = rho g [(H_source - z) - (K_entrance + 1 + f s/D) v^2/2g].
+    import fluids
+
+    result = solve_steady(_siphon(14.0))
+    assert result.success, result.message
+    line = result.lines["siphon"]
+    nu = WATER_20C.viscosity / RHO
+    f = fluids.Colebrook(line.velocity * 0.08 / nu, 4.5e-5 / 0.08)
+    assert line.friction_factor == pytest.approx(f, rel=1e-9)
+    vh = line.velocity**2 / (2 * G)
+    expected = RHO * G * ((12.0 - 14.0) - (0.5 + 1.0 + f * 60.0 / 0.08) * vh)
+    prof = result.profiles["siphon"]
+    assert prof.pressure_gauge.min() == pytest.approx(expected, rel=1e-9)
+    assert prof.distance[prof.pressure_gauge.argmin()] == 60.0
+    assert prof.pressure_abs.min() == pytest.approx(expected + 101325.0, rel=1e-9)
+    assert "profile.subatmospheric" in _codes(result, "siphon")
+    assert "profile.vapor" not in _codes(result)
+
+
+def test_a_crest_near_barometric_height_is_flagged_as_column_separation():
+    # Vapour pressure of water at 20 °C 2339.2 Pa (HYDRAULICS.md, IAPWS) plus the stated margin.
+    result = solve_steady(_siphon(21.0))
+    prof = result.profiles["siphon"]
+    assert prof.pressure_abs.min() <= WATER_20C.vapor_pressure + VAPOR_MARGIN_PA
+    vapor = [w for w in result.warnings if w.code == "profile.vapor"]
+    assert len(vapor) == 1 and vapor[0].severity == "danger" and vapor[0].source
+
+
+def test_the_site_atmosphere_sets_the_absolute_pressure():
+    system = _siphon(16.0)
+    thin_air = type(system)(**{**system.__dict__, "atmospheric_pressure": 80_000.0})
+    prof = solve_steady(thin_air).profiles["siphon"]
+    assert prof.pressure_abs == pytest.approx(prof.pressure_gauge + 80_000.0)
+
+
+def test_a_fluid_without_vapour_pressure_gets_an_info_note_instead_of_the_check():
+    oil = FluidProps(name="test oil", density=880.0, viscosity=0.25)
+    system = make_system(reservoirs=[tank("A", 0.0, 3.0), tank("B", 0.0, 1.0)],
+                         lines=[pipe("L", "A", "B", 30.0, 0.05)], fluid=oil)
+    result = solve_steady(system)
+    notes = [w for w in result.warnings if w.code == "profile.vapor_unchecked"]
+    assert len(notes) == 1 and notes[0].severity == "info"
+    # Laminar oil: Hagen-Poiseuille regime noted as information.
+    laminar = [w for w in result.warnings if w.code == "regime.laminar"]
+    assert laminar and laminar[0].severity == "info"
+
+
+def test_transitional_flow_shows_both_branches_friction_factors():
+    # Branches: 64/Re (Hagen-Poiseuille) and Colebrook (fluids.Colebrook).
+    import fluids
+
+    system = make_system(reservoirs=[tank("A", 0.0, 1.06), tank("B", 0.0, 1.0)],
+                         lines=[pipe("L", "A", "B", 50.0, 0.025, 1.5e-6)])
+    result = solve_steady(system)
+    re = result.lines["L"].reynolds
+    assert 2000.0 < re < 4000.0
+    (w,) = [w for w in result.warnings if w.code == "regime.transitional"]
+    assert f"{64.0 / re:.4g}" in w.message
+    assert f"{fluids.Colebrook(re, 1.5e-6 / 0.025):.4g}" in w.message
+
+
+def test_velocity_limits_are_flagged_as_common_practice():
+    fast = make_system(reservoirs=[tank("A", 0.0, 30.0), tank("B", 0.0, 1.0)],
+                       lines=[pipe("L", "A", "B", 10.0, 0.1)])
+    slow = make_system(reservoirs=[tank("A", 0.0, 1.01), tank("B", 0.0, 1.0)],
+                       lines=[pipe("L", "A", "B", 100.0, 0.1)])
+    r_fast, r_slow = solve_steady(fast), solve_steady(slow)
+    assert abs(r_fast.lines["L"].velocity) > VELOCITY_HIGH
+    assert abs(r_slow.lines["L"].velocity) < VELOCITY_LOW
+    (hi,) = [w for w in r_fast.warnings if w.code == "velocity.high"]
+    (lo,) = [w for w in r_slow.warnings if w.code == "velocity.low"]
+    assert "common practice" in hi.source and "common practice" in lo.source
+
+
+def _drain(level: float, drop: float):
+    return make_system(
+        reservoirs=[tank("vessel_tank", 10.0, level)],
+        receivers=[Receiver("floor_drain", "open_discharge", 10.0 - drop)],
+        lines=[pipe("drain", "vessel_tank", "floor_drain", 15.0, 0.1)],
+    )
+
+
+def test_a_drain_leaving_a_tank_downward_above_froude_0_3_is_not_self_venting():
+    # Froude number v/sqrt(gD) against about 0.3 (Simpson 1968; Hills 1983; from memory).
+    result = solve_steady(_drain(2.0, 5.0))
+    v = abs(result.lines["drain"].velocity)
+    froude = v / math.sqrt(G * 0.1)
+    assert froude > SELF_VENTING_FROUDE
+    (w,) = [w for w in result.warnings if w.code == "drain.self_venting"]
+    assert f"{froude:.3g}" in w.message and "from memory" in w.source
+
+
+def test_a_horizontal_outlet_is_not_judged_as_a_drain():
+    result = solve_steady(_drain(2.0, 0.0))
+    assert "drain.self_venting" not in _codes(result)
+
+
+@pytest.mark.parametrize(("level", "flagged"), [(0.3, True), (5.0, False)])
+def test_outlet_submergence_follows_the_pump_intake_rule(level, flagged):
+    # Source: ANSI/HI 9.8, S = D(1 + 2.3 Fr).
+    result = solve_steady(_drain(level, 5.0))
+    v = abs(result.lines["drain"].velocity)
+    required = 0.1 * (1 + 2.3 * v / math.sqrt(G * 0.1))
+    assert (level < required) == flagged
+    assert ("outlet.submergence" in _codes(result)) == flagged
+
+
+def test_roughness_outside_the_colebrook_range_is_flagged():
+    # Moody (1944) chart range eps/D <= 0.05 (from memory).
+    system = make_system(reservoirs=[tank("A", 0.0, 5.0), tank("B", 0.0, 1.0)],
+                         lines=[pipe("L", "A", "B", 50.0, 0.05, roughness=0.004)])
+    assert "correlation.range" in _codes(solve_steady(system), "L")
+
+
+def test_every_finding_has_a_stable_code_a_message_a_severity_and_a_source():
+    result = solve_steady(_siphon(21.0))
+    assert result.warnings
+    for w in result.warnings:
+        assert w.code.count(".") == 1 and w.message and w.source
+        assert w.severity in ("info", "caution", "danger")
