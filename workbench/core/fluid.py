@@ -13,7 +13,7 @@ vapour pressure and the surge estimate its bulk modulus. This module gives them 
   and well under a microsecond afterwards.
 * :data:`CATALOGUE` and :func:`liquid_properties` -- common plant liquids from published
   correlations whose coefficients the ``chemicals`` package carries (DIPPR equations of
-  Perry's Handbook, VDI Heat Atlas PPDS equations), and aqueous sodium hydroxide and
+  Perry's Handbook; VDI Heat Atlas PPDS and Wagner equations), and aqueous sodium hydroxide and
   sodium chloride by the Laliberte (2009) electrolyte model. Each entry names its source
   and its valid temperature range; outside it the values are extrapolated with a note.
 * :func:`custom_properties` -- numbers the user gives.
@@ -188,7 +188,8 @@ _PERRY = (
 )
 _VDI = (
     "VDI Heat Atlas, 2nd ed. (2010): PPDS saturated-liquid density and viscosity "
-    "equations; coefficients as carried by the chemicals package"
+    "equations, Wagner vapour-pressure equation; coefficients as carried by the chemicals "
+    "package"
 )
 _LALIBERTE = (
     "Laliberte, M. (2009), J. Chem. Eng. Data 54, 1725 (aqueous electrolyte density and "
@@ -261,9 +262,9 @@ CATALOGUE: dict[str, LiquidEntry] = {
     ),
     "glycerol": LiquidEntry(
         "glycerol (pure)", "vdi_ppds", "56-81-5", 291.45, 563.0, _VDI,
-        description="range: melting point 291.45 K (as listed with the VDI vapour-pressure "
-        "coefficients) to the normal boiling point 563 K, from memory; vapour pressure not "
-        "given (about 0.01 Pa at 20 degC, from memory)",
+        description="range: melting point 291.45 K (the Tm listed with the VDI "
+        "vapour-pressure coefficients) to the normal boiling point, 563 K (from memory); "
+        "glycerol supercools readily below its melting point",
     ),
     "sodium_hydroxide_50": LiquidEntry(
         "sodium hydroxide solution 50 % (caustic soda)", "laliberte", "1310-73-2",
@@ -354,6 +355,7 @@ def _perry_dippr(entry: LiquidEntry, t: float) -> tuple[float, float, float | No
 
 
 def _vdi_ppds(entry: LiquidEntry, t: float) -> tuple[float, float, float | None]:
+    from chemicals.vapor_pressure import Psat_data_VDI_PPDS_3, Wagner
     from chemicals.viscosity import PPDS9, mu_data_VDI_PPDS_7
     from chemicals.volume import rho_data_VDI_PPDS_2, volume_VDI_PPDS
 
@@ -362,7 +364,9 @@ def _vdi_ppds(entry: LiquidEntry, t: float) -> tuple[float, float, float | None]
     rho = volume_VDI_PPDS(t, r["Tc"], r["rhoc"], r["A"], r["B"], r["C"], r["D"])
     m = mu_data_VDI_PPDS_7.loc[entry.cas]
     mu = PPDS9(t, m["A"], m["B"], m["C"], m["D"], m["E"])
-    return float(rho), float(mu), None
+    s = Psat_data_VDI_PPDS_3.loc[entry.cas]
+    psat = Wagner(t, s["Tc"], s["Pc"], s["A"], s["B"], s["C"], s["D"])
+    return float(rho), float(mu), float(psat)
 
 
 def _laliberte(entry: LiquidEntry, t: float) -> tuple[float, float, float | None]:
