@@ -1,0 +1,78 @@
+"""``workbench report PROJECT``: the Markdown calculation record, and CSV exports of results."""
+
+from __future__ import annotations
+
+import argparse
+import sys
+from pathlib import Path
+
+from workbench.cli.exit_codes import ExitCode
+
+
+def add_parser(subparsers, name: str, help_text: str) -> None:
+    parser = subparsers.add_parser(
+        name, help=help_text,
+        description="Solve the project (and simulate it when it has a [simulation] section) and "
+        "write a calculation record in Markdown: inputs as entered, fluid properties, methods "
+        "with their sources and validity, results, events, warnings, cautions and sign-off "
+        "lines. It reads well in a version-control web view and converts to PDF (e.g. pandoc).",
+    )
+    parser.add_argument("project", type=Path, help="project file (.toml)")
+    parser.add_argument("--output", "-o", type=Path, metavar="PATH",
+                        help="write the record to PATH (default: standard output)")
+    parser.add_argument("--csv-dir", type=Path, metavar="DIR",
+                        help="also write the result tables and time series as CSV files in DIR "
+                        "(lines, nodes, profiles, warnings, events, timeseries; SI units)")
+    parser.add_argument("--steady-only", action="store_true",
+                        help="do not run the simulation even when the project has one")
+
+
+def run(args: argparse.Namespace) -> ExitCode:
+    from workbench.project.document import ProjectError, load_project
+
+    try:
+        project = load_project(args.project)
+    except ProjectError as exc:
+        for problem in exc.problems:
+            print(problem, file=sys.stderr)
+        return ExitCode.INVALID
+    except OSError as exc:
+        print(f"{args.project}: {exc.strerror or exc}", file=sys.stderr)
+        return ExitCode.INVALID
+
+    from workbench.core.network import solve_steady
+    from workbench.output.record import calculation_record, result_tables, write_result_csvs
+
+    system = project.system
+    steady = solve_steady(system)
+    if not steady.success:
+        print(f"{args.project}: no steady solution: {steady.message}", file=sys.stderr)
+    transient = None
+    if system.simulation is not None and not args.steady_only:
+        from workbench.core.transient import simulate
+
+        try:
+            transient = simulate(system)
+        except ValueError as exc:
+            print(f"{args.project}: simulation not run: {exc}", file=sys.stderr)
+        else:
+            if not transient.success:
+                print(f"{args.project}: simulation: {transient.message}", file=sys.stderr)
+    text = calculation_record(project, steady, transient)
+    if args.output is None:
+        sys.stdout.write(text)
+    else:
+        try:
+            args.output.write_text(text, encoding="utf-8")
+        except OSError as exc:
+            print(f"{args.output}: cannot write: {exc.strerror or exc}", file=sys.stderr)
+            return ExitCode.INVALID
+        print(f"wrote {args.output}", file=sys.stderr)
+    if args.csv_dir is not None:
+        try:
+            written = write_result_csvs(args.csv_dir, result_tables(project, steady, transient))
+        except OSError as exc:
+            print(f"{args.csv_dir}: cannot write: {exc.strerror or exc}", file=sys.stderr)
+            return ExitCode.INVALID
+        print(f"wrote {len(written)} CSV files to {args.csv_dir}", file=sys.stderr)
+    return ExitCode.OK if steady.success else ExitCode.INVALID
