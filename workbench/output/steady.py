@@ -1,0 +1,183 @@
+"""A steady solution for people and programs: the ``solve --json`` object and rich tables.
+
+:func:`steady_to_json` gives the documented shape (schema 1, all SI; extra keys beyond the
+documented ones are additions, never renames). :func:`steady_tables` gives rich tables
+of lines, nodes and warnings in the project's unit system; a warning's severity is shown
+as a word and a colour, never colour alone.
+"""
+
+from __future__ import annotations
+
+import math
+from typing import TYPE_CHECKING, Any
+
+if TYPE_CHECKING:  # pragma: no cover
+    from workbench.core.model import System
+    from workbench.core.network import SteadyResult
+
+__all__ = ["SEVERITY_STYLE", "steady_tables", "steady_to_json"]
+
+#: Severity word -> rich style (theme-neutral colours; the word carries the meaning).
+SEVERITY_STYLE = {"info": "cyan", "caution": "yellow", "danger": "bold red"}
+
+
+def _num(x: Any) -> float | None:
+    """A JSON-safe float: ``None`` for ``None``, nan and infinities."""
+    if x is None:
+        return None
+    x = float(x)
+    return x if math.isfinite(x) else None
+
+
+def _list(a) -> list[float | None]:
+    return [_num(v) for v in a]
+
+
+def steady_to_json(result: SteadyResult, system: System) -> dict:
+    """The ``workbench solve --json`` object of a steady result.
+
+    Documented keys: ``schema`` (1), ``fluid`` {``density_kg_m3``, ``viscosity_pa_s``,
+    ``vapor_pressure_pa``}, ``lines`` {id: {``flow_m3_s``, ``velocity_m_s``, ``reynolds``,
+    ``regime``, ``friction_factor``, ``head_loss_m``, ...}}, ``nodes`` {id: {``head_m``,
+    ``pressure_pa`` (gauge), ...}} for every junction, reservoir and receiver, and
+    ``warnings`` [{``code``, ``element``, ``message``, ...}]. Values that do not exist (the
+    friction factor of a line without flow, the head of an isolated junction) are ``null``.
+    """
+    fluid = system.fluid
+    out: dict[str, Any] = {
+        "schema": 1,
+        "title": system.title,
+        "success": bool(result.success),
+        "status": int(result.status),
+        "message": result.message,
+        "iterations": int(result.iterations),
+        "residuals": {k: _num(v) for k, v in (result.residuals or {}).items()},
+        "fluid": {
+            "name": fluid.name,
+            "density_kg_m3": _num(fluid.density),
+            "viscosity_pa_s": _num(fluid.viscosity),
+            "vapor_pressure_pa": _num(fluid.vapor_pressure),
+            "temperature_k": _num(fluid.temperature),
+        },
+        "atmospheric_pressure_pa": _num(system.atmospheric_pressure),
+        "lines": {},
+        "nodes": {},
+        "warnings": [],
+    }
+    for lid, r in result.lines.items():
+        entry = {
+            "flow_m3_s": _num(r.flow),
+            "velocity_m_s": _num(r.velocity),
+            "reynolds": _num(r.reynolds),
+            "regime": r.regime,
+            "friction_factor": _num(r.friction_factor),
+            "friction_method": r.friction_method,
+            "head_loss_m": _num(r.head_loss),
+            "friction_loss_m": _num(r.friction_loss),
+            "minor_loss_m": _num(r.minor_loss),
+            "fittings_loss_m": _num(r.fittings_loss),
+            "valve_loss_m": _num(r.valve_loss),
+            "entrance_loss_m": _num(r.entrance_loss),
+            "exit_loss_m": _num(r.exit_loss),
+            "velocity_head_m": _num(r.velocity_head),
+            "status": r.status,
+            "from": r.from_node,
+            "to": r.to_node,
+        }
+        if lid in result.openings:
+            entry["valve_opening"] = _num(result.openings[lid])
+        prof = result.profiles.get(lid)
+        if prof is not None:
+            entry["profile"] = {
+                "distance_m": _list(prof.distance),
+                "elevation_m": _list(prof.elevation),
+                "hgl_m": _list(prof.hgl),
+                "egl_m": _list(prof.egl),
+                "pressure_pa": _list(prof.pressure_gauge),
+                "pressure_abs_pa": _list(prof.pressure_abs),
+            }
+        out["lines"][lid] = entry
+    for nid, n in result.nodes.items():
+        out["nodes"][nid] = {
+            "head_m": _num(n.head),
+            "pressure_pa": _num(n.pressure),
+            "elevation_m": _num(n.elevation),
+            "kind": n.kind,
+        }
+        if nid in result.levels:
+            out["nodes"][nid]["level_m"] = _num(result.levels[nid])
+    out["warnings"] = [
+        {"code": w.code, "element": w.element, "message": w.message, "severity": w.severity,
+         "source": w.source}
+        for w in result.warnings
+    ]
+    return out
+
+
+def steady_tables(result: SteadyResult, system: System, unit_system: str = "SI") -> list:
+    """Rich renderables for a steady result: a summary line, lines, nodes and warnings.
+
+    Parameters
+    ----------
+    result : SteadyResult
+    system : System
+    unit_system : {"SI", "US"}
+        Display units (through :func:`workbench.project.units.format_quantity`).
+    """
+    from rich.table import Table
+    from rich.text import Text
+
+    from workbench.project.units import format_quantity
+
+    def q(value, kind: str, digits: int = 4) -> str:
+        v = _num(value)
+        return "—" if v is None else format_quantity(v, kind, unit_system, digits)
+
+    def plain(value, digits: int = 4) -> str:
+        v = _num(value)
+        return "—" if v is None else f"{v:.{digits}g}"
+
+    out: list = []
+    if not result.success:
+        out.append(Text(f"No steady solution: {result.message}", style="bold red"))
+        return out
+    out.append(Text(f"{system.title}: steady solution {result.message}."))
+
+    lines = Table(title="Lines", title_justify="left")
+    for col, just in (("line", "left"), ("from → to", "left"), ("flow", "right"),
+                      ("velocity", "right"), ("Re", "right"), ("regime", "left"),
+                      ("f", "right"), ("f from", "left"), ("friction loss", "right"),
+                      ("minor loss", "right"), ("head loss", "right"),
+                      ("velocity head", "right")):
+        lines.add_column(col, justify=just)
+    for lid, r in result.lines.items():
+        regime = r.regime if r.status == "flowing" else r.status.replace("_", " ")
+        lines.add_row(
+            lid, f"{r.from_node} → {r.to_node}", q(r.flow, "flow"), q(r.velocity, "velocity"),
+            plain(r.reynolds, 4) if r.status == "flowing" else "—", regime,
+            plain(r.friction_factor, 4), r.friction_method or "—", q(r.friction_loss, "head"),
+            q(r.minor_loss, "head"), q(r.head_loss, "head"), q(r.velocity_head, "head"),
+        )
+    out.append(lines)
+
+    nodes = Table(title="Nodes", title_justify="left")
+    for col, just in (("node", "left"), ("kind", "left"), ("elevation", "right"),
+                      ("head", "right"), ("pressure (gauge)", "right")):
+        nodes.add_column(col, justify=just)
+    for nid, n in result.nodes.items():
+        nodes.add_row(nid, n.kind.replace("_", " "), q(n.elevation, "elevation"),
+                      q(n.head, "head"), q(n.pressure, "pressure"))
+    out.append(nodes)
+
+    warn = Table(title="Warnings", title_justify="left")
+    for col in ("severity", "code", "element", "message", "source"):
+        warn.add_column(col, overflow="fold")
+    for w in result.warnings:
+        style = SEVERITY_STYLE.get(w.severity, "")
+        warn.add_row(Text(w.severity.upper(), style=style), w.code, w.element, w.message,
+                     w.source)
+    if not result.warnings:
+        out.append(Text("No warnings."))
+    else:
+        out.append(warn)
+    return out
