@@ -557,8 +557,8 @@ def check_criteria(criteria: Sequence[Criterion], data: Mapping, has_simulation:
         metric = METRICS[c.metric]
         if metric.needs_simulation and not has_simulation:
             raise SweepSpecError(
-                f"--require {c.text!r}: {c.metric} comes from a simulation, and the project has no "
-                "[simulation] section"
+                f"--require {c.text!r}: {c.metric} comes from a simulation, which this sweep does "
+                "not run (no [simulation] section in the project, or a steady-only sweep)"
             )
         sections = ("reservoirs", "junctions", "receivers") if metric.element_section == "nodes" else (metric.element_section,)
         ids = [i for s in sections for i in (data.get(s) or {})]
