@@ -36,9 +36,16 @@ def summary(project) -> str:
                                           project.unit_system, 3)
     parts = [", ".join(counts), fluid]
     if system.simulation is not None:
-        parts.append("simulation " + format_quantity(system.simulation.duration, "time",
-                                                     project.unit_system, 4))
+        parts.append("simulation " + _duration(system.simulation.duration))
     return f"{project.name}: valid — {system.title!r}: " + "; ".join(parts)
+
+
+def _duration(seconds: float) -> str:
+    if seconds >= 3600:
+        return f"{seconds / 3600:.4g} h"
+    if seconds >= 60:
+        return f"{seconds / 60:.4g} min"
+    return f"{seconds:.4g} s"
 
 
 def run(args: argparse.Namespace) -> ExitCode:

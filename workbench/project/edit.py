@@ -58,6 +58,11 @@ def _set(container, key: str, value: Any) -> None:
 
 def _finish(project: Project, doc) -> Project:
     text = doc.as_string()
+    if text.endswith("\n\n"):  # tables added or removed at the end leave blank lines
+        import tomlkit
+
+        text = text.rstrip("\n") + "\n"
+        doc = tomlkit.parse(text)
     try:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:  # a bug in the edit, not the user's input
