@@ -276,15 +276,18 @@ def _outlet_findings(system: System, lid: str, q: float, v: float,
     s, z = profile_points(system, lid)
     z_next = z[1] if downward_end == 1 else z[-2]
     z_out = res.bottom_elevation
-    if z_next < z_out:
-        if fr > SELF_VENTING_FROUDE:
-            out.append(Finding(
-                "drain.self_venting", lid,
-                f"Froude number {_fmt(fr)} at the outlet of {source!r} is above about "
-                f"{SELF_VENTING_FROUDE:g}: the drain is not self-venting; gas drawn in is "
-                "carried down and the flow can surge or pulse; vent the line or size it for "
-                "a lower Froude number",
-                "caution", SELF_VENTING_SOURCE))
+    if z_next < z_out and fr > SELF_VENTING_FROUDE:
+        far_end = line.to_node if q > 0.0 else line.from_node
+        to_air = (far_end in system.receivers
+                  and system.receivers[far_end].kind == "open_discharge")
+        out.append(Finding(
+            "drain.self_venting", lid,
+            f"Froude number {_fmt(fr)} at the outlet of {source!r} is above about "
+            f"{SELF_VENTING_FROUDE:g}: the line is not self-venting; if the tank draws down "
+            "to the outlet or air gets in, gas is carried down and the flow can surge or "
+            "pulse; vent the line or size it for a lower Froude number",
+            # A drain to the air takes in air as the tank empties; a flooded line less so.
+            "caution" if to_air else "info", SELF_VENTING_SOURCE))
     level = levels.get(source, res.level)
     s_req = d * (1.0 + 2.3 * fr)
     if level < s_req:

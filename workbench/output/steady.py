@@ -124,8 +124,12 @@ def steady_tables(result: SteadyResult, system: System, unit_system: str = "SI")
     unit_system : {"SI", "US"}
         Display units (through :func:`workbench.project.units.format_quantity`).
     """
+    from rich import box
     from rich.table import Table
     from rich.text import Text
+
+    def table(title: str) -> Table:
+        return Table(title=title, title_justify="left", box=box.SIMPLE_HEAD, pad_edge=False)
 
     from workbench.project.units import format_quantity
 
@@ -143,24 +147,30 @@ def steady_tables(result: SteadyResult, system: System, unit_system: str = "SI")
         return out
     out.append(Text(f"{system.title}: steady solution {result.message}."))
 
-    lines = Table(title="Lines", title_justify="left")
-    for col, just in (("line", "left"), ("from → to", "left"), ("flow", "right"),
-                      ("velocity", "right"), ("Re", "right"), ("regime", "left"),
-                      ("f", "right"), ("f from", "left"), ("friction loss", "right"),
-                      ("minor loss", "right"), ("head loss", "right"),
-                      ("velocity head", "right")):
-        lines.add_column(col, justify=just)
+    lines = table("Lines")
+    for col, just in (("line", "left"), ("flow", "right"), ("velocity", "right"),
+                      ("Re", "right"), ("regime", "left"), ("f", "right"),
+                      ("head loss", "right")):
+        lines.add_column(col, justify=just, no_wrap=True)
+    losses = table("Head losses")
+    for col, just in (("line", "left"), ("from → to", "left"), ("friction", "right"),
+                      ("minor", "right"), ("velocity head", "right"), ("f from", "left")):
+        losses.add_column(col, justify=just, overflow="fold",
+                          no_wrap=col in ("friction", "minor", "velocity head"))
     for lid, r in result.lines.items():
         regime = r.regime if r.status == "flowing" else r.status.replace("_", " ")
         lines.add_row(
-            lid, f"{r.from_node} → {r.to_node}", q(r.flow, "flow"), q(r.velocity, "velocity"),
-            plain(r.reynolds, 4) if r.status == "flowing" else "—", regime,
-            plain(r.friction_factor, 4), r.friction_method or "—", q(r.friction_loss, "head"),
-            q(r.minor_loss, "head"), q(r.head_loss, "head"), q(r.velocity_head, "head"),
+            lid, q(r.flow, "flow"), q(r.velocity, "velocity"),
+            f"{r.reynolds:,.0f}" if r.status == "flowing" else "—", regime,
+            plain(r.friction_factor, 4), q(r.head_loss, "head"),
         )
+        losses.add_row(lid, f"{r.from_node} → {r.to_node}", q(r.friction_loss, "head"),
+                       q(r.minor_loss, "head"), q(r.velocity_head, "head"),
+                       r.friction_method or "—")
     out.append(lines)
+    out.append(losses)
 
-    nodes = Table(title="Nodes", title_justify="left")
+    nodes = table("Nodes")
     for col, just in (("node", "left"), ("kind", "left"), ("elevation", "right"),
                       ("head", "right"), ("pressure (gauge)", "right")):
         nodes.add_column(col, justify=just)
@@ -169,13 +179,16 @@ def steady_tables(result: SteadyResult, system: System, unit_system: str = "SI")
                       q(n.head, "head"), q(n.pressure, "pressure"))
     out.append(nodes)
 
-    warn = Table(title="Warnings", title_justify="left")
-    for col in ("severity", "code", "element", "message", "source"):
-        warn.add_column(col, overflow="fold")
+    warn = table("Warnings")
+    warn.add_column("severity", no_wrap=True)
+    warn.add_column("code / element", overflow="fold")
+    warn.add_column("message (source)", overflow="fold", ratio=1)
     for w in result.warnings:
         style = SEVERITY_STYLE.get(w.severity, "")
-        warn.add_row(Text(w.severity.upper(), style=style), w.code, w.element, w.message,
-                     w.source)
+        message = Text(w.message)
+        if w.source:
+            message.append(f" ({w.source})", style="dim")
+        warn.add_row(Text(w.severity.upper(), style=style), f"{w.code}\n{w.element}", message)
     if not result.warnings:
         out.append(Text("No warnings."))
     else:
