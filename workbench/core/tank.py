@@ -112,15 +112,24 @@ class TankGeometry:
         return self._level(max(volume, 0.0))
 
     def level_extrapolated(self, volume: float) -> float:
-        """Level for any volume [m], for trial states of an ODE solver: linear
-        extrapolation (with :meth:`area_floor`) below zero and above a closed top."""
+        """Level for any volume [m], for trial states of an ODE solver.
+
+        Inside the shape this is :meth:`level`. Beyond it the level-volume curve is
+        continued by odd reflection, ``h(-V) = -h(V)`` below the bottom and likewise about a
+        closed top, so the curve stays monotone and continuous (for a flat bottom this is the
+        straight prismatic continuation; at the zero-width bottom of a horizontal cylinder
+        or the apex of a cone it keeps the local power law instead of an extreme slope).
+        """
         if volume < 0.0:
-            return volume / self.area_floor(0.0)
+            return -self._level(min(-volume, self._reflect_limit()))
         if math.isfinite(self.top):
             v_top = self._volume(self.top)
             if volume > v_top:
-                return self.top + (volume - v_top) / self.area_floor(self.top)
+                return 2.0 * self.top - self._level(max(2.0 * v_top - volume, 0.0))
         return self._level(volume)
+
+    def _reflect_limit(self) -> float:
+        return self._volume(self.top) if math.isfinite(self.top) else math.inf
 
     def _check_level(self, h: float) -> None:
         if h < 0.0 or h > self.top:

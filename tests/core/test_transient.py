@@ -1,0 +1,399 @@
+"""Rigid-column transient solver against closed forms and independent integrations.
+
+Closed forms from the classical unsteady Bernoulli equation and rigid water column theory;
+independent references integrated here with scipy's ``solve_ivp`` on scalar equations
+written out in the test (not through the project's code).
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pytest
+from scipy.integrate import quad, solve_ivp
+
+from workbench.core.model import (
+    G,
+    FluidProps,
+    Junction,
+    Line,
+    Receiver,
+    Reservoir,
+    SimulationSettings,
+    System,
+    TankShape,
+    Valve,
+    ValveSchedule,
+)
+from workbench.core.transient import simulate
+
+# Water at 20 degC: IAPWS-95 density, IAPWS 2008 viscosity, IF97 saturation (HYDRAULICS
+# notes table); bulk modulus 2.19 GPa (common practice, no source).
+WATER = FluidProps("water", 998.207, 1.0016e-3, 2339.2, 2.19e9, 293.15)
+
+
+def _system(reservoirs, lines, receivers=(), junctions=(), fluid=WATER, duration=100.0,
+            initial="steady", stop_when=None, interval=None):
+    return System(
+        "test", fluid,
+        {r.id: r for r in reservoirs}, {j.id: j for j in junctions},
+        {r.id: r for r in receivers}, {ln.id: ln for ln in lines},
+        simulation=SimulationSettings(duration, initial, stop_when, interval),
+    )
+
+
+def _area(d):
+    return math.pi * d * d / 4.0
+
+
+# ------------------------------------------------------------------ flow establishment
+
+
+@pytest.mark.parametrize(
+    ("f", "k_entrance", "length", "diameter", "head"),
+    [
+        (0.02, 0.5, 100.0, 0.10, 10.0),
+        (0.015, 0.0, 400.0, 0.30, 25.0),
+        (0.0, 0.0, 50.0, 0.05, 5.0),  # frictionless: v_inf = sqrt(2gH), T = 2L/v_inf
+    ],
+)
+def test_flow_establishment_follows_the_tanh_law(f, k_entrance, length, diameter, head):
+    """Unsteady Bernoulli for a line from a large reservoir discharging to air with a fixed
+    friction factor: (L/g) dv/dt = H - K_t v^2/2g, so v = v_inf tanh(t/T) with
+    v_inf = sqrt(2gH/K_t), K_t = 1 + sum K + fL/D and T = L v_inf/(gH) (classical result,
+    e.g. Streeter, Wylie & Bedford, Fluid Mechanics)."""
+    k_t = 1.0 + k_entrance + f * length / diameter
+    v_inf = math.sqrt(2 * G * head / k_t)
+    tau = length * v_inf / (G * head)
+    system = _system(
+        [Reservoir("R", "constant_level", 0.0, head)],
+        [Line("L1", "R", "OUT", length, diameter, friction_factor=f, entrance_k=k_entrance)],
+        [Receiver("OUT", "open_discharge", 0.0)],
+        duration=4 * tau, initial="at_rest",
+    )
+    res = simulate(system, rtol=1e-8)
+    assert res.success, res.message
+    v = res.flows[0] / _area(diameter)
+    assert np.max(np.abs(v - v_inf * np.tanh(res.t / tau))) <= 1e-5 * v_inf
+
+
+def test_laminar_start_up_has_the_lumped_time_constant():
+    """Lumped laminar start-up: I dQ/dt = rho g dH - R Q with R = 128 mu L/(pi D^4) rho g
+    / (rho g) ... i.e. tau = I/R = rho D^2/(32 mu), independent of the length
+    (Hagen-Poiseuille resistance with the line inertance). Oil of HYDRAULICS notes:
+    mu 0.25 Pa s, rho 880 kg/m3, D 50 mm, L 30 m, dp 50 kPa -> tau = 0.275 s. The exact
+    laminar start-up (Szymanski 1932, from memory) is 1.3-1.4 times slower; the lumped
+    model is what the solver implements."""
+    oil = FluidProps("test oil", 880.0, 0.25, None, None, None)
+    dh = 50e3 / (880.0 * G)
+    d = 0.05
+    system = _system(
+        [Reservoir("A", "constant_level", 0.0, 1.0 + dh), Reservoir("B", "constant_level", 0.0, 1.0)],
+        [Line("L1", "A", "B", 30.0, d, entrance_k=0.0)],
+        fluid=oil, duration=3.0, initial="at_rest", interval=0.001,
+    )
+    res = simulate(system, rtol=1e-8)
+    assert res.success, res.message
+    tau = 880.0 * d * d / (32 * 0.25)
+    q_final = res.flows[0, -1]
+    # Hagen-Poiseuille final flow (HYDRAULICS notes, computed: 1.022654e-3 m3/s); the exit
+    # loss of one velocity head into B lowers it by about 0.25 %.
+    assert q_final == pytest.approx(1.022654e-3, rel=4e-3)
+    for n in (0.5, 1.0, 2.0, 3.0):
+        q = np.interp(n * tau, res.t, res.flows[0])
+        assert q / q_final == pytest.approx(1 - math.exp(-n), abs=4e-3)
+
+
+# ------------------------------------------------------------------ draining
+
+
+def _drain_system(shape, h0, *, drop=1.0, length=2.0, diameter=0.05, f=0.02, k_entrance=0.5,
+                  min_level=0.0, interval=None):
+    return _system(
+        [Reservoir("T", "tank", 10.0, h0, shape=shape, min_level=min_level)],
+        [Line("L1", "T", "OUT", length, diameter, friction_factor=f, entrance_k=k_entrance)],
+        [Receiver("OUT", "open_discharge", 10.0 - drop)],
+        duration=1e6, stop_when="drained", interval=interval,
+    )
+
+
+def _quasi_steady_drain_time(area_of_h, h0, h1, drop, length, diameter, f, k_entrance):
+    """Torricelli with a line: dt = A(h) dh / (a sqrt(2g (h + z)/K_t)), integrated by quad."""
+    k_t = 1.0 + k_entrance + f * length / diameter
+    a = _area(diameter)
+    value, _ = quad(lambda h: area_of_h(h) / (a * math.sqrt(2 * G * (h + drop) / k_t)), h1, h0,
+                    limit=200, epsabs=0.0, epsrel=1e-12)
+    return value
+
+
+def test_vertical_tank_drains_in_the_torricelli_time():
+    """t = 2 A_T (sqrt(h0 + z) - sqrt(h1 + z)) / (a sqrt(2g/K_t)) (quasi-steady Torricelli
+    with constant K_t, HYDRAULICS notes). The rigid column adds the line's inertia, which
+    shifts the time by about the line time constant: 5e-4 relative here."""
+    d_tank, h0, z = 2.0, 3.0, 1.0
+    k_t = 1.0 + 0.5 + 0.02 * 2.0 / 0.05
+    a = _area(0.05)
+    expected = 2 * _area(d_tank) * (math.sqrt(h0 + z) - math.sqrt(z)) / (a * math.sqrt(2 * G / k_t))
+    res = simulate(_drain_system(TankShape("vertical_cylinder", diameter=d_tank), h0, drop=z))
+    assert res.success and res.status == 1, res.message
+    assert res.drain_times["T"] == pytest.approx(expected, rel=5e-4)
+
+
+def test_horizontal_cylinder_drains_in_the_closed_form_orifice_time():
+    """Horizontal cylinder, flat ends, outlet level with the bottom (z = 0), short line:
+    t = [2L/(C_d a sqrt(2g))] (2/3) [(D - h1)^1.5 - (D - h0)^1.5] with C_d = 1/sqrt(K_t)
+    (HYDRAULICS notes; the surface width 2 sqrt(h(D - h)) integrated in closed form)."""
+    d, lt, h0, h1 = 2.0, 5.0, 1.6, 0.2
+    k_t = 1.0 + 0.5 + 0.02 * 0.5 / 0.05
+    expected = (2 * lt * math.sqrt(k_t) / (_area(0.05) * math.sqrt(2 * G))
+                * (2 / 3) * ((d - h1) ** 1.5 - (d - h0) ** 1.5))
+    shape = TankShape("horizontal_cylinder", diameter=d, length=lt)
+    res = simulate(_drain_system(shape, h0, drop=0.0, length=0.5, min_level=h1))
+    assert res.success and res.status == 1, res.message
+    assert res.drain_times["T"] == pytest.approx(expected, rel=5e-4)
+
+
+@pytest.mark.parametrize(
+    ("shape", "area_of_h", "h0"),
+    [
+        # horizontal cylinder drained right down to h = 0, where its width vanishes
+        (TankShape("horizontal_cylinder", diameter=1.8, length=4.0),
+         lambda h: 2 * 4.0 * math.sqrt(max(h * (1.8 - h), 0.0)), 1.5),
+        # cone bottom (apex down, 1.0 m cone under a 1.6 m cylinder), drained to the apex
+        (TankShape("cone_bottom", diameter=1.6, cone_height=1.0),
+         lambda h: _area(1.6) * min(h / 1.0, 1.0) ** 2, 2.5),
+    ],
+)
+def test_shaped_tanks_drain_in_the_quasi_steady_time_computed_with_quad(shape, area_of_h, h0):
+    # Reference: the Torricelli integral with the plain-geometry surface area, by scipy quad.
+    expected = _quasi_steady_drain_time(area_of_h, h0, 0.0, 1.0, 2.0, 0.05, 0.02, 0.5)
+    res = simulate(_drain_system(shape, h0))
+    assert res.success and res.status == 1, res.message
+    assert res.drain_times["T"] == pytest.approx(expected, rel=5e-4)
+
+
+def _independent_drain(h0, drop, length, diameter, f, k_entrance, d_tank, rtol):
+    """The same rigid-column tank drain written out as two scalar ODEs and integrated with
+    scipy solve_ivp (events by its own root finding): I dQ/dt = rho g (h + z - K_t v^2/2g),
+    dV/dt = -Q."""
+    a = _area(diameter)
+    at = _area(d_tank)
+    k_t = 1.0 + k_entrance + f * length / diameter
+    v0 = math.sqrt(2 * G * (h0 + drop) / k_t)  # steady start
+
+    def rhs(t, y):
+        q, vol = y
+        h = vol / at
+        return [G * a / length * (h + drop - k_t * q * abs(q) / (2 * G * a * a)), -q]
+
+    def empty(t, y):
+        return y[1]
+
+    empty.terminal = True
+    sol = solve_ivp(rhs, (0, 1e6), [v0 * a, at * h0], method="Radau", rtol=rtol,
+                    atol=[1e-14, 1e-12], events=empty)
+    return sol.t_events[0][0]
+
+
+@pytest.mark.parametrize("interval", [None, 500.0])
+def test_drain_event_is_landed_by_root_finding_not_at_an_output_step(interval):
+    # Reference: independent scipy integration of the same equations at rtol 1e-12.
+    expected = _independent_drain(3.0, 1.0, 2.0, 0.05, 0.02, 0.5, 2.0, 1e-12)
+    res = simulate(_drain_system(TankShape("vertical_cylinder", diameter=2.0), 3.0,
+                                 interval=interval), rtol=1e-10)
+    assert res.drain_times["T"] == pytest.approx(expected, rel=1e-8)
+    drained = [e for e in res.events if e.code == "tank.drained"]
+    assert drained[0].time == res.drain_times["T"] and res.t[-1] == drained[0].time
+
+
+def test_a_tank_overflows_at_the_landed_time_and_then_holds_its_level():
+    """Filling from a constant head H_R through a line: t = 2 A (sqrt(dH0) - sqrt(dH1)) /
+    (a sqrt(2g/K_t)) (Torricelli in reverse, quasi-steady; HYDRAULICS notes formula)."""
+    k_t = 1.0 + 0.5 + 0.02 * 2.0 / 0.05
+    at, a = _area(1.5), _area(0.05)
+    system = _system(
+        [Reservoir("R", "constant_level", 10.0, 6.0),
+         Reservoir("T", "tank", 10.0, 0.5, shape=TankShape("vertical_cylinder", diameter=1.5),
+                   height=3.0)],
+        [Line("L1", "R", "T", 2.0, 0.05, friction_factor=0.02, entrance_k=0.5)],
+        duration=3000.0,
+    )
+    res = simulate(system)
+    expected = 2 * at * (math.sqrt(5.5) - math.sqrt(3.0)) / (a * math.sqrt(2 * G / k_t))
+    over = [e for e in res.events if e.code == "tank.overflow"]
+    assert over and over[0].time == pytest.approx(expected, rel=5e-4)
+    assert res.levels[0, -1] == pytest.approx(3.0, abs=1e-9)
+    assert any(w.code == "tank.overflow" for w in res.warnings)
+
+
+# ------------------------------------------------------------------ two tanks
+
+
+def test_frictionless_u_tube_oscillates_with_the_small_oscillation_period():
+    """Two tanks of areas A1, A2 joined by a pipe of area a, length L, no friction:
+    momentum (L/g) dv/dt = h1 - h2 = dh, and continuity d(dh)/dt = -a v (1/A1 + 1/A2), so
+    d2v/dt2 = -(g a/L)(1/A1 + 1/A2) v: simple harmonic with
+    T = 2 pi sqrt(L/(g a (1/A1 + 1/A2))) (HYDRAULICS notes; the issue's formula). The exit
+    loss (one velocity head) is quadratic and negligible at this 1 cm amplitude. Reversals
+    come half a period apart."""
+    length, d, a1, a2 = 50.0, 0.1, 1.0, 2.5
+    expected = 2 * math.pi * math.sqrt(length / (G * _area(d) * (1 / a1 + 1 / a2)))
+    system = _system(
+        [Reservoir("T1", "tank", 0.0, 2.01, shape=TankShape("rectangular", length=1.0, width=a1)),
+         Reservoir("T2", "tank", 0.0, 2.00, shape=TankShape("rectangular", length=1.0, width=a2))],
+        [Line("L1", "T1", "T2", length, d, friction_factor=0.0, entrance_k=0.0)],
+        duration=3.2 * expected, initial="at_rest",
+    )
+    res = simulate(system, rtol=1e-9)
+    times = [e.time for e in res.events if e.code == "line.reversal"]
+    assert len(times) >= 5
+    half_periods = np.diff(times)
+    assert np.all(np.abs(2 * half_periods / expected - 1) < 2e-3)
+    assert times[0] == pytest.approx(expected / 2, rel=2e-3)
+
+
+def test_equalising_tanks_conserve_volume_and_end_level():
+    # Mass balance (common practice): the total liquid volume never changes; with friction
+    # the levels settle at equal heads (hydrostatics).
+    system = _system(
+        [Reservoir("T1", "tank", 2.0, 4.0, shape=TankShape("vertical_cylinder", diameter=2.0)),
+         Reservoir("T2", "tank", 0.0, 1.0, shape=TankShape("cone_bottom", diameter=3.0,
+                                                           cone_height=0.5))],
+        [Line("L1", "T1", "T2", 30.0, 0.08, roughness=4.5e-5)],
+        duration=4000.0, initial="at_rest",
+    )
+    res = simulate(system)
+    assert res.success, res.message
+    total = res.volumes.sum(axis=0)
+    assert np.max(np.abs(total - total[0])) <= 1e-6 * total[0]
+    head1 = 2.0 + res.levels[0, -1]
+    head2 = 0.0 + res.levels[1, -1]
+    assert head1 == pytest.approx(head2, abs=1e-3)
+
+
+def test_junction_continuity_holds_at_every_output():
+    # Continuity at a junction (Kirchhoff's first law): sum of inflows = outflow, 1e-9.
+    shape = TankShape("vertical_cylinder", diameter=1.5)
+    system = _system(
+        [Reservoir("T1", "tank", 5.0, 2.0, shape=shape), Reservoir("T2", "tank", 4.0, 3.0, shape=shape)],
+        [Line("A", "T1", "J", 10.0, 0.05, roughness=4.5e-5),
+         Line("B", "T2", "J", 15.0, 0.05, roughness=4.5e-5),
+         Line("C", "J", "OUT", 20.0, 0.08, roughness=4.5e-5)],
+        [Receiver("OUT", "open_discharge", 0.0)],
+        [Junction("J", 3.0)],
+        duration=600.0,
+    )
+    res = simulate(system)
+    assert res.success, res.message
+    q = dict(zip(res.line_ids, res.flows))
+    assert np.max(np.abs(q["A"] + q["B"] - q["C"])) <= 1e-9 * np.max(np.abs(q["C"]))
+
+
+# ------------------------------------------------------------------ valve closure
+
+
+def _closure_system(t_close, k_open=200.0, head=30.0, length=600.0, d=0.3):
+    valve = Valve("linear", k_open, schedule=ValveSchedule((1.0, 1.0 + t_close), (1.0, 0.0)))
+    return _system(
+        [Reservoir("R", "constant_level", 0.0, head)],
+        [Line("L1", "R", "OUT", length, d, friction_factor=0.0, entrance_k=0.0, valve=valve)],
+        [Receiver("OUT", "open_discharge", 0.0)],
+        duration=t_close + 10.0,
+    )
+
+
+@pytest.mark.parametrize("t_close", [8.0, 20.0, 60.0])
+def test_rigid_column_closure_peak_matches_the_closed_form(t_close):
+    """Linear effective-area closure K = K0/tau^2, tau = 1 - t/Tc, friction vanishing at zero
+    flow: peak valve head H = [(B + sqrt(B^2 + 4 H0))/2]^2 with B = L v0/(g Tc sqrt(H_v0))
+    (rigid water column theory; Streeter & Wylie, from memory). The theory neglects the
+    pipe velocity head; with K0 = 2000 it is 0.05 % of H0, hence the 1e-3 tolerance."""
+    head, length, k0 = 30.0, 2000.0, 2000.0
+    v0 = math.sqrt(2 * G * head / (1 + k0))
+    h_v0 = k0 * v0 * v0 / (2 * G)
+    b = length * v0 / (G * t_close * math.sqrt(h_v0))
+    expected = ((b + math.sqrt(b * b + 4 * h_v0)) / 2) ** 2
+    res = simulate(_closure_system(t_close, k0, head, length))
+    assert res.success, res.message
+    peak_head = res.max_pressure["L1"] / (WATER.density * G)  # valve at elevation 0
+    assert peak_head == pytest.approx(expected, rel=1e-3)
+    assert not res.surge["L1"].capped
+
+
+def test_valve_closure_is_an_event_at_the_schedule_time_and_stops_the_line():
+    res = simulate(_closure_system(8.0))
+    closed = [e for e in res.events if e.code == "valve.closed"]
+    assert [e.time for e in closed] == [9.0]  # schedule: shut at t = 1 + 8 s
+    after = res.t > 9.0
+    assert np.all(res.flows[0, after] == 0.0)
+    assert np.all(res.flows[0, ~after] >= 0.0)  # no reverse flow through the closing valve
+
+
+def test_a_fast_closure_is_flagged_and_its_peak_capped_at_static_plus_joukowsky():
+    """Closure in 2 s on a 600 m steel line (2L/a about 0.9 s): about two round trips, so the
+    rigid column is not valid (HYDRAULICS notes, planning comparison) and the peak is capped
+    at static + rho a v0 (Joukowsky 1898)."""
+    valve = Valve("linear", 5.0, schedule=ValveSchedule((1.0, 3.0), (1.0, 0.0)))
+    line = Line("L1", "R", "OUT", 600.0, 0.30318, friction_factor=0.015, entrance_k=0.5,
+                valve=valve, wall_thickness=0.01031, elastic_modulus=207e9,
+                pressure_rating=10e5)
+    system = _system([Reservoir("R", "constant_level", 0.0, 30.0)], [line],
+                     [Receiver("OUT", "open_discharge", 0.0)], duration=10.0)
+    res = simulate(system)
+    s = res.surge["L1"]
+    assert s.wave_speed == pytest.approx(1307.6, abs=0.5)  # anchored, c1 = 1 - nu^2
+    assert s.rapid_closure and s.capped
+    codes = {w.code for w in res.warnings}
+    assert {"surge.rapid_closure", "surge.pressure"} <= codes
+    v0 = res.flows[0, 0] / _area(0.30318)
+    cap = WATER.density * G * 30.0 + WATER.density * s.wave_speed * v0
+    assert res.max_pressure["L1"] == pytest.approx(cap, rel=1e-3)
+    assert s.max_pressure_uncapped > cap
+
+
+def test_column_separation_is_flagged_where_pressure_reaches_vapour_pressure():
+    # A fast closure at the *upstream* end of a line draining to air: the moving column
+    # pulls away from the valve and the pressure behind it falls to vapour pressure (column
+    # separation, Wylie & Streeter 1993).
+    valve = Valve("linear", 5.0, position="from",
+                  schedule=ValveSchedule((1.0, 2.0), (1.0, 0.0)))
+    line = Line("L1", "R", "OUT", 600.0, 0.3, friction_factor=0.015, entrance_k=0.5,
+                valve=valve)
+    system = _system([Reservoir("R", "constant_level", 0.0, 30.0)], [line],
+                     [Receiver("OUT", "open_discharge", 0.0)], duration=5.0)
+    res = simulate(system)
+    assert "surge.column_separation" in {w.code for w in res.warnings}
+    assert res.min_pressure["L1"] == pytest.approx(WATER.vapor_pressure - 101325.0, rel=1e-12)
+
+
+# ------------------------------------------------------------------ run control
+
+
+def test_progress_is_the_fraction_of_simulated_time_and_cancel_stops_cleanly():
+    fractions: list[float] = []
+
+    def cancel():
+        return bool(fractions) and fractions[-1] > 0.3
+
+    system = _drain_system(TankShape("vertical_cylinder", diameter=2.0), 3.0)
+    res = simulate(system, duration=800.0, stop_when=None, progress=fractions.append,
+                   cancel=cancel)
+    assert res.status == 2 and not res.success
+    assert fractions == sorted(fractions) and 0.3 < fractions[-1] < 0.6
+    assert res.t[-1] == pytest.approx(800.0 * fractions[-1], rel=1e-9)
+
+
+def test_a_full_run_reports_progress_up_to_one():
+    fractions: list[float] = []
+    res = simulate(_closure_system(8.0), progress=fractions.append)
+    assert res.success and fractions[-1] == 1.0 and fractions == sorted(fractions)
+
+
+@pytest.mark.parametrize("method", ["Radau", "BDF", "LSODA"])
+def test_implicit_methods_agree_on_the_drain_time(method):
+    # Reference: independent scipy integration (see _independent_drain), rtol 1e-12.
+    expected = _independent_drain(3.0, 1.0, 2.0, 0.05, 0.02, 0.5, 2.0, 1e-12)
+    res = simulate(_drain_system(TankShape("vertical_cylinder", diameter=2.0), 3.0),
+                   method=method)
+    assert res.drain_times["T"] == pytest.approx(expected, rel=1e-4)

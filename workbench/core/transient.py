@@ -1,0 +1,1066 @@
+r"""Rigid-column transient of a gravity system: line flows, tank levels, valve moves, events.
+
+Model
+-----
+The liquid in every line moves as one incompressible column (rigid-column theory). With
+``Q`` the line flow [m^3/s], ``I = rho L/A`` its inertance [kg/m^4] and ``H`` piezometric
+node heads [m],
+
+.. math::
+
+    I\,\frac{dQ}{dt} = \rho g\,\bigl(H_{from} - H_{to} - h(Q, t)\bigr)
+
+where ``h`` is the head loss of :meth:`workbench.core.line.LineSet.head_loss` (friction in
+every regime, fittings, the valve at its current opening, entrance and exit by the actual
+flow direction). Tanks obey ``dV/dt = sum(inflows) - sum(outflows)`` with the level from the
+tank's geometry (:mod:`workbench.core.tank`); the state is the tank *volume*, so the mass
+balance is linear in the flows and conserved to round-off. Constant-level reservoirs and
+receivers keep their heads.
+
+Junction heads are algebraic (an index-1 system): continuity ``sum dQ/dt = 0`` at every
+junction gives the linear system ``(M diag(a) M^T) H_J = -M diag(a) (F^T H_F + h)`` with
+``a = rho g/I``, ``M`` the junction incidence and ``F`` the fixed-node incidence. Its
+solution enters the right-hand side as a projection ``dQ/dt = -S (F^T H_F + h)``,
+``S = diag(a) (I - M^T L^+ M diag(a))``, formed once per configuration of open lines (the
+pseudo-inverse also covers a group of junctions cut off by shut valves) so every call is
+one matrix product; junction heads for pressures are recovered from the same factors.
+
+Integration is implicit (Radau by default, BDF or LSODA by name) with the analytic
+Jacobian ``-S diag(dh/dQ)`` and ``-S F^T diag(1/A(h))``, driven step by step through
+scipy's ``OdeSolver`` interface so progress is reported honestly as the fraction of
+simulated time and a cancel request stops the run between steps. Events are located by
+root finding (``brentq``) on the solver's dense output, as ``solve_ivp`` does, and the
+integrator is restarted after each event that changes the configuration:
+
+``tank.drained``
+    the volume falls to the one at ``min_level``; the tank's outlets then stop drawing
+    (their flow is set to zero and held there for the rest of the run);
+``tank.overflow``
+    the volume reaches the one at the overflow level; the level is then held there and the
+    surplus inflow spills, until the net inflow turns negative;
+``line.reversal``
+    a line flow changes sign (recorded only after a swing of at least 0.1 % of the line's
+    largest flow so far, so numerical chatter near a rest state is not reported);
+``valve.closed``
+    a valve's schedule reaches zero opening (its break point, landed exactly): the line's
+    flow is set to zero and held there, with no division by zero and no flow through the
+    shut valve.
+
+Validity
+--------
+Rigid-column pressures are valid for slow valve moves only; :mod:`workbench.core.surge`
+screens each closure and caps reported peaks at static plus Joukowsky. The laminar start-up
+of this lumped model is exponential with time constant ``rho D^2/(32 mu)``; the exact
+laminar start-up (Szymanski's series solution, 1932) is about 1.3-1.4 times slower to
+reach 63-99 % of the final flow, so for viscous liquids start-up times here are
+optimistic. A computed "drained" time is never proof that a tank is empty.
+"""
+
+from __future__ import annotations
+
+import math
+import time as _time
+from dataclasses import dataclass, field
+from typing import Callable
+
+import numpy as np
+
+from workbench.core.model import (
+    G,
+    Finding,
+    System,
+    receiver_head,
+    reservoir_head,
+)
+from workbench.core.tank import TankGeometry, tank_geometry
+
+#: Integration methods by name (all scipy OdeSolver classes); the first three are implicit.
+METHODS: dict[str, str] = {
+    "Radau": "implicit Runge-Kutta of order 5 (Radau IIA), analytic Jacobian",
+    "BDF": "backward differentiation formulas of variable order, analytic Jacobian",
+    "LSODA": "ODEPACK LSODA: switches between Adams and BDF, analytic Jacobian",
+    "RK45": "explicit Runge-Kutta 5(4) (for comparison: slow on stiff systems)",
+}
+
+#: Status codes of :class:`TransientResult`.
+STATUS = {
+    -1: "integration failed",
+    0: "reached the end of the simulated duration",
+    1: "stop condition met (every draining tank drained)",
+    2: "cancelled",
+}
+
+_X_FLOOR = 1e-9
+"""Smallest valve travel used inside a segment in which the valve is open: it reaches zero
+only at the segment's end, where the line is then shut exactly."""
+
+
+@dataclass(frozen=True)
+class Event:
+    """Something that happened at an instant of the run."""
+
+    time: float
+    """[s]"""
+    code: str
+    """``tank.drained``, ``tank.overflow``, ``tank.spill_end``, ``line.reversal``,
+    ``valve.closed``, ``valve.opened``."""
+    element: str
+    """Id of the tank, line or valve's line."""
+    message: str
+
+
+@dataclass(frozen=True)
+class LineSurge:
+    """Surge screening of one line."""
+
+    wave_speed: float | None
+    """Pressure-wave speed a [m/s]; ``None`` when the liquid's bulk modulus is unknown."""
+    formula: str
+    """How ``wave_speed`` was obtained (formula and support factor)."""
+    joukowsky: float | None
+    """``rho*a*v_max`` with the line's largest velocity of the run [Pa]."""
+    round_trip: float | None
+    """``2L/a`` [s]."""
+    effective_closure: float | None
+    """Effective closure time of the valve schedule [s] (see
+    :func:`workbench.core.surge.effective_closure_time`); ``None`` without a closing move."""
+    rapid_closure: bool
+    """Effective closure shorter than five round trips: rigid column not valid."""
+    max_pressure_uncapped: float
+    """Largest gauge pressure of the rigid-column run before the Joukowsky cap [Pa]."""
+    capped: bool
+    """The reported maximum was limited to static plus Joukowsky."""
+
+
+@dataclass(frozen=True)
+class TransientResult:
+    """Outcome of :func:`simulate`, shaped like scipy's ``OdeResult``.
+
+    Series are sampled at :attr:`t` (the output grid plus every event time).
+    """
+
+    success: bool
+    status: int
+    """See :data:`STATUS`."""
+    message: str
+    t: np.ndarray
+    """Output times [s]."""
+    line_ids: tuple[str, ...]
+    flows: np.ndarray
+    """Line flows, lines x times [m^3/s]."""
+    tank_ids: tuple[str, ...]
+    levels: np.ndarray
+    """Tank levels above their bottoms, tanks x times [m]."""
+    volumes: np.ndarray
+    """Tank liquid volumes, tanks x times [m^3]."""
+    events: tuple[Event, ...]
+    max_pressure: dict[str, float]
+    """Per line, the largest gauge pressure anywhere on the line over the run, valve inlet
+    and profile points included, after the Joukowsky cap [Pa]."""
+    min_pressure: dict[str, float]
+    """Per line, the smallest gauge pressure anywhere on the line over the run [Pa]."""
+    max_pressure_time: dict[str, float]
+    """When the (uncapped) maximum occurred [s]."""
+    min_pressure_time: dict[str, float]
+    surge: dict[str, LineSurge]
+    warnings: tuple[Finding, ...]
+    drain_times: dict[str, float]
+    """Time each tank drained [s] (tanks that drained only)."""
+    method: str = "Radau"
+    nfev: int = 0
+    njev: int = 0
+    nlu: int = 0
+    nsteps: int = 0
+    wall_time: float = 0.0
+    """Wall-clock time of the integration [s]."""
+    stats: dict = field(default_factory=dict)
+
+
+class _Config:
+    """Matrices for one configuration of open lines and spilling tanks."""
+
+    def __init__(self, model: "_Model", open_lines: np.ndarray, spilling: np.ndarray):
+        self.open = open_lines.copy()
+        self.spilling = spilling.copy()
+        alpha = np.where(open_lines, model.alpha, 0.0)
+        m = model.m_dense
+        nl = model.nl
+        if m.shape[0]:
+            lap = (m * alpha) @ m.T
+            self.lap_pinv = np.linalg.pinv(lap, rcond=1e-13, hermitian=True)
+            w = self.lap_pinv @ (m * alpha)
+            self.w = w  # H_J = -w @ g
+            self.s = alpha[:, None] * (np.eye(nl) - m.T @ w)
+        else:
+            self.w = np.zeros((0, nl))
+            self.s = np.diag(alpha)
+        self.s_tank = self.s @ model.ft_tank  # lines x tanks
+        self._alpha = alpha
+        self._m = m
+        t_rows = model.t_rows.copy()
+        t_rows[spilling, :] = 0.0
+        self.t_rows = t_rows
+
+    def project(self, q: np.ndarray) -> np.ndarray:
+        """Flows made to satisfy continuity at every junction after lines were stopped.
+
+        A line stopped at once (a tank's outlet when it drains) takes a pressure impulse
+        that changes the other flows at its junctions in inverse proportion to their
+        inertance: ``q' = q - diag(a) M^T (M diag(a) M^T)^+ M q`` (the rigid-column momentum
+        balance over an instant).
+        """
+        if not self._m.shape[0]:
+            return q
+        imbalance = self._m @ q
+        if not np.any(np.abs(imbalance) > 0.0):
+            return q
+        return q - self._alpha * (self._m.T @ (self.lap_pinv @ imbalance))
+
+
+class _Model:
+    """Everything constant over a run: arrays built once from the system."""
+
+    def __init__(self, system: System):
+        from workbench.core.line import LineSet
+        from workbench.core.topology import build_topology
+
+        self.system = system
+        topo = build_topology(system)
+        self.topo = topo
+        self.lines = LineSet(system, topo)
+        self.nl = topo.n_lines
+        rho = system.fluid.density
+        self.rho = rho
+        self.alpha = G * self.lines.area / self.lines.length  # rho*g/I [1/(s^2 m)]... per m^2
+        self.m_dense = np.asarray(topo.incidence.toarray(), dtype=float)
+        f_dense = np.asarray(topo.fixed_incidence.toarray(), dtype=float)
+        self.f_dense = f_dense
+        # fixed heads: constant part
+        h_fixed = np.zeros(topo.n_fixed)
+        tank_ids: list[str] = []
+        tank_fixed: list[int] = []
+        for k, nid in enumerate(topo.fixed_ids):
+            if nid in system.reservoirs:
+                res = system.reservoirs[nid]
+                h_fixed[k] = reservoir_head(res, rho)
+                if res.kind == "tank":
+                    tank_ids.append(nid)
+                    tank_fixed.append(k)
+            else:
+                h_fixed[k] = receiver_head(system.receivers[nid], rho)
+        self.h_fixed0 = h_fixed
+        self.tank_ids = tuple(tank_ids)
+        self.tank_fixed = np.array(tank_fixed, dtype=np.intp)
+        self.nt = len(tank_ids)
+        self.tanks = [system.reservoirs[t] for t in tank_ids]
+        self.geoms: list[TankGeometry] = [tank_geometry(r) for r in self.tanks]
+        self.tank_head_offset = np.array(
+            [r.bottom_elevation + r.surface_pressure / (rho * G) for r in self.tanks]
+        )
+        self.ft_tank = f_dense[self.tank_fixed, :].T if self.nt else np.zeros((self.nl, 0))
+        self.t_rows = f_dense[self.tank_fixed, :] if self.nt else np.zeros((0, self.nl))
+        self.v_min = np.array([g.volume(r.min_level) for g, r in zip(self.geoms, self.tanks)])
+        self.v_over = np.array(
+            [g.capacity if g.overflow_level is not None else np.inf for g in self.geoms]
+        )
+        self.valve_lines = np.flatnonzero(self.lines.has_valve)
+        # +1 where the line discharges to air at its to-end, -1 at its from-end, 0 otherwise
+        rec_to = np.array([k == "open_discharge" for k in self.lines.to_kind])
+        rec_from = np.array([k == "open_discharge" for k in self.lines.from_kind])
+        self.discharge_sign = np.where(rec_to, 1.0, np.where(rec_from, -1.0, 0.0))
+        self.is_discharge = self.discharge_sign != 0.0
+        self._stations()
+
+    # ------------------------------------------------------------------ heads
+    def tank_levels(self, v: np.ndarray) -> np.ndarray:
+        return np.array([g.level_extrapolated(x) for g, x in zip(self.geoms, v)])
+
+    def fixed_heads(self, v: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        levels = self.tank_levels(v)
+        h = self.h_fixed0.copy()
+        if self.nt:
+            h[self.tank_fixed] = self.tank_head_offset + levels
+        return h, levels
+
+    # ------------------------------------------------------------------ stations
+    def _stations(self) -> None:
+        """Points along every line where pressure is tracked: both ends (so the valve
+        inlet), and every profile point."""
+        system = self.system
+        frac: list[float] = []
+        elev: list[float] = []
+        owner: list[int] = []
+        for i, lid in enumerate(self.topo.line_ids):
+            line = system.lines[lid]
+            z_from = system.node_elevation(line.from_node)
+            z_to = system.node_elevation(line.to_node)
+            pts = [(0.0, z_from)]
+            for d, z in line.profile:
+                if 0.0 < d < line.length:
+                    pts.append((d, z))
+                elif d <= 0.0:
+                    pts[0] = (0.0, z)
+            pts.append((line.length, z_to))
+            for d, z in pts:
+                frac.append(d / line.length)
+                elev.append(z)
+                owner.append(i)
+        self.st_frac = np.array(frac)
+        self.st_elev = np.array(elev)
+        self.st_owner = np.array(owner, dtype=np.intp)
+        self.st_start = np.flatnonzero(np.r_[True, np.diff(self.st_owner) != 0])
+        lines = self.lines
+        self.from_free = np.array([k in ("reservoir", "vessel") for k in lines.from_kind])
+        self.to_free = np.array([k in ("reservoir", "vessel") for k in lines.to_kind])
+        valve_at_to = np.zeros(self.nl, bool)
+        valve_at_from = np.zeros(self.nl, bool)
+        for i, lid in enumerate(self.topo.line_ids):
+            v = system.lines[lid].valve
+            if v is not None:
+                valve_at_to[i] = v.position == "to"
+                valve_at_from[i] = v.position == "from"
+        self.valve_at_to = valve_at_to
+        self.valve_at_from = valve_at_from
+        self.entrance_k = np.array([system.lines[lid].entrance_k for lid in self.topo.line_ids])
+
+
+def _line_end_heads(model: _Model, q, qdot, h_nodes_from, h_nodes_to):
+    """Piezometric heads inside each line at its two ends, pipe side of any valve [m].
+
+    Without a valve both ends follow from the node heads (less the velocity head and
+    entrance loss where the flow leaves a free surface). With a valve, the valve's end is
+    found from the momentum balance of the pipe instead,
+    ``H_a - H_b = h_pipe(Q) + (L/gA) dQ/dt`` with ``dQ/dt`` taken from the integrated
+    trajectory: near the end of a closure ``K_valve Q^2`` multiplies a tiny, inexact flow by
+    a huge coefficient, while the column's deceleration stays well conditioned.
+    """
+    lines = model.lines
+    v = q / lines.area
+    vh = v * np.abs(v) / (2.0 * G)
+    fwd = q >= 0.0
+    # Leaving a free surface into the line: piezometric head drops by (1 + K_entrance) v^2/2g.
+    drop_a = np.where(fwd & model.from_free, (1.0 + model.entrance_k) * np.abs(vh), 0.0)
+    drop_b = np.where(~fwd & model.to_free, (1.0 + model.entrance_k) * np.abs(vh), 0.0)
+    h_a = h_nodes_from - drop_a
+    h_b = h_nodes_to - drop_b
+    if model.valve_lines.size:
+        x_open = np.where(lines.has_valve, 1.0, np.nan)
+        h_open, _ = lines.head_loss(q, x_open)
+        k_ends = np.where(fwd, lines.entrance_forward + lines.exit_forward,
+                          lines.entrance_reverse + lines.exit_reverse)
+        h_pipe = h_open - (lines.valve_k_open + k_ends) * vh
+        drive = h_pipe + lines.inertance_head * qdot
+        h_b = np.where(model.valve_at_to, h_a - drive, h_b)
+        h_a = np.where(model.valve_at_from, h_b + drive, h_a)
+    return h_a, h_b
+
+
+def simulate(
+    system: System,
+    *,
+    duration: float | None = None,
+    progress: Callable[[float], None] | None = None,
+    cancel: Callable[[], bool] | None = None,
+    method: str = "Radau",
+    rtol: float = 1e-6,
+    atol: float | None = None,
+    output_interval: float | None = None,
+    initial_state: str | None = None,
+    stop_when: str | None = "settings",
+) -> TransientResult:
+    """Simulate the rigid-column transient of a gravity system.
+
+    Parameters
+    ----------
+    system : System
+        A validated system; ``system.simulation`` gives the defaults below.
+    duration : float, optional
+        Simulated time [s]; default ``system.simulation.duration``.
+    progress : callable, optional
+        Called with the fraction of simulated time done (0..1) as the run advances.
+    cancel : callable, optional
+        Polled between steps; when it returns ``True`` the run stops cleanly and the result
+        holds what was computed (``status`` 2).
+    method : str
+        A key of :data:`METHODS`.
+    rtol, atol : float
+        Integration tolerances; ``atol`` default scales with the initial flows and volumes.
+    output_interval : float, optional
+        Spacing of the reported series [s]; default the settings' or ``duration/1000``.
+    initial_state : {"steady", "at_rest"}, optional
+        Default the settings' (``"steady"`` without settings).
+    stop_when : {"drained", None, "settings"}
+        ``"drained"`` ends the run when every draining tank has drained; ``"settings"``
+        takes the value from ``system.simulation``.
+
+    Returns
+    -------
+    TransientResult
+
+    Notes
+    -----
+    See the module docstring for the equations, events and the model's limits.
+    """
+    wall0 = _time.perf_counter()
+    settings = system.simulation
+    if duration is None:
+        if settings is None:
+            raise ValueError("no duration: give duration= or a [simulation] duration")
+        duration = settings.duration
+    if not (duration > 0.0 and math.isfinite(duration)):
+        raise ValueError(f"duration must be a positive number of seconds, got {duration!r}")
+    if method not in METHODS:
+        raise ValueError(f"unknown method {method!r}; choose one of {', '.join(METHODS)}")
+    if initial_state is None:
+        initial_state = settings.initial_state if settings is not None else "steady"
+    if initial_state not in ("steady", "at_rest"):
+        raise ValueError(f"initial_state must be 'steady' or 'at_rest', got {initial_state!r}")
+    if stop_when == "settings":
+        stop_when = settings.stop_when if settings is not None else None
+    if output_interval is None and settings is not None:
+        output_interval = settings.output_interval
+    if output_interval is None or not output_interval > 0.0:
+        output_interval = duration / 1000.0
+
+    model = _Model(system)
+    run = _Run(model, duration, method, rtol, atol, output_interval, initial_state,
+               stop_when, progress, cancel)
+    result = run.execute()
+    return _finish(model, run, result, _time.perf_counter() - wall0)
+
+
+class _Run:
+    """The stepping loop of one simulation (state kept between segments)."""
+
+    def __init__(self, model, duration, method, rtol, atol, output_interval, initial_state,
+                 stop_when, progress, cancel):
+        self.model = model
+        self.duration = float(duration)
+        self.method = method
+        self.rtol = rtol
+        self.atol_arg = atol
+        self.output_interval = output_interval
+        self.initial_state = initial_state
+        self.stop_when = stop_when
+        self.progress = progress
+        self.cancel = cancel
+        self.events: list[Event] = []
+        self.nfev = self.njev = self.nlu = self.nsteps = 0
+        nl, nt = model.nl, model.nt
+        self.drained = np.zeros(nt, bool)
+        self.spilling = np.zeros(nt, bool)
+        self.blocked = np.zeros(nl, bool)  # outlets of drained tanks
+        self.backstopped = np.zeros(nl, bool)  # would draw air back from an open discharge
+        self.t_out: list[float] = []
+        self.y_out: list[np.ndarray] = []
+        ns = len(model.st_frac)
+        self.p_max = np.full(ns, -np.inf)
+        self.p_min = np.full(ns, np.inf)
+        self.p_max_t = np.zeros(ns)
+        self.p_min_t = np.zeros(ns)
+        self.h_static_max = np.full(nl, -np.inf)  # highest end-node head seen per line
+        self.v_max = np.zeros(nl)
+        self.peak_since_rev = np.zeros(nl)
+        self.q_peak = np.zeros(nl)
+        self.rev_count = np.zeros(nl, dtype=int)
+        self.last_progress = -1.0
+        self.drain_times: dict[str, float] = {}
+        self.notes: list[Finding] = []
+
+    # ---------------------------------------------------------------- RHS / Jacobian
+    def _openings(self, t: float) -> np.ndarray:
+        x = self.model.lines.openings_at(t)
+        if self.open_valve_floor.any():
+            x = np.where(self.open_valve_floor, np.maximum(x, _X_FLOOR), x)
+        return x
+
+    def rhs(self, t, y):
+        model, cfg = self.model, self.cfg
+        nl = model.nl
+        q = y[:nl]
+        hf, _ = model.fixed_heads(y[nl:])
+        h, _ = model.lines.head_loss(q, self._openings(t))
+        g = model.f_dense.T @ hf + h
+        g = np.where(cfg.open, g, 0.0)
+        dq = -(cfg.s @ g)
+        dv = cfg.t_rows @ q
+        return np.concatenate([dq, dv])
+
+    def jac(self, t, y):
+        model, cfg = self.model, self.cfg
+        nl, nt = model.nl, model.nt
+        q = y[:nl]
+        _, dh = model.lines.head_loss(q, self._openings(t))
+        dh = np.where(cfg.open, dh, 0.0)
+        j = np.zeros((nl + nt, nl + nt))
+        j[:nl, :nl] = -cfg.s * dh[None, :]
+        if nt:
+            levels = model.tank_levels(y[nl:])
+            inv_a = np.array([1.0 / g.area_floor(lv, 1e-9) for g, lv in zip(model.geoms, levels)])
+            j[:nl, nl:] = -cfg.s_tank * inv_a[None, :]
+            j[nl:, :nl] = cfg.t_rows
+        return j
+
+    def heads(self, t, y):
+        """Junction and fixed heads at a state, and the valve K per line."""
+        model, cfg = self.model, self.cfg
+        nl = model.nl
+        q = y[:nl]
+        hf, levels = model.fixed_heads(y[nl:])
+        x = self._openings(t)
+        h, _ = model.lines.head_loss(q, x)
+        g = model.f_dense.T @ hf + np.where(cfg.open, h, 0.0)
+        hj = -(cfg.w @ g) if cfg.w.shape[0] else np.zeros(0)
+        kv = model.lines.valve_k(x)
+        kv = np.where(np.isfinite(kv), kv, 0.0)
+        return np.concatenate([hj, hf]), kv
+
+    # ---------------------------------------------------------------- pressures
+    def track(self, t, y, qdot):
+        model = self.model
+        nl = model.nl
+        q = y[:nl]
+        qdot = np.where(self.cfg.open, qdot, 0.0)
+        h_nodes, _ = self.heads(t, y)
+        topo = model.topo
+        hn_from = h_nodes[topo.line_from]
+        hn_to = h_nodes[topo.line_to]
+        h_a, h_b = _line_end_heads(model, q, qdot, hn_from, hn_to)
+        # A shut valve isolates the pipe from the node beyond it: the pipe side stands at
+        # the head of the node it is still open to.
+        shut = ~self.cfg.open & ~self.blocked & ~self.backstopped
+        h_b = np.where(shut & model.valve_at_to, h_a, h_b)
+        h_a = np.where(shut & model.valve_at_from, h_b, h_a)
+        o = model.st_owner
+        h_st = h_a[o] + model.st_frac * (h_b[o] - h_a[o])
+        p = model.rho * G * (h_st - model.st_elev)
+        # outlets of drained tanks run part-full or empty: no pressure is tracked there
+        # Outlets of drained tanks run part-full or empty: no pressure is tracked there. In
+        # the last 0.1 % of a valve closure the flow is below what the tolerances resolve,
+        # and the deceleration of the column (hence the valve-end head) is noise: skip it;
+        # the head there differs from the last tracked one by a negligible amount.
+        tail = self.closing & (np.abs(q) < 1e-3 * self.q_peak)
+        p = np.where((self.blocked | self.backstopped | tail)[o], np.nan, p)
+        up = p > self.p_max
+        self.p_max = np.where(up, p, self.p_max)
+        self.p_max_t = np.where(up, t, self.p_max_t)
+        dn = p < self.p_min
+        self.p_min = np.where(dn, p, self.p_min)
+        self.p_min_t = np.where(dn, t, self.p_min_t)
+        self.h_static_max = np.maximum(self.h_static_max, np.maximum(hn_from, hn_to))
+        self.v_max = np.maximum(self.v_max, np.abs(q) / model.lines.area)
+
+    # ---------------------------------------------------------------- events
+    # event components, in this order: (kind, size)
+    _KINDS = ("drain", "overflow", "spill_end", "reversal", "discharge_stop", "release")
+
+    def event_values(self, t, y):
+        model = self.model
+        nl = model.nl
+        q = y[:nl]
+        v = y[nl:]
+        sign = model.discharge_sign
+        if self.backstopped.any():
+            h_nodes, _ = self.heads(t, y)
+            drive = sign * (h_nodes[model.topo.line_from] - h_nodes[model.topo.line_to])
+        else:
+            drive = np.zeros(nl)
+        return np.concatenate([
+            v - model.v_min,  # drained
+            v - model.v_over,  # overflow
+            model.t_rows @ q,  # net inflow: spill end
+            q,  # reversal
+            sign * q,  # flow turning back out of an open discharge
+            drive,  # head returning above an open discharge
+        ])
+
+    def _arm(self):
+        model = self.model
+        nt, nl = model.nt, model.nl
+        is_open = self.cfg.open
+        self.armed = np.concatenate([
+            ~self.drained,
+            ~self.spilling & np.isfinite(model.v_over),
+            self.spilling,
+            is_open & ~model.is_discharge,
+            is_open & model.is_discharge,
+            self.backstopped & ~self.blocked,
+        ])
+        self.direction = np.concatenate([
+            np.full(nt, -1), np.full(nt, 1), np.full(nt, -1),
+            np.zeros(nl, int), np.full(nl, -1), np.full(nl, 1),
+        ])
+        self.terminal = np.concatenate([
+            np.ones(3 * nt, bool), np.zeros(nl, bool), np.ones(2 * nl, bool),
+        ])
+        self.kind_of = np.concatenate([np.full(nt, 0), np.full(nt, 1), np.full(nt, 2),
+                                       np.full(nl, 3), np.full(nl, 4), np.full(nl, 5)])
+        self.index_of = np.concatenate([np.arange(nt)] * 3 + [np.arange(nl)] * 3)
+
+    def find_events(self, sol, t_old, y_old, t_new, y_new):
+        from scipy.optimize import brentq
+
+        e_old = self.event_values(t_old, y_old)
+        e_new = self.event_values(t_new, y_new)
+        up = (e_old < 0.0) & (e_new >= 0.0) & (self.direction >= 0)
+        down = (e_old > 0.0) & (e_new <= 0.0) & (self.direction <= 0)
+        hits = np.flatnonzero((up | down) & self.armed)
+        found = []
+        for k in hits:
+            def fun(t, k=k):
+                return self.event_values(t, sol(t))[k]
+            try:
+                te = brentq(fun, t_old, t_new, xtol=4 * np.finfo(float).eps * max(1.0, abs(t_new)),
+                            rtol=4 * np.finfo(float).eps)
+            except ValueError:  # sign lost in the dense output: take the step end
+                te = t_new
+            found.append((te, int(k)))
+        found.sort()
+        return found
+
+    # ---------------------------------------------------------------- output
+    def record(self, t, y):
+        self.t_out.append(float(t))
+        self.y_out.append(np.array(y, dtype=float))
+
+    def report_progress(self, t, force=False):
+        if self.progress is None:
+            return
+        frac = min(max(t / self.duration, 0.0), 1.0)
+        if force or frac - self.last_progress >= 0.002:
+            self.last_progress = frac
+            self.progress(frac)
+
+    # ---------------------------------------------------------------- main loop
+    def initial(self):
+        model = self.model
+        nl, nt = model.nl, model.nt
+        v0 = np.array([g.volume(r.level) if r.level <= g.top else np.nan
+                       for g, r in zip(model.geoms, model.tanks)])
+        if np.isnan(v0).any():
+            bad = [r.id for r, v in zip(model.tanks, v0) if np.isnan(v)]
+            raise ValueError(f"tank(s) {', '.join(bad)}: initial level above the top of the shape")
+        q0 = np.zeros(nl)
+        if self.initial_state == "steady":
+            from workbench.core.network import solve_steady
+
+            levels = {r.id: r.level for r in model.tanks}
+            openings = {}
+            for i in model.valve_lines:
+                lid = model.topo.line_ids[i]
+                openings[lid] = float(model.lines.openings_at(0.0)[i])
+            res = solve_steady(model.system, levels=levels, openings=openings)
+            if not res.success:
+                raise _InitialStateError(
+                    "the steady state at the initial levels and openings was not found: "
+                    f"{res.message} (set the initial state to at_rest to start from rest)"
+                )
+            for i, lid in enumerate(model.topo.line_ids):
+                q0[i] = res.lines[lid].flow
+        return np.concatenate([q0, v0])
+
+    def segment_breaks(self):
+        times = set()
+        for i in self.model.valve_lines:
+            valve = self.model.system.lines[self.model.topo.line_ids[i]].valve
+            if valve.schedule is not None:
+                times.update(t for t in valve.schedule.times if 0.0 < t < self.duration)
+        return sorted(times) + [self.duration]
+
+    def configure(self, t_a, t_b, y):
+        """Set the open lines for the segment [t_a, t_b]; returns the adjusted state."""
+        model = self.model
+        lines = model.lines
+        x_a = lines.openings_at(t_a)
+        x_b = lines.openings_at(t_b)
+        shut_a = lines.closed(x_a)
+        shut_b = lines.closed(x_b)
+        valve_shut = shut_a & shut_b
+        self.open_valve_floor = lines.has_valve & ~valve_shut
+        # valves shutting at the end of this segment: the last 0.1 % of their flow is not
+        # used for pressures (see track)
+        self.closing = lines.has_valve & ~valve_shut & shut_b
+        y = y.copy()
+        for _ in range(model.nl + 1):
+            open_lines = ~valve_shut & ~self.blocked & ~self.backstopped
+            y[: model.nl][~open_lines] = 0.0
+            self.cfg = _Config(model, open_lines, self.spilling)
+            y[: model.nl] = self.cfg.project(y[: model.nl])
+            # a discharge line at rest whose upstream head is below its outlet cannot start
+            h_nodes, _ = self.heads(t_a, y)
+            drive = model.discharge_sign * (h_nodes[model.topo.line_from]
+                                             - h_nodes[model.topo.line_to])
+            q = y[: model.nl]
+            stop = open_lines & model.is_discharge & (model.discharge_sign * q <= 0.0) & (drive < 0.0)
+            if not stop.any():
+                break
+            self.backstopped |= stop
+        self._arm()
+        return y
+
+    def execute(self):
+        from scipy import integrate
+
+        model = self.model
+        nl, nt = model.nl, model.nt
+        try:
+            y = self.initial()
+        except _InitialStateError as exc:
+            return -1, str(exc)
+        # which tanks count as draining: a line leaves them by its positive direction, or
+        # the initial flow draws from them
+        leaves = (model.t_rows < 0).any(axis=1) if nt else np.zeros(0, bool)
+        draws = (model.t_rows * y[:nl][None, :] < 0).any(axis=1) if nt else np.zeros(0, bool)
+        self.draining_capable = leaves | draws
+        t = 0.0
+        # tanks already at or beyond their limits at the start
+        for k, r in enumerate(model.tanks):
+            if y[nl + k] <= model.v_min[k] and self.draining_capable[k]:
+                self._drain(k, t, y, started=True)
+            if y[nl + k] >= model.v_over[k]:
+                self.spilling[k] = True
+                self._event(t, "tank.overflow", r.id,
+                            f"tank {r.id} starts at or above its overflow level")
+        if nt:
+            scale_v = np.maximum(np.abs(y[nl:]), np.where(np.isfinite(model.v_over),
+                                                             model.v_over, 0.0))
+        else:
+            scale_v = np.zeros(0)
+        q_scale = max(float(np.max(np.abs(y[:nl]), initial=0.0)), 1e-4)
+        if self.atol_arg is None:
+            atol = np.concatenate([np.full(nl, 1e-6 * q_scale),
+                                   np.maximum(1e-9 * scale_v, 1e-9)])
+        else:
+            atol = self.atol_arg
+        self.q_peak = np.abs(y[:nl])
+
+        breaks = self.segment_breaks()
+        seg_start = 0.0
+        grid = np.arange(0.0, self.duration + 0.5 * self.output_interval, self.output_interval)
+        grid = grid[grid <= self.duration]
+        grid_i = 0
+        status = 0
+        message = STATUS[0]
+        self.open_valve_floor = np.zeros(nl, bool)
+        for seg_end in breaks:
+            y = self.configure(seg_start, seg_end, y)
+            t = seg_start
+            if t == 0.0:
+                self.record(t, y)
+                self.track(t, y, self.rhs(t, y)[:nl])
+                grid_i = 1
+            while t < seg_end:
+                solver_cls = getattr(integrate, self.method)
+                kwargs = dict(rtol=self.rtol, atol=atol)
+                if self.method != "RK45":
+                    kwargs["jac"] = self.jac
+                solver = solver_cls(self.rhs, t, y, seg_end, **kwargs)
+                restart = False
+                while solver.status == "running":
+                    if self.cancel is not None and self.cancel():
+                        status, message = 2, f"cancelled at t = {t:.6g} s"
+                        break
+                    t_old, y_old = solver.t, solver.y.copy()
+                    msg = solver.step()
+                    self.nsteps += 1
+                    if solver.status == "failed":
+                        status, message = -1, f"integration failed at t = {solver.t:.6g} s: {msg}"
+                        break
+                    t_new, y_new = solver.t, solver.y
+                    sol = solver.dense_output()
+                    found = self.find_events(sol, t_old, y_old, t_new, y_new)
+                    t_stop = t_new
+                    terminal_hits = []
+                    for te, k in found:
+                        if self.terminal[k]:
+                            if not terminal_hits or te <= terminal_hits[0][0] + 1e-12 * max(1.0, te):
+                                terminal_hits.append((te, k))
+                    if terminal_hits:
+                        t_stop = terminal_hits[0][0]
+                    # output grid points inside the accepted part of the step
+                    g_end = int(np.searchsorted(grid, t_stop, side="right"))
+                    if g_end > grid_i:
+                        tg = grid[grid_i:g_end]
+                        tg = tg[tg > t_old]
+                        if tg.size:
+                            yg = sol(tg)
+                            self.t_out.extend(tg.tolist())
+                            self.y_out.extend(yg.T)
+                        grid_i = g_end
+                    for te, k in found:
+                        if te <= t_stop and not self.terminal[k]:
+                            self._reversal(int(self.index_of[k]), te, sol(te))
+                    y_stop = sol(t_stop)
+                    self._peaks(y_stop[:nl])
+                    delta = 1e-3 * (t_stop - t_old)
+                    qdot = (y_stop[:nl] - sol(t_stop - delta)[:nl]) / delta
+                    self.track(t_stop, y_stop, qdot)
+                    t, y = t_stop, y_stop
+                    self.report_progress(t)
+                    if terminal_hits:
+                        stop = self._terminal(terminal_hits, y)
+                        if self.t_out[-1] != t:
+                            self.record(t, y)
+                        if stop:
+                            status, message = 1, (
+                                f"every draining tank drained by t = {t:.6g} s")
+                            break
+                        y = self.configure(t, seg_end, y)
+                        restart = True
+                        break
+                self.nfev += solver.nfev
+                self.njev += getattr(solver, "njev", 0)
+                self.nlu += getattr(solver, "nlu", 0)
+                if status != 0:
+                    break
+                if not restart:
+                    t, y = solver.t, solver.y.copy()
+            if status != 0:
+                break
+            if self.t_out[-1] != seg_end:
+                self.record(seg_end, y)
+            # valve break point: closures landed exactly on the schedule time
+            self._valve_breaks(seg_end, y)
+            seg_start = seg_end
+        if status in (1, 2, -1) and (not self.t_out or self.t_out[-1] != t):
+            self.record(t, y)
+        self.report_progress(t, force=True)
+        self.t_final = t
+        return status, message
+
+    # ---------------------------------------------------------------- event actions
+    def _event(self, t, code, element, message):
+        self.events.append(Event(float(t), code, element, message))
+
+    def _peaks(self, q):
+        aq = np.abs(q)
+        self.q_peak = np.maximum(self.q_peak, aq)
+        self.peak_since_rev = np.maximum(self.peak_since_rev, aq)
+
+    def _reversal(self, i, te, y):
+        lid = self.model.topo.line_ids[i]
+        threshold = max(1e-3 * self.q_peak[i], 1e-9)
+        if self.peak_since_rev[i] < threshold:
+            return
+        self.peak_since_rev[i] = 0.0
+        self.rev_count[i] += 1
+        if self.rev_count[i] <= 50:
+            self._event(te, "line.reversal", lid, f"flow in line {lid} reverses")
+        elif self.rev_count[i] == 51:
+            self._event(te, "line.reversal", lid,
+                        f"flow in line {lid} keeps reversing; further reversals not listed")
+
+    def _drain(self, k, t, y, started=False):
+        model = self.model
+        nl = model.nl
+        rid = model.tank_ids[k]
+        self.drained[k] = True
+        self.drain_times[rid] = float(t)
+        row = model.t_rows[k]
+        outlets = (row != 0) & (row * y[:nl] <= 0.0)
+        self.blocked |= outlets
+        names = ", ".join(model.topo.line_ids[i] for i in np.flatnonzero(outlets))
+        res = model.tanks[k]
+        what = "starts at or below" if started else "reaches"
+        self._event(t, "tank.drained", rid,
+                    f"tank {rid} {what} its drained level {res.min_level:g} m; "
+                    f"outlet line(s) {names or 'none'} stop drawing")
+
+    def _terminal(self, hits, y):
+        """Apply terminal events; return True when the run should stop."""
+        model = self.model
+        for te, k in hits:
+            kind, idx = int(self.kind_of[k]), int(self.index_of[k])
+            if kind == 0:
+                self._drain(idx, te, y)
+            elif kind == 1:
+                rid = model.tank_ids[idx]
+                self.spilling[idx] = True
+                lvl = model.geoms[idx].overflow_level
+                self._event(te, "tank.overflow", rid,
+                            f"tank {rid} reaches its overflow level {lvl:g} m and spills")
+            elif kind == 2:
+                rid = model.tank_ids[idx]
+                self.spilling[idx] = False
+                self._event(te, "tank.spill_end", rid, f"tank {rid} stops spilling")
+            elif kind == 4:
+                lid = model.topo.line_ids[idx]
+                self.backstopped[idx] = True
+                self._event(te, "line.reversal", lid,
+                            f"flow in line {lid} would turn back out of its open discharge: "
+                            "air enters and the line stops discharging")
+            elif kind == 5:
+                lid = model.topo.line_ids[idx]
+                self.backstopped[idx] = False
+                self._event(te, "line.restart", lid,
+                            f"the head upstream of the discharge of line {lid} rises above it "
+                            "again: the line restarts (full-bore assumed)")
+        if self.stop_when == "drained":
+            must = self.draining_capable
+            if must.any() and self.drained[must].all():
+                return True
+        return False
+
+    def _valve_breaks(self, t, y):
+        model = self.model
+        lines = model.lines
+        x = lines.openings_at(t)
+        shut = lines.closed(x)
+        for i in model.valve_lines:
+            lid = model.topo.line_ids[i]
+            if shut[i] and self.cfg.open[i]:
+                self._event(t, "valve.closed", lid, f"valve on line {lid} is shut")
+            elif (not shut[i] and not self.cfg.open[i] and not self.blocked[i]
+                  and t < self.duration):
+                self._event(t, "valve.opened", lid, f"valve on line {lid} starts to open")
+
+
+class _InitialStateError(RuntimeError):
+    pass
+
+
+def _finish(model: _Model, run: _Run, outcome, wall: float) -> TransientResult:
+    from workbench.core import surge as surge_mod
+    from workbench.core.valve import relative_flow_coefficient
+
+    status, message = outcome
+    system = model.system
+    nl = model.nl
+    t = np.array(run.t_out)
+    ys = np.array(run.y_out).T if run.y_out else np.zeros((nl + model.nt, 0))
+    flows = ys[:nl]
+    volumes = ys[nl:]
+    levels = np.array([[g.level_extrapolated(v) for v in row]
+                       for g, row in zip(model.geoms, volumes)]).reshape(model.nt, len(t))
+    rho = model.rho
+    fluid = system.fluid
+    warnings: list[Finding] = list(run.notes)
+    surge: dict[str, LineSurge] = {}
+    max_p: dict[str, float] = {}
+    min_p: dict[str, float] = {}
+    max_t: dict[str, float] = {}
+    min_t: dict[str, float] = {}
+    p_atm = system.atmospheric_pressure
+    for i, lid in enumerate(model.topo.line_ids):
+        line = system.lines[lid]
+        sel = slice(model.st_start[i],
+                    model.st_start[i + 1] if i + 1 < len(model.st_start) else None)
+        pmax_st = run.p_max[sel]
+        pmin_st = run.p_min[sel]
+        j_max = int(np.argmax(pmax_st))
+        j_min = int(np.argmin(pmin_st))
+        raw_max = float(pmax_st[j_max])
+        ws = None
+        formula = "liquid bulk modulus unknown: no wave speed"
+        if fluid.bulk_modulus is not None:
+            ws = surge_mod.wave_speed(fluid.bulk_modulus, rho, line.diameter, line.wall_thickness,
+                                      line.elastic_modulus, line.poisson_ratio, line.support)
+            formula = ws.formula
+        a = ws.speed if ws is not None else None
+        jouk = surge_mod.joukowsky(rho, a, float(run.v_max[i])) if a is not None else None
+        trip = surge_mod.round_trip(line.length, a) if a is not None else None
+        eff = None
+        if line.valve is not None and line.valve.schedule is not None:
+            valve = line.valve
+            k_line = _rest_of_line_k(model, i, run)
+            est = surge_mod.effective_closure_time(
+                valve, lambda x, v=valve: relative_flow_coefficient(v.characteristic, x,
+                                                                    v.rangeability),
+                k_line)
+            if est is not None and est.fastest_cut_at <= run.t_final:
+                eff = est.effective_time
+        rapid = bool(eff is not None and trip is not None and surge_mod.is_rapid_closure(eff, trip))
+        reported_max = raw_max
+        capped = False
+        if jouk is not None:
+            z = model.st_elev[sel]
+            cap = rho * G * (run.h_static_max[i] - z) + jouk
+            capped_st = np.minimum(pmax_st, cap)
+            reported_max = float(np.max(capped_st))
+            capped = reported_max < raw_max - 1e-9 * max(1.0, abs(raw_max))
+        max_p[lid] = reported_max
+        max_t[lid] = float(run.p_max_t[sel][j_max])
+        reported_min = float(pmin_st[j_min])
+        min_t[lid] = float(run.p_min_t[sel][j_min])
+        surge[lid] = LineSurge(wave_speed=a, formula=formula, joukowsky=jouk, round_trip=trip,
+                               effective_closure=eff, rapid_closure=rapid,
+                               max_pressure_uncapped=raw_max, capped=capped)
+        if rapid:
+            warnings.append(Finding(
+                "surge.rapid_closure", lid,
+                f"the valve on line {lid} cuts the flow in an effective {eff:.3g} s, "
+                f"{eff / trip:.2g} wave round trips 2L/a ({trip:.3g} s at a = {a:.0f} m/s); "
+                "below about 5 round trips the rigid-column pressure is not valid: an "
+                "elastic (water-hammer) analysis is needed. The reported peak is capped at "
+                f"static plus Joukowsky ({jouk / 1e5:.3g} bar rise). Consider a slower or "
+                "two-stage closure and defer to licensed surge practice.",
+                "danger",
+                "Joukowsky (1898); Wylie & Streeter, Fluid Transients in Systems (1993); "
+                "5-round-trip limit from a method-of-characteristics comparison (common practice)",
+            ))
+        if line.pressure_rating is not None and reported_max > line.pressure_rating:
+            warnings.append(Finding(
+                "surge.pressure", lid,
+                f"the pressure on line {lid} reaches {reported_max / 1e5:.3g} bar gauge at "
+                f"t = {max_t[lid]:.4g} s, above its rating of {line.pressure_rating / 1e5:.3g} bar: "
+                "slow the valve closure or add surge protection (defer to local codes and "
+                "licensed practice)",
+                "danger", "pressure rating from the project file",
+            ))
+        if fluid.vapor_pressure is not None and reported_min + p_atm <= fluid.vapor_pressure:
+            floor = fluid.vapor_pressure - p_atm
+            warnings.append(Finding(
+                "surge.column_separation", lid,
+                f"the pressure on line {lid} falls to vapour pressure at t = {min_t[lid]:.4g} s: "
+                "the liquid column separates (a vapour cavity forms and its collapse can give "
+                "pressures above Joukowsky); the rigid-column result is not valid there and "
+                "the reported minimum is limited to vapour pressure. Risk of collapse of "
+                "thin-walled or plastic pipe.",
+                "danger", "Wylie & Streeter, Fluid Transients in Systems (1993)",
+            ))
+            reported_min = floor
+        min_p[lid] = reported_min
+    for ev in run.events:
+        if ev.code == "tank.overflow":
+            warnings.append(Finding(
+                "tank.overflow", ev.element,
+                f"{ev.message} at t = {ev.time:.6g} s: check the overflow capacity under the "
+                "worst-case inflow (defer to local codes)", "danger", "common practice"))
+    return TransientResult(
+        success=status in (0, 1),
+        status=status,
+        message=message,
+        t=t,
+        line_ids=model.topo.line_ids,
+        flows=flows,
+        tank_ids=model.tank_ids,
+        levels=levels,
+        volumes=volumes,
+        events=tuple(sorted(run.events, key=lambda e: e.time)),
+        max_pressure=max_p,
+        min_pressure=min_p,
+        max_pressure_time=max_t,
+        min_pressure_time=min_t,
+        surge=surge,
+        warnings=tuple(warnings),
+        drain_times=dict(run.drain_times),
+        method=run.method,
+        nfev=run.nfev,
+        njev=run.njev,
+        nlu=run.nlu,
+        nsteps=run.nsteps,
+        wall_time=wall,
+    )
+
+
+def _rest_of_line_k(model: _Model, i: int, run: _Run) -> float:
+    """Loss coefficient of line ``i`` without its valve, at its largest flow of the run."""
+    lines = model.lines
+    q = max(float(run.q_peak[i]), 1e-6 * lines.area[i])
+    qs = np.zeros(model.nl)
+    qs[i] = q
+    x = np.full(model.nl, np.nan)
+    x[i] = 1.0
+    h, _ = lines.head_loss(qs, x)
+    vh = (q / lines.area[i]) ** 2 / (2.0 * G)
+    return max(float(h[i]) / vh - float(lines.valve_k_open[i]), 0.0)
