@@ -668,7 +668,17 @@ def _simulate(system, line_id, duration, reaches, friction, tolerance, speed_ove
 
     def valve_kappa(t_values: np.ndarray, ln: Line, inv: float) -> np.ndarray:
         v = ln.valve
-        x = np.array([opening_at(v, float(t)) for t in t_values])
+        x = np.empty(len(t_values))
+        if v.schedule is not None and len(v.schedule.times) > 0:
+            # opening_at holds the first and last openings outside the schedule: call it
+            # once for each of those stretches and at every step only while the valve moves
+            first, last = v.schedule.times[0], v.schedule.times[-1]
+            i0, i1 = np.searchsorted(t_values, [first, last], side="left")
+            x[:i0] = opening_at(v, first)
+            x[i1:] = opening_at(v, last)
+            x[i0:i1] = [opening_at(v, float(t)) for t in t_values[i0:i1]]
+        else:
+            x[:] = opening_at(v, 0.0)
         c = relative_flow_coefficient(v.characteristic, x, v.rangeability)
         return np.asarray(valve_k(v.k_open, c), dtype=float) * inv
 
@@ -796,19 +806,22 @@ def _simulate(system, line_id, duration, reaches, friction, tolerance, speed_ove
         notes.append("the liquid has no vapour pressure: column separation is not checked")
 
     # --- stepping ------------------------------------------------------------------------
-    # X = [u (nodes 0..n-1), w reversed (node n-1 .. 0)]
-    q_init = np.full(n, q0)
-    x_cur = np.empty(2 * n)
-    x_cur[:n] = h_init + b_node * q_init
-    x_cur[n:] = (h_init - b_node * q_init)[::-1]
-    x_new = x_cur.copy()
+    # State X = [u at nodes 0..n-1, w at nodes n-1..0] (w stored reversed), u = H + BQ,
+    # w = H - BQ. Each block of steps lives in the rows of ``xb``: row j+1 is computed from
+    # row j, so the rows double as the record from which the envelope is taken.
     two_n = 2 * n
-    # per-slot coefficients in the same layout: loss term E = -r2 * D|D| with D = X - X[::-1]
+    xb = np.empty((_BLOCK + 1, two_n))
+    xb[0, :n] = h_init + b_node * q0
+    xb[0, n:] = (h_init - b_node * q0)[::-1]
+    # per-slot coefficients in the same layout: loss term E = r2 * D|D| with D = X - X[::-1]
     inv2b2 = np.concatenate([inv2b, inv2b[::-1]])
     r2 = -np.concatenate([r_node, r_node[::-1]]) * inv2b2 * inv2b2
     d_buf = np.empty(two_n)
     e_buf = np.empty(two_n)
+    e_head = e_buf[:-1]
     if quasi is not None:
+        from workbench.core.friction import friction_re_product
+
         cphi, clin, repq, rr, fixed = quasi
         cphi2 = np.concatenate([cphi, cphi[::-1]])
         clin2 = np.concatenate([clin, clin[::-1]])
@@ -816,38 +829,43 @@ def _simulate(system, line_id, duration, reaches, friction, tolerance, speed_ove
         rr2 = np.concatenate([rr, rr[::-1]])
         fixed2 = np.concatenate([fixed, fixed[::-1]])
         has_fixed = bool(np.isfinite(fixed2).any())
-        from workbench.core.friction import friction_re_product
     frictionless = quasi is None and not np.any(r_node)
+    rows = [xb[j] for j in range(_BLOCK + 1)]
+    rows_rev = [row[::-1] for row in rows]
+    rows_head = [row[:-1] for row in rows]
+    rows_tail = [row[1:] for row in rows]
 
-    # boundary descriptors (python scalars for speed)
+    # ends and junctions as plain Python numbers (per-step work there is scalar)
     bounds = []
     last_conn = len(ends) - 1
     for conn, end in enumerate(ends):
         kap = kappa_t.get(conn)
+        kap = None if kap is None else kap.tolist()
         if conn == 0:
-            bounds.append(("up", end, float(b_line[0]), kap, 0, two_n - 1))
+            code = 3 if end.kind == "dead" else 2
+            bounds.append((code, end.head, end.k_forward, end.k_backward, float(b_line[0]),
+                           0.0, kap, 0, two_n - 1))
         elif conn == last_conn:
-            bounds.append(("down", end, float(b_line[-1]), kap, n - 1, n))
+            code = 1 if end.kind == "dead" else 0
+            bounds.append((code, end.head, end.k_forward, end.k_backward, float(b_line[-1]),
+                           0.0, kap, n - 1, n))
         else:
             p = int(offsets[conn]) - 1  # last node of the upstream line
-            bounds.append(("junction", end, (float(b_line[conn - 1]), float(b_line[conn])),
+            # slots: u at p (C_P), w at p+1 (C_M); set w at p and u at p+1
+            bounds.append((4, 0.0, 0.0, 0.0, float(b_line[conn - 1]), float(b_line[conn]),
                            kap, p, p + 1))
 
-    block = np.empty((_BLOCK, n))
     h_max = h_init.copy()
     h_min = h_init.copy()
-    valve_conn = None
     valve_node = None
     valve_line = None
     for conn in sorted(valve_at):
         ln, _ = valve_at[conn]
         valve_line = ln.id
-        valve_conn = conn
         i = chain.index(ln.id)
         valve_node = int(offsets[i]) if conn == i else int(offsets[i + 1]) - 1
         if ln.id == line_id:
             break
-    del valve_conn
     mid_nodes = {ln.id: int(offsets[i]) + counts[i] // 2 for i, ln in enumerate(lines)}
     series_nodes = sorted(set(mid_nodes.values()) | ({valve_node} if valve_node is not None
                                                       else set()))
@@ -860,23 +878,28 @@ def _simulate(system, line_id, duration, reaches, friction, tolerance, speed_ove
                           rho, system.atmospheric_pressure)
 
     status = 0
+    inf = math.inf
     sqrt = math.sqrt
+    subtract, add, multiply, absolute = np.subtract, np.add, np.multiply, np.abs
     k_step = 0
     cancelled = False
     while k_step < n_steps:
         m = min(_BLOCK, n_steps - k_step)
         for j in range(m):
             k = k_step + j + 1
+            cur = rows[j]
+            new = rows[j + 1]
             # interior: shift u downstream and w upstream, with the friction correction
             if frictionless:
-                x_new[1:] = x_cur[:-1]
+                rows_tail[j + 1][:] = rows_head[j]
             else:
-                np.subtract(x_cur, x_cur[::-1], out=d_buf)
                 if quasi is None:
-                    np.abs(d_buf, out=e_buf)
-                    np.multiply(e_buf, d_buf, out=e_buf)
-                    np.multiply(e_buf, r2, out=e_buf)
+                    subtract(cur, rows_rev[j], out=d_buf)
+                    absolute(d_buf, out=e_buf)
+                    multiply(e_buf, d_buf, out=e_buf)
+                    multiply(e_buf, r2, out=e_buf)
                 else:
+                    subtract(cur, rows_rev[j], out=d_buf)
                     q2 = d_buf * inv2b2
                     re2 = np.abs(d_buf) * repq2
                     phi, _ = friction_re_product(re2, rr2)
@@ -885,38 +908,39 @@ def _simulate(system, line_id, duration, reaches, friction, tolerance, speed_ove
                     e_buf[:] = -(cphi2 * phi + clin2) * q2
                     np.multiply(d_buf, np.abs(d_buf), out=d_buf)
                     e_buf += r2 * d_buf
-                np.add(x_cur[:-1], e_buf[:-1], out=x_new[1:])
-            # ends and junctions
-            for kind, end, bb, kap, s1, s2 in bounds:
+                add(rows_head[j], e_head, out=rows_tail[j + 1])
+            # ends and junctions: solve b*Q + k*Q|Q| = delta (see _orifice_flow)
+            for code, head, kf, kb, b1, b2, kap, s1, s2 in bounds:
                 kv = 0.0 if kap is None else kap[k]
-                if kind == "down":
-                    cp = x_new.item(s1)
-                    if end.kind == "dead":
-                        x_new[s2] = cp
-                        continue
-                    q = _orifice_flow(cp - end.head, bb, end.k_forward + kv, end.k_backward + kv)
-                    x_new[s2] = cp - 2.0 * bb * q  # w = H - BQ = cp - 2BQ
-                elif kind == "up":
-                    cm = x_new.item(s2)
-                    if end.kind == "dead":
-                        x_new[s1] = cm
-                        continue
-                    q = _orifice_flow(end.head - cm, bb, end.k_forward + kv, end.k_backward + kv)
-                    x_new[s1] = cm + 2.0 * bb * q  # u = H + BQ = cm + 2BQ
-                else:
-                    ba, bbb = bb
-                    cp = x_new.item(s1)
-                    cm = x_new.item(two_n - 1 - s2)
-                    if kv == math.inf:
-                        q = 0.0
-                    else:
-                        q = _orifice_flow(cp - cm, ba + bbb, kv, kv)
-                    x_new[two_n - 1 - s1] = cp - 2.0 * ba * q
-                    x_new[s2] = cm + 2.0 * bbb * q
-            np.add(x_new[:n], x_new[n:][::-1], out=block[j])
-            x_cur, x_new = x_new, x_cur
-        # block bookkeeping
-        hb = block[:m]
+                if code == 0:  # downstream fixed head: C_P known, set w
+                    cp = new.item(s1)
+                    delta = cp - head
+                    kk = kf + kv if delta >= 0.0 else kb + kv
+                    q = 0.0 if kk == inf else 2.0 * delta / (
+                        b1 + sqrt(b1 * b1 + 4.0 * kk * abs(delta)))
+                    new[s2] = cp - 2.0 * b1 * q  # w = H - BQ = C_P - 2BQ
+                elif code == 2:  # upstream fixed head: C_M known, set u
+                    cm = new.item(s2)
+                    delta = head - cm
+                    kk = kf + kv if delta >= 0.0 else kb + kv
+                    q = 0.0 if kk == inf else 2.0 * delta / (
+                        b1 + sqrt(b1 * b1 + 4.0 * kk * abs(delta)))
+                    new[s1] = cm + 2.0 * b1 * q  # u = H + BQ = C_M + 2BQ
+                elif code == 1:  # downstream dead end: Q = 0
+                    new[s2] = new.item(s1)
+                elif code == 3:  # upstream dead end
+                    new[s1] = new.item(s2)
+                else:  # junction of two lines, with a valve's loss if one sits there
+                    cp = new.item(s1)
+                    cm = new.item(two_n - 1 - s2)
+                    bs = b1 + b2
+                    delta = cp - cm
+                    q = 0.0 if kv == inf else 2.0 * delta / (
+                        bs + sqrt(bs * bs + 4.0 * kv * abs(delta)))
+                    new[two_n - 1 - s1] = cp - 2.0 * b1 * q
+                    new[s2] = cm + 2.0 * b2 * q
+        # block bookkeeping: heads of the m new rows, envelope, series, vapour check
+        hb = xb[1:m + 1, :n] + xb[1:m + 1, n:][:, ::-1]
         hb *= 0.5
         np.maximum(h_max, hb.max(axis=0), out=h_max)
         np.minimum(h_min, hb.min(axis=0), out=h_min)
@@ -929,6 +953,7 @@ def _simulate(system, line_id, duration, reaches, friction, tolerance, speed_ove
                 sep = _separation(float(times[k_step + 1 + row]), k_node, hb[row, k_node],
                                   z_node[k_node], chain, offsets, xs, rho,
                                   system.atmospheric_pressure)
+        xb[0] = xb[m]
         k_step += m
         if progress is not None:
             progress(k_step / n_steps)
