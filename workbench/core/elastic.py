@@ -54,7 +54,8 @@ give a pressure *higher* than the computed peak.
 
 Ends held fixed over the run: a tank's level is held at its initial value (a surge run
 lasts seconds to minutes, during which a tank's level hardly moves), as are receivers'
-pressures.
+pressures. A free discharge is a fixed head at the outlet elevation (atmospheric pressure
+in the jet); flow reversing there would draw in air, which the model does not represent.
 
 These are screening calculations: surge protection is a matter for licensed practice and
 local codes.
@@ -418,11 +419,14 @@ def _choose_grid(travel: np.ndarray, requested: list[int | None], tolerance: flo
 
     best = fit(dt0)
     if best[2] > tolerance:
-        # refine the step until the adjustment is within tolerance (or give the best found)
-        total0 = best[0].sum()
-        for m in range(2, 64):
-            cand = fit(dt0 / m * (m - 1) if m < 3 else dt0 / (m - 1))
-            if cand[0].sum() > max(8 * total0, MAX_AUTO_REACHES):
+        # more reaches on the line of shortest travel time until the adjustment is within
+        # tolerance (or give the best found within a reasonable reach count)
+        ref = int(np.argmin(travel))
+        n_ref = max(1, round(travel[ref] / dt0))
+        cap = max(8 * int(best[0].sum()), MAX_AUTO_REACHES)
+        for m in range(n_ref + 1, 8 * n_ref + 1):
+            cand = fit(travel[ref] / m)
+            if cand[0].sum() > cap:
                 break
             if cand[2] < best[2]:
                 best = cand
