@@ -11,7 +11,8 @@ from pathlib import Path
 
 from textual.app import App
 
-from tests.app.conftest import PROJECTS, SIZE
+PROJECTS = Path(__file__).resolve().parents[2] / "projects"
+SIZE = (80, 24)
 
 DRAIN = PROJECTS / "fellgate_neutraliser_drain.toml"
 TANK = "TK-210"
