@@ -445,3 +445,37 @@ def test_lines_marked_elastic_and_named_on_the_command_line_are_run_once_per_cha
     results = run_elastic(system, ("L2", "L1"), duration=0.5)
     assert results["L1"] is results["L2"]
     assert results["L1"].success
+
+
+def test_column_separation_is_placed_where_the_downsurge_first_meets_the_profile():
+    # A valve at the upstream end closing instantly sends a drop of a*v0/g downstream
+    # (Joukowsky 1898); the front travels at a (Wylie & Streeter 1993 ch. 1), so the first
+    # node where H0(x) - a v0/g reaches the vapour head z + (p_v - p_atm)/(rho g) is met at
+    # t = t_close + x/a. The profile rises to a crest 25 m up at mid-line.
+    a = 1300.0
+    line = Line("L1", "R1", "R2", 600.0, 0.3, friction_factor=0.0, entrance_k=0.0,
+                profile=((0.0, 0.0), (300.0, 25.0), (600.0, 0.0)),
+                valve=closing(1e-6, k_open=7700.0, position="from"))
+    system = System("crest", WATER,
+                    {"R1": Reservoir("R1", "constant_level", 0.0, 60.0),
+                     "R2": Reservoir("R2", "constant_level", 0.0, 40.0)}, {}, {}, {"L1": line})
+    res = run(system, a=a, duration=1.0)
+    env = res.envelopes["L1"]
+    drop = a * velocity(res) / G
+    vapour_head = env.elevation + (WATER.vapor_pressure - 101325.0) / (WATER.density * G)
+    reached = np.flatnonzero(env.initial_head - drop <= vapour_head)
+    assert reached.size and env.distance[reached[0]] > 100.0  # premise: on the climb
+    x_first = env.distance[reached[0]]
+    sep = res.column_separation
+    assert sep is not None and sep.line == "L1"
+    assert sep.distance == pytest.approx(x_first)
+    assert sep.time == pytest.approx(res.dt + x_first / a, abs=1e-9)
+
+
+def test_a_cancelled_run_stops_with_status_minus_two_and_reports_progress():
+    seen = []
+    res = run(single_line(valve=closing(1.0), fluid=WATER_NO_VAPOUR), duration=30.0,
+              progress=seen.append, cancel=lambda: len(seen) >= 2)
+    assert res.status == -2 and not res.success
+    assert 0.0 < seen[-1] < 1.0 and seen == sorted(seen)
+    assert len(res.time) == len(res.valve_head) and res.duration < 30.0

@@ -50,6 +50,7 @@ class WorkbenchApp(App[int]):
                 show=False),
         Binding("f7", "toggle_units", "SI/US", key_display="F7", id="app.units"),
         Binding("f8", "cautions", "Cautions", key_display="F8", id="app.cautions"),
+        Binding("f9", "sweep", "Sweep", key_display="F9", id="run.sweep", show=False),
         Binding("ctrl+s", "save", "Save", id="file.save"),
         Binding("ctrl+z", "undo", "Undo", id="edit.undo"),
         Binding("ctrl+y", "redo", "Redo", id="edit.redo"),
@@ -362,6 +363,12 @@ class WorkbenchApp(App[int]):
         from workbench.app.screens.cautions import CautionsScreen
 
         self.push_screen(CautionsScreen())
+
+    def action_sweep(self) -> None:
+        from workbench.app.screens.sweep import SweepScreen
+
+        if self.project is not None:
+            self.push_screen(SweepScreen())
 
     def action_toggle_units(self) -> None:
         self.unit_system = "US" if self.unit_system == "SI" else "SI"

@@ -30,6 +30,7 @@ PALETTE: tuple[tuple[str, str, str], ...] = (
     ("view: cautions", "the safety cautions", "cautions"),
     ("run: simulate", "run the time simulation in the background", "simulate"),
     ("run: stop", "stop the running simulation", "stop_run"),
+    ("run: sweep…", "what-if sweep: vary inputs, see the table and a plot of the results", "sweep"),
     ("units: switch SI/US", "display units only; the file keeps its values", "toggle_units"),
 )
 
