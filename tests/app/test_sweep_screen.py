@@ -128,3 +128,16 @@ async def test_escape_closes_the_screen_when_nothing_runs() -> None:
         await pilot.press("escape")
         await pilot.pause()
         assert not isinstance(pilot.app.screen, SweepScreen)
+
+
+async def test_f9_in_the_workbench_opens_the_sweep_screen_on_the_open_project() -> None:
+    from workbench.app.factory import make_app
+    from workbench.app.screens.sweep import SweepScreen
+
+    app = make_app(_load(), path=DRAIN, debounce=0.05)
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.pause()
+        await pilot.press("f9")
+        await pilot.pause()
+        assert isinstance(pilot.app.screen, SweepScreen)
+        assert pilot.app.screen.project is pilot.app.project
