@@ -502,8 +502,11 @@ def simulate_elastic(
     try:
         return _simulate(system, line_id, duration, reaches, friction, speed_tolerance,
                          wave_speeds, progress, cancel)
-    except ElasticSetupError as exc:
-        return _failed(f"{STATUS_MESSAGES[-1]} {exc}")
+    except (ElasticSetupError, ValueError, KeyError) as exc:
+        # set-up problems (missing data, unknown fitting or characteristic names, bad wave
+        # speed inputs) come back as a failed result whose message says what was wrong
+        text = exc.args[0] if isinstance(exc, KeyError) and exc.args else exc
+        return _failed(f"{STATUS_MESSAGES[-1]} {text}")
 
 
 def run_elastic(
@@ -713,7 +716,7 @@ def _simulate(system, line_id, duration, reaches, friction, tolerance, speed_ove
             from scipy.optimize import brentq
 
             qb = float(areas.max()) * math.sqrt(2.0 * G * abs(dh)) * 2.0 + 1e-12
-            while abs(total_loss(qb)) < abs(dh):
+            while abs(total_loss(math.copysign(qb, dh))) < abs(dh):
                 qb *= 2.0
             lo, hi = (0.0, qb) if dh > 0 else (-qb, 0.0)
             q0 = brentq(lambda q: dh - total_loss(q), lo, hi, xtol=1e-15, rtol=1e-13,
