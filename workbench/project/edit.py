@@ -41,14 +41,14 @@ def _item(value: Any):
 
     from workbench.project.save import render_value
 
-    return tomlkit.parse(f"x = {render_value(value)}\n")["x"]
+    return tomlkit.parse(f"x = {render_value(value)}\n").item("x")
 
 
 def _set(container, key: str, value: Any) -> None:
     """Set ``container[key]``, keeping the old item's comment."""
     new = _item(value)
     if key in container:
-        old = container[key]
+        old = container.item(key) if hasattr(container, "item") else container[key]
         trivia = getattr(old, "trivia", None)
         if trivia is not None and trivia.comment:
             new.trivia.comment = trivia.comment

@@ -64,9 +64,7 @@ _EXTRA_DEFINITIONS = (
     "in3 = inch ** 3",
     "cfs = foot ** 3 / second",
     "cfm = foot ** 3 / minute",
-    "mH2O = meter_H2O",
     "mWC = meter_H2O",
-    "ftH2O = foot_H2O",
     "ftWC = foot_H2O",
 )
 

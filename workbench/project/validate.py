@@ -730,7 +730,8 @@ def check_data(data: Any, file: str | None = None) -> tuple[m.System | None, lis
     lines = {k: _check_line(c, k, t, node_ids, fluid) for k, t in tables["lines"].items()}
     if not tables["lines"] and "lines" in data:
         c.add("lines", "no lines: a system needs at least one [lines.ID] table")
-    connected = {t.get(end) for t in tables["lines"].values() for end in ("from", "to")}
+    connected = {t.get(end) for t in tables["lines"].values() for end in ("from", "to")
+                 if isinstance(t.get(end), str)}
     for jid in tables["junctions"]:
         if jid not in connected:
             c.add(f"junctions.{jid}", f"junction '{jid}' is not connected to any line")

@@ -1,0 +1,152 @@
+"""Editing a project: new validated Projects, the original untouched, one value one line."""
+
+from __future__ import annotations
+
+import difflib
+from pathlib import Path
+
+import pytest
+
+from workbench.project.document import (
+    ProjectError,
+    add_element,
+    delete_element,
+    dependents,
+    load_project,
+    rename_element,
+    save_project,
+    set_value,
+)
+
+PROJECTS = Path(__file__).resolve().parents[2] / "projects"
+TRANSFER = PROJECTS / "fellgate_process_water_transfer.toml"
+NETWORK = PROJECTS / "fellgate_cooling_water_network.toml"
+LINE = "310-PW-12"
+
+
+def changed_lines(before: str, after: str) -> list[str]:
+    return [l for l in difflib.unified_diff(before.splitlines(), after.splitlines(),
+                                            lineterm="", n=0)
+            if l[:1] in "+-" and not l.startswith(("+++", "---"))]
+
+
+@pytest.fixture
+def transfer():
+    return load_project(TRANSFER)
+
+
+@pytest.mark.parametrize("keypath, value", [
+    (f"lines.{LINE}.length", "250 m"),
+    (f"lines.{LINE}.valve.opening", "0.5"),
+    (f"lines.{LINE}.valve.opening", 0.45),
+    (f"lines.{LINE}.elastic_modulus", "200 GPa"),
+    ("reservoirs.TK-310.level", "4.8 m"),
+    ("project.title", "Transfer, revised"),
+    ("simulation.duration", "3 min"),
+    ("fluid.temperature", "30 degC"),
+])
+def test_a_save_after_setting_one_value_changes_exactly_one_line(transfer, tmp_path, keypath, value):
+    edited = set_value(transfer, keypath, value)
+    target = tmp_path / "edited.toml"
+    save_project(edited, target)
+    diff = changed_lines(TRANSFER.read_text(), target.read_text())
+    assert len(diff) == 2, diff  # one line removed, one added
+    key = keypath.rsplit(".", 1)[1]
+    assert diff[0].startswith(f"-{key} = ") and diff[1].startswith(f"+{key} = ")
+
+
+def test_a_changed_value_keeps_its_comment(transfer):
+    edited = set_value(transfer, f"lines.{LINE}.pressure_rating", "10 bar")
+    (line,) = [l for l in edited.text.splitlines() if l.startswith("pressure_rating")]
+    assert line == 'pressure_rating = "10 bar"  # PN16 flanges'
+
+
+def test_setting_a_value_leaves_the_original_project_untouched(transfer):
+    text, system = transfer.text, transfer.system
+    edited = set_value(transfer, f"lines.{LINE}.length", "300 m")
+    assert edited.system.lines[LINE].length == 300.0
+    assert transfer.system.lines[LINE].length == 240.0
+    assert transfer.text == text and transfer.system is system
+    assert transfer.doc.as_string() == text
+    assert edited.modified and not transfer.modified
+
+
+@pytest.mark.parametrize("keypath, value, words", [
+    (f"lines.{LINE}.length", "15 mmm", "unknown unit 'mmm'"),
+    (f"lines.{LINE}.length", "-4 m", "must be positive"),
+    (f"lines.{LINE}.lenght", "4 m", "did you mean 'length'?"),
+    ("lines.NOPE.length", "4 m", "names no element"),
+    ("reservoirs.TK-310.level", "7 m", "overflow"),
+    (f"lines.{LINE}.valve.opening", "wide", "expected a number"),
+    (f"lines.{LINE}.valve.opening", 2.0, "out of range"),
+    ("nonsense", "1", "not a key path"),
+])
+def test_an_invalid_value_raises_a_project_error_naming_the_key(transfer, keypath, value, words):
+    with pytest.raises(ProjectError) as info:
+        set_value(transfer, keypath, value)
+    assert words in str(info.value)
+    assert any(p.key == keypath for p in info.value.problems)
+
+
+def test_none_removes_a_key(transfer):
+    edited = set_value(transfer, f"lines.{LINE}.description", None)
+    assert "description" not in edited.data["lines"][LINE]
+    assert len(changed_lines(transfer.text, edited.text)) == 1
+
+
+def test_an_added_element_is_validated_and_appears_in_the_model(transfer):
+    edited = add_element(transfer, "receivers", "SUMP-1",
+                         {"kind": "open_discharge", "elevation": "0.5 m"})
+    edited = add_element(edited, "lines", "L-OVF", {
+        "from": "TK-320", "to": "SUMP-1", "length": "25 m", "nominal_size": "3 in",
+        "material": "commercial_steel", "fittings": [{"type": "elbow_90_standard", "count": 2}],
+        "valve": {"characteristic": "linear", "k_open": 0.3, "opening": 0.0},
+    })
+    assert edited.system.lines["L-OVF"].valve.opening == 0.0
+    assert edited.system.receivers["SUMP-1"].elevation == 0.5
+    assert "L-OVF" not in transfer.system.lines
+    assert dependents(edited, "SUMP-1") == ["L-OVF"]
+
+
+def test_adding_an_invalid_or_duplicate_element_is_refused(transfer):
+    with pytest.raises(ProjectError, match="already used"):
+        add_element(transfer, "junctions", "TK-310", {"elevation": "1 m"})
+    with pytest.raises(ProjectError, match="not connected"):
+        add_element(transfer, "junctions", "J-9", {"elevation": "1 m"})
+    with pytest.raises(ProjectError, match="not valid"):
+        add_element(transfer, "junctions", "J 9", {"elevation": "1 m"})
+
+
+def test_renaming_a_node_updates_the_lines_that_reference_it():
+    network = load_project(NETWORK)
+    renamed = rename_element(network, "VP-1", "VP-10")
+    assert "VP-10" in renamed.system.junctions and "VP-1" not in renamed.system.junctions
+    assert dependents(renamed, "VP-10") == ["400-CW-01", "410-CW-02", "400-CW-03"]
+    diff = changed_lines(network.text, renamed.text)
+    # the header and the three from/to lines, each replaced once
+    assert len(diff) == 8
+    assert "[junctions.VP-10]" in renamed.text
+    assert dependents(network, "VP-1") == ["400-CW-01", "410-CW-02", "400-CW-03"]
+
+
+def test_renaming_to_a_used_id_is_refused():
+    network = load_project(NETWORK)
+    with pytest.raises(ProjectError, match="already used"):
+        rename_element(network, "VP-1", "TK-410")
+
+
+def test_deleting_a_node_with_lines_is_refused_unless_cascaded():
+    network = load_project(NETWORK)
+    with pytest.raises(ProjectError, match="410-CW-02"):
+        delete_element(network, "TK-410")
+    smaller = delete_element(network, "TK-410", cascade=True)
+    assert "TK-410" not in smaller.system.reservoirs
+    assert "410-CW-02" not in smaller.system.lines
+    assert "410-CW-02" in network.system.lines
+
+
+def test_deleting_a_line_keeps_the_rest_of_the_file():
+    network = load_project(NETWORK)
+    smaller = delete_element(network, "410-CW-02")
+    diff = changed_lines(network.text, smaller.text)
+    assert all(line.startswith("-") for line in diff)
