@@ -143,8 +143,10 @@ class WorkbenchApp(App[int]):
         if self._initial_project is not None:
             self._adopt(self._initial_project, self._initial_path or self._initial_project.path)
         elif self._initial_path is not None:
+            # Start reading after the first frame is on screen, so the import of the
+            # units and property libraries in the worker does not delay it.
             self.notify(f"loading {self._initial_path} …", timeout=2)
-            self.load_worker(self._initial_path)
+            self.call_after_refresh(self.load_worker, self._initial_path)
         elif self._offer_new:
             self.call_after_refresh(self._ask_new)
 

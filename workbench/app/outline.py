@@ -19,7 +19,8 @@ NOUN = {"reservoirs": "reservoir", "junctions": "junction", "receivers": "receiv
         "lines": "line"}
 #: Settings sections shown above the elements.
 SETTINGS = ("project", "fluid", "simulation")
-ID_PATTERN = re.compile(r"^[A-Za-z][A-Za-z0-9_-]*$")
+#: Same rule as the project layer (workbench.project.validate.ID_PATTERN).
+ID_PATTERN = re.compile(r"^[A-Za-z0-9][A-Za-z0-9_-]*$")
 
 
 @dataclass(frozen=True)
@@ -158,7 +159,7 @@ def typed_value(text: str, spec: FieldSpec) -> Any:
 def check_new_id(data: dict, text: str) -> str:
     """Why ``text`` cannot be a new element id, or ``""`` when it can."""
     if not ID_PATTERN.match(text):
-        return "an id starts with a letter and holds letters, digits, _ or -"
+        return "an id starts with a letter or digit and holds letters, digits, _ or -"
     for section in ELEMENT_SECTIONS:
         if text in (data.get(section) or {}):
             return f"'{text}' is already used by a {NOUN[section]}"

@@ -6,6 +6,7 @@ shown under the field and the model keeps its value.
 
 from __future__ import annotations
 
+import asyncio
 from typing import Any
 
 from textual.app import ComposeResult
@@ -96,7 +97,10 @@ class FieldRow(Vertical):
         """Show a new stored value (after an edit, undo or redo elsewhere)."""
         changed = stored != self.stored
         self.stored = stored
-        editor = self.editor
+        editors = self.query(".field-editor")
+        if not editors:  # not composed yet: compose reads self.stored
+            return
+        editor = editors.first()
         text = value_text(stored)
         if isinstance(editor, Select):
             target = text if text else Select.NULL
@@ -111,6 +115,19 @@ class FieldRow(Vertical):
         if changed:
             self.show_problem("")
         self.show_hint(unit_system)
+
+    def rebind(self, field: Field, choices: tuple[str, ...] | None) -> None:
+        """Point the row at the same key of another element (values follow in set_stored)."""
+        self.field = field
+        self.show_problem("")
+        editor = self.editor
+        if isinstance(editor, FieldInput):
+            editor.field = field
+        elif isinstance(editor, Select) and choices != self.choices:
+            self.choices = choices
+            with editor.prevent(Select.Changed):
+                editor.set_options([(c, c) for c in (choices or ())])
+        self.stored = object()  # forces the value to be shown afresh
 
     def revert(self) -> None:
         editor = self.editor
@@ -153,34 +170,56 @@ class FieldForm(VerticalScroll):
     def __init__(self, **kwargs) -> None:
         super().__init__(**kwargs)
         self.entry: Entry | None = None
+        self._building = asyncio.Lock()
 
     async def show(self, entry: Entry | None, data: dict, unit_system: str) -> None:
         """Build the form for ``entry`` (or refresh values when it is already shown)."""
-        if entry == self.entry and self.query(FieldRow):
-            self.refresh_values(data, unit_system)
-            return
+        async with self._building:
+            await self._show(entry, data, unit_system)
+
+    async def _show(self, entry: Entry | None, data: dict, unit_system: str) -> None:
+        """One set of rows per section, built once; moving between elements of a section
+        only rebinds the rows to the new key paths (mounting widgets is the slow part)."""
         self.entry = entry
-        await self.remove_children()
         if entry is None:
             return
-        rows: list = []
-        group = ""
-        for field in form_fields(entry):
-            if field.group != group:
-                group = field.group
-                rows.append(Static(f"── {group} ──", classes="field-group"))
-            rows.append(FieldRow(field, lookup(data, field.keypath), choices_for(field, data)))
-        await self.mount_all(rows)
+        holder_id = "form-" + entry.section
+        holders = self.query(f"#{holder_id}")
+        fields = form_fields(entry)
+        if not holders:
+            rows: list = []
+            group = ""
+            for field in fields:
+                if field.group != group:
+                    group = field.group
+                    rows.append(Static(f"── {group} ──", classes="field-group"))
+                rows.append(FieldRow(field, lookup(data, field.keypath),
+                                     choices_for(field, data)))
+            holder = Vertical(*rows, id=holder_id, classes="form-section")
+            await self.mount(holder)
+        else:
+            holder = holders.first()
+            for row, field in zip(holder.query(FieldRow), fields):
+                row.rebind(field, choices_for(field, data))
+        for other in self.query(".form-section"):
+            other.display = other is holder
         self.refresh_values(data, unit_system)
+        self.scroll_home(animate=False)
+
+    def current_rows(self) -> list[FieldRow]:
+        if self.entry is None:
+            return []
+        holders = self.query("#form-" + self.entry.section)
+        return list(holders.first().query(FieldRow)) if holders else []
 
     def refresh_values(self, data: dict, unit_system: str) -> None:
-        for row in self.query(FieldRow):
+        for row in self.current_rows():
             row.set_stored(lookup(data, row.field.keypath), unit_system)
 
     def focus_first(self) -> None:
-        editors = self.query(".field-editor")
-        if editors:
-            editors.first().focus()
+        rows = self.current_rows()
+        if rows:
+            rows[0].editor.focus()
 
     # --- committing --------------------------------------------------------------------
     def on_input_submitted(self, event: Input.Submitted) -> None:

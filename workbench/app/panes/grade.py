@@ -41,7 +41,8 @@ def profile_series(result: Any, system: Any, line_id: str) -> dict[str, Any] | N
     if fluid.vapor_pressure is not None:
         offset = (fluid.vapor_pressure - p_atm) / (fluid.density * G)
         vapour = [z + offset for z in elevation]
-    below_atm = [i for i, p in enumerate(p_gauge) if p < 0.0]
+    # Below atmospheric by more than rounding: 1 Pa is far below anything that matters.
+    below_atm = [i for i, p in enumerate(p_gauge) if p < -1.0]
     near_vapour = []
     if fluid.vapor_pressure is not None:
         # The same margin as the steady check that raises ``profile.vapor``.
@@ -159,7 +160,8 @@ class GradePane(Horizontal):
             if series["near_vapour"]:
                 flags.append(f"V near vapour at {len(series['near_vapour'])} pt")
             note.update(
-                f"lowest p {format_quantity(p[i], 'pressure', units)} g at "
+                f"lowest p {format_quantity(p[i] if abs(p[i]) >= 1.0 else 0.0, 'pressure', units)}"
+                f" g at "
                 f"{format_quantity(series['distance'][i], 'length', units)}"
                 + ("  ·  " + ", ".join(flags) if flags else "  ·  no pressure flags"))
         self._plot.refresh()
