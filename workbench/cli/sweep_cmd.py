@@ -68,11 +68,20 @@ def _print_table(project, sweep: dict, keypaths) -> None:
     from workbench.output.sweep_table import display_rows, sweep_table
 
     columns, rows = sweep_table(sweep, keypaths)
+    if not any(row.get("error") for row in rows):
+        columns = [c for c in columns if c.key != "error"]
     table = Table(title=f"Sweep of {project.system.title}", title_justify="left")
     for col in columns:
-        table.add_column(col.title, justify="right" if col.kind or col.key == "case" else "left",
-                         overflow="fold")
+        title = col.title
+        if col.swept and title.split(".")[0] in ("reservoirs", "junctions", "receivers", "lines"):
+            title = title.split(".", 1)[1]  # the element id already says which section
+        table.add_column(title, justify="right" if col.kind or col.key == "case" else "left",
+                         overflow="fold", no_wrap=col.swept,
+                         min_width=24 if col.key == "warnings" else None)
+    warn = [i for i, col in enumerate(columns) if col.key == "warnings"]
     for cells in display_rows(columns, rows, project.unit_system):
+        for i in warn:
+            cells[i] = cells[i].replace(", ", "\n")
         table.add_row(*cells)
     console = Console()
     console.print(table)
