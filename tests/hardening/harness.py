@@ -1,0 +1,189 @@
+"""Run ``workbench`` commands in-process (or in a subprocess) and judge how they ended.
+
+A call ends well when it exits 0 with a result (for ``--json``: an object whose every number
+is finite) or exits 1 with the project's own message on stderr, starting with the file name.
+Anything else is a failure: another exit code, an exception escaping ``main``, the word
+"Traceback" on stderr, a NaN or infinity in JSON presented as valid, or a call that runs
+past its time limit (a hang).
+"""
+
+from __future__ import annotations
+
+import contextlib
+import io
+import json
+import math
+import os
+import signal
+import subprocess
+import sys
+import time
+import traceback
+from dataclasses import dataclass, field
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parents[2]
+PYTHON = sys.executable
+
+#: Per-call time limits [s]; generous next to the tens of milliseconds a call takes.
+TIME_LIMIT = {"check": 20.0, "solve": 20.0, "simulate": 30.0, "format": 20.0}
+
+
+class Hang(BaseException):
+    """Raised by the alarm when a call runs past its limit (BaseException: no handler in
+    the program may swallow it)."""
+
+
+@dataclass
+class Outcome:
+    argv: list[str]
+    code: int | None
+    stdout: str
+    stderr: str
+    seconds: float
+    error: str = ""
+    """Exception type and message when one escaped ``main``."""
+    where: str = ""
+    """Innermost frame of the program's own code for an escaped exception."""
+    problems: list[str] = field(default_factory=list)
+
+    @property
+    def ok(self) -> bool:
+        return not self.problems
+
+    def signature(self) -> str:
+        """A short key that groups failures with the same cause."""
+        if self.error:
+            return f"{self.argv[0]}: {self.error.split(':')[0]} at {self.where}"
+        return f"{self.argv[0]}: " + "; ".join(p.split(":")[0] for p in self.problems)
+
+    def report(self) -> str:
+        return (f"workbench {' '.join(self.argv)} -> exit {self.code} in {self.seconds:.2f} s\n"
+                f"problems: {self.problems}\n{self.error}\n--- stderr ---\n{self.stderr[-3000:]}\n"
+                f"--- stdout ---\n{self.stdout[:1500]}")
+
+
+@contextlib.contextmanager
+def time_limit(seconds: float):
+    """Raise :class:`Hang` after ``seconds`` of wall time (SIGALRM, main thread only).
+
+    pytest-timeout uses the same timer: its remaining time is put back afterwards.
+    """
+    def on_alarm(signum, frame):
+        raise Hang(f"still running after {seconds} s")
+
+    old_handler = signal.signal(signal.SIGALRM, on_alarm)
+    old_delay, _ = signal.setitimer(signal.ITIMER_REAL, seconds)
+    t0 = time.monotonic()
+    try:
+        yield
+    finally:
+        signal.setitimer(signal.ITIMER_REAL, 0)
+        signal.signal(signal.SIGALRM, old_handler)
+        if old_delay:
+            signal.setitimer(signal.ITIMER_REAL, max(old_delay - (time.monotonic() - t0), 0.01))
+
+
+def _own_frame(tb) -> str:
+    frames = [f for f in traceback.extract_tb(tb) if "/workbench/" in f.filename]
+    if not frames:
+        return "?"
+    f = frames[-1]
+    return f"{Path(f.filename).relative_to(ROOT)}:{f.lineno} ({f.name})"
+
+
+def finite_json(text: str):
+    """Parse JSON, refusing NaN and infinities wherever they are."""
+    def refuse(token):
+        raise ValueError(f"non-finite number {token} in the JSON")
+
+    data = json.loads(text, parse_constant=refuse)
+
+    def walk(x, path="$"):
+        if isinstance(x, float) and not math.isfinite(x):
+            raise ValueError(f"non-finite number at {path}")
+        if isinstance(x, dict):
+            for k, v in x.items():
+                walk(v, f"{path}.{k}")
+        elif isinstance(x, list):
+            for i, v in enumerate(x):
+                walk(v, f"{path}[{i}]")
+
+    walk(data)
+    return data
+
+
+def judge(outcome: Outcome, project_path: str | None) -> Outcome:
+    """Fill ``outcome.problems`` with every way the call did not end well."""
+    p = outcome.problems
+    if outcome.error:
+        p.append(f"exception: {outcome.error}")
+    if outcome.code not in (0, 1):
+        p.append(f"exit code {outcome.code}")
+    if "Traceback" in outcome.stderr:
+        p.append("traceback on stderr")
+    if outcome.code == 1:
+        first = outcome.stderr.strip().splitlines()[:1]
+        if not first:
+            p.append("exit 1 with nothing on stderr")
+        elif project_path and not first[0].startswith(project_path):
+            p.append(f"message does not start with the file name: {first[0][:200]!r}")
+    if outcome.code == 0 and "--json" in outcome.argv:
+        try:
+            data = finite_json(outcome.stdout)
+        except ValueError as exc:
+            p.append(f"bad JSON: {exc}")
+        else:
+            if isinstance(data, dict) and data.get("success") is False:
+                p.append("exit 0 with success false in the JSON")
+    return outcome
+
+
+def run_cli(argv: list[str], *, project_path: str | None = None,
+            limit: float | None = None) -> Outcome:
+    """Run ``workbench.cli.main(argv)`` in this process with output captured and a time limit."""
+    from workbench.cli import main
+
+    limit = limit or TIME_LIMIT.get(argv[0], 20.0)
+    out, err = io.StringIO(), io.StringIO()
+    code, error, where = None, "", ""
+    t0 = time.perf_counter()
+    try:
+        with contextlib.redirect_stdout(out), contextlib.redirect_stderr(err), time_limit(limit):
+            code = main(argv)
+    except Hang as exc:
+        error, where = f"Hang: {exc}", _own_frame(exc.__traceback__)
+    except BaseException as exc:  # noqa: BLE001 - anything escaping main is the failure we look for
+        error = f"{type(exc).__name__}: {str(exc)[:300]}"
+        where = _own_frame(exc.__traceback__)
+        if isinstance(exc, KeyboardInterrupt):
+            raise
+    outcome = Outcome(argv, code, out.getvalue(), err.getvalue(), time.perf_counter() - t0,
+                      error, where)
+    return judge(outcome, project_path)
+
+
+def run_subprocess(argv: list[str], *, project_path: str | None = None,
+                   limit: float = 60.0) -> Outcome:
+    """The same judgement on a real ``python -m workbench`` process."""
+    env = dict(os.environ, NO_COLOR="1", PYTHONUTF8="1")
+    t0 = time.perf_counter()
+    try:
+        proc = subprocess.run([PYTHON, "-m", "workbench", *argv], capture_output=True,
+                              text=True, timeout=limit, cwd=ROOT, env=env)
+        outcome = Outcome(argv, proc.returncode, proc.stdout, proc.stderr,
+                          time.perf_counter() - t0)
+    except subprocess.TimeoutExpired as exc:
+        outcome = Outcome(argv, None, str(exc.stdout or ""), str(exc.stderr or ""),
+                          time.perf_counter() - t0, f"Hang: still running after {limit} s", "?")
+    return judge(outcome, project_path)
+
+
+def commands_available() -> set[str]:
+    from workbench.cli import COMMANDS
+
+    return set(COMMANDS)
+
+
+def simulate_argv(path: str, duration: str = "5 s") -> list[str]:
+    return ["simulate", path, "--duration", duration, "--json"]
