@@ -150,3 +150,24 @@ def test_deleting_a_line_keeps_the_rest_of_the_file():
     smaller = delete_element(network, "410-CW-02")
     diff = changed_lines(network.text, smaller.text)
     assert all(line.startswith("-") for line in diff)
+
+
+def test_changes_valid_only_together_are_made_with_set_values():
+    drain = load_project(PROJECTS / "fellgate_neutraliser_drain.toml")
+    with pytest.raises(ProjectError, match="density"):
+        set_value(drain, "fluid.kind", "custom")
+    from workbench.project.document import set_values
+
+    custom = set_values(drain, {"fluid.kind": "custom", "fluid.temperature": None,
+                                "fluid.density": "1050 kg/m3", "fluid.viscosity": "2.5 mPa*s",
+                                "fluid.name": "spent brine"})
+    assert custom.system.fluid.density == 1050.0
+    assert custom.system.fluid.viscosity == pytest.approx(2.5e-3)
+    assert custom.system.fluid.vapor_pressure is None  # vapour checks skipped, with a note
+    assert drain.system.fluid.name == "water"
+
+
+def test_a_value_no_toml_file_can_hold_is_a_project_error(transfer):
+    with pytest.raises(ProjectError) as info:
+        set_value(transfer, "project.title", object())
+    assert info.value.problems[0].key == "project.title"

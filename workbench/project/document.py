@@ -23,6 +23,7 @@ from workbench.project.edit import (
     dependents,
     rename_element,
     set_value,
+    set_values,
 )
 from workbench.project.load import Project, load_project, load_project_text
 from workbench.project.problems import Problem, ProjectError
@@ -45,5 +46,6 @@ __all__ = [
     "rename_element",
     "save_project",
     "set_value",
+    "set_values",
     "starter_text",
 ]

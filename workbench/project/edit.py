@@ -19,7 +19,8 @@ from workbench.project.schema import ELEMENT_SECTIONS, SECTIONS, FieldSpec
 from workbench.project.units import QUANTITY_KINDS
 from workbench.project.validate import ID_PATTERN, did_you_mean
 
-__all__ = ["add_element", "delete_element", "dependents", "rename_element", "set_value"]
+__all__ = ["add_element", "delete_element", "dependents", "rename_element", "set_value",
+           "set_values"]
 
 _SIMPLE_SECTIONS = ("project", "fluid", "simulation")
 _SUB_TABLES = ("valve", "surge")
@@ -111,7 +112,8 @@ def set_value(project: Project, keypath: str, value: Any) -> Project:
     project : Project
         Left untouched.
     keypath : str
-        ``"project.title"``, ``"lines.L1.length"``, ``"lines.L1.valve.opening"`` ...
+        ``"project.title"``, ``"lines.L1.length"``, ``"lines.L1.valve.opening"``, or a
+        whole sub-table ``"lines.L1.valve"`` (value a dict, or ``None`` to remove it).
     value : str, number, bool, list, dict or None
         As the user typed it (``"150 mm"``); numbers typed as text are read for number keys.
 
@@ -121,6 +123,24 @@ def set_value(project: Project, keypath: str, value: Any) -> Project:
         For an unknown key path, or a value that makes the project invalid (the problems
         name the key paths).
     """
+    return set_values(project, {keypath: value})
+
+
+def set_values(project: Project, changes: dict[str, Any]) -> Project:
+    """A new Project with several keys set at once, validated once at the end.
+
+    For changes that are only valid together (``fluid.kind = "custom"`` with its
+    ``density`` and ``viscosity``). Same rules as :func:`set_value`.
+    """
+    doc = _copy_doc(project)
+    changed = False
+    for keypath, value in changes.items():
+        changed |= _apply(project, doc, keypath, value)
+    return _finish(project, doc) if changed else project
+
+
+def _apply(project: Project, doc, keypath: str, value: Any) -> bool:
+    """Make one change in ``doc``; return whether anything changed."""
     parts = keypath.split(".") if isinstance(keypath, str) else []
     section = parts[0] if parts else ""
     if section in _SIMPLE_SECTIONS and len(parts) == 2:
@@ -139,29 +159,31 @@ def set_value(project: Project, keypath: str, value: Any) -> Project:
         raise _fail(project, keypath, f"unknown key '{key}'{did_you_mean(key, specs)}")
     spec = specs[key]
     value = _coerce(spec, value, project, keypath)
-    doc = _copy_doc(project)
     container = doc
-    for i, part in enumerate(container_path):
+    for part in container_path:
         if part not in container:
             if value is None:
-                return project
+                return False
             import tomlkit
 
             container[part] = tomlkit.table()
         container = container[part]
-    if value is None:
-        if key not in container:
-            return project
-        del container[key]
-    elif spec.kind == "table":
-        if not isinstance(value, dict):
-            raise _fail(project, keypath, f"expected a table of keys, got {value!r}")
-        if key in container:
+    try:
+        if value is None:
+            if key not in container:
+                return False
             del container[key]
-        container[key] = _table(value)
-    else:
-        _set(container, key, value)
-    return _finish(project, doc)
+        elif spec.kind == "table":
+            if not isinstance(value, dict):
+                raise _fail(project, keypath, f"expected a table of keys, got {value!r}")
+            if key in container:
+                del container[key]
+            container[key] = _table(value)
+        else:
+            _set(container, key, value)
+    except TypeError as exc:  # a value no TOML file can hold (e.g. a Python object)
+        raise _fail(project, keypath, str(exc)) from None
+    return True
 
 
 def _table(fields: dict):
