@@ -28,6 +28,7 @@ __all__ = [
     "SECTIONS",
     "choices_for",
     "field",
+    "reference_markdown",
     "spec_for",
 ]
 
@@ -266,3 +267,35 @@ def choices_for(section: str, name: str) -> tuple[str, ...]:
         return tuple(ENTRANCES)
     spec = spec_for(section, name)
     return spec.choices if spec is not None else ()
+
+
+def reference_markdown() -> str:
+    """The schema as Markdown tables, one per section (for the docs and ``--help`` text)."""
+    from workbench.project.units import QUANTITY_KINDS
+
+    def rows(specs) -> list[str]:
+        out = ["| key | holds | required | default | what it is |", "|---|---|---|---|---|"]
+        for spec in specs:
+            holds = spec.kind
+            if spec.kind in QUANTITY_KINDS:
+                holds = f"{QUANTITY_KINDS[spec.kind].name} with a unit, e.g. \"{QUANTITY_KINDS[spec.kind].example}\""
+            elif spec.choices:
+                holds = " / ".join(f"`{c}`" for c in spec.choices)
+            default = "" if spec.default is None else f"`{spec.default}`"
+            out.append(f"| `{spec.name}` | {holds} | {'yes' if spec.required else ''} | "
+                       f"{default} | {spec.help} |")
+        return out
+
+    lines = [f"# Project file reference (schema {SCHEMA_VERSION})", "", "## Top level", ""]
+    lines += rows(ROOT_KEYS)
+    headings = {
+        "project": "[project]", "fluid": "[fluid]", "reservoirs": "[reservoirs.ID]",
+        "junctions": "[junctions.ID]", "receivers": "[receivers.ID]", "lines": "[lines.ID]",
+        "lines.valve": "[lines.ID.valve]", "lines.surge": "[lines.ID.surge]",
+        "simulation": "[simulation]",
+    }
+    for section, specs in SECTIONS.items():
+        lines += ["", f"## {headings.get(section, section)}", ""] + rows(specs)
+    for section, specs in LIST_ITEMS.items():
+        lines += ["", f"## Entries of `{section}`", ""] + rows(specs)
+    return "\n".join(lines) + "\n"
