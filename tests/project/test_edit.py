@@ -171,3 +171,52 @@ def test_a_value_no_toml_file_can_hold_is_a_project_error(transfer):
     with pytest.raises(ProjectError) as info:
         set_value(transfer, "project.title", object())
     assert info.value.problems[0].key == "project.title"
+
+
+def quantity_keys(project):
+    """(keypath, text) of every quantity-valued key in a project's sections and elements."""
+    from workbench.project.schema import SECTIONS
+    from workbench.project.units import QUANTITY_KINDS
+
+    found = []
+    for section in ("project", "fluid", "simulation"):
+        for spec in SECTIONS[section]:
+            if spec.kind in QUANTITY_KINDS and spec.name in project.data.get(section, {}):
+                found.append((f"{section}.{spec.name}", spec.kind))
+    for section in ("reservoirs", "junctions", "receivers", "lines"):
+        for eid, table in project.data.get(section, {}).items():
+            for spec in SECTIONS[section]:
+                if spec.kind in QUANTITY_KINDS and spec.name in table:
+                    found.append((f"{section}.{eid}.{spec.name}", spec.kind))
+            for sub in ("valve", "surge"):
+                for spec in SECTIONS.get(f"lines.{sub}", ()) if section == "lines" else ():
+                    if spec.kind in QUANTITY_KINDS and spec.name in table.get(sub, {}):
+                        found.append((f"lines.{eid}.{sub}.{spec.name}", spec.kind))
+    return found
+
+
+@pytest.mark.parametrize("path", sorted(PROJECTS.glob("*.toml")), ids=lambda p: p.stem)
+def test_every_quantity_rewritten_in_other_units_changes_one_line_and_not_the_model(path):
+    from workbench.project.units import format_quantity, parse_quantity
+
+    project = load_project(path)
+    keys = quantity_keys(project)
+    assert len(keys) >= 8
+    for keypath, kind in keys:
+        table = project.data
+        for part in keypath.split("."):
+            table = table[part]
+        si = parse_quantity(table, kind, atmosphere=project.system.atmospheric_pressure)
+        other = "US" if project.unit_system == "SI" else "SI"
+        text = format_quantity(si, kind, other, digits=12)
+        if text == table:
+            continue  # same spelling in both systems (seconds)
+        edited = set_value(project, keypath, text)
+        diff = changed_lines(project.text, edited.text)
+        assert len(diff) == 2, (keypath, diff)
+        assert f'= "{text}"' in diff[1], (keypath, diff)
+        value = edited.data
+        for part in keypath.split("."):
+            value = value[part]
+        again = parse_quantity(value, kind, atmosphere=project.system.atmospheric_pressure)
+        assert again == pytest.approx(si, rel=1e-9, abs=1e-12)
