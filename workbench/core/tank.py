@@ -66,6 +66,8 @@ class TankGeometry:
     _volume: Callable[[float], float]
     _level: Callable[[float], float]
     _max_area: float
+    _v_top: float = math.inf
+    """Volume at :attr:`top` (``inf`` for open-topped shapes) [m^3]."""
 
     def area(self, h: float) -> float:
         """Free-surface area at level ``h`` [m^2].
@@ -104,10 +106,10 @@ class TankGeometry:
         """
         if volume < -1e-12 * max(self.capacity if math.isfinite(self.capacity) else 1.0, 1.0):
             raise TankLevelError(f"negative liquid volume {volume!r} m^3")
-        if math.isfinite(self.top) and volume > self._volume(self.top) * (1 + 1e-12):
+        if volume > self._v_top * (1 + 1e-12):
             raise TankLevelError(
                 f"volume {volume!r} m^3 exceeds what the {self.kind} holds "
-                f"({self._volume(self.top)!r} m^3)"
+                f"({self._v_top!r} m^3)"
             )
         return self._level(max(volume, 0.0))
 
@@ -121,15 +123,11 @@ class TankGeometry:
         or the apex of a cone it keeps the local power law instead of an extreme slope).
         """
         if volume < 0.0:
-            return -self._level(min(-volume, self._reflect_limit()))
-        if math.isfinite(self.top):
-            v_top = self._volume(self.top)
-            if volume > v_top:
-                return 2.0 * self.top - self._level(max(2.0 * v_top - volume, 0.0))
+            return -self._level(min(-volume, self._v_top))
+        v_top = self._v_top
+        if volume > v_top:
+            return 2.0 * self.top - self._level(max(2.0 * v_top - volume, 0.0))
         return self._level(volume)
-
-    def _reflect_limit(self) -> float:
-        return self._volume(self.top) if math.isfinite(self.top) else math.inf
 
     def _check_level(self, h: float) -> None:
         if h < 0.0 or h > self.top:
@@ -185,18 +183,21 @@ def _horizontal_cylinder(diameter: float, length: float, overflow: float | None)
         flip = v > 0.5 * v_full
         vv = v_full - v if flip else v
         rhs = 2.0 * math.pi * vv / v_full
+        # start: exact for small angles (theta^3/6 ~ rhs), blended towards the half-full
+        # value pi; then Halley steps (cubic convergence, 2-3 steps to round-off)
         theta = min((6.0 * rhs) ** (1.0 / 3.0), math.pi)
-        for _ in range(50):
+        for _ in range(20):
+            sin_t = math.sin(theta)
             fval = _theta_minus_sin(theta) - rhs
-            dfd = 1.0 - math.cos(theta)
-            if dfd <= 0.0:
+            d1 = 2.0 * math.sin(0.5 * theta) ** 2  # 1 - cos(theta) without cancellation
+            if d1 <= 0.0:
                 break
-            step = fval / dfd
-            theta -= step
-            theta = min(max(theta, 1e-300), math.pi)
-            if abs(step) <= 1e-15 * max(theta, 1e-12):
+            step = fval / d1
+            step = step / (1.0 - 0.5 * step * sin_t / d1)
+            theta = min(max(theta - step, 1e-300), math.pi)
+            if abs(step) <= 1e-11 * theta:
                 break
-        h = r * (1.0 - math.cos(0.5 * theta))
+        h = 2.0 * r * math.sin(0.25 * theta) ** 2  # r(1 - cos(theta/2)), no cancellation
         return diameter - h if flip else h
 
     top = diameter
@@ -210,6 +211,7 @@ def _horizontal_cylinder(diameter: float, length: float, overflow: float | None)
         _volume=volume,
         _level=level,
         _max_area=length * diameter,
+        _v_top=v_full,
     )
 
 

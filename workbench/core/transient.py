@@ -181,6 +181,7 @@ class _Config:
 
     def __init__(self, model: "_Model", open_lines: np.ndarray, spilling: np.ndarray):
         self.open = open_lines.copy()
+        self.open_f = open_lines.astype(float)
         self.spilling = spilling.copy()
         alpha = np.where(open_lines, model.alpha, 0.0)
         m = model.m_dense
@@ -235,6 +236,7 @@ class _Model:
         self.m_dense = np.asarray(topo.incidence.toarray(), dtype=float)
         f_dense = np.asarray(topo.fixed_incidence.toarray(), dtype=float)
         self.f_dense = f_dense
+        self.ft = np.ascontiguousarray(f_dense.T)
         # fixed heads: constant part
         h_fixed = np.zeros(topo.n_fixed)
         tank_ids: list[str] = []
@@ -254,6 +256,7 @@ class _Model:
         self.nt = len(tank_ids)
         self.tanks = [system.reservoirs[t] for t in tank_ids]
         self.geoms: list[TankGeometry] = [tank_geometry(r) for r in self.tanks]
+        self._level_fns = [g.level_extrapolated for g in self.geoms]
         self.tank_head_offset = np.array(
             [r.bottom_elevation + r.surface_pressure / (rho * G) for r in self.tanks]
         )
@@ -273,13 +276,14 @@ class _Model:
 
     # ------------------------------------------------------------------ heads
     def tank_levels(self, v: np.ndarray) -> np.ndarray:
-        return np.array([g.level_extrapolated(x) for g, x in zip(self.geoms, v)])
+        return np.array([f(x) for f, x in zip(self._level_fns, v.tolist())])
 
     def fixed_heads(self, v: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-        levels = self.tank_levels(v)
         h = self.h_fixed0.copy()
-        if self.nt:
-            h[self.tank_fixed] = self.tank_head_offset + levels
+        if not self.nt:
+            return h, np.zeros(0)
+        levels = self.tank_levels(v)
+        h[self.tank_fixed] = self.tank_head_offset + levels
         return h, levels
 
     # ------------------------------------------------------------------ stations
@@ -466,32 +470,47 @@ class _Run:
         self.last_progress = -1.0
         self.drain_times: dict[str, float] = {}
         self.notes: list[Finding] = []
+        self._cache = None
 
     # ---------------------------------------------------------------- RHS / Jacobian
-    def _openings(self, t: float) -> np.ndarray:
+    def _openings(self, t: float) -> np.ndarray | None:
+        if not self.model.valve_lines.size:
+            return None
         x = self.model.lines.openings_at(t)
         if self.open_valve_floor.any():
             x = np.where(self.open_valve_floor, np.maximum(x, _X_FLOOR), x)
         return x
 
+    def _losses(self, t, y):
+        """Fixed heads, tank levels, head losses and slopes at a state, cached for the
+        last state (the solver asks for the Jacobian, and the run for pressures, at points
+        where the right-hand side was just evaluated)."""
+        c = self._cache
+        if c is not None and c[0] == t and np.array_equal(c[1], y):
+            return c[2]
+        nl = self.model.nl
+        hf, levels = self.model.fixed_heads(y[nl:])
+        h, dh = self.model.lines.head_loss(y[:nl], self._openings(t))
+        out = (hf, levels, h, dh)
+        self._cache = (t, y.copy(), out)
+        return out
+
     def rhs(self, t, y):
         model, cfg = self.model, self.cfg
         nl = model.nl
-        q = y[:nl]
-        hf, _ = model.fixed_heads(y[nl:])
-        h, _ = model.lines.head_loss(q, self._openings(t))
-        g = model.f_dense.T @ hf + h
-        g = np.where(cfg.open, g, 0.0)
-        dq = -(cfg.s @ g)
-        dv = cfg.t_rows @ q
-        return np.concatenate([dq, dv])
+        hf, _, h, _ = self._losses(t, y)
+        g = (model.ft @ hf + h) * cfg.open_f
+        out = np.empty(nl + model.nt)
+        out[:nl] = cfg.s @ g
+        out[:nl] *= -1.0
+        out[nl:] = cfg.t_rows @ y[:nl]
+        return out
 
     def jac(self, t, y):
         model, cfg = self.model, self.cfg
         nl, nt = model.nl, model.nt
-        q = y[:nl]
-        _, dh = model.lines.head_loss(q, self._openings(t))
-        dh = np.where(cfg.open, dh, 0.0)
+        _, _, _, dh = self._losses(t, y)
+        dh = dh * cfg.open_f
         j = np.zeros((nl + nt, nl + nt))
         j[:nl, :nl] = -cfg.s * dh[None, :]
         if nt:
@@ -505,15 +524,10 @@ class _Run:
         """Junction and fixed heads at a state, and the valve K per line."""
         model, cfg = self.model, self.cfg
         nl = model.nl
-        q = y[:nl]
-        hf, levels = model.fixed_heads(y[nl:])
-        x = self._openings(t)
-        h, _ = model.lines.head_loss(q, x)
-        g = model.f_dense.T @ hf + np.where(cfg.open, h, 0.0)
+        hf, levels, h, _ = self._losses(t, y)
+        g = model.ft @ hf + h * cfg.open_f
         hj = -(cfg.w @ g) if cfg.w.shape[0] else np.zeros(0)
-        kv = model.lines.valve_k(x)
-        kv = np.where(np.isfinite(kv), kv, 0.0)
-        return np.concatenate([hj, hf]), kv
+        return np.concatenate([hj, hf]), None
 
     # ---------------------------------------------------------------- pressures
     def track(self, t, y, qdot):
@@ -671,6 +685,7 @@ class _Run:
         """Set the open lines for the segment [t_a, t_b]; returns the adjusted state."""
         model = self.model
         lines = model.lines
+        self._cache = None
         x_a = lines.openings_at(t_a)
         x_b = lines.openings_at(t_b)
         shut_a = lines.closed(x_a)
@@ -695,6 +710,8 @@ class _Run:
             if not stop.any():
                 break
             self.backstopped |= stop
+        # a reversal in the new configuration needs a real swing of the flow first
+        self.peak_since_rev = np.zeros(model.nl)
         self._arm()
         return y
 
@@ -790,7 +807,7 @@ class _Run:
                     for te, k in found:
                         if te <= t_stop and not self.terminal[k]:
                             self._reversal(int(self.index_of[k]), te, sol(te))
-                    y_stop = sol(t_stop)
+                    y_stop = y_new.copy() if t_stop == t_new else sol(t_stop)
                     self._peaks(y_stop[:nl])
                     delta = 1e-3 * (t_stop - t_old)
                     qdot = (y_stop[:nl] - sol(t_stop - delta)[:nl]) / delta
@@ -857,9 +874,12 @@ class _Run:
         self.drained[k] = True
         self.drain_times[rid] = float(t)
         row = model.t_rows[k]
-        outlets = (row != 0) & (row * y[:nl] <= 0.0)
+        tiny = 1e-9 * max(float(np.max(self.q_peak, initial=0.0)), 1e-12)
+        drawing = (row != 0) & (row * y[:nl] < -tiny)
+        # lines at rest that would draw from it by their positive direction stop as well
+        outlets = drawing | ((row < 0) & (np.abs(y[:nl]) <= tiny))
         self.blocked |= outlets
-        names = ", ".join(model.topo.line_ids[i] for i in np.flatnonzero(outlets))
+        names = ", ".join(model.topo.line_ids[i] for i in np.flatnonzero(drawing))
         res = model.tanks[k]
         what = "starts at or below" if started else "reaches"
         self._event(t, "tank.drained", rid,
