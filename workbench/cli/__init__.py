@@ -21,6 +21,7 @@ COMMANDS: dict[str, tuple[str, str]] = {
     "new": ("workbench.cli.new_cmd", "write a commented starter project"),
     "format": ("workbench.cli.format_cmd", "rewrite project files in canonical form"),
     "solve": ("workbench.cli.solve_cmd", "solve the steady flows, heads and warnings of a project"),
+    "simulate": ("workbench.cli.simulate_cmd", "simulate a project in time: levels, flows, events, surge screening"),
     "open": ("workbench.cli.open_cmd", "open a project in the keyboard-driven terminal workbench"),
     "sweep": ("workbench.cli.sweep_cmd", "what-if sweeps: vary inputs, judge each case, name the first that passes"),
     "report": ("workbench.cli.report_cmd", "write the Markdown calculation record (and CSV exports) of a project"),

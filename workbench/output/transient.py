@@ -1,0 +1,272 @@
+"""A transient run for people and programs: the ``simulate --json`` object, CSV and rich
+summary tables.
+
+:func:`transient_to_json` gives the documented shape (schema 1, all SI; keys beyond the
+documented ones are additions, never renames). :func:`transient_csv` writes the time series.
+:func:`transient_tables` gives rich renderables in the project's unit system: the tanks
+(drain or transfer times), the lines (peak and minimum flows and pressures), surge
+screening, events and warnings; a warning's severity is a word as well as a colour.
+"""
+
+from __future__ import annotations
+
+import csv
+import math
+from typing import TYPE_CHECKING, Any, TextIO
+
+import numpy as np
+
+if TYPE_CHECKING:  # pragma: no cover
+    from workbench.core.model import System
+    from workbench.core.transient import TransientResult
+
+__all__ = ["transient_csv", "transient_tables", "transient_to_json", "settle_time"]
+
+#: Severity word -> rich style (the word carries the meaning, the colour only helps).
+SEVERITY_STYLE = {"info": "cyan", "caution": "yellow", "danger": "bold red"}
+
+
+def _num(x: Any) -> float | None:
+    """A JSON-safe float: ``None`` for ``None``, nan and infinities."""
+    if x is None:
+        return None
+    x = float(x)
+    return x if math.isfinite(x) else None
+
+
+def _list(a) -> list[float | None]:
+    return [_num(v) for v in np.asarray(a, dtype=float).tolist()]
+
+
+def settle_time(t: np.ndarray, series: np.ndarray, fraction: float = 0.99) -> float | None:
+    """First time a series has made ``fraction`` of its change from start to end [s].
+
+    ``None`` when the series does not change. Used as the "transfer time" of a tank whose
+    level moves without draining.
+    """
+    if len(t) < 2:
+        return None
+    change = float(series[-1] - series[0])
+    if change == 0.0 or not math.isfinite(change):
+        return None
+    progress = (series - series[0]) / change
+    idx = np.flatnonzero(progress >= fraction)
+    return float(t[idx[0]]) if idx.size else None
+
+
+def transient_to_json(result: TransientResult, system: System, include_series: bool = True) -> dict:
+    """The ``workbench simulate --json`` object of a transient result.
+
+    Documented keys: ``schema`` (1), ``time_s`` [...], ``lines`` {id: {``flow_m3_s`` [...],
+    ``max_pressure_pa``, ``min_pressure_pa``}} (gauge, anywhere on the line over the run),
+    ``levels`` {tank id: {``level_m`` [...]}}, ``events`` [{``time_s``, ``code``, ``element``,
+    ``message``}], ``surge`` {line id: {``wave_speed_m_s``, ``joukowsky_pa``,
+    ``effective_closure_s``, ``round_trip_s``}} and ``warnings`` [{``code``, ``element``,
+    ``message``}]. Values that do not exist (a wave speed without a bulk modulus, the
+    closure time of a line without a closing valve) are ``null``.
+
+    With ``include_series=False`` the arrays (``time_s``, ``flow_m3_s``, ``level_m``) are
+    left out and only the summary values remain (for sweeps).
+    """
+    out: dict[str, Any] = {"schema": 1}
+    if include_series:
+        out["time_s"] = _list(result.t)
+    out.update({
+        "title": system.title,
+        "success": bool(result.success),
+        "status": int(result.status),
+        "message": result.message,
+        "method": result.method,
+        "end_time_s": _num(result.t[-1]) if len(result.t) else None,
+        "lines": {},
+        "levels": {},
+        "events": [],
+        "surge": {},
+        "warnings": [],
+        "stats": {"steps": int(result.nsteps), "rhs_evaluations": int(result.nfev),
+                  "jacobians": int(result.njev), "wall_time_s": _num(result.wall_time)},
+    })
+    for i, lid in enumerate(result.line_ids):
+        flows = result.flows[i] if result.flows.size else np.zeros(0)
+        entry: dict[str, Any] = {}
+        if include_series:
+            entry["flow_m3_s"] = _list(flows)
+        entry.update({
+            "max_pressure_pa": _num(result.max_pressure.get(lid)),
+            "min_pressure_pa": _num(result.min_pressure.get(lid)),
+            "max_pressure_time_s": _num(result.max_pressure_time.get(lid)),
+            "min_pressure_time_s": _num(result.min_pressure_time.get(lid)),
+            "peak_flow_m3_s": _num(np.max(flows)) if flows.size else None,
+            "min_flow_m3_s": _num(np.min(flows)) if flows.size else None,
+        })
+        out["lines"][lid] = entry
+    for k, tid in enumerate(result.tank_ids):
+        levels = result.levels[k]
+        entry = {}
+        if include_series:
+            entry["level_m"] = _list(levels)
+        entry.update({
+            "initial_level_m": _num(levels[0]) if levels.size else None,
+            "final_level_m": _num(levels[-1]) if levels.size else None,
+            "drain_time_s": _num(result.drain_times.get(tid)),
+            "settle_99_s": _num(settle_time(result.t, levels)),
+        })
+        out["levels"][tid] = entry
+    out["events"] = [
+        {"time_s": _num(e.time), "code": e.code, "element": e.element, "message": e.message}
+        for e in result.events
+    ]
+    for lid, s in result.surge.items():
+        out["surge"][lid] = {
+            "wave_speed_m_s": _num(s.wave_speed),
+            "joukowsky_pa": _num(s.joukowsky),
+            "effective_closure_s": _num(s.effective_closure),
+            "round_trip_s": _num(s.round_trip),
+            "rapid_closure": bool(s.rapid_closure),
+            "capped": bool(s.capped),
+            "max_pressure_uncapped_pa": _num(s.max_pressure_uncapped),
+            "formula": s.formula,
+        }
+    out["warnings"] = [
+        {"code": w.code, "element": w.element, "message": w.message, "severity": w.severity,
+         "source": w.source}
+        for w in result.warnings
+    ]
+    return out
+
+
+def transient_csv(result: TransientResult, stream: TextIO) -> None:
+    """Write the time series as CSV, SI units in the column names.
+
+    Columns: ``time_s``, then ``flow_<line>_m3_s`` per line and ``level_<tank>_m`` per tank.
+    """
+    writer = csv.writer(stream, lineterminator="\n")
+    writer.writerow(["time_s"] + [f"flow_{lid}_m3_s" for lid in result.line_ids]
+                    + [f"level_{tid}_m" for tid in result.tank_ids])
+    columns = [result.t] + list(result.flows) + list(result.levels)
+    for row in zip(*columns):
+        writer.writerow([repr(float(v)) for v in row])
+
+
+def transient_tables(result: TransientResult, system: System, unit_system: str = "SI") -> list:
+    """Rich renderables summarising a transient run.
+
+    Parameters
+    ----------
+    result : TransientResult
+    system : System
+    unit_system : {"SI", "US"}
+        Display units (through :func:`workbench.project.units.format_quantity`).
+    """
+    from rich import box
+    from rich.table import Table
+    from rich.text import Text
+
+    from workbench.project.units import format_quantity
+
+    def table(title: str) -> Table:
+        return Table(title=title, title_justify="left", box=box.SIMPLE_HEAD, pad_edge=False)
+
+    def q(value, kind: str, digits: int = 4) -> str:
+        v = _num(value)
+        return "—" if v is None else format_quantity(v, kind, unit_system, digits)
+
+    def when(value) -> str:
+        v = _num(value)
+        if v is None:
+            return "—"
+        text = format_quantity(v, "time", unit_system, 6)
+        if abs(v) >= 3600.0:
+            text += f" ({v / 3600.0:.3g} h)"
+        elif abs(v) >= 120.0:
+            text += f" ({v / 60.0:.3g} min)"
+        return text
+
+    out: list = []
+    style = "" if result.success else "bold red"
+    end = result.t[-1] if len(result.t) else 0.0
+    out.append(Text(
+        f"{system.title}: {result.message} (simulated {when(end)}, {result.nsteps} steps, "
+        f"{result.method}, {result.wall_time:.3g} s wall).", style=style))
+
+    if result.tank_ids:
+        tanks = table("Tanks")
+        for col, just in (("tank", "left"), ("initial level", "right"), ("final level", "right"),
+                          ("drained at", "right"), ("99 % of change at", "right")):
+            tanks.add_column(col, justify=just, no_wrap=True)
+        for k, tid in enumerate(result.tank_ids):
+            lv = result.levels[k]
+            tanks.add_row(tid, q(lv[0] if lv.size else None, "elevation"),
+                          q(lv[-1] if lv.size else None, "elevation"),
+                          when(result.drain_times.get(tid)), when(settle_time(result.t, lv)))
+        out.append(tanks)
+
+    lines = table("Lines")
+    for col, just in (("line", "left"), ("peak flow", "right"), ("min flow", "right"),
+                      ("max pressure", "right"), ("at", "right"), ("min pressure", "right"),
+                      ("at", "right")):
+        lines.add_column(col, justify=just, no_wrap=True)
+    for i, lid in enumerate(result.line_ids):
+        f = result.flows[i] if result.flows.size else np.zeros(0)
+        pmax = q(result.max_pressure.get(lid), "pressure")
+        surge = result.surge.get(lid)
+        if surge is not None and surge.capped:
+            pmax += " (capped)"
+        lines.add_row(lid, q(np.max(f) if f.size else None, "flow"),
+                      q(np.min(f) if f.size else None, "flow"), pmax,
+                      when(result.max_pressure_time.get(lid)),
+                      q(result.min_pressure.get(lid), "pressure"),
+                      when(result.min_pressure_time.get(lid)))
+    out.append(lines)
+
+    closing = {lid: s for lid, s in result.surge.items() if s.effective_closure is not None}
+    if closing:
+        st = table("Surge screening of valve closures")
+        for col, just in (("line", "left"), ("wave speed", "right"), ("2L/a", "right"),
+                          ("effective closure", "right"), ("round trips", "right"),
+                          ("Joukowsky rise", "right"), ("verdict", "left")):
+            st.add_column(col, justify=just, no_wrap=col != "verdict")
+        for lid, s in closing.items():
+            trips = (s.effective_closure / s.round_trip) if s.round_trip else None
+            verdict = ("RAPID: elastic analysis needed" if s.rapid_closure
+                       else "slow: rigid column adequate" if trips is not None else "—")
+            st.add_row(lid, q(s.wave_speed, "velocity"), when(s.round_trip),
+                       when(s.effective_closure), "—" if trips is None else f"{trips:.3g}",
+                       q(s.joukowsky, "pressure"),
+                       Text(verdict, style="bold red" if s.rapid_closure else ""))
+        out.append(st)
+
+    if result.events:
+        ev = table("Events")
+        ev.add_column("time", justify="right", no_wrap=True)
+        ev.add_column("code", no_wrap=True)
+        ev.add_column("element", no_wrap=True)
+        ev.add_column("message", overflow="fold", ratio=1)
+        shown = result.events[:60]
+        for e in shown:
+            ev.add_row(when(e.time), e.code, e.element, e.message)
+        out.append(ev)
+        if len(result.events) > len(shown):
+            out.append(Text(f"... {len(result.events) - len(shown)} more events in --json."))
+    else:
+        out.append(Text("No events."))
+
+    if result.warnings:
+        warn = table("Warnings")
+        warn.add_column("severity", no_wrap=True)
+        warn.add_column("code / element", overflow="fold")
+        warn.add_column("message (source)", overflow="fold", ratio=1)
+        for w in result.warnings:
+            message = Text(w.message)
+            if w.source:
+                message.append(f" ({w.source})", style="dim")
+            warn.add_row(Text(w.severity.upper(), style=SEVERITY_STYLE.get(w.severity, "")),
+                          f"{w.code}\n{w.element}", message)
+        out.append(warn)
+    else:
+        out.append(Text("No warnings."))
+    out.append(Text(
+        "Rigid-column model: each line's liquid moves as one incompressible column; valid for "
+        "slow valve moves only (see the surge screening). A computed drained time is never "
+        "proof that a tank is empty: check before entry (confined space)."))
+    return out
