@@ -440,6 +440,7 @@ def simulate_elastic(
     line_id: str,
     *,
     duration: float | None = None,
+    max_duration: float | None = None,
     reaches: int | dict[str, int] | None = None,
     friction: str = "initial",
     speed_tolerance: float = SPEED_TOLERANCE,
@@ -459,6 +460,9 @@ def simulate_elastic(
         Simulated time [s]. Default: the last valve movement plus
         :data:`DEFAULT_ROUND_TRIPS` round trips ``2*sum(L/a)`` of the chain, but no longer
         than the project's simulation duration when that is shorter.
+    max_duration : float, optional
+        Upper limit on the default duration [s] (e.g. a shorter ``--duration`` given for
+        the whole run); ignored when ``duration`` is given.
     reaches : int or dict, optional
         Reach count for ``line_id`` (an int) or per line (a dict); default each line's
         ``surge.reaches``, else automatic (:data:`AUTO_REACHES` on the line with the
@@ -500,8 +504,8 @@ def simulate_elastic(
     See ``tests/core/test_elastic_surge.py``.
     """
     try:
-        return _simulate(system, line_id, duration, reaches, friction, speed_tolerance,
-                         wave_speeds, progress, cancel)
+        return _simulate(system, line_id, duration, max_duration, reaches, friction,
+                         speed_tolerance, wave_speeds, progress, cancel)
     except (ElasticSetupError, ValueError, KeyError) as exc:
         # set-up problems (missing data, unknown fitting or characteristic names, bad wave
         # speed inputs) come back as a failed result whose message says what was wrong
@@ -514,6 +518,7 @@ def run_elastic(
     line_ids: tuple[str, ...] | list[str],
     *,
     duration: float | None = None,
+    max_duration: float | None = None,
     progress: Callable[[float], None] | None = None,
     cancel: Callable[[], bool] | None = None,
 ) -> dict[str, ElasticResult]:
@@ -547,7 +552,8 @@ def run_elastic(
         if progress is not None:
             base = done / n
             sub = lambda frac, base=base: progress(base + frac / n)  # noqa: E731
-        res = simulate_elastic(system, lid, duration=duration, progress=sub, cancel=cancel)
+        res = simulate_elastic(system, lid, duration=duration, max_duration=max_duration,
+                               progress=sub, cancel=cancel)
         for member in chain:
             out.setdefault(member, res)
         done += 1
@@ -556,8 +562,8 @@ def run_elastic(
     return out
 
 
-def _simulate(system, line_id, duration, reaches, friction, tolerance, speed_override,
-              progress, cancel) -> ElasticResult:
+def _simulate(system, line_id, duration, max_duration, reaches, friction, tolerance,
+              speed_override, progress, cancel) -> ElasticResult:
     from workbench.core.surge import wave_speed
     from workbench.core.valve import opening_at, relative_flow_coefficient, valve_k
 
@@ -796,6 +802,8 @@ def _simulate(system, line_id, duration, reaches, friction, tolerance, speed_ove
         duration = last_move + DEFAULT_ROUND_TRIPS * round_trip
         if system.simulation is not None and system.simulation.duration < duration:
             duration = system.simulation.duration
+        if max_duration is not None and max_duration < duration:
+            duration = max_duration
     if not duration > 0.0:
         raise ElasticSetupError(f"duration must be positive, got {duration!r}")
     n_steps = max(1, int(math.ceil(duration / dt - 1e-9)))
