@@ -101,6 +101,9 @@ def parse_toml(text: str, name: str | None) -> tuple[dict, "tomlkit.TOMLDocument
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         raise ProjectError(_syntax_problem(exc, label)) from None
+    except RecursionError:
+        raise ProjectError(Problem(label, "", "lists or tables nested too deeply to read (a "
+                                   "project file needs only a few levels)")) from None
     import tomlkit
     from tomlkit.exceptions import TOMLKitError
 
