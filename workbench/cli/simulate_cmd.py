@@ -26,7 +26,7 @@ _EPILOG = (
     "Rigid-column model: valid for slow valve moves; fast closures are flagged "
     "(surge.rapid_closure) and need an elastic analysis. The lumped laminar start-up "
     "(time constant rho*D^2/(32*mu)) is 1.3-1.4 times quicker than the exact laminar start-up "
-    "(Szymanski's series solution) to reach 63-99 %% of the final flow. A computed drained "
+    "(Szymanski's series solution) to reach 63-99 % of the final flow. A computed drained "
     "time is never proof that a tank is empty."
 )
 
@@ -129,7 +129,8 @@ def run(args: argparse.Namespace) -> ExitCode:
         console.print(f"\n{PREAMBLE} See 'workbench cautions'.")
     if args.plot:
         # plots go with the tables on stdout, or to stderr when stdout carries JSON
-        print(_plots(result, project.unit_system), file=sys.stderr if args.json else sys.stdout)
+        stream = sys.stderr if args.json else sys.stdout
+        print(_plots(result, project.unit_system, colour=stream.isatty()), file=stream)
     if not result.success:
         print(f"{args.project}: {result.message}", file=sys.stderr)
         return ExitCode.INVALID
@@ -159,7 +160,7 @@ class _progress_bar:
         return False
 
 
-def _plots(result, unit_system: str) -> str:
+def _plots(result, unit_system: str, colour: bool = True) -> str:
     """Terminal trend plots (plotext) of tank levels and line flows, display units."""
     import plotext as plt
 
@@ -169,9 +170,15 @@ def _plots(result, unit_system: str) -> str:
     scale, t_unit = (3600.0, "h") if t[-1] >= 7200 else (60.0, "min") if t[-1] >= 120 else (1.0, "s")
     tt = (t / scale).tolist()
     texts = []
-    if result.tank_ids:
+
+    def start():
         plt.clf()
         plt.plotsize(80, 20)
+        if not colour:
+            plt.theme("clear")
+
+    if result.tank_ids:
+        start()
         for k, tid in enumerate(result.tank_ids):
             plt.plot(tt, [float(v) for v in to_display(result.levels[k], "elevation", unit_system)],
                      label=tid)
@@ -179,8 +186,7 @@ def _plots(result, unit_system: str) -> str:
         plt.xlabel(f"time [{t_unit}]")
         plt.ylabel(f"level [{display_unit('elevation', unit_system)}]")
         texts.append(plt.build())
-    plt.clf()
-    plt.plotsize(80, 20)
+    start()
     for i, lid in enumerate(result.line_ids):
         plt.plot(tt, [float(v) for v in to_display(result.flows[i], "flow", unit_system)], label=lid)
     plt.title("Line flows")

@@ -172,15 +172,15 @@ def transient_tables(result: TransientResult, system: System, unit_system: str =
         return "—" if v is None else format_quantity(v, kind, unit_system, digits)
 
     def when(value) -> str:
+        """A time in one readable unit: seconds below 2 min, then minutes, then hours."""
         v = _num(value)
         if v is None:
             return "—"
-        text = format_quantity(v, "time", unit_system, 6)
-        if abs(v) >= 3600.0:
-            text += f" ({v / 3600.0:.3g} h)"
-        elif abs(v) >= 120.0:
-            text += f" ({v / 60.0:.3g} min)"
-        return text
+        if abs(v) >= 7200.0:
+            return f"{v / 3600.0:.4g} h"
+        if abs(v) >= 120.0:
+            return f"{v / 60.0:.4g} min"
+        return format_quantity(v, "time", unit_system, 4)
 
     out: list = []
     style = "" if result.success else "bold red"
