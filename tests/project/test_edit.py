@@ -220,3 +220,13 @@ def test_every_quantity_rewritten_in_other_units_changes_one_line_and_not_the_mo
             value = value[part]
         again = parse_quantity(value, kind, atmosphere=project.system.atmospheric_pressure)
         assert again == pytest.approx(si, rel=1e-9, abs=1e-12)
+
+
+def test_a_catalogue_liquid_takes_a_bulk_modulus_from_the_file():
+    drain = load_project(PROJECTS / "fellgate_neutraliser_drain.toml")
+    from workbench.project.document import set_values
+
+    glycol = set_values(drain, {"fluid.kind": "ethylene_glycol",
+                                "fluid.bulk_modulus": "3.0 GPa"})
+    assert glycol.system.fluid.bulk_modulus == 3.0e9
+    assert glycol.system.fluid.density > 1100  # MEG at 18 degC about 1115 kg/m3 (from memory)

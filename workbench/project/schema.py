@@ -90,8 +90,8 @@ SECTIONS: dict[str, tuple[FieldSpec, ...]] = {
               help="custom liquid: vapour pressure, absolute (optional; without it vapour "
               "checks are skipped with a note)", example="2.34 kPa"),
         field("bulk_modulus", "modulus",
-              help="custom liquid: bulk modulus (optional; surge wave speeds need it)",
-              example="2.2 GPa"),
+              help="bulk modulus (optional; surge wave speeds need it; for water it comes "
+              "from IAPWS-95, catalogue liquids have none)", example="2.2 GPa"),
     ),
     "reservoirs": (
         field("kind", "choice", True, "'constant_level' (level held) or 'tank' (level changes "

@@ -262,7 +262,7 @@ def _check_fluid(c: _Checker, data: dict) -> m.FluidProps | None:
     kinds = ("water", *catalogue, "custom")
     kind = c.choice(section, _spec("fluid", "kind"), "fluid", choices=kinds)
     temperature = c.quantity(section, "temperature", "temperature", "fluid")
-    custom_keys = ("name", "density", "viscosity", "vapor_pressure", "bulk_modulus")
+    custom_keys = ("name", "density", "viscosity", "vapor_pressure")
     if kind is None:
         return None
     if kind != "custom":
@@ -270,6 +270,7 @@ def _check_fluid(c: _Checker, data: dict) -> m.FluidProps | None:
             if key in section:
                 c.add(f"fluid.{key}", f"'{key}' applies only to kind = \"custom\"; the "
                       f"properties of {kind} come from its formulation")
+        bulk = c.quantity(section, "bulk_modulus", "modulus", "fluid", positive=True)
         if temperature is None:
             if "temperature" not in section:
                 c.add("fluid.temperature", f"missing required key 'temperature' for {kind}, "
@@ -277,11 +278,19 @@ def _check_fluid(c: _Checker, data: dict) -> m.FluidProps | None:
             return None
         try:
             if kind == "water":
-                return core_fluid.water_properties(temperature, c.atmosphere)
-            return core_fluid.liquid_properties(kind, temperature, c.atmosphere)
+                props = core_fluid.water_properties(temperature, c.atmosphere)
+            else:
+                props = core_fluid.liquid_properties(kind, temperature, c.atmosphere)
         except ValueError as exc:
             c.add("fluid.temperature", str(exc))
             return None
+        if bulk is not None:  # the user's bulk modulus overrides (catalogue liquids lack one)
+            import dataclasses
+
+            props = dataclasses.replace(
+                props, bulk_modulus=bulk,
+                notes=(*props.notes, "bulk modulus given in the project file"))
+        return props
     name = c.text(section, "name", "fluid", default="custom liquid") or "custom liquid"
     density = c.quantity(section, "density", "density", "fluid", required=True, positive=True)
     viscosity = c.quantity(section, "viscosity", "viscosity", "fluid", required=True,
@@ -535,7 +544,14 @@ def _check_valve(c: _Checker, t: dict, path: str, diameter: float | None,
             return False, None
         from workbench.core.valve import k_from_kv
 
-        k_open = k_from_kv(kv_open * 3600.0, diameter, fluid.density)
+        try:
+            k_open = k_from_kv(kv_open * 3600.0, diameter, fluid.density)
+        except (ArithmeticError, ValueError):  # Kv so far out that K overflows or underflows
+            k_open = math.inf
+        if not (math.isfinite(k_open) and k_open > 0.0):
+            c.add(f"{vpath}.kv_open", f"{v['kv_open']!r}: this Kv gives no usable loss "
+                  f"coefficient in a {diameter * 1000:.4g} mm line; check the number and its unit")
+            return False, None
     return True, m.Valve(characteristic=characteristic, k_open=float(k_open),
                          opening=float(opening), rangeability=float(rangeability),
                          schedule=schedule, position=position)
