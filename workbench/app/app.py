@@ -25,7 +25,7 @@ from workbench.app.history import History
 #: Seconds between the last edit and the start of a steady solve.
 DEBOUNCE = 0.3
 
-VIEWS = ("system", "flows", "grade", "run", "events")
+VIEWS = ("system", "flows", "grade", "run", "events", "surge")
 
 
 class WorkbenchApp(App[int]):
@@ -47,6 +47,8 @@ class WorkbenchApp(App[int]):
         Binding("f5", "view('run')", "Run", key_display="F5", id="view.run",
                 show=False),
         Binding("f6", "view('events')", "Events", key_display="F6", id="view.events",
+                show=False),
+        Binding("f10", "view('surge')", "Surge", key_display="F10", id="view.surge",
                 show=False),
         Binding("f7", "toggle_units", "SI/US", key_display="F7", id="app.units"),
         Binding("f8", "cautions", "Cautions", key_display="F8", id="app.cautions"),
@@ -76,6 +78,8 @@ class WorkbenchApp(App[int]):
     run_progress: var[float] = var(0.0)
     transient: var[Any] = var(None, always_update=True)
     """The last ``TransientResult``."""
+    elastic: var[Any] = var(None, always_update=True)
+    """Line id -> ``ElasticResult`` of the last run's elastic surge runs (may be empty)."""
     modified: var[bool] = var(False)
     path: var[Path | None] = var(None)
 
@@ -106,9 +110,10 @@ class WorkbenchApp(App[int]):
     class SimulationFinished(Message):
         """A simulation ended (completed, stopped by an event, or cancelled)."""
 
-        def __init__(self, result: Any, system: Any, cancelled: bool) -> None:
+        def __init__(self, result: Any, elastic: dict, system: Any, cancelled: bool) -> None:
             super().__init__()
             self.result = result
+            self.elastic = elastic
             self.system = system
             self.cancelled = cancelled
 
@@ -187,6 +192,7 @@ class WorkbenchApp(App[int]):
             self.disk_hash = jobs.file_hash(self.path)
         self.unit_system = self._unit_override or getattr(project, "unit_system", "SI") or "SI"
         self.transient = None
+        self.elastic = None
         self.transient_system = None
         self.run_status = "idle"
         self.run_progress = 0.0
@@ -272,8 +278,8 @@ class WorkbenchApp(App[int]):
                 last[0] = fraction
                 self.post_message(self.SimulationProgressed(float(fraction)))
 
-        result = jobs.simulate(system, progress, lambda: worker.is_cancelled)
-        self.post_message(self.SimulationFinished(result, system, worker.is_cancelled))
+        result, elastic = jobs.simulate(system, progress, lambda: worker.is_cancelled)
+        self.post_message(self.SimulationFinished(result, elastic, system, worker.is_cancelled))
 
     def on_workbench_app_simulation_progressed(self, message: SimulationProgressed) -> None:
         if self.run_status == "running":
@@ -281,6 +287,7 @@ class WorkbenchApp(App[int]):
 
     def on_workbench_app_simulation_finished(self, message: SimulationFinished) -> None:
         self.transient_system = message.system
+        self.elastic = message.elastic
         self.transient = message.result
         if message.cancelled:
             self.run_status = "cancelled"
@@ -344,8 +351,11 @@ class WorkbenchApp(App[int]):
             return bool(self.history and self.history.can_redo) or None
         if action == "save":
             return has_project or None
-        if action in {"simulate", "toggle_units"}:
-            return (has_project and self.run_status != "running") or None
+        if action == "simulate":
+            ready = has_project and getattr(self.project.system, "simulation", None) is not None
+            return (ready and self.run_status != "running") or None
+        if action == "toggle_units":
+            return has_project or None
         if action == "stop_run":
             return self.run_status == "running" or None
         return True

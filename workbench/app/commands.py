@@ -26,6 +26,7 @@ PALETTE: tuple[tuple[str, str, str], ...] = (
     ("view: grade line", "pipe elevation, grade line and vapour limit of a line", "view('grade')"),
     ("view: run", "simulation progress and trend plots", "view('run')"),
     ("view: events", "simulation events and the surge summary", "view('events')"),
+    ("view: surge", "elastic surge envelope and valve pressure trace", "view('surge')"),
     ("view: keys", "every key and what it does", "keys"),
     ("view: cautions", "the safety cautions", "cautions"),
     ("run: simulate", "run the time simulation in the background", "simulate"),

@@ -37,11 +37,24 @@ def simulate(
     system: Any,
     progress: Callable[[float], None],
     cancel: Callable[[], bool],
-) -> Any:
-    """Run the transient simulation (a ``TransientResult``), reporting the fraction done."""
-    from workbench.core.transient import simulate as run
+) -> tuple[Any, dict[str, Any]]:
+    """Run the time simulation, then the elastic surge run of lines that ask for one.
 
-    return run(system, progress=progress, cancel=cancel)
+    Returns the ``TransientResult`` and a dict line id -> ``ElasticResult`` (empty when no
+    line has ``surge.model = "elastic"``). Progress is the fraction of the whole work: the
+    rigid-column run takes the first half when an elastic run follows.
+    """
+    from workbench.core.elastic import elastic_line_ids, run_elastic
+    from workbench.core.transient import simulate as run_rigid
+
+    elastic_ids = elastic_line_ids(system)
+    share = 0.5 if elastic_ids else 1.0
+    result = run_rigid(system, progress=lambda f: progress(share * f), cancel=cancel)
+    elastic: dict[str, Any] = {}
+    if elastic_ids and not cancel():
+        elastic = run_elastic(system, elastic_ids, cancel=cancel,
+                              progress=lambda f: progress(0.5 + 0.5 * f))
+    return result, elastic
 
 
 def file_hash(path: Path) -> str | None:
@@ -61,6 +74,8 @@ def explain(error: BaseException) -> str:
     problems = getattr(error, "problems", None)
     if problems:
         return "\n".join(str(p) for p in problems)
+    if isinstance(error, ValueError):  # the core's input checks speak to the user
+        return str(error)
     if isinstance(error, OSError):
         return f"{error.filename or 'file'}: {error.strerror or error}"
     text = str(error) or type(error).__name__

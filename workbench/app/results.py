@@ -118,3 +118,16 @@ def finding_rows(findings: Any) -> list[tuple[str, str, str, str]]:
 def sorted_findings(findings: Any) -> list[Any]:
     rank = {"danger": 0, "caution": 1, "info": 2}
     return sorted(list(findings or []), key=lambda f: rank.get(_get(f, "severity"), 3))
+
+
+def duration_text(seconds: float) -> str:
+    """A time span as an engineer reads it: ``42.1 s``, ``12 min 30 s``, ``2 h 05 min``."""
+    if seconds is None or not math.isfinite(seconds):
+        return "—"
+    if abs(seconds) < 120:
+        return f"{seconds:.3g} s" if abs(seconds) < 10 else f"{seconds:.1f} s"
+    minutes, sec = divmod(round(seconds), 60)
+    if minutes < 120:
+        return f"{minutes} min {sec:02d} s"
+    hours, minutes = divmod(minutes, 60)
+    return f"{hours} h {minutes:02d} min"

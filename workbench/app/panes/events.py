@@ -20,49 +20,67 @@ def event_rows(result: Any, units: str) -> list[tuple[str, str, str, str]]:
     rows = []
     for event in _get(result, "events", default=[]) or []:
         time = float(_get(event, "time", "time_s", default=math.nan))
-        rows.append((format_quantity(time, "time", units) if math.isfinite(time) else "—",
+        rows.append((results.duration_text(time),
                      _get(event, "code", default=""), _get(event, "element", default=""),
                      _get(event, "message", default="")))
     return rows
 
 
+#: Surge summary columns: title, attribute of ``LineSurge`` (or of the result), kind.
 SURGE_FIELDS = (
-    ("wave speed", ("wave_speed", "wave_speed_m_s"), "velocity"),
-    ("Joukowsky", ("joukowsky", "joukowsky_pa"), "pressure"),
-    ("eff. closure", ("effective_closure", "effective_closure_s"), "time"),
-    ("2L/a", ("round_trip", "round_trip_s"), "time"),
-    ("max p", ("max_pressure", "max_pressure_pa"), "pressure"),
-    ("min p", ("min_pressure", "min_pressure_pa"), "pressure"),
+    ("a", "wave_speed", "velocity"),
+    ("Joukowsky", "joukowsky", "pressure"),
+    ("closure", "effective_closure", "time"),
+    ("2L/a", "round_trip", "time"),
+    ("max p", "max_pressure", "pressure"),
+    ("min p", "min_pressure", "pressure"),
 )
 
 
 def surge_rows(result: Any, units: str) -> list[tuple[str, ...]]:
-    """Per line: wave speed, Joukowsky rise, effective closure, round trip, pressure extremes."""
+    """Per line: wave speed, Joukowsky rise, effective closure, round trip, pressure extremes.
+
+    A rigid-column peak that was capped at static plus Joukowsky is marked ``cap``; an
+    effective closure shorter than five round trips is marked ``FAST``.
+    """
     from workbench.project.units import format_quantity
 
-    surge = _get(result, "surge", "surges", "surge_summaries", default={}) or {}
-    extremes = _get(result, "line_extremes", "pressure_extremes", default={}) or {}
-    lines = list(dict.fromkeys([*surge, *extremes]))
+    surge = _get(result, "surge", default={}) or {}
+    max_p = _get(result, "max_pressure", default={}) or {}
+    min_p = _get(result, "min_pressure", default={}) or {}
     rows = []
-    for line in lines:
+    for line in dict.fromkeys([*surge, *max_p, *min_p]):
         record = surge.get(line)
-        extreme = extremes.get(line)
         cells = [line]
-        for _title, names, kind in SURGE_FIELDS:
-            value = _get(record, *names) if record is not None else None
-            if value is None and extreme is not None:
-                value = _get(extreme, *names)
+        for _title, name, kind in SURGE_FIELDS:
+            if name == "max_pressure":
+                value = max_p.get(line)
+            elif name == "min_pressure":
+                value = min_p.get(line)
+            else:
+                value = _get(record, name) if record is not None else None
             ok = value is not None and math.isfinite(float(value))
-            cells.append(format_quantity(float(value), kind, units) if ok else "—")
+            text = format_quantity(float(value), kind, units, digits=3) if ok else "—"
+            if name == "effective_closure" and record is not None and record.rapid_closure:
+                text += " FAST"
+            if name == "max_pressure" and record is not None and record.capped:
+                text += " cap"
+            cells.append(text)
         rows.append(tuple(cells))
     return rows
+
+
+def drain_rows(result: Any, units: str) -> list[tuple[str, str]]:
+    """``(tank, time)`` for every tank that drained during the run."""
+    times = _get(result, "drain_times", default={}) or {}
+    return [(tank, results.duration_text(float(t))) for tank, t in times.items()]
 
 
 class EventsPane(Vertical):
     """Events, surge summary and warnings of the last run."""
 
     def compose(self) -> ComposeResult:
-        yield Static("Events of the last run", classes="pane-heading")
+        yield Static("", id="run-summary", classes="pane-heading")
         yield DataTable(id="event-table", cursor_type="row", zebra_stripes=True)
         yield Static("Surge and pressure extremes (gauge)", classes="pane-heading")
         yield DataTable(id="surge-table", cursor_type="row", zebra_stripes=True)
@@ -76,11 +94,23 @@ class EventsPane(Vertical):
     def _show(self, _value=None) -> None:
         result = self.app.transient
         units = self.app.unit_system
+        summary = "Events: no simulation yet (Ctrl+R runs one)"
+        if result is not None:
+            summary = f"Events · {_get(result, 'message', default='')}"
+            drained = drain_rows(result, units)
+            if drained:
+                summary += " · drained " + ", ".join(f"{k} at {t}" for k, t in drained)
+        self.query_one("#run-summary", Static).update(summary)
         self._fill("#event-table", ["time", "code", "element", "message"],
                    event_rows(result, units) if result is not None else [])
         self._fill("#surge-table", ["line", *(t for t, _n, _k in SURGE_FIELDS)],
                    surge_rows(result, units) if result is not None else [])
-        warnings = _get(result, "warnings", default=[]) if result is not None else []
+        warnings = list(_get(result, "warnings", default=[]) or []) if result is not None else []
+        seen: set[int] = set()
+        for elastic in (self.app.elastic or {}).values():  # one result per chain
+            if id(elastic) not in seen:
+                seen.add(id(elastic))
+                warnings += list(getattr(elastic, "findings", ()) or ())
         self._fill("#run-finding-table", results.FINDING_COLUMNS, results.finding_rows(warnings))
 
     def _fill(self, selector: str, columns: list[str], rows: list[tuple]) -> None:

@@ -25,20 +25,17 @@ RUN_WORDS = {
 
 
 def trend_series(result: Any) -> list[tuple[str, str, str, list[float]]]:
-    """``(key, label, kind, values SI)`` for every level and flow series of a run."""
+    """``(key, label, kind, values SI)`` for every tank level and line flow of a run.
+
+    Levels and flows are arrays (tanks x times, lines x times) named by ``tank_ids`` and
+    ``line_ids``.
+    """
     found: list[tuple[str, str, str, list[float]]] = []
-    levels = _get(result, "levels", default={}) or {}
-    for tank, values in levels.items():
-        values = _get(values, "level", "level_m", default=values)
+    for tank, values in zip(_get(result, "tank_ids", default=()) or (),
+                            _get(result, "levels", default=()) if result is not None else ()):
         found.append((f"level:{tank}", f"level {tank}", "length", [float(v) for v in values]))
-    flows = _get(result, "flows", default={}) or {}
-    if isinstance(flows, dict):
-        items = flows.items()
-    else:  # an array, lines x time, in the order of line_ids
-        ids = _get(result, "line_ids", default=None) or []
-        items = zip(ids, flows)
-    for line, values in items:
-        values = _get(values, "flow", "flow_m3_s", default=values)
+    for line, values in zip(_get(result, "line_ids", default=()) or (),
+                            _get(result, "flows", default=()) if result is not None else ()):
         found.append((f"flow:{line}", f"flow {line}", "flow", [float(v) for v in values]))
     return found
 
@@ -86,12 +83,12 @@ class RunPane(Vertical):
     def _show_result(self, result) -> None:
         box = self.query_one("#run-series", SelectionList)
         self._series = trend_series(result) if result is not None else []
-        if self._chosen is None:  # first run: every level and the first flow
+        if self._chosen is None and self._series:  # first run: every level and the first flow
             flows = [k for k, _l, kind, _v in self._series if kind == "flow"]
             self._chosen = {k for k, _l, kind, _v in self._series if kind == "length"}
             self._chosen |= set(flows[:1])
         box.clear_options()
-        box.add_options([(label, key, key in self._chosen)
+        box.add_options([(label, key, key in (self._chosen or set()))
                          for key, label, _kind, _values in self._series])
         self._redraw()
 

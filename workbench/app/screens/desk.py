@@ -11,6 +11,7 @@ from workbench.app.panes.events import EventsPane
 from workbench.app.panes.flows import FlowsPane
 from workbench.app.panes.grade import GradePane
 from workbench.app.panes.run import RunPane
+from workbench.app.panes.surge import SurgePane
 from workbench.app.panes.system import SystemPane
 from workbench.app.widgets.keyfooter import KeyFooter
 
@@ -22,6 +23,7 @@ VIEWS = {
     "grade": ("F4 Grade line", GradePane),
     "run": ("F5 Run", RunPane),
     "events": ("F6 Events", EventsPane),
+    "surge": ("F10 Surge", SurgePane),
 }
 
 STEADY_WORDS = {"idle": "—", "stale": "STALE", "solving": "solving…", "fresh": "ok",

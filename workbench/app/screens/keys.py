@@ -48,6 +48,7 @@ def key_contexts() -> list[tuple[str, type]]:
     from workbench.app.panes.form import FieldInput
     from workbench.app.panes.grade import GradePane
     from workbench.app.panes.run import RunPane
+    from workbench.app.panes.surge import SurgePane
     from workbench.app.screens.dialogs import AskScreen
 
     return [
@@ -56,6 +57,7 @@ def key_contexts() -> list[tuple[str, type]]:
         ("field", FieldInput),
         ("grade line", GradePane),
         ("run", RunPane),
+        ("surge", SurgePane),
         ("questions", AskScreen),
     ]
 
