@@ -393,8 +393,14 @@ def _node_elevations(system: System, line: Line, x: np.ndarray) -> np.ndarray:
     return np.interp(x, dist, elev)
 
 
-def _choose_grid(travel: np.ndarray, requested: list[int | None], tolerance: float):
+def _choose_grid(travel: np.ndarray, requested: list[int | None], tolerance: float,
+                 shortest_move: float = math.inf):
     """Reach counts and a common time step making every Courant number one.
+
+    Automatic choice (no reach count requested): :data:`AUTO_REACHES` on the line of
+    shortest travel time, and at least 10 steps over the shortest valve movement that takes
+    longer than that step (a faster movement is a sudden one at any practical step), within
+    :data:`MAX_AUTO_REACHES` reaches in all.
 
     Returns ``(counts, dt)``. The wave-speed adjustments are ``travel/(counts*dt) - 1``.
     """
@@ -404,6 +410,8 @@ def _choose_grid(travel: np.ndarray, requested: list[int | None], tolerance: flo
         dt0 = min(travel[i] / r for i, r in req)
     else:
         dt0 = float(travel.min()) / AUTO_REACHES
+        if shortest_move > dt0:
+            dt0 = min(dt0, shortest_move / 10.0)
         if travel.sum() / dt0 > MAX_AUTO_REACHES:
             dt0 = float(travel.sum()) / MAX_AUTO_REACHES
     if n_lines == 1:
@@ -466,7 +474,8 @@ def simulate_elastic(
     reaches : int or dict, optional
         Reach count for ``line_id`` (an int) or per line (a dict); default each line's
         ``surge.reaches``, else automatic (:data:`AUTO_REACHES` on the line with the
-        shortest travel time ``L/a``). Other lines follow from the common time step.
+        shortest travel time ``L/a``, finer when a valve movement needs it, see
+        :func:`_choose_grid`). Other lines follow from the common time step.
     friction : str
         A key of :data:`FRICTION_MODELS`.
     speed_tolerance : float
@@ -615,7 +624,14 @@ def _simulate(system, line_id, duration, max_duration, reaches, friction, tolera
     for ln, r in zip(lines, requested):
         if r is not None and r < 1:
             raise ElasticSetupError(f"line {ln.id}: reaches must be 1 or more, got {r}")
-    counts, dt = _choose_grid(travel, requested, tolerance)
+    moves = [
+        t1 - t0
+        for ln in lines if ln.valve is not None and ln.valve.schedule is not None
+        for t0, t1, x0, x1 in zip(ln.valve.schedule.times, ln.valve.schedule.times[1:],
+                                  ln.valve.schedule.openings, ln.valve.schedule.openings[1:])
+        if x1 != x0
+    ]
+    counts, dt = _choose_grid(travel, requested, tolerance, min(moves, default=math.inf))
     a_used = lengths / (counts * dt)
     speeds = {
         ln.id: WaveSpeedUse(ln.id, float(a_k[i]), float(a_used[i]), formulas[i])
