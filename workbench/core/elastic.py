@@ -510,7 +510,20 @@ def simulate_elastic(
 
     Examples
     --------
-    See ``tests/core/test_elastic_surge.py``.
+    Instantaneous closure at the end of a frictionless 600 m line: the valve head rises by
+    Joukowsky's ``a*v0/g``.
+
+    >>> from workbench.core.model import (FluidProps, Line, Receiver, Reservoir, System,
+    ...                                   Valve, ValveSchedule)
+    >>> water = FluidProps("water", 998.2, 1.0e-3, 2339.2, 2.19e9)
+    >>> shut = Valve("linear", 62.0, schedule=ValveSchedule((0.0, 1e-6), (1.0, 0.0)))
+    >>> line = Line("L1", "R1", "OUT", 600.0, 0.3, friction_factor=0.0, entrance_k=0.0,
+    ...             valve=shut)
+    >>> system = System("doc", water, {"R1": Reservoir("R1", "constant_level", 0.0, 20.0)},
+    ...                 {}, {"OUT": Receiver("OUT", "open_discharge", 0.0)}, {"L1": line})
+    >>> res = simulate_elastic(system, "L1", wave_speeds={"L1": 1300.0}, duration=0.5)
+    >>> round(float(res.valve_head[1] - res.valve_head[0]), 2)
+    330.78
     """
     try:
         return _simulate(system, line_id, duration, max_duration, reaches, friction,
