@@ -397,3 +397,40 @@ def test_implicit_methods_agree_on_the_drain_time(method):
     res = simulate(_drain_system(TankShape("vertical_cylinder", diameter=2.0), 3.0),
                    method=method)
     assert res.drain_times["T"] == pytest.approx(expected, rel=1e-4)
+
+
+def test_pressure_is_tracked_at_profile_points_over_a_crest():
+    """Steady flow over a crest (Bernoulli with losses, Darcy-Weisbach with a fixed f):
+    HGL(s) = H0 - (1 + K_e + f s/D) v^2/2g, v = sqrt(2g H0/(1 + K_e + f L/D)); the gauge
+    pressure at the crest is rho g (HGL - z). Nothing moves, so the run's minimum is it."""
+    head, length, d, f, k_e = 12.0, 100.0, 0.1, 0.02, 0.5
+    v = math.sqrt(2 * G * head / (1 + k_e + f * length / d))
+    hgl_crest = head - (1 + k_e + f * 40.0 / d) * v * v / (2 * G)
+    expected = WATER.density * G * (hgl_crest - 14.0)
+    system = _system(
+        [Reservoir("R", "constant_level", 10.0, 2.0)],
+        [Line("L1", "R", "OUT", length, d, friction_factor=f, entrance_k=k_e,
+              profile=((0.0, 10.0), (40.0, 14.0), (100.0, 0.0)))],
+        [Receiver("OUT", "open_discharge", 0.0)],
+        duration=2.0,
+    )
+    res = simulate(system)
+    assert res.min_pressure["L1"] == pytest.approx(expected, rel=1e-6)
+    assert res.min_pressure["L1"] < 0.0  # sub-atmospheric at the crest
+
+
+def test_a_shut_valve_passes_nothing_until_its_schedule_opens_it():
+    # A shut valve carries no flow (c(0) = 0, IEC 60534-2-4 characteristics end at zero).
+    valve = Valve("linear", 2.0, opening=0.0,
+                  schedule=ValveSchedule((0.0, 5.0, 10.0), (0.0, 0.0, 1.0)))
+    system = _system(
+        [Reservoir("R", "constant_level", 0.0, 10.0)],
+        [Line("L1", "R", "OUT", 50.0, 0.1, friction_factor=0.02, valve=valve)],
+        [Receiver("OUT", "open_discharge", 0.0)],
+        duration=30.0, interval=0.5,
+    )
+    res = simulate(system)
+    assert res.success, res.message
+    assert np.all(res.flows[0, res.t <= 5.0] == 0.0)
+    assert np.all(res.flows[0, res.t > 5.5] > 0.0)
+    assert [(e.time, e.code) for e in res.events] == [(5.0, "valve.opened")]

@@ -471,6 +471,7 @@ class _Run:
         self.drain_times: dict[str, float] = {}
         self.notes: list[Finding] = []
         self._cache = None
+        self._valve_shut = None
 
     # ---------------------------------------------------------------- RHS / Jacobian
     def _openings(self, t: float) -> np.ndarray | None:
@@ -691,11 +692,25 @@ class _Run:
         shut_a = lines.closed(x_a)
         shut_b = lines.closed(x_b)
         valve_shut = shut_a & shut_b
+        y = y.copy()
+        prev = self._valve_shut
+        if prev is not None:
+            # valve moves landed exactly on the schedule's break points
+            for i in model.valve_lines:
+                if self.blocked[i]:
+                    continue
+                lid = model.topo.line_ids[i]
+                if shut_a[i] and not prev[i]:
+                    y[i] = 0.0
+                    self._event(t_a, "valve.closed", lid, f"the valve on line {lid} is shut")
+                if (prev[i] or shut_a[i]) and not valve_shut[i]:
+                    self._event(t_a, "valve.opened", lid,
+                                f"the valve on line {lid} starts to open")
+        self._valve_shut = valve_shut
         self.open_valve_floor = lines.has_valve & ~valve_shut
         # valves shutting at the end of this segment: the last 0.1 % of their flow is not
         # used for pressures (see track)
         self.closing = lines.has_valve & ~valve_shut & shut_b
-        y = y.copy()
         for _ in range(model.nl + 1):
             open_lines = ~valve_shut & ~self.blocked & ~self.backstopped
             y[: model.nl][~open_lines] = 0.0
@@ -837,7 +852,8 @@ class _Run:
             if self.t_out[-1] != seg_end:
                 self.record(seg_end, y)
             # valve break point: closures landed exactly on the schedule time
-            self._valve_breaks(seg_end, y)
+            if seg_end >= self.duration:
+                self._valve_end(seg_end)
             seg_start = seg_end
         if status in (1, 2, -1) and (not self.t_out or self.t_out[-1] != t):
             self.record(t, y)
@@ -921,18 +937,14 @@ class _Run:
                 return True
         return False
 
-    def _valve_breaks(self, t, y):
+    def _valve_end(self, t):
+        """A valve shutting exactly at the end of the run."""
         model = self.model
-        lines = model.lines
-        x = lines.openings_at(t)
-        shut = lines.closed(x)
+        shut = model.lines.closed(model.lines.openings_at(t))
         for i in model.valve_lines:
-            lid = model.topo.line_ids[i]
-            if shut[i] and self.cfg.open[i]:
-                self._event(t, "valve.closed", lid, f"valve on line {lid} is shut")
-            elif (not shut[i] and not self.cfg.open[i] and not self.blocked[i]
-                  and t < self.duration):
-                self._event(t, "valve.opened", lid, f"valve on line {lid} starts to open")
+            if shut[i] and not self._valve_shut[i] and not self.blocked[i]:
+                lid = model.topo.line_ids[i]
+                self._event(t, "valve.closed", lid, f"the valve on line {lid} is shut")
 
 
 class _InitialStateError(RuntimeError):
