@@ -230,3 +230,19 @@ def test_a_catalogue_liquid_takes_a_bulk_modulus_from_the_file():
                                 "fluid.bulk_modulus": "3.0 GPa"})
     assert glycol.system.fluid.bulk_modulus == 3.0e9
     assert glycol.system.fluid.density > 1100  # MEG at 18 degC about 1115 kg/m3 (from memory)
+
+
+def test_a_junction_is_added_together_with_the_lines_that_connect_it():
+    from workbench.project.document import add_elements
+
+    network = load_project(NETWORK)
+    with pytest.raises(ProjectError, match="not connected to any line"):
+        add_element(network, "junctions", "J-2", {"elevation": "15 m"})
+    line = {"length": "50 m", "inner_diameter": "100 mm", "roughness": "0.05 mm"}
+    bigger = add_elements(network, [
+        ("junctions", "J-2", {"elevation": "15 m"}),
+        ("lines", "L-5", {"from": "VP-1", "to": "J-2", **line}),
+        ("lines", "L-6", {"from": "J-2", "to": "CT-B", **line}),
+    ])
+    assert dependents(bigger, "J-2") == ["L-5", "L-6"]
+    assert bigger.system.junctions["J-2"].elevation == 15.0

@@ -19,6 +19,7 @@ from __future__ import annotations
 
 from workbench.project.edit import (
     add_element,
+    add_elements,
     delete_element,
     dependents,
     rename_element,
@@ -36,6 +37,7 @@ __all__ = [
     "Project",
     "ProjectError",
     "add_element",
+    "add_elements",
     "build_system",
     "check_data",
     "delete_element",

@@ -19,7 +19,7 @@ from workbench.project.schema import ELEMENT_SECTIONS, SECTIONS, FieldSpec
 from workbench.project.units import QUANTITY_KINDS
 from workbench.project.validate import ID_PATTERN, did_you_mean
 
-__all__ = ["add_element", "delete_element", "dependents", "rename_element", "set_value",
+__all__ = ["add_element", "add_elements", "delete_element", "dependents", "rename_element", "set_value",
            "set_values"]
 
 _SIMPLE_SECTIONS = ("project", "fluid", "simulation")
@@ -207,27 +207,42 @@ def add_element(project: Project, section: str, element_id: str, fields: dict) -
     """A new Project with an element ``[section.element_id]`` holding ``fields``.
 
     ``fields`` maps keys to values as they go in the file (``{"kind": "tank", "level":
-    "2 m", ...}``); for a line, ``"valve"``/``"surge"`` may map to dicts.
+    "2 m", ...}``); for a line, ``"valve"``/``"surge"`` may map to dicts. A junction must
+    be connected by a line to be valid: add both at once with :func:`add_elements`.
     """
-    key = f"{section}.{element_id}"
-    if section not in ELEMENT_SECTIONS:
-        raise _fail(project, str(section), f"unknown section '{section}'"
-                    f"{did_you_mean(str(section), ELEMENT_SECTIONS)}; expected one of "
-                    + ", ".join(ELEMENT_SECTIONS))
-    if not isinstance(element_id, str) or not ID_PATTERN.match(element_id):
-        raise _fail(project, key, f"id {element_id!r} is not valid: use letters, digits, '_' and "
-                    "'-', starting with a letter or digit")
-    existing = _element_section(project, element_id)
-    if existing is not None:
-        raise _fail(project, key, f"id '{element_id}' is already used in {existing}")
-    if not isinstance(fields, dict):
-        raise _fail(project, key, f"expected a table of keys, got {fields!r}")
+    return add_elements(project, [(section, element_id, fields)])
+
+
+def add_elements(project: Project, elements) -> Project:
+    """A new Project with several elements added, validated once at the end.
+
+    ``elements`` is a sequence of ``(section, element_id, fields)``, e.g. a junction and
+    the lines that connect it, which are only valid together.
+    """
     import tomlkit
 
     doc = _copy_doc(project)
-    if section not in doc:
-        doc[section] = tomlkit.table(is_super_table=True)
-    doc[section][element_id] = _table(fields)
+    used = {eid: section for section in ELEMENT_SECTIONS for eid in project.data.get(section, {})}
+    for section, element_id, fields in elements:
+        key = f"{section}.{element_id}"
+        if section not in ELEMENT_SECTIONS:
+            raise _fail(project, str(section), f"unknown section '{section}'"
+                        f"{did_you_mean(str(section), ELEMENT_SECTIONS)}; expected one of "
+                        + ", ".join(ELEMENT_SECTIONS))
+        if not isinstance(element_id, str) or not ID_PATTERN.match(element_id):
+            raise _fail(project, key, f"id {element_id!r} is not valid: use letters, digits, '_' "
+                        "and '-', starting with a letter or digit")
+        if element_id in used:
+            raise _fail(project, key, f"id '{element_id}' is already used in {used[element_id]}")
+        if not isinstance(fields, dict):
+            raise _fail(project, key, f"expected a table of keys, got {fields!r}")
+        used[element_id] = section
+        if section not in doc:
+            doc[section] = tomlkit.table(is_super_table=True)
+        try:
+            doc[section][element_id] = _table(fields)
+        except TypeError as exc:  # a value no TOML file can hold
+            raise _fail(project, key, str(exc)) from None
     return _finish(project, doc)
 
 

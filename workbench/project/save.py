@@ -116,7 +116,8 @@ def save_project(project, path: str | os.PathLike | None = None, *, check_unchan
     except OSError as exc:
         raise ProjectError(Problem(name, "", f"cannot save: {exc.strerror or exc}")) from None
     digest = hashlib.sha256(text.encode("utf-8")).hexdigest()
-    return dataclasses.replace(project, path=Path(target), text=text, loaded_hash=digest)
+    return dataclasses.replace(project, path=Path(target), text=text, loaded_hash=digest,
+                               name=name)
 
 
 # ---------------------------------------------------------------------------------------
