@@ -18,7 +18,9 @@ from __future__ import annotations
 
 import math
 import os
+import sys
 from collections.abc import Callable, Sequence
+from contextlib import contextmanager
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING, Any
 
@@ -228,9 +230,17 @@ def solve_case(project: Project, settings, simulate: bool) -> tuple[dict | None,
 _WORKER_PROJECT: Project | None = None
 
 
-def _worker_init(text: str, name: str) -> None:
-    """Load the base project once per worker process."""
+def _worker_init(text: str, name: str, quiet: bool = False) -> None:
+    """Load the base project once per worker process.
+
+    ``quiet`` sends the worker's own stderr to the null device: under a full-screen app a
+    stray warning printed by a worker would land in the middle of the screen.
+    """
     global _WORKER_PROJECT
+    if quiet:
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, 2)
+        os.close(devnull)
     from workbench.project.document import load_project_text
 
     _WORKER_PROJECT = load_project_text(text, name)
@@ -252,6 +262,33 @@ def _outcome(case: Case, solved, criteria) -> CaseOutcome:
         if error is not None:
             passed = None
     return CaseOutcome(case.index, dict(case.values), steady, sim, passed, error, tuple(judgements))
+
+
+def _stderr_is_real() -> bool:
+    try:
+        return sys.stderr is not None and sys.stderr.fileno() >= 0
+    except (AttributeError, OSError, ValueError):
+        return False
+
+
+@contextmanager
+def _usable_stderr():
+    """A real stderr while worker processes start.
+
+    multiprocessing hands ``sys.stderr.fileno()`` to its helper processes; a full-screen
+    app (Textual) replaces stderr by an object whose fileno is -1, and starting the pool
+    would then fail with "bad value(s) in fds_to_keep".
+    """
+    if _stderr_is_real():
+        yield
+        return
+    saved = sys.stderr
+    with open(os.devnull, "w") as null:
+        sys.stderr = null
+        try:
+            yield
+        finally:
+            sys.stderr = saved
 
 
 def _pool_context():
@@ -296,9 +333,10 @@ def run_sweep(
         from concurrent.futures import FIRST_COMPLETED, ProcessPoolExecutor, wait
 
         n = workers or os.cpu_count() or 1
-        with ProcessPoolExecutor(
+        quiet = not _stderr_is_real()
+        with _usable_stderr(), ProcessPoolExecutor(
             max_workers=min(n, total), mp_context=_pool_context(),
-            initializer=_worker_init, initargs=(project.text, str(project.path or "<sweep>")),
+            initializer=_worker_init, initargs=(project.text, project.name, quiet),
         ) as pool:
             pending = {pool.submit(_worker_case, c.settings, True): c.index for c in plan.cases}
             while pending:

@@ -141,3 +141,25 @@ async def test_f9_in_the_workbench_opens_the_sweep_screen_on_the_open_project() 
         await pilot.pause()
         assert isinstance(pilot.app.screen, SweepScreen)
         assert pilot.app.screen.project is pilot.app.project
+
+
+async def test_a_simulated_sweep_runs_in_worker_processes_and_reports_drain_times() -> None:
+    from workbench.core.transient import simulate
+    from workbench.project.document import set_value
+
+    project = _load()
+    levels = ["1 m", "2 m"]
+    app = SweepTestApp(project)
+    async with app.run_test(size=SIZE) as pilot:
+        await _type(pilot, "#sweep-vary-1", f"reservoirs.{TANK}.level={','.join(levels)}")
+        await pilot.press("ctrl+r")
+        await _wait_for_sweep(pilot)
+        sweep = pilot.app.screen.sweep
+        x_label, _, series = pilot.app.screen.plot_series(f"drain:{TANK}")
+    # Outside the screen: the simulation run directly for each case.
+    for case, level in zip(sweep["cases"], levels, strict=True):
+        expected = simulate(set_value(project, f"reservoirs.{TANK}.level", level).system).drain_times[TANK]
+        got = next(e["time_s"] for e in case["simulation"]["events"] if e["code"] == "tank.drained")
+        assert abs(got - expected) <= 1e-9 * expected
+    (_, xs, ys), = series
+    assert xs == [1.0, 2.0] and ys[0] < ys[1]
