@@ -24,6 +24,19 @@ def add_elastic_option(parser: argparse.ArgumentParser) -> None:
                         help=ELASTIC_HELP)
 
 
+def check_elastic_names(args: argparse.Namespace, system) -> str | None:
+    """``None`` when every ``--elastic`` name is a line of the system, else the message."""
+    if not getattr(args, "elastic", None):
+        return None
+    from workbench.core.elastic import ElasticSetupError, elastic_line_ids
+
+    try:
+        elastic_line_ids(system, list(args.elastic))
+    except ElasticSetupError as exc:
+        return f"--elastic: {exc}"
+    return None
+
+
 def run_elastic_lines(args: argparse.Namespace, system, max_duration: float | None = None):
     """Run the elastic model on the selected lines.
 
