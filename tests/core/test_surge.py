@@ -144,3 +144,67 @@ def test_a_valve_that_never_closes_has_no_effective_closure():
 )
 def test_closure_shorter_than_five_round_trips_is_rapid(effective, trip, rapid):
     assert is_rapid_closure(effective, trip) is rapid
+
+
+def _steel_line(rating=None):
+    from workbench.core.model import Line
+
+    return Line("L1", "A", "B", 600.0, STEEL["diameter"], wall_thickness=STEEL["wall_thickness"],
+                elastic_modulus=STEEL["elastic_modulus"], poisson_ratio=0.30,
+                pressure_rating=rating)
+
+
+def _water():
+    from workbench.core.model import FluidProps
+
+    return FluidProps("water", WATER_RHO, 1.0e-3, 2339.2, WATER_K, 293.15)
+
+
+def _screen(line, station_max, station_min, effective_closure):
+    from workbench.core.surge import screen_line
+
+    return screen_line("L1", line, _water(), atmospheric_pressure=101325.0,
+                       station_max=station_max, station_min=station_min,
+                       station_elevation=[0.0, 5.0], static_head=30.0, velocity_max=2.0,
+                       effective_closure=effective_closure)
+
+
+def test_screening_caps_a_rigid_column_peak_at_static_plus_joukowsky():
+    # Cap: rho g (H_static - z) + rho a v (Joukowsky 1898) at the lowest point (z = 0).
+    import numpy as np
+
+    screened, findings = _screen(_steel_line(), np.array([9e6, 1e5]), np.array([2e5, 1e5]), 1.0)
+    a = wave_speed(WATER_K, WATER_RHO, support="anchored", **STEEL).speed
+    cap = WATER_RHO * 9.80665 * 30.0 + WATER_RHO * a * 2.0
+    assert screened.capped and screened.max_pressure == pytest.approx(cap, rel=1e-12)
+    assert screened.rapid_closure  # 1 s against 2L/a = 0.92 s
+    assert [f.code for f in findings] == ["surge.rapid_closure"]
+    assert "elastic" in findings[0].message
+
+
+def test_screening_flags_a_peak_above_the_pressure_rating():
+    import numpy as np
+
+    screened, findings = _screen(_steel_line(rating=4e5), np.array([5e5, 1e5]),
+                                 np.array([1e5, 1e5]), 30.0)
+    assert not screened.rapid_closure and not screened.capped
+    assert [f.code for f in findings] == ["surge.pressure"]
+
+
+def test_screening_flags_column_separation_and_limits_the_minimum_to_vapour_pressure():
+    # Vapour pressure of water at 20 degC: 2339.2 Pa (IAPWS IF97, HYDRAULICS notes table).
+    import numpy as np
+
+    screened, findings = _screen(_steel_line(), np.array([2e5, 1e5]),
+                                 np.array([-1.5e5, 1e4]), None)
+    assert screened.column_separation
+    assert screened.min_pressure == pytest.approx(2339.2 - 101325.0, rel=1e-12)
+    assert [f.code for f in findings] == ["surge.column_separation"]
+
+
+def test_a_run_well_inside_the_limits_raises_nothing():
+    import numpy as np
+
+    screened, findings = _screen(_steel_line(rating=10e5), np.array([3e5, 2e5]),
+                                 np.array([-5e4, 1e4]), 30.0)
+    assert findings == [] and screened.min_pressure == -5e4 and screened.max_pressure == 3e5

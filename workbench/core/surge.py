@@ -29,7 +29,7 @@ from typing import Callable, Literal
 
 import numpy as np
 
-from workbench.core.model import G, Valve
+from workbench.core.model import G, Finding, FluidProps, Line, Valve
 
 Support = Literal["anchored_upstream", "anchored", "expansion_joints"]
 
@@ -330,3 +330,151 @@ def is_rapid_closure(effective_time: float, round_trip_time: float,
                      limit: float = RAPID_CLOSURE_ROUND_TRIPS) -> bool:
     """True when the effective closure is shorter than ``limit`` wave round trips."""
     return effective_time < limit * round_trip_time
+
+
+@dataclass(frozen=True)
+class LineSurge:
+    """Surge screening of one line after a rigid-column run (see :func:`screen_line`)."""
+
+    wave_speed: float | None
+    """Pressure-wave speed a [m/s]; ``None`` when the liquid's bulk modulus is unknown."""
+    formula: str
+    """How ``wave_speed`` was obtained (formula and support factor)."""
+    joukowsky: float | None
+    """``rho*a*v_max`` with the line's largest velocity of the run [Pa]."""
+    round_trip: float | None
+    """``2L/a`` [s]."""
+    effective_closure: float | None
+    """Effective closure time of the valve schedule [s] (:func:`effective_closure_time`);
+    ``None`` without a closing move during the run."""
+    rapid_closure: bool
+    """Effective closure shorter than :data:`RAPID_CLOSURE_ROUND_TRIPS` round trips."""
+    max_pressure_uncapped: float
+    """Largest gauge pressure of the rigid-column run before the Joukowsky cap [Pa]."""
+    capped: bool
+    """The reported maximum was limited to static plus Joukowsky."""
+    max_pressure: float = math.nan
+    """Reported largest gauge pressure on the line [Pa] (after the cap)."""
+    min_pressure: float = math.nan
+    """Reported smallest gauge pressure on the line [Pa] (limited at vapour pressure)."""
+    column_separation: bool = False
+    """The minimum reached vapour pressure."""
+
+
+def screen_line(
+    line_id: str,
+    line: Line,
+    fluid: FluidProps,
+    *,
+    atmospheric_pressure: float,
+    station_max: np.ndarray,
+    station_min: np.ndarray,
+    station_elevation: np.ndarray,
+    static_head: float,
+    velocity_max: float,
+    effective_closure: float | None,
+    max_time: float | None = None,
+    min_time: float | None = None,
+) -> tuple[LineSurge, list[Finding]]:
+    r"""Apply the surge screening rules to one line's rigid-column pressure extremes.
+
+    Rules (see the module docstring for their basis):
+
+    * ``surge.rapid_closure`` (danger) when the effective closure is shorter than five wave
+      round trips ``2L/a``: an elastic analysis is needed;
+    * every station's maximum is capped at static plus Joukowsky,
+      :math:`p \le \rho g (H_{static} - z) + \rho a v_{max}`, with ``H_static`` the highest
+      head at either end of the line during the run; the reported maximum is the largest
+      capped value;
+    * ``surge.pressure`` (danger) where the reported maximum exceeds ``pressure_rating``;
+    * ``surge.column_separation`` (danger) where the minimum absolute pressure reaches the
+      vapour pressure; the reported minimum is then limited to vapour pressure.
+
+    Parameters
+    ----------
+    line_id : str
+    line : Line
+    fluid : FluidProps
+    atmospheric_pressure : float
+        Site atmospheric pressure, absolute [Pa].
+    station_max, station_min : ndarray
+        Largest and smallest gauge pressure at each tracked point of the line [Pa]
+        (``-inf``/``inf`` where never tracked).
+    station_elevation : ndarray
+        Elevation of those points [m].
+    static_head : float
+        Highest end-node head of the line during the run [m].
+    velocity_max : float
+        Largest line velocity of the run [m/s].
+    effective_closure : float or None
+        Effective closure time of the line's valve [s].
+    max_time, min_time : float, optional
+        When the extremes occurred [s] (for the messages).
+
+    Returns
+    -------
+    (LineSurge, list of Finding)
+    """
+    rho = fluid.density
+    ws = None
+    formula = "liquid bulk modulus unknown: no wave speed"
+    if fluid.bulk_modulus is not None:
+        ws = wave_speed(fluid.bulk_modulus, rho, line.diameter, line.wall_thickness,
+                        line.elastic_modulus, line.poisson_ratio, line.support)
+        formula = ws.formula
+    a = ws.speed if ws is not None else None
+    jouk = joukowsky(rho, a, velocity_max) if a is not None else None
+    trip = round_trip(line.length, a) if a is not None else None
+    rapid = bool(effective_closure is not None and trip is not None
+                 and is_rapid_closure(effective_closure, trip))
+    station_max = np.asarray(station_max, dtype=float)
+    raw_max = float(np.max(station_max)) if station_max.size else -math.inf
+    reported_max = raw_max
+    capped = False
+    if jouk is not None and station_max.size:
+        cap = rho * G * (static_head - np.asarray(station_elevation, dtype=float)) + jouk
+        reported_max = float(np.max(np.minimum(station_max, cap)))
+        capped = reported_max < raw_max - 1e-9 * max(1.0, abs(raw_max))
+    reported_min = float(np.min(station_min)) if np.size(station_min) else math.inf
+    at_max = f" at t = {max_time:.4g} s" if max_time is not None else ""
+    at_min = f" at t = {min_time:.4g} s" if min_time is not None else ""
+    findings: list[Finding] = []
+    if rapid:
+        findings.append(Finding(
+            "surge.rapid_closure", line_id,
+            f"the valve on line {line_id} cuts the flow in an effective {effective_closure:.3g} s, "
+            f"{effective_closure / trip:.2g} wave round trips 2L/a ({trip:.3g} s at a = {a:.0f} m/s); "
+            f"below about {RAPID_CLOSURE_ROUND_TRIPS:g} round trips the rigid-column pressure is "
+            "not valid: an elastic (water-hammer) analysis is needed. The reported peak is "
+            f"capped at static plus Joukowsky ({jouk / 1e5:.3g} bar rise). Consider a slower "
+            "or two-stage closure and defer to licensed surge practice.",
+            "danger",
+            "Joukowsky (1898); Wylie & Streeter, Fluid Transients in Systems (1993); "
+            "5-round-trip limit from a method-of-characteristics comparison (common practice)",
+        ))
+    if line.pressure_rating is not None and reported_max > line.pressure_rating:
+        findings.append(Finding(
+            "surge.pressure", line_id,
+            f"the pressure on line {line_id} reaches {reported_max / 1e5:.3g} bar gauge{at_max}, "
+            f"above its rating of {line.pressure_rating / 1e5:.3g} bar: slow the valve closure "
+            "or add surge protection (defer to local codes and licensed practice)",
+            "danger", "pressure rating from the project file",
+        ))
+    separation = bool(fluid.vapor_pressure is not None
+                      and reported_min + atmospheric_pressure <= fluid.vapor_pressure)
+    if separation:
+        findings.append(Finding(
+            "surge.column_separation", line_id,
+            f"the pressure on line {line_id} falls to vapour pressure{at_min}: the liquid "
+            "column separates (a vapour cavity forms, and its collapse can give pressures above "
+            "Joukowsky); the rigid-column result is not valid there and the reported minimum "
+            "is limited to vapour pressure. Risk of collapse of thin-walled or plastic pipe.",
+            "danger", "Wylie & Streeter, Fluid Transients in Systems (1993)",
+        ))
+        reported_min = fluid.vapor_pressure - atmospheric_pressure
+    return LineSurge(
+        wave_speed=a, formula=formula, joukowsky=jouk, round_trip=trip,
+        effective_closure=effective_closure, rapid_closure=rapid,
+        max_pressure_uncapped=raw_max, capped=capped, max_pressure=reported_max,
+        min_pressure=reported_min, column_separation=separation,
+    ), findings

@@ -72,6 +72,7 @@ from workbench.core.model import (
     receiver_head,
     reservoir_head,
 )
+from workbench.core.surge import LineSurge, effective_closure_time, screen_line
 from workbench.core.tank import TankGeometry, tank_geometry
 
 #: Integration methods by name (all scipy OdeSolver classes); the first three are implicit.
@@ -107,29 +108,6 @@ class Event:
     element: str
     """Id of the tank, line or valve's line."""
     message: str
-
-
-@dataclass(frozen=True)
-class LineSurge:
-    """Surge screening of one line."""
-
-    wave_speed: float | None
-    """Pressure-wave speed a [m/s]; ``None`` when the liquid's bulk modulus is unknown."""
-    formula: str
-    """How ``wave_speed`` was obtained (formula and support factor)."""
-    joukowsky: float | None
-    """``rho*a*v_max`` with the line's largest velocity of the run [Pa]."""
-    round_trip: float | None
-    """``2L/a`` [s]."""
-    effective_closure: float | None
-    """Effective closure time of the valve schedule [s] (see
-    :func:`workbench.core.surge.effective_closure_time`); ``None`` without a closing move."""
-    rapid_closure: bool
-    """Effective closure shorter than five round trips: rigid column not valid."""
-    max_pressure_uncapped: float
-    """Largest gauge pressure of the rigid-column run before the Joukowsky cap [Pa]."""
-    capped: bool
-    """The reported maximum was limited to static plus Joukowsky."""
 
 
 @dataclass(frozen=True)
@@ -952,7 +930,6 @@ class _InitialStateError(RuntimeError):
 
 
 def _finish(model: _Model, run: _Run, outcome, wall: float) -> TransientResult:
-    from workbench.core import surge as surge_mod
     from workbench.core.valve import relative_flow_coefficient
 
     status, message = outcome
@@ -964,7 +941,6 @@ def _finish(model: _Model, run: _Run, outcome, wall: float) -> TransientResult:
     volumes = ys[nl:]
     levels = np.array([[g.level_extrapolated(v) for v in row]
                        for g, row in zip(model.geoms, volumes)]).reshape(model.nt, len(t))
-    rho = model.rho
     fluid = system.fluid
     warnings: list[Finding] = list(run.notes)
     surge: dict[str, LineSurge] = {}
@@ -972,86 +948,32 @@ def _finish(model: _Model, run: _Run, outcome, wall: float) -> TransientResult:
     min_p: dict[str, float] = {}
     max_t: dict[str, float] = {}
     min_t: dict[str, float] = {}
-    p_atm = system.atmospheric_pressure
     for i, lid in enumerate(model.topo.line_ids):
         line = system.lines[lid]
         sel = slice(model.st_start[i],
                     model.st_start[i + 1] if i + 1 < len(model.st_start) else None)
         pmax_st = run.p_max[sel]
         pmin_st = run.p_min[sel]
-        j_max = int(np.argmax(pmax_st))
-        j_min = int(np.argmin(pmin_st))
-        raw_max = float(pmax_st[j_max])
-        ws = None
-        formula = "liquid bulk modulus unknown: no wave speed"
-        if fluid.bulk_modulus is not None:
-            ws = surge_mod.wave_speed(fluid.bulk_modulus, rho, line.diameter, line.wall_thickness,
-                                      line.elastic_modulus, line.poisson_ratio, line.support)
-            formula = ws.formula
-        a = ws.speed if ws is not None else None
-        jouk = surge_mod.joukowsky(rho, a, float(run.v_max[i])) if a is not None else None
-        trip = surge_mod.round_trip(line.length, a) if a is not None else None
+        max_t[lid] = float(run.p_max_t[sel][int(np.argmax(pmax_st))])
+        min_t[lid] = float(run.p_min_t[sel][int(np.argmin(pmin_st))])
         eff = None
         if line.valve is not None and line.valve.schedule is not None:
             valve = line.valve
-            k_line = _rest_of_line_k(model, i, run)
-            est = surge_mod.effective_closure_time(
+            est = effective_closure_time(
                 valve, lambda x, v=valve: relative_flow_coefficient(v.characteristic, x,
                                                                     v.rangeability),
-                k_line)
+                _rest_of_line_k(model, i, run))
             if est is not None and est.fastest_cut_at <= run.t_final:
                 eff = est.effective_time
-        rapid = bool(eff is not None and trip is not None and surge_mod.is_rapid_closure(eff, trip))
-        reported_max = raw_max
-        capped = False
-        if jouk is not None:
-            z = model.st_elev[sel]
-            cap = rho * G * (run.h_static_max[i] - z) + jouk
-            capped_st = np.minimum(pmax_st, cap)
-            reported_max = float(np.max(capped_st))
-            capped = reported_max < raw_max - 1e-9 * max(1.0, abs(raw_max))
-        max_p[lid] = reported_max
-        max_t[lid] = float(run.p_max_t[sel][j_max])
-        reported_min = float(pmin_st[j_min])
-        min_t[lid] = float(run.p_min_t[sel][j_min])
-        surge[lid] = LineSurge(wave_speed=a, formula=formula, joukowsky=jouk, round_trip=trip,
-                               effective_closure=eff, rapid_closure=rapid,
-                               max_pressure_uncapped=raw_max, capped=capped)
-        if rapid:
-            warnings.append(Finding(
-                "surge.rapid_closure", lid,
-                f"the valve on line {lid} cuts the flow in an effective {eff:.3g} s, "
-                f"{eff / trip:.2g} wave round trips 2L/a ({trip:.3g} s at a = {a:.0f} m/s); "
-                "below about 5 round trips the rigid-column pressure is not valid: an "
-                "elastic (water-hammer) analysis is needed. The reported peak is capped at "
-                f"static plus Joukowsky ({jouk / 1e5:.3g} bar rise). Consider a slower or "
-                "two-stage closure and defer to licensed surge practice.",
-                "danger",
-                "Joukowsky (1898); Wylie & Streeter, Fluid Transients in Systems (1993); "
-                "5-round-trip limit from a method-of-characteristics comparison (common practice)",
-            ))
-        if line.pressure_rating is not None and reported_max > line.pressure_rating:
-            warnings.append(Finding(
-                "surge.pressure", lid,
-                f"the pressure on line {lid} reaches {reported_max / 1e5:.3g} bar gauge at "
-                f"t = {max_t[lid]:.4g} s, above its rating of {line.pressure_rating / 1e5:.3g} bar: "
-                "slow the valve closure or add surge protection (defer to local codes and "
-                "licensed practice)",
-                "danger", "pressure rating from the project file",
-            ))
-        if fluid.vapor_pressure is not None and reported_min + p_atm <= fluid.vapor_pressure:
-            floor = fluid.vapor_pressure - p_atm
-            warnings.append(Finding(
-                "surge.column_separation", lid,
-                f"the pressure on line {lid} falls to vapour pressure at t = {min_t[lid]:.4g} s: "
-                "the liquid column separates (a vapour cavity forms and its collapse can give "
-                "pressures above Joukowsky); the rigid-column result is not valid there and "
-                "the reported minimum is limited to vapour pressure. Risk of collapse of "
-                "thin-walled or plastic pipe.",
-                "danger", "Wylie & Streeter, Fluid Transients in Systems (1993)",
-            ))
-            reported_min = floor
-        min_p[lid] = reported_min
+        screened, findings = screen_line(
+            lid, line, fluid, atmospheric_pressure=system.atmospheric_pressure,
+            station_max=pmax_st, station_min=pmin_st, station_elevation=model.st_elev[sel],
+            static_head=float(run.h_static_max[i]), velocity_max=float(run.v_max[i]),
+            effective_closure=eff, max_time=max_t[lid], min_time=min_t[lid])
+        surge[lid] = screened
+        warnings.extend(findings)
+        max_p[lid] = screened.max_pressure
+        min_p[lid] = screened.min_pressure
     for ev in run.events:
         if ev.code == "tank.overflow":
             warnings.append(Finding(
