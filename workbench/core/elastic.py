@@ -348,20 +348,6 @@ def _line_loss(line: Line, density: float, viscosity: float) -> _LineLoss:
     )
 
 
-def _orifice_flow(delta: float, bsum: float, k_fwd: float, k_bwd: float) -> float:
-    """Solve ``bsum*Q + k*Q|Q| = delta`` for ``Q`` (``k`` chosen by the sign of the flow).
-
-    Stable form ``Q = 2 delta/(bsum + sqrt(bsum^2 + 4 k |delta|))``; ``k = inf`` gives 0.
-    """
-    if delta >= 0.0:
-        if k_fwd == math.inf:
-            return 0.0
-        return 2.0 * delta / (bsum + math.sqrt(bsum * bsum + 4.0 * k_fwd * delta))
-    if k_bwd == math.inf:
-        return 0.0
-    return 2.0 * delta / (bsum + math.sqrt(bsum * bsum - 4.0 * k_bwd * delta))
-
-
 # ----------------------------------------------------------------------------- friction
 
 
@@ -953,7 +939,8 @@ def _simulate(system, line_id, duration, max_duration, reaches, friction, tolera
                     np.multiply(d_buf, np.abs(d_buf), out=d_buf)
                     e_buf += r2 * d_buf
                 add(rows_head[j], e_head, out=rows_tail[j + 1])
-            # ends and junctions: solve b*Q + k*Q|Q| = delta (see _orifice_flow)
+            # ends and junctions: solve b*Q + k*Q|Q| = delta for Q, k by the flow's sign,
+            # in the stable form Q = 2 delta/(b + sqrt(b^2 + 4 k |delta|)); k = inf: Q = 0
             for code, head, kf, kb, b1, b2, kap, s1, s2 in bounds:
                 kv = 0.0 if kap is None else kap[k]
                 if code == 0:  # downstream fixed head: C_P known, set w
