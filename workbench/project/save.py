@@ -16,11 +16,9 @@ file keeps its own spelling of it.
 
 from __future__ import annotations
 
-import json
 import math
 import os
 import re
-import tempfile
 import tomllib
 from pathlib import Path
 from typing import Any
@@ -37,6 +35,8 @@ _BARE_KEY = re.compile(r"[A-Za-z0-9_-]+\Z")
 
 def atomic_write(path: str | os.PathLike, text: str) -> None:
     """Write ``text`` (UTF-8) to ``path`` atomically: temp file, flush, fsync, replace."""
+    import tempfile
+
     path = Path(path)
     folder = path.parent if str(path.parent) else Path(".")
     mode = None
@@ -130,6 +130,8 @@ def render_key(key: str) -> str:
 
 
 def _render_string(value: str) -> str:
+    import json
+
     text = json.dumps(value, ensure_ascii=False)
     return text.replace("\x7f", "\\u007f")
 

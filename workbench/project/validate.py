@@ -13,7 +13,6 @@ the site atmosphere by :mod:`workbench.core.atmosphere`, pipe sizes and material
 
 from __future__ import annotations
 
-import difflib
 import math
 import re
 from typing import Any
@@ -60,6 +59,8 @@ def describe(value: Any) -> str:
 
 def did_you_mean(word: str, candidates) -> str:
     """`` — did you mean 'x'?`` for the nearest candidate, or an empty string."""
+    import difflib
+
     close = difflib.get_close_matches(word, list(candidates), n=1, cutoff=0.6)
     return f" — did you mean '{close[0]}'?" if close else ""
 
