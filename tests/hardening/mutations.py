@@ -194,13 +194,13 @@ def m_unicode_id(data, rng):
 def m_long_string(data, rng):
     paths = [p for p in leaf_paths(data) if isinstance(_get(data, p), str)]
     path = rng.choice(paths)
-    n = rng.choice((1000, 100_000, 1_000_000))
+    n = rng.choice((1000, 20_000, 200_000))
     _set(data, path, rng.choice(("x", "\u00e9", "1", "m ")) * n)
     return f"long string {n} at {path}"
 
 
 def m_nested_junk(data, rng):
-    depth = rng.choice((10, 50, 200))
+    depth = rng.choice((10, 40, 120))
     junk: object = "bottom"
     for i in range(depth):
         junk = {"k": junk} if i % 2 else [junk]

@@ -9,7 +9,9 @@ from __future__ import annotations
 
 import argparse
 import importlib
+import os
 import sys
+import warnings
 from collections.abc import Sequence
 
 from workbench import __version__
@@ -54,7 +56,33 @@ def main(argv: Sequence[str] | None = None) -> int:
         return int(ExitCode.USAGE)
     module = importlib.import_module(COMMANDS[args.command][0])
     try:
-        return int(module.run(args))
+        with warnings.catch_warnings():
+            if not sys.warnoptions:
+                # numpy's overflow notes and scipy's singular-matrix note would print ahead of
+                # the real message; results are checked for finiteness and physical sanity
+                # instead (workbench.core.sanity). ``python -W default`` shows them again.
+                warnings.simplefilter("ignore", RuntimeWarning)
+                warnings.filterwarnings("ignore", message="Matrix is exactly singular")
+            return int(module.run(args))
     except KeyboardInterrupt:
         print("interrupted", file=sys.stderr)
         return int(ExitCode.INTERRUPTED)
+    except BrokenPipeError:  # the reader went away (``workbench solve ... | head``)
+        _silence_stdout()
+        return int(ExitCode.INVALID)
+    except Exception as exc:  # last resort: a bug must not greet the user with a traceback
+        if os.environ.get("WORKBENCH_DEBUG"):
+            raise
+        print(f"workbench {args.command}: internal error: {type(exc).__name__}: {exc}. "
+              "This is a bug: please report it with the project file (WORKBENCH_DEBUG=1 "
+              "shows the traceback).", file=sys.stderr)
+        return int(ExitCode.INTERNAL)
+
+
+def _silence_stdout() -> None:
+    """Point stdout at the null device so the flush at exit raises no second error."""
+    try:
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+    except (OSError, ValueError, AttributeError):  # not a real file (captured output)
+        pass

@@ -1,0 +1,115 @@
+"""Bad files never crash, hang or answer nonsense: fuzzing check, solve and simulate.
+
+Every case must end with exit 0 and a result (JSON with only finite numbers) or exit 1 and
+the project's own message, which starts with the file name (``FILE: KEY: MESSAGE``). Never
+a traceback, another exit code, an exception escaping ``main`` or a call past its time
+limit (see :mod:`tests.hardening.harness`).
+
+Budget: ``WORKBENCH_FUZZ_CASES`` (default 240) mutated demo files run through ``check`` and
+``solve``, one in four also through ``simulate`` with a short ``--duration``; hypothesis
+draws ``WORKBENCH_FUZZ_CASES // 4`` generated projects (valid and damaged). The files of
+several megabytes run ``WORKBENCH_FUZZ_HEAVY`` cases (default 3). For a long hunt:
+``WORKBENCH_FUZZ_CASES=5000 WORKBENCH_FUZZ_HEAVY=20 .venv/bin/python -m pytest tests/hardening``
+(see docs/errors.md). Mutation cases are seeded: a failure names its seed and mutation.
+"""
+
+from __future__ import annotations
+
+import os
+from collections import defaultdict
+from pathlib import Path
+
+import pytest
+from hypothesis import HealthCheck, given, settings
+
+from tests.hardening.harness import run_cli, run_subprocess, simulate_argv
+from tests.hardening.mutations import Case, mutate
+from tests.hardening.strategies import damaged_projects, to_toml, valid_projects
+
+CASES = int(os.environ.get("WORKBENCH_FUZZ_CASES", "240"))
+HEAVY = int(os.environ.get("WORKBENCH_FUZZ_HEAVY", "3"))
+CHUNK = 40
+SIMULATE_EVERY = 4
+
+
+def _write(folder: Path, case: Case) -> str:
+    path = folder / "case.toml"
+    path.write_text(case.text, encoding="utf-8", newline="")
+    return str(path)
+
+
+def _run_case(folder: Path, case: Case, *, simulate: bool) -> list:
+    path = _write(folder, case)
+    outcomes = [run_cli(["check", path], project_path=path),
+                run_cli(["solve", path, "--json"], project_path=path)]
+    if simulate:
+        outcomes.append(run_cli(simulate_argv(path, "5 s"), project_path=path))
+    return outcomes
+
+
+def _assert_all_ended_well(failures: dict) -> None:
+    if failures:
+        lines = [f"{len(failures)} distinct failure(s):"]
+        for signature, items in failures.items():
+            name, outcome = items[0]
+            lines.append(f"- {signature} ({len(items)} case(s)), e.g. {name}\n{outcome.report()}")
+        pytest.fail("\n".join(lines), pytrace=False)
+
+
+@pytest.mark.parametrize("start", range(0, CASES, CHUNK))
+def test_mutated_demo_files_end_in_a_result_or_a_message(tmp_path, start):
+    failures: dict = defaultdict(list)
+    ran = 0
+    for seed in range(start, min(start + CHUNK, CASES)):
+        case = mutate(seed)
+        for outcome in _run_case(tmp_path, case, simulate=seed % SIMULATE_EVERY == 0):
+            ran += 1
+            if not outcome.ok:
+                failures[outcome.signature()].append((case.name, outcome))
+    assert ran >= 2 * min(CHUNK, CASES - start)
+    _assert_all_ended_well(failures)
+
+
+@pytest.mark.parametrize("seed", range(HEAVY))
+def test_files_of_several_megabytes_end_in_a_result_or_a_message(tmp_path, seed):
+    case = mutate(10_000 + seed, heavy=True)
+    assert len(case.text) > 1_000_000 or "junctions" in case.name
+    failures: dict = defaultdict(list)
+    for outcome in _run_case(tmp_path, case, simulate=False):
+        if not outcome.ok:
+            failures[outcome.signature()].append((case.name, outcome))
+    _assert_all_ended_well(failures)
+
+
+def test_a_damaged_file_is_refused_in_a_real_process_without_a_traceback(tmp_path):
+    """A few cases through ``python -m workbench``: what a user on a shell actually sees."""
+    picked = [mutate(seed) for seed in (1, 2, 3)] + [mutate(10_000, heavy=True)]
+    for case in picked:
+        path = _write(tmp_path, case)
+        for argv in (["check", path], ["solve", path, "--json"], simulate_argv(path, "2 s")):
+            outcome = run_subprocess(argv, project_path=path)
+            assert outcome.ok, f"{case.name}\n{outcome.report()}"
+
+
+@settings(max_examples=max(CASES // 4, 20), deadline=None,
+          suppress_health_check=[HealthCheck.too_slow, HealthCheck.function_scoped_fixture,
+                                 HealthCheck.data_too_large])
+@given(damaged=damaged_projects())
+def test_generated_damaged_projects_end_in_a_result_or_a_message(tmp_path, damaged):
+    data, label = damaged
+    path = _write(tmp_path, Case(label, to_toml(data)))
+    for argv in (["check", path], ["solve", path, "--json"]):
+        outcome = run_cli(argv, project_path=path)
+        assert outcome.ok, f"{label}\n{outcome.report()}"
+
+
+@settings(max_examples=max(CASES // 8, 10), deadline=None,
+          suppress_health_check=[HealthCheck.too_slow, HealthCheck.function_scoped_fixture])
+@given(data=valid_projects())
+def test_generated_valid_projects_solve_and_simulate_with_finite_results(tmp_path, data):
+    path = _write(tmp_path, Case("valid", to_toml(data)))
+    check = run_cli(["check", path], project_path=path)
+    assert check.ok and check.code == 0, check.report()
+    for argv in (["solve", path, "--json"], simulate_argv(path, "3 s")):
+        outcome = run_cli(argv, project_path=path)
+        assert outcome.ok, outcome.report()
