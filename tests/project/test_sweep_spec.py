@@ -189,3 +189,51 @@ def test_a_tank_that_never_drains_fails_a_drain_time_limit() -> None:
     passed, details = judge([parse_criterion("drain_time(T1) < 10 h")], STEADY, sim)
     assert passed is False
     assert details[0].value == math.inf
+
+
+# Property (hypothesis): whatever a user types, the parsers answer with a Criterion/Axis or
+# with the sweep's own error in words, never another exception.
+from hypothesis import HealthCheck, given, settings  # noqa: E402
+from hypothesis import strategies as st  # noqa: E402
+
+_PIECES = st.sampled_from(
+    ["flow", "drain_time", "no", "(", ")", "L1", "T1", "<", "<=", ">", "=", " ", "10", "L/s", "min",
+     "profile.vapor", "..", "/", ",", "m", "lines", "reservoirs", ".", "level", "inner_diameter",
+     "nominal_size", "valve", "opening", "e", "-", "1,5", "inf", "nan", "__", "degC", "0x1", "π"]
+)
+_TYPED = st.one_of(st.text(max_size=40), st.lists(_PIECES, max_size=12).map("".join))
+
+
+@settings(max_examples=300, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(_TYPED)
+def test_any_criterion_text_parses_or_gets_a_sweep_error(text: str) -> None:
+    try:
+        c = parse_criterion(text)
+    except SweepSpecError as exc:
+        assert str(exc)
+    else:
+        assert c.absent_code is not None or (c.metric is not None and math.isfinite(c.threshold))
+
+
+@settings(max_examples=300, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(_TYPED, _TYPED)
+def test_any_vary_text_parses_or_gets_a_sweep_error(keypath: str, values: str) -> None:
+    try:
+        axis = parse_vary(f"{keypath}={values}", DATA)
+    except SweepSpecError as exc:
+        assert str(exc)
+    else:
+        assert len(axis.texts) == len(axis.values) >= 1
+
+
+@settings(max_examples=300, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(st.sampled_from(["lines.L1.inner_diameter", "reservoirs.T1.level", "fluid.temperature",
+                        "lines.L1.valve.opening", "lines.L1.nominal_size", "reservoirs.T1.surface_pressure",
+                        "lines.L1.valve.characteristic", "lines.L1.surge.reaches"]), _TYPED)
+def test_any_values_for_a_valid_key_parse_or_get_a_sweep_error(keypath: str, values: str) -> None:
+    try:
+        axis = parse_vary(f"{keypath}={values}", DATA)
+    except SweepSpecError as exc:
+        assert keypath in str(exc)
+    else:
+        assert len(set(axis.texts)) == len(axis.texts)
