@@ -147,7 +147,7 @@ def _inputs(project: Project) -> list[str]:
     data = project.data
     out = ["## 1. Inputs as entered", "",
            "Every key of the project file, as typed, with its unit. Keys not given take the "
-           "schema defaults listed in the derived values below.", ""]
+           "schema defaults; the values the model used for each line follow the inputs.", ""]
     for section, title in _SECTION_TITLES.items():
         content = data.get(section)
         if not content:
@@ -309,7 +309,7 @@ def _steady(project: Project, steady: SteadyResult | None) -> list[str]:
         return out + [f"**No steady solution:** {steady.message}", ""]
     res = steady.residuals or {}
     out += [f"Converged in {steady.iterations} Newton iterations; largest continuity residual "
-            f"{_num(res.get('continuity'), 3)} m³/s, energy residual {_num(res.get('energy'), 3)} m.", ""]
+            f"{_num(res.get('continuity'), 3)} m3/s, energy residual {_num(res.get('energy'), 3)} m.", ""]
     out += ["### Lines", ""]
     out += _table(
         ["Line", "Flow", "Velocity", "Re", "Regime", "f", "f from", "Friction loss", "Minor loss",
