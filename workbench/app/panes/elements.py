@@ -101,16 +101,35 @@ class ElementList(OptionList):
             )
             return
         data = self.app.project.data
+        start = self.entry.element if self.entry and self.entry.section != "lines" else None
 
         def named(new_id: str | None) -> None:
-            if new_id:
-                from workbench.project.document import add_element
+            if not new_id:
+                return
+            fields = starting_fields(self.app.project.data, section)
+            if section == "junctions":
+                # A junction is valid only with a line on it: add one from the chosen node.
+                from workbench.app.edits import add_elements
 
-                self._edit(add_element, section, new_id, starting_fields(data, section),
-                           label=f"add {NOUN[section]} {new_id}", keep=f"{section}:{new_id}")
+                line_id = suggest_id(self.app.project.data, STEMS["lines"])
+                line = starting_fields(self.app.project.data, "lines")
+                line["from"] = start or line["from"]
+                line["to"] = new_id
+                self._edit(add_elements, [(section, new_id, fields), ("lines", line_id, line)],
+                           label=f"add junction {new_id} with line {line_id}",
+                           keep=f"{section}:{new_id}")
+                return
+            from workbench.project.document import add_element
 
+            self._edit(add_element, section, new_id, fields,
+                       label=f"add {NOUN[section]} {new_id}", keep=f"{section}:{new_id}")
+
+        prompt = f"Id of the new {NOUN[section]}:"
+        if section == "junctions":
+            prompt += (f" (a line from {start or 'the first node'} to it is added too; "
+                       "set its length and size next)")
         self.app.push_screen(
-            TextScreen(f"Id of the new {NOUN[section]}:", suggest_id(data, STEMS[section]),
+            TextScreen(prompt, suggest_id(data, STEMS[section]),
                        check=lambda t: check_new_id(self.app.project.data, t), title="Add"),
             named,
         )
