@@ -237,3 +237,10 @@ def test_any_values_for_a_valid_key_parse_or_get_a_sweep_error(keypath: str, val
         assert keypath in str(exc)
     else:
         assert len(set(axis.texts)) == len(axis.texts)
+
+
+def test_lowest_pressure_is_the_minimum_along_the_steady_profile() -> None:
+    steady = {"lines": {"L1": {"profile": {"pressure_pa": [4.0e4, -2.5e4, 1.0e3]}}}, "warnings": []}
+    passed, details = judge([parse_criterion("lowest_pressure(L1) > -20 kPa")], steady, None)
+    assert details[0].value == -2.5e4
+    assert passed is False

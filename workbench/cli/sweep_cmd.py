@@ -15,7 +15,8 @@ values:   a comma-separated list as the file would hold them ('80 mm,100 mm,150 
           ends included ('0.5 m..4 m/8'). Several --vary make a grid; the first --vary
           changes slowest (sweep order).
 require:  METRIC(ID) OP THRESHOLD, with OP one of < <= > >=, or 'no CODE' / 'no CODE(ID)'.
-          Metrics: flow, velocity, head_loss, reynolds (lines); pressure, head (nodes);
+          Metrics: flow, velocity, head_loss, reynolds, lowest_pressure (lines, steady);
+          pressure, head (nodes);
           drain_time, overflow_time (tanks, from the simulation); max_pressure,
           min_pressure (lines, from the simulation). Every --require must hold for a case
           to pass; the first passing case in sweep order is named.

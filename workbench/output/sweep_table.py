@@ -61,6 +61,7 @@ def sweep_table(sweep: Mapping, keypaths: Sequence[str] | None = None) -> tuple[
     for lid in line_ids:
         columns.append(SweepColumn(f"flow:{lid}", f"flow {lid}", "flow"))
         columns.append(SweepColumn(f"velocity:{lid}", f"velocity {lid}", "velocity"))
+        columns.append(SweepColumn(f"plow:{lid}", f"lowest pressure {lid}", "pressure"))
     if any_sim:
         # Tanks drained in no case still get a column when a criterion names them.
         for tid in tanks:
@@ -82,6 +83,8 @@ def sweep_table(sweep: Mapping, keypaths: Sequence[str] | None = None) -> tuple[
         for lid, res in steady.get("lines", {}).items():
             row[f"flow:{lid}"] = res.get("flow_m3_s")
             row[f"velocity:{lid}"] = res.get("velocity_m_s")
+            profile = [p for p in (res.get("profile") or {}).get("pressure_pa", ()) if p is not None]
+            row[f"plow:{lid}"] = min(profile) if profile else None
         sim = c.get("simulation") or {}
         if sim:
             for tid in tanks:

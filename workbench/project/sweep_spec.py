@@ -357,6 +357,15 @@ def _steady_node(key: str):
     return extract
 
 
+def _lowest_profile_pressure(steady, simulation, element):
+    """Lowest gauge pressure along a line's profile in the steady solution [Pa]."""
+    try:
+        values = [float(v) for v in steady["lines"][element]["profile"]["pressure_pa"] if v is not None]
+    except (KeyError, TypeError, ValueError):
+        return None
+    return min(values) if values else None
+
+
 def _sim_line(key: str):
     def extract(steady, simulation, element):
         try:
@@ -389,6 +398,8 @@ METRICS: dict[str, Metric] = {
         Metric("velocity", "velocity", "lines", False, _steady_line("velocity_m_s"), "steady mean velocity in a line"),
         Metric("head_loss", "head", "lines", False, _steady_line("head_loss_m"), "steady head loss along a line"),
         Metric("reynolds", "number", "lines", False, _steady_line("reynolds"), "steady Reynolds number of a line"),
+        Metric("lowest_pressure", "pressure", "lines", False, _lowest_profile_pressure,
+               "lowest steady gauge pressure along a line's profile"),
         Metric("pressure", "pressure", "nodes", False, _steady_node("pressure_pa"), "steady gauge pressure at a node"),
         Metric("head", "head", "nodes", False, _steady_node("head_m"), "steady piezometric head at a node"),
         Metric("drain_time", "time", "reservoirs", True, _event_time("tank.drained"),
