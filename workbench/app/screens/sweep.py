@@ -60,13 +60,16 @@ class SweepScreen(Screen[None]):
     DEFAULT_CSS = """
     SweepScreen { layout: vertical; }
     SweepScreen #sweep-form { height: auto; padding: 0 1; }
-    SweepScreen #sweep-form Input { width: 1fr; }
-    SweepScreen .sweep-row { height: auto; }
-    SweepScreen .sweep-row Label { width: 10; padding: 1 0 0 0; }
+    SweepScreen #sweep-form Input { width: 1fr; height: 1; border: none; padding: 0 1; }
+    SweepScreen #sweep-form Input:focus { background: $boost; }
+    SweepScreen #sweep-form Checkbox { height: 1; border: none; padding: 0 1; margin-right: 2; }
+    SweepScreen .sweep-row { height: 1; margin-bottom: 0; }
+    SweepScreen .sweep-row Label { width: 10; }
+    SweepScreen #sweep-status.-error { color: $error; }
     SweepScreen #sweep-status { height: 1; padding: 0 1; }
     SweepScreen #sweep-progress { padding: 0 1; }
     SweepScreen #sweep-results { height: 1fr; }
-    SweepScreen #sweep-table { width: 1fr; }
+    SweepScreen #sweep-table { width: 1fr; height: 1fr; }
     SweepScreen #sweep-plot-box { width: 1fr; }
     SweepScreen #sweep-plot-box Select { width: 1fr; }
     """
