@@ -69,8 +69,9 @@ def _print_table(project, sweep: dict, keypaths) -> None:
     from workbench.output.sweep_table import display_rows, sweep_table
 
     columns, rows = sweep_table(sweep, keypaths)
-    if not any(row.get("error") for row in rows):
-        columns = [c for c in columns if c.key != "error"]
+    # Columns with nothing in any case (no errors, a quick sweep's pressures) are left out.
+    columns = [c for c in columns
+               if c.swept or c.key == "case" or any(row.get(c.key) not in (None, "") for row in rows)]
     table = Table(title=f"Sweep of {project.system.title}", title_justify="left")
     for col in columns:
         title = col.title
