@@ -246,7 +246,7 @@ def _methods(project: Project, steady: SteadyResult | None, transient: Transient
             used.add("laminar")
         elif label in FRICTION_METHODS:
             used.add(label)
-    if not used:
+    if not used and any(ln.friction_factor is None for ln in system.lines.values()):
         used.add("laminar_blend_colebrook")
     for name in sorted(used):
         m = FRICTION_METHODS[name]
