@@ -382,6 +382,22 @@ def simulate(
     Notes
     -----
     See the module docstring for the equations, events and the model's limits.
+
+    Examples
+    --------
+    Flow establishing in 100 m of 100 mm pipe under 10 m of head, discharging to air,
+    ``v = v_inf*tanh(t/T)`` with ``v_inf = sqrt(2gH/K_t)`` = 3.02 m/s (``K_t = 21.5``):
+
+    >>> from workbench.core.model import (FluidProps, Line, Receiver, Reservoir,
+    ...     SimulationSettings, System)
+    >>> system = System("demo", FluidProps("water", 998.2, 1.0e-3),
+    ...     {"R": Reservoir("R", "constant_level", 0.0, 10.0)}, {},
+    ...     {"OUT": Receiver("OUT", "open_discharge", 0.0)},
+    ...     {"L1": Line("L1", "R", "OUT", 100.0, 0.1, friction_factor=0.02)},
+    ...     simulation=SimulationSettings(30.0, "at_rest"))
+    >>> res = simulate(system)
+    >>> res.success, round(float(res.flows[0, -1]) / (0.25 * 3.14159265 * 0.1**2), 3)
+    (True, 3.02)
     """
     wall0 = _time.perf_counter()
     settings = system.simulation
