@@ -16,6 +16,7 @@ id, words a user can act on, a severity and a source ("common practice" where th
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 import numpy as np
@@ -24,7 +25,6 @@ from workbench.core.friction import (
     RE_LAMINAR,
     RE_TURBULENT,
     friction_colebrook,
-    in_published_range,
 )
 from workbench.core.model import Finding, G, System
 
@@ -79,56 +79,76 @@ def profile_points(system: System, line_id: str) -> tuple[np.ndarray, np.ndarray
     return arr[:, 0], arr[:, 1]
 
 
-def line_profile(system: System, line_id: str, q: float, head_from: float, head_to: float,
-                 losses: dict[str, float], status: str = "flowing") -> ProfileResult:
-    """Grade lines and pressures along one line at flow ``q``.
+def line_profiles(system: System, line_ids, q: np.ndarray, head_from: np.ndarray,
+                  head_to: np.ndarray, details: dict[str, np.ndarray],
+                  status: list[str]) -> dict[str, ProfileResult]:
+    """Grade lines and pressures along every line at flows ``q``, vectorised over all points.
 
     Parameters
     ----------
     system : System
-    line_id : str
-    q : float
-        Flow, positive from-end to to-end [m^3/s].
-    head_from, head_to : float
-        Node heads at the two ends [m]; ``nan`` when undetermined.
-    losses : dict
-        Magnitudes [m] of ``entrance_loss``, ``exit_loss``, ``valve_loss``,
-        ``friction_loss``, ``fittings_loss`` and ``velocity_head`` for this line.
-    status : str
-        ``"flowing"``, ``"closed"`` (valve shut) or ``"drains_back"`` (no flow, open to air).
+    line_ids : sequence of str
+        Line ids in the order of the arrays.
+    q : ndarray
+        Flow per line, positive from-end to to-end [m^3/s].
+    head_from, head_to : ndarray
+        Node heads at the two ends of each line [m]; ``nan`` when undetermined.
+    details : dict of ndarray
+        :meth:`workbench.core.line.LineSet.details` at ``q`` (losses [m], signed or not).
+    status : list of str
+        Per line ``"flowing"``, ``"closed"`` (valve shut) or ``"drains_back"`` (no flow,
+        open to the air).
+
+    Returns
+    -------
+    dict
+        Line id -> :class:`ProfileResult`.
     """
-    line = system.lines[line_id]
-    rho = system.fluid.density
-    s, z = profile_points(system, line_id)
-    length = line.length
-    if status != "flowing" or q == 0.0:
-        # Static: each side of a shut valve stands at the head of its own end.
-        if status == "closed" and line.valve is not None and line.valve.position == "from":
-            static = head_to
-        elif status == "drains_back":
-            static = head_from if system.node_kind(line.to_node) == "receiver" else head_to
-        else:
-            static = head_from
-        hgl = np.full(s.shape, static)
-        egl = hgl.copy()
-        p = rho * G * (hgl - z)
-        if status == "drains_back":
-            p = np.maximum(p, 0.0)  # above the standing liquid the line is open to the air
-    else:
-        vh = abs(losses["velocity_head"])
-        distributed = abs(losses["friction_loss"]) + abs(losses["fittings_loss"])
-        valve = abs(losses["valve_loss"])
-        forward = q > 0.0
-        s_flow = s if forward else length - s  # distance along the flow
-        e_up = (head_from if forward else head_to) - abs(losses["entrance_loss"])
-        egl = e_up - distributed * np.clip(s_flow / length, 0.0, 1.0)
-        if line.valve is not None and valve > 0.0:
-            valve_upstream = (line.valve.position == "from") == forward
-            if valve_upstream:
-                egl = egl - valve  # every point lies downstream of the valve
-        hgl = egl - vh
-        p = rho * G * (hgl - z)
-    return ProfileResult(s, z, hgl, egl, p, p + system.atmospheric_pressure)
+    n = len(line_ids)
+    lines = [system.lines[lid] for lid in line_ids]
+    s_parts, z_parts = [], []
+    for lid in line_ids:
+        s_i, z_i = profile_points(system, lid)
+        s_parts.append(s_i)
+        z_parts.append(z_i)
+    counts = np.array([len(x) for x in s_parts])
+    idx = np.repeat(np.arange(n), counts)
+    s = np.concatenate(s_parts) if n else np.zeros(0)
+    z = np.concatenate(z_parts) if n else np.zeros(0)
+    length = np.array([ln.length for ln in lines], dtype=float)
+    q = np.asarray(q, dtype=float)
+    stat = np.array(status, dtype=object)
+    flowing = (stat == "flowing") & (q != 0.0)
+    forward = q > 0.0
+    vh = np.abs(details["velocity_head"])
+    distributed = np.abs(details["friction_loss"]) + np.abs(details["fittings_loss"])
+    valve = np.abs(details["valve_loss"])
+    valve_from = np.array([ln.valve is not None and ln.valve.position == "from" for ln in lines])
+    e_up = np.where(forward, head_from, head_to) - np.abs(details["entrance_loss"])
+    # Every point lies downstream of a valve at the upstream end.
+    valve_up = valve_from == forward
+    s_flow = np.where(forward[idx], s, length[idx] - s)
+    egl_flow = (e_up[idx] - distributed[idx] * np.clip(s_flow / length[idx], 0.0, 1.0)
+                - np.where(valve_up, valve, 0.0)[idx])
+    hgl_flow = egl_flow - vh[idx]
+    # Static lines: each side of a shut valve stands at the head of its own end; a line
+    # that drains back stands at the head of its far end from the discharge.
+    to_receiver = np.array([ln.to_node in system.receivers for ln in lines])
+    static = np.where(
+        (stat == "closed") & valve_from, head_to,
+        np.where((stat == "drains_back") & ~to_receiver, head_to, head_from))
+    moving = flowing[idx]
+    hgl = np.where(moving, hgl_flow, static[idx])
+    egl = np.where(moving, egl_flow, static[idx])
+    p = system.fluid.density * G * (hgl - z)
+    # Above the standing liquid a drained-back line is open to the air.
+    p = np.where((stat == "drains_back")[idx], np.maximum(p, 0.0), p)
+    p_abs = p + system.atmospheric_pressure
+    ends = np.cumsum(counts).tolist()
+    starts = [0] + ends[:-1]
+    arrays = (s, z, hgl, egl, p, p_abs)
+    return {lid: ProfileResult(*(a[b:e] for a in arrays))
+            for lid, b, e in zip(line_ids, starts, ends, strict=True)}
 
 
 def _fmt(x: float, digits: int = 3) -> str:
@@ -161,7 +181,45 @@ def steady_findings(system: System, line_ids, details: dict[str, np.ndarray], q:
     out: list[Finding] = []
     fluid = system.fluid
     p_vap = fluid.vapor_pressure
-    g = G
+    n = len(line_ids)
+    reynolds = np.asarray(details["reynolds"], dtype=float)
+    speed = np.abs(np.asarray(details["velocity"], dtype=float))
+    f_used = np.asarray(details["friction_factor"], dtype=float).tolist()
+    re_list, v_list = reynolds.tolist(), speed.tolist()
+    q_list = np.asarray(q, dtype=float).tolist()
+    # Lowest gauge and absolute pressure along each profile, all lines at once.
+    profs = [profiles.get(lid) for lid in line_ids]
+    have = [p is not None for p in profs]
+    p_min_g = [math.nan] * n
+    s_min_g = [math.nan] * n
+    p_min_a = [math.nan] * n
+    s_min_a = [math.nan] * n
+    z_min_g = [math.nan] * n
+    if any(have):
+        chosen = [p for p in profs if p is not None]
+        counts = np.array([len(p.distance) for p in chosen])
+        starts = np.concatenate([[0], np.cumsum(counts)[:-1]])
+        pg = np.concatenate([p.pressure_gauge for p in chosen])
+        pa = np.concatenate([p.pressure_abs for p in chosen])
+        dist = np.concatenate([p.distance for p in chosen])
+        elev = np.concatenate([p.elevation for p in chosen])
+        owner = np.repeat(np.arange(len(chosen)), counts)
+        for values, p_out, s_out, z_out in ((pg, p_min_g, s_min_g, z_min_g),
+                                            (pa, p_min_a, s_min_a, None)):
+            low = np.minimum.reduceat(values, starts)
+            # First point reaching the minimum of its line.
+            hit = np.flatnonzero(values == low[owner])
+            first = np.full(len(chosen), -1)
+            first[owner[hit][::-1]] = hit[::-1]
+            k = 0
+            for i in range(n):
+                if have[i]:
+                    j = first[k]
+                    p_out[i] = float(low[k])
+                    s_out[i] = float(dist[j]) if j >= 0 else math.nan
+                    if z_out is not None:
+                        z_out[i] = float(elev[j]) if j >= 0 else math.nan
+                    k += 1
     for i, lid in enumerate(line_ids):
         line = system.lines[lid]
         st = status[i]
@@ -169,16 +227,16 @@ def steady_findings(system: System, line_ids, details: dict[str, np.ndarray], q:
             out.append(Finding("line.closed", lid, "the valve is shut: the line carries no flow",
                                "info", "model"))
         elif st == "drains_back":
-            recv = line.to_node if system.node_kind(line.to_node) == "receiver" else line.from_node
+            recv = line.to_node if line.to_node in system.receivers else line.from_node
             out.append(Finding(
                 "line.drains_back", lid,
                 f"the head upstream is below the open discharge {recv!r}, and air cannot push "
                 "liquid back into the line: no flow; in practice the line stands part-full or "
                 "drains back, so check the levels and the outlet elevation",
                 "caution", "model (an open discharge cannot supply liquid)"))
-        flowing = st == "flowing" and q[i] != 0.0
-        re = float(details["reynolds"][i])
-        v = abs(float(details["velocity"][i]))
+        flowing = st == "flowing" and q_list[i] != 0.0
+        re = re_list[i]
+        v = v_list[i]
         fixed_f = line.friction_factor is not None
         if flowing and not fixed_f:
             if re <= RE_LAMINAR:
@@ -195,10 +253,10 @@ def steady_findings(system: System, line_ids, details: dict[str, np.ndarray], q:
                     f"transitional flow (Re {_fmt(re, 4)}): friction is uncertain here; laminar "
                     f"branch f = {_fmt(f_lam, 4)}, turbulent (Colebrook) branch f = "
                     f"{_fmt(f_turb, 4)}; the result uses a smooth blend "
-                    f"f = {_fmt(float(details['friction_factor'][i]), 4)}",
+                    f"f = {_fmt(f_used[i], 4)}",
                     "caution", "regime limits 2000 and 4000, common practice; Colebrook (1939)"))
             rr = line.roughness / line.diameter
-            if re >= RE_TURBULENT and not in_published_range("colebrook", re, rr):
+            if re >= RE_TURBULENT and not (re <= 1e8 and rr <= 0.05):
                 out.append(Finding(
                     "correlation.range", lid,
                     f"Re {_fmt(re)} or relative roughness {_fmt(rr)} lies outside the range of "
@@ -218,33 +276,27 @@ def steady_findings(system: System, line_ids, details: dict[str, np.ndarray], q:
                     f"velocity {_fmt(v)} m/s is below {VELOCITY_LOW:g} m/s: solids may settle and "
                     "gas may collect at high points",
                     "info", COMMON_PRACTICE))
-        prof = profiles.get(lid)
-        if prof is not None and st != "drains_back" and np.all(np.isfinite(prof.hgl)):
-            k = int(np.argmin(prof.pressure_gauge))
-            p_min = float(prof.pressure_gauge[k])
-            if p_min < 0.0:
+        if have[i] and st != "drains_back" and math.isfinite(p_min_g[i]):
+            if p_min_g[i] < 0.0:
                 out.append(Finding(
                     "profile.subatmospheric", lid,
-                    f"pressure falls to {_fmt(p_min / 1000.0)} kPa gauge at {_fmt(prof.distance[k])} "
-                    f"m from {line.from_node!r} (elevation {_fmt(prof.elevation[k], 4)} m): air "
-                    "can be drawn in at joints, and thin-walled or plastic pipe can collapse; "
-                    "check the pipe's vacuum rating",
+                    f"pressure falls to {_fmt(p_min_g[i] / 1000.0)} kPa gauge at "
+                    f"{_fmt(s_min_g[i])} m from {line.from_node!r} (elevation "
+                    f"{_fmt(z_min_g[i], 4)} m): air can be drawn in at joints, and thin-walled "
+                    "or plastic pipe can collapse; check the pipe's vacuum rating",
                     "caution", "grade line from the solution; common practice"))
-            if p_vap is not None:
-                ka = int(np.argmin(prof.pressure_abs))
-                p_abs = float(prof.pressure_abs[ka])
-                if p_abs <= p_vap + VAPOR_MARGIN_PA:
-                    out.append(Finding(
-                        "profile.vapor", lid,
-                        f"absolute pressure {_fmt(p_abs / 1000.0)} kPa at {_fmt(prof.distance[ka])} m "
-                        f"is within {VAPOR_MARGIN_PA / 1000:g} kPa of the vapour pressure "
-                        f"({_fmt(p_vap / 1000.0)} kPa): the liquid column separates (siphon "
-                        "break), so the full-bore flow computed is not physically possible; "
-                        "lower the crest or raise the downstream pressure",
-                        "danger", f"vapour pressure of the fluid; margin {VAPOR_MARGIN_PA:g} Pa, "
-                        "common practice"))
+            if p_vap is not None and p_min_a[i] <= p_vap + VAPOR_MARGIN_PA:
+                out.append(Finding(
+                    "profile.vapor", lid,
+                    f"absolute pressure {_fmt(p_min_a[i] / 1000.0)} kPa at {_fmt(s_min_a[i])} m "
+                    f"is within {VAPOR_MARGIN_PA / 1000:g} kPa of the vapour pressure "
+                    f"({_fmt(p_vap / 1000.0)} kPa): the liquid column separates (siphon "
+                    "break), so the full-bore flow computed is not physically possible; "
+                    "lower the crest or raise the downstream pressure",
+                    "danger", f"vapour pressure of the fluid; margin {VAPOR_MARGIN_PA:g} Pa, "
+                    "common practice"))
         if flowing:
-            out.extend(_outlet_findings(system, lid, q[i], v, levels))
+            out.extend(_outlet_findings(system, lid, q_list[i], v, levels))
     if p_vap is None:
         out.append(Finding(
             "profile.vapor_unchecked", "fluid",

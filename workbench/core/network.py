@@ -9,7 +9,9 @@ Unknowns: the head ``H`` of every junction and the flow ``q`` of every line. Equ
   flow direction).
 
 Newton's method with the analytic sparse Jacobian ``[[0, A], [-A^T, -diag(dh/dq)]]``
-(``scipy.sparse``, solved by ``spsolve``), started from a linearisation of every line at a
+(``scipy.sparse``), each step solved through its Schur complement: eliminating the flows
+leaves a weighted graph Laplacian ``A W A^T`` over the junction heads only (``spsolve``),
+started from a linearisation of every line at a
 velocity its end heads could drive, with a backtracking line search on the scaled residual.
 ``h`` is continuously differentiable through zero flow and reversal (laminar friction is
 linear in ``q``); where ``dh/dq`` vanishes at ``q = 0`` (lines with a fixed friction factor
@@ -31,12 +33,13 @@ undetermined head; they are pinned internally, reported as ``nan`` and flagged
 
 from __future__ import annotations
 
+import math
 import time
 from dataclasses import dataclass, field
 
 import numpy as np
 
-from workbench.core.checks import ProfileResult, line_profile, steady_findings
+from workbench.core.checks import ProfileResult, line_profiles, steady_findings
 from workbench.core.line import LineSet
 from workbench.core.model import Finding, G, System, receiver_head, reservoir_head
 from workbench.core.topology import Topology, TopologyError, build_topology
@@ -163,6 +166,7 @@ class _Newton:
         reached = ~np.isin(np.arange(nj), [topo.junction_ids.index(j) for j in
                                           topo.unreached_junctions(~blocked)])
         self.isolated = ~reached
+        self._any_isolated = bool(self.isolated.any())
         # Pins for isolated junctions: their elevation (any value works; reported as nan).
         elev = np.array([lines.system.junctions[j].elevation for j in topo.junction_ids])
         self.pin = elev
@@ -194,10 +198,43 @@ class _Newton:
         return fc, fe, dh
 
     def jacobian(self, dh: np.ndarray, q: np.ndarray):
+        """The full analytic Jacobian ``[[0, A], [-A^T, -diag(dh/dq)]]`` (sparse, CSC).
+
+        Rows: continuity per junction (identity for an isolated junction), then energy per
+        line (identity for a blocked line); columns: junction heads, then line flows.
+        :meth:`step` solves the same system through its Schur complement.
+        """
         diag = np.where(self.blocked, 1.0, -np.maximum(dh, self._dh_floor))
         data = np.concatenate([self._const, diag])
         n = self.nj + self.nl
         return self.sparse.csc_matrix((data, (self._rows, self._cols)), shape=(n, n))
+
+    def step(self, fc: np.ndarray, fe: np.ndarray, dh: np.ndarray) -> np.ndarray:
+        """Newton step ``J dx = -F`` solved by eliminating the flows (Schur complement).
+
+        From the energy rows, ``dq = W (F_e - A^T dH)`` with ``W = diag(1/(dh/dq))`` on open
+        lines, and ``dq = -q`` on blocked lines; continuity then gives the weighted graph
+        Laplacian system ``(A W A^T) dH = F_c + A W F_e + A_b dq_b``, symmetric positive
+        definite when every junction reaches a fixed head, of junction size only.
+        """
+        from scipy.sparse.linalg import spsolve
+
+        sparse = self.sparse
+        w = np.where(self.blocked, 0.0, 1.0 / np.maximum(dh, self._dh_floor))
+        dq_blocked = np.where(self.blocked, -fe, 0.0)
+        if self.nj:
+            lap = self.A @ sparse.diags(w) @ self.A.T
+            rhs = fc + self.A @ (w * fe + dq_blocked)
+            if self._any_isolated:
+                lap = lap + sparse.diags(self.isolated.astype(float))
+                rhs = np.where(self.isolated, -fc, rhs)
+            d_h = spsolve(lap.tocsc(), rhs, permc_spec="MMD_AT_PLUS_A")
+            d_h = np.atleast_1d(d_h)
+            d_q = np.where(self.blocked, dq_blocked, w * (fe - self.A.T @ d_h))
+        else:
+            d_h = np.zeros(0)
+            d_q = np.where(self.blocked, dq_blocked, w * fe)
+        return np.concatenate([d_h, d_q])
 
     def start(self) -> np.ndarray:
         """Laminar-style linearisation: each line as a linear resistance at a plausible speed."""
@@ -233,8 +270,6 @@ class _Newton:
         return float(np.sum((fc / qscale) ** 2) + np.sum((fe / self.head_span) ** 2))
 
     def solve(self, x0: np.ndarray, max_iter: int):
-        from scipy.sparse.linalg import spsolve
-
         x = x0.copy()
         fc, fe, dh = self.residual(x)
         it = 0
@@ -245,10 +280,8 @@ class _Newton:
             if self.converged(fc, fe, qscale):
                 status = 0
                 break
-            jac = self.jacobian(dh, q)
-            rhs = -np.concatenate([fc, fe])
             with np.errstate(all="ignore"):
-                step = spsolve(jac, rhs)
+                step = self.step(fc, fe, dh)
             if not np.all(np.isfinite(step)):
                 status = 2
                 break
@@ -370,27 +403,30 @@ def _assemble(system, topo, lines, newton, x, h_fixed, x_open, shut, back, level
     status = ["closed" if shut[i] else "drains_back" if back[i] else "flowing"
               for i in range(lines.n)]
     line_results: dict[str, LineResult] = {}
-    profiles: dict[str, ProfileResult] = {}
+    cols = {k: np.abs(det[k]).tolist() for k in (
+        "friction_loss", "fittings_loss", "valve_loss", "entrance_loss", "exit_loss",
+        "minor_loss", "head_loss", "velocity_head")}
+    velocity, reynolds = det["velocity"].tolist(), det["reynolds"].tolist()
+    f_list, regime, method = det["friction_factor"].tolist(), det["regime"], det["method"]
+    q_list = q.tolist()
     for i, lid in enumerate(topo.line_ids):
-        flowing = status[i] == "flowing" and q[i] != 0.0
-        f = float(det["friction_factor"][i])
-        losses = {k: abs(float(det[k][i])) for k in (
-            "friction_loss", "fittings_loss", "valve_loss", "entrance_loss", "exit_loss",
-            "minor_loss", "head_loss", "velocity_head")}
+        flowing = status[i] == "flowing" and q_list[i] != 0.0
+        f = f_list[i]
+        line = system.lines[lid]
         line_results[lid] = LineResult(
-            flow=float(q[i]),
-            velocity=float(det["velocity"][i]),
-            reynolds=float(det["reynolds"][i]),
-            regime=str(det["regime"][i]) if flowing else "no flow",
-            friction_factor=f if flowing and np.isfinite(f) else None,
-            friction_method=str(det["method"][i]) if flowing else "",
+            flow=q_list[i],
+            velocity=velocity[i],
+            reynolds=reynolds[i],
+            regime=str(regime[i]) if flowing else "no flow",
+            friction_factor=f if flowing and math.isfinite(f) else None,
+            friction_method=str(method[i]) if flowing else "",
             status=status[i],
-            from_node=system.lines[lid].from_node,
-            to_node=system.lines[lid].to_node,
-            **losses,
+            from_node=line.from_node,
+            to_node=line.to_node,
+            **{k: v[i] for k, v in cols.items()},
         )
-        profiles[lid] = line_profile(system, lid, float(q[i]), float(node_h[topo.line_from[i]]),
-                                     float(node_h[topo.line_to[i]]), losses, status[i])
+    profiles = line_profiles(system, topo.line_ids, q, node_h[topo.line_from],
+                             node_h[topo.line_to], det, status)
     nodes: dict[str, NodeResult] = {}
     kinds = ("junction",) * nj + tuple(topo.fixed_kind)
     for k, nid in enumerate(topo.node_ids):
