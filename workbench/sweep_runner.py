@@ -224,7 +224,38 @@ def solve_case(project: Project, settings, simulate: bool) -> tuple[dict | None,
                 errors.append(f"simulation: {sim.message}")
         except Exception as exc:  # noqa: BLE001 - reported per case
             errors.append(f"simulation: {type(exc).__name__}: {exc}")
+        if sim_json is not None:
+            try:
+                _add_elastic(sim_json, system)
+            except Exception as exc:  # noqa: BLE001 - reported per case
+                errors.append(f"elastic surge: {type(exc).__name__}: {exc}")
     return steady_json, sim_json, ("; ".join(errors) or None)
+
+
+#: Keys of the ``surge.ID.elastic`` object that are time series (left out, as for the
+#: transient's own series).
+_ELASTIC_SERIES = ("time_s", "valve_pressure_pa", "midline_pressure_pa")
+
+
+def _add_elastic(sim_json: dict, system) -> None:
+    """Run the elastic surge model on lines the project marks ``model = "elastic"``.
+
+    Adds what ``simulate --json`` adds (``surge.ID.elastic`` and the elastic findings among
+    the warnings), without the time series.
+    """
+    from workbench.core.elastic import elastic_line_ids, run_elastic
+
+    ids = elastic_line_ids(system)
+    if not ids:
+        return
+    from workbench.cli.elastic_option import add_elastic_json
+
+    add_elastic_json(sim_json, run_elastic(system, ids))
+    for entry in sim_json.get("surge", {}).values():
+        elastic = entry.get("elastic") if isinstance(entry, dict) else None
+        if isinstance(elastic, dict):
+            for key in _ELASTIC_SERIES:
+                elastic.pop(key, None)
 
 
 _WORKER_PROJECT: Project | None = None

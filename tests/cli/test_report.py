@@ -13,6 +13,7 @@ import hashlib
 import re
 import tomllib
 from pathlib import Path
+from types import SimpleNamespace
 
 import pytest
 
@@ -129,6 +130,12 @@ def test_every_warning_and_event_of_the_run_is_in_the_record(project_path, tmp_p
         sim = simulate(system)
         findings += list(sim.warnings)
         events = list(sim.events)
+        from workbench.core.elastic import elastic_line_ids, run_elastic
+        from workbench.output.elastic import elastic_findings
+
+        ids = elastic_line_ids(system)
+        if ids:  # lines the project marks model = "elastic" are run for the record too
+            findings += [SimpleNamespace(**w) for w in elastic_findings(run_elastic(system, ids))]
     for f in findings:
         assert f"`{f.code}`" in text
         assert f.message.replace("|", "\\|") in text
@@ -204,3 +211,23 @@ def test_a_broken_project_gets_messages_not_a_record(tmp_path, capsys) -> None:
     err = capsys.readouterr().err
     assert code == 1
     assert "lines.L7.length" in err and "mmm" in err
+
+
+def test_lines_marked_elastic_get_the_elastic_surge_run_and_its_findings(tmp_path) -> None:
+    # A near-instant closure (3 s) on the hill line, run by the method of characteristics:
+    # the crest reaches vapour pressure, and the elastic run's own finding must be recorded.
+    from workbench.core.elastic import elastic_line_ids, run_elastic
+    from workbench.output.elastic import elastic_findings
+    from workbench.project.document import load_project
+
+    text_in = HILL_TRANSFER.replace("[simulation]", '[lines.L7.surge]\nmodel = "elastic"\n\n[simulation]')
+    text_in = text_in.replace('{ time = "6 min", opening = 0.0 }', '{ time = "5.05 min", opening = 0.0 }')
+    path = tmp_path / "hill_elastic.toml"
+    path.write_text(text_in, encoding="utf-8")
+    text = _record(path, tmp_path)
+    system = load_project(path).system
+    findings = elastic_findings(run_elastic(system, elastic_line_ids(system)))
+    assert "### Elastic surge (method of characteristics)" in text
+    assert findings, "the closure was meant to give an elastic finding"
+    for w in findings:
+        assert w["message"].replace("|", "\\|") in text

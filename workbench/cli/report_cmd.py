@@ -58,7 +58,14 @@ def run(args: argparse.Namespace) -> ExitCode:
         else:
             if not transient.success:
                 print(f"{args.project}: simulation: {transient.message}", file=sys.stderr)
-    text = calculation_record(project, steady, transient)
+    elastic = None
+    if transient is not None:
+        from workbench.core.elastic import elastic_line_ids, run_elastic
+
+        ids = elastic_line_ids(system)
+        if ids:
+            elastic = run_elastic(system, ids)
+    text = calculation_record(project, steady, transient, elastic=elastic)
     if args.output is None:
         sys.stdout.write(text)
     else:
@@ -70,7 +77,7 @@ def run(args: argparse.Namespace) -> ExitCode:
         print(f"wrote {args.output}", file=sys.stderr)
     if args.csv_dir is not None:
         try:
-            written = write_result_csvs(args.csv_dir, result_tables(project, steady, transient))
+            written = write_result_csvs(args.csv_dir, result_tables(project, steady, transient, elastic))
         except OSError as exc:
             print(f"{args.csv_dir}: cannot write: {exc.strerror or exc}", file=sys.stderr)
             return ExitCode.INVALID

@@ -228,7 +228,8 @@ _FITTING_SOURCES = {
 }
 
 
-def _methods(project: Project, steady: SteadyResult | None, transient: TransientResult | None) -> list[str]:
+def _methods(project: Project, steady: SteadyResult | None, transient: TransientResult | None,
+             elastic: Mapping[str, Any] | None = None) -> list[str]:
     from workbench.core.friction import FRICTION_METHODS
     from workbench.core.line import LineSet
 
@@ -291,10 +292,14 @@ def _methods(project: Project, steady: SteadyResult | None, transient: Transient
         formulas = sorted({s.formula for s in transient.surge.values() if s.formula})
         for formula in formulas:
             rows.append(["Wave speed", formula, "Korteweg; Wylie and Streeter, Fluid Transients in Systems (1993)",
-                         "thin-walled elastic pipe"])
+                         "linear-elastic pipe wall; the support condition stated"])
         if transient.surge:
             rows.append(["Surge pressure", "Joukowsky, dp = rho a dv", "Joukowsky (1898)",
                          "instantaneous closure; an upper bound for the rigid-column peak"])
+    for res in _unique(elastic):
+        rows.append(["Elastic surge", f"method of characteristics, Courant number 1, friction "
+                     f"'{res.friction}'", "Wylie and Streeter, Fluid Transients in Systems (1993), ch. 3",
+                     "one-dimensional water hammer; until column separation"])
     out = ["## 3. Methods and correlations", ""]
     out += _table(["Topic", "Method", "Published source", "Validity range"], rows)
     return out
@@ -391,16 +396,65 @@ def _simulation(project: Project, transient: TransientResult | None) -> list[str
     return out
 
 
-def _warnings(project: Project, steady: SteadyResult | None, transient: TransientResult | None) -> list[str]:
-    findings = list(steady.warnings if steady else ()) + list(transient.warnings if transient else ())
+def _all_findings(steady, transient, elastic) -> list[tuple[str, str, str, str, str]]:
+    """(severity, code, element, message, source) of every warning: steady, simulation, elastic."""
+    rows = [(f.severity, f.code, f.element, f.message, f.source)
+            for f in list(steady.warnings if steady else ()) + list(transient.warnings if transient else ())]
+    if elastic:
+        from workbench.output.elastic import elastic_findings
+
+        rows += [(w["severity"], w["code"], w["element"], w["message"], w.get("source", ""))
+                 for w in elastic_findings(dict(elastic))]
+    return rows
+
+
+def _warnings(project: Project, steady: SteadyResult | None, transient: TransientResult | None,
+              elastic: Mapping[str, Any] | None = None) -> list[str]:
+    findings = _all_findings(steady, transient, elastic)
     out = ["## 6. Warnings", ""]
     if not findings:
         return out + ["No warnings.", ""]
     out += _table(
         ["Severity", "Code", "Element", "Message", "Source"],
-        [[f.severity.upper(), f"`{f.code}`", f.element, f.message, f.source or "-"] for f in findings],
+        [[sev.upper(), f"`{code}`", element, message, source or "-"]
+         for sev, code, element, message, source in findings],
     )
     return out
+
+
+def _unique(elastic: Mapping[str, Any] | None) -> list[Any]:
+    """Each elastic result once (a chain's lines share one result)."""
+    seen: dict[int, Any] = {}
+    for res in (elastic or {}).values():
+        seen.setdefault(id(res), res)
+    return list(seen.values())
+
+
+def _elastic(project: Project, elastic: Mapping[str, Any] | None) -> list[str]:
+    if not elastic:
+        return []
+    units = project.unit_system
+    out = ["### Elastic surge (method of characteristics)", ""]
+    rows = []
+    for lid, res in elastic.items():
+        env = getattr(res, "envelopes", {}).get(lid)
+        speed = getattr(res, "wave_speeds", {}).get(lid)
+        if not res.success or env is None or speed is None:
+            rows.append([lid, "-", "-", "-", "-", "-", "-", res.message])
+            continue
+        sep = res.column_separation
+        note = "trusted throughout" if res.trusted_until is None else f"trusted until {_time(res.trusted_until)}"
+        if sep is not None:
+            note += f"; column separation at {_time(sep.time)} on {sep.line}"
+        rows.append([lid, f"{_q(speed.used, 'velocity', units)} (Korteweg {_q(speed.korteweg, 'velocity', units)})",
+                     res.reaches.get(lid, "-"), _time(res.dt), _q(float(max(env.max_pressure)), "pressure", units),
+                     _q(float(min(env.min_pressure)), "pressure", units), _time(res.duration), note])
+    out += _table(["Line", "Wave speed used", "Reaches", "Time step", "Max pressure (gauge)",
+                   "Min pressure (gauge)", "Simulated", "Note"], rows, "llrrrrrl")
+    for res in _unique(elastic):
+        for note in getattr(res, "notes", ()):
+            out.append(f"- {note}")
+    return out + [""]
 
 
 def _cautions() -> list[str]:
@@ -425,6 +479,7 @@ def calculation_record(
     steady: SteadyResult | None,
     transient: TransientResult | None = None,
     *,
+    elastic: Mapping[str, Any] | None = None,
     date: _dt.datetime | None = None,
 ) -> str:
     """The Markdown calculation record of a project and its results.
@@ -437,14 +492,18 @@ def calculation_record(
         The steady solution (``None`` when not computed).
     transient : TransientResult or None
         The simulation, when the project has one.
+    elastic : mapping, optional
+        Line id -> ``ElasticResult`` of the elastic surge runs (lines marked
+        ``model = "elastic"``), as :func:`workbench.core.elastic.run_elastic` returns them.
     date : datetime, optional
         Date written in the record; default now (UTC).
     """
     date = date or _dt.datetime.now(_dt.timezone.utc)
     parts = (
         _identification(project, date) + _inputs(project) + _derived(project) + _fluid(project)
-        + _methods(project, steady, transient) + _steady(project, steady)
-        + _simulation(project, transient) + _warnings(project, steady, transient)
+        + _methods(project, steady, transient, elastic) + _steady(project, steady)
+        + _simulation(project, transient) + _elastic(project, elastic)
+        + _warnings(project, steady, transient, elastic)
         + _cautions() + _signoff()
     )
     text = "\n".join(parts)
@@ -457,7 +516,8 @@ def calculation_record(
 
 
 def result_tables(project: Project, steady: SteadyResult | None,
-                  transient: TransientResult | None = None) -> dict[str, list[list[Any]]]:
+                  transient: TransientResult | None = None,
+                  elastic: Mapping[str, Any] | None = None) -> dict[str, list[list[Any]]]:
     """Result tables for spreadsheets: file name -> rows (header first), SI numbers."""
     tables: dict[str, list[list[Any]]] = {}
     if steady is not None and steady.success:
@@ -475,9 +535,8 @@ def result_tables(project: Project, steady: SteadyResult | None,
             for row in zip(p.distance, p.elevation, p.hgl, p.pressure_gauge, p.pressure_abs, strict=False):
                 profile_rows.append([lid, *map(float, row)])
         tables["profiles.csv"] = profile_rows
-    findings = list(steady.warnings if steady else ()) + list(transient.warnings if transient else ())
     tables["warnings.csv"] = [["severity", "code", "element", "message", "source"]] + [
-        [f.severity, f.code, f.element, f.message, f.source] for f in findings]
+        list(row) for row in _all_findings(steady, transient, elastic)]
     if transient is not None:
         header = ["time [s]"] + [f"flow {lid} [m^3/s]" for lid in transient.line_ids] + [
             f"level {tid} [m]" for tid in transient.tank_ids]
