@@ -284,3 +284,31 @@ def test_a_fixed_friction_factor_overrides_the_correlation():
     v = math.sqrt(2 * G * 9.0 / (0.03 * 1000 + 1.5))
     assert result.lines["L"].flow == pytest.approx(v * area, rel=1e-10)
     assert result.lines["L"].friction_factor == 0.03
+
+
+def test_the_analytic_jacobian_matches_finite_differences_and_the_schur_step_solves_it():
+    # Check of the solver's own algebra against central differences of its residual and
+    # against scipy.sparse.linalg.spsolve on the full Jacobian.
+    from scipy.sparse.linalg import spsolve
+
+    from workbench.core.network import _Newton, fixed_heads
+    from workbench.core.topology import build_topology
+
+    system = _looped_network(4)
+    topo = build_topology(system)
+    lines = LineSet(system, topo)
+    x_open = lines.steady_openings()
+    newton = _Newton(lines, topo, fixed_heads(system, topo), x_open, lines.closed(x_open))
+    x = newton.start()
+    fc, fe, dh = newton.residual(x)
+    jac = newton.jacobian(dh, x[newton.nj:]).toarray()
+    numeric = np.empty_like(jac)
+    for k in range(x.size):
+        e = np.zeros(x.size)
+        e[k] = 1e-7 * max(1.0, abs(x[k]))
+        fp = np.concatenate(newton.residual(x + e)[:2])
+        fm = np.concatenate(newton.residual(x - e)[:2])
+        numeric[:, k] = (fp - fm) / (2 * e[k])
+    np.testing.assert_allclose(jac, numeric, rtol=1e-5, atol=1e-6)
+    full = spsolve(newton.jacobian(dh, x[newton.nj:]).tocsc(), -np.concatenate([fc, fe]))
+    np.testing.assert_allclose(newton.step(fc, fe, dh), full, rtol=1e-9, atol=1e-12)

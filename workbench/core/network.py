@@ -167,6 +167,10 @@ class _Newton:
                                           topo.unreached_junctions(~blocked)])
         self.isolated = ~reached
         self._any_isolated = bool(self.isolated.any())
+        self._iso_idx = np.flatnonzero(self.isolated)
+        self._from, self._to = topo.line_from, topo.line_to
+        m_a, m_b = self._from < nj, self._to < nj
+        self._lap_index = (self._from, self._to, m_a, m_b, m_a & m_b)
         # Pins for isolated junctions: their elevation (any value works; reported as nan).
         elev = np.array([lines.system.junctions[j].elevation for j in topo.junction_ids])
         self.pin = elev
@@ -189,13 +193,27 @@ class _Newton:
         nj = self.nj
         hj, q = x[:nj], x[nj:]
         h, dh = self.lines.head_loss(q, self.openings)
-        # H_from - H_to = -(A^T H_j + Af^T H_f)
-        dhead = -(self.A.T @ hj + self.Af.T @ self.h_fixed)
-        fe = dhead - h
+        node_h = np.concatenate([hj, self.h_fixed])
+        fe = node_h[self._from] - node_h[self._to] - h  # H_from - H_to - h(q)
         fe = np.where(self.blocked, q, fe)
-        fc = self.A @ q
+        fc = self._net_inflow(q)  # A q
         fc = np.where(self.isolated, hj - self.pin, fc)
         return fc, fe, dh
+
+    def _net_inflow(self, q: np.ndarray) -> np.ndarray:
+        """``A q``: net inflow to each junction [m^3/s]."""
+        n = self.nj + self.topo.n_fixed
+        return (np.bincount(self._to, q, minlength=n)
+                - np.bincount(self._from, q, minlength=n))[: self.nj]
+
+    def _laplacian(self, w: np.ndarray):
+        """``A diag(w) A^T`` assembled directly (CSC), plus identity rows where isolated."""
+        a, b, m_a, m_b, both = self._lap_index
+        rows = np.concatenate([a[m_a], b[m_b], a[both], b[both], self._iso_idx])
+        cols = np.concatenate([a[m_a], b[m_b], b[both], a[both], self._iso_idx])
+        data = np.concatenate([w[m_a], w[m_b], -w[both], -w[both],
+                               np.ones(self._iso_idx.size)])
+        return self.sparse.csc_matrix((data, (rows, cols)), shape=(self.nj, self.nj))
 
     def jacobian(self, dh: np.ndarray, q: np.ndarray):
         """The full analytic Jacobian ``[[0, A], [-A^T, -diag(dh/dq)]]`` (sparse, CSC).
@@ -219,18 +237,17 @@ class _Newton:
         """
         from scipy.sparse.linalg import spsolve
 
-        sparse = self.sparse
         w = np.where(self.blocked, 0.0, 1.0 / np.maximum(dh, self._dh_floor))
         dq_blocked = np.where(self.blocked, -fe, 0.0)
         if self.nj:
-            lap = self.A @ sparse.diags(w) @ self.A.T
-            rhs = fc + self.A @ (w * fe + dq_blocked)
+            lap = self._laplacian(w)
+            rhs = fc + self._net_inflow(w * fe + dq_blocked)
             if self._any_isolated:
-                lap = lap + sparse.diags(self.isolated.astype(float))
                 rhs = np.where(self.isolated, -fc, rhs)
-            d_h = spsolve(lap.tocsc(), rhs, permc_spec="MMD_AT_PLUS_A")
-            d_h = np.atleast_1d(d_h)
-            d_q = np.where(self.blocked, dq_blocked, w * (fe - self.A.T @ d_h))
+            d_h = np.atleast_1d(spsolve(lap, rhs, permc_spec="MMD_AT_PLUS_A"))
+            d_full = np.concatenate([d_h, np.zeros(self.topo.n_fixed)])
+            d_q = np.where(self.blocked, dq_blocked,
+                           w * (fe - (d_full[self._to] - d_full[self._from])))
         else:
             d_h = np.zeros(0)
             d_q = np.where(self.blocked, dq_blocked, w * fe)
@@ -248,22 +265,18 @@ class _Newton:
         r = np.where(self.blocked, np.inf, np.maximum(h_ref / q_ref, 1e-12))
         self._dh_floor = 1e-6 * np.where(np.isfinite(r), r, 1.0)
         g = np.where(self.blocked, 0.0, 1.0 / r)
-        sparse = self.sparse
-        gd = sparse.diags(g)
-        lap = (self.A @ gd @ self.A.T).tolil()
-        rhs = -(self.A @ (g * (self.Af.T @ self.h_fixed)))
-        iso = np.flatnonzero(self.isolated)
-        for j in iso:
-            lap.rows[j] = [j]
-            lap.data[j] = [1.0]
-            rhs[j] = self.pin[j]
+        # Linear network: q = g (H_from - H_to), A q = 0  ->  (A g A^T) H = -A g (Af^T H_f).
+        fixed_only = np.concatenate([np.zeros(self.nj), self.h_fixed])
+        drive = fixed_only[self._to] - fixed_only[self._from]  # (Af^T H_f) per line
         hj = np.zeros(self.nj)
         if self.nj:
             from scipy.sparse.linalg import spsolve
 
-            hj = np.atleast_1d(spsolve(lap.tocsc(), rhs))
-        dhead = -(self.A.T @ hj + self.Af.T @ self.h_fixed)
-        q = np.where(self.blocked, 0.0, g * dhead)
+            rhs = -self._net_inflow(g * drive)
+            rhs = np.where(self.isolated, self.pin, rhs)
+            hj = np.atleast_1d(spsolve(self._laplacian(g), rhs, permc_spec="MMD_AT_PLUS_A"))
+        node_h = np.concatenate([hj, self.h_fixed])
+        q = np.where(self.blocked, 0.0, g * (node_h[self._from] - node_h[self._to]))
         return np.concatenate([hj, q])
 
     def merit(self, fc, fe, qscale):
