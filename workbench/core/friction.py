@@ -65,11 +65,10 @@ def friction_colebrook(re, rel_roughness):
     r"""Colebrook (1939) friction factor, solved by Clamond's (2009) method.
 
     Solves :math:`1/\sqrt{f} = -2\log_{10}\left(\frac{\varepsilon/D}{3.7}
-    + \frac{2.51}{Re\sqrt{f}}\right)` through its Lambert-W form: with
-    :math:`a = \ln(10)\,Re\,(\varepsilon/D)/18.574`, :math:`b = \ln(Re \ln 10/5.02)` and
-    :math:`x = \ln(10) Re/(5.02)\cdot 1/\sqrt{f}`-related unknown ``F``, two steps of a
-    third-order (Householder) iteration on ``F + ln(a + F) = b`` from ``F0 = b - 0.2`` give
-    ``f`` to about machine precision for ``Re`` from 10 up.
+    + \frac{2.51}{Re\sqrt{f}}\right)`. Clamond writes it as :math:`F + \ln(a + F) = b` with
+    :math:`a = Re\,(\varepsilon/D)\ln(10)/18.574`, :math:`b = \ln(Re\ln(10)/5.02)` and
+    :math:`1/\sqrt{f} = (2/\ln 10)\,F`; two third-order (Householder) steps from
+    :math:`F_0 = b - 0.2` give ``f`` to about machine precision for ``Re`` from 10 up.
 
     Parameters
     ----------
