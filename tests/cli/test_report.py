@@ -72,13 +72,19 @@ duration = "20 min"
 """
 
 
-@pytest.fixture(params=["hill_transfer", *[p.stem for p in DEMOS]])
-def project_path(request, tmp_path) -> Path:
+@pytest.fixture(scope="module", params=["hill_transfer", *[p.stem for p in DEMOS]])
+def project_path(request, tmp_path_factory) -> Path:
     if request.param == "hill_transfer":
-        path = tmp_path / "hill_transfer.toml"
+        path = tmp_path_factory.mktemp("hill") / "hill_transfer.toml"
         path.write_text(HILL_TRANSFER, encoding="utf-8")
         return path
     return ROOT / "projects" / f"{request.param}.toml"
+
+
+@pytest.fixture(scope="module")
+def record(project_path, tmp_path_factory) -> str:
+    """The record of each project, written once by ``workbench report`` and read by the checks."""
+    return _record(project_path, tmp_path_factory.mktemp("record"))
 
 
 def _leaves(value):
@@ -99,17 +105,17 @@ def _record(project_path: Path, tmp_path: Path, *extra: str) -> str:
     return out.read_text(encoding="utf-8")
 
 
-def test_the_record_names_the_file_hash_and_the_program_version(project_path, tmp_path) -> None:
+def test_the_record_names_the_file_hash_and_the_program_version(project_path, record) -> None:
     from workbench import __version__
 
-    text = _record(project_path, tmp_path)
+    text = record
     assert hashlib.sha256(project_path.read_bytes()).hexdigest() in text  # hashlib, independently
     assert f"gravity workbench {__version__}" in text
     assert re.search(r"\| Date \| \d{4}-\d\d-\d\d \d\d:\d\d", text)
 
 
-def test_every_input_appears_as_entered(project_path, tmp_path) -> None:
-    text = _record(project_path, tmp_path)
+def test_every_input_appears_as_entered(project_path, record) -> None:
+    text = record
     data = tomllib.loads(project_path.read_text(encoding="utf-8"))  # stdlib reader, not ours
     for section in ("project", "fluid", "reservoirs", "junctions", "receivers", "lines", "simulation"):
         for leaf in _leaves(data.get(section, {})):
@@ -117,12 +123,12 @@ def test_every_input_appears_as_entered(project_path, tmp_path) -> None:
             assert shown.replace("|", "\\|") in text, f"{section}: {leaf!r} missing from the record"
 
 
-def test_every_warning_and_event_of_the_run_is_in_the_record(project_path, tmp_path) -> None:
+def test_every_warning_and_event_of_the_run_is_in_the_record(project_path, record) -> None:
     from workbench.core.network import solve_steady
     from workbench.core.transient import simulate
     from workbench.project.document import load_project
 
-    text = _record(project_path, tmp_path)
+    text = record
     system = load_project(project_path).system
     findings = list(solve_steady(system).warnings)
     events = []
@@ -154,10 +160,10 @@ def test_the_hill_transfer_record_shows_its_warnings(tmp_path) -> None:
     assert "`valve.closed`" in text
 
 
-def test_the_record_carries_the_cautions_methods_and_sign_off(project_path, tmp_path) -> None:
+def test_the_record_carries_the_cautions_methods_and_sign_off(project_path, record) -> None:
     from workbench.cautions import CAUTIONS
 
-    text = _record(project_path, tmp_path)
+    text = record
     for caution in CAUTIONS:
         assert f"**{caution.topic}.**" in text
     assert "## 3. Methods and correlations" in text
@@ -165,9 +171,9 @@ def test_the_record_carries_the_cautions_methods_and_sign_off(project_path, tmp_
     assert "| Checked by |" in text
 
 
-def test_the_record_tables_are_well_formed_gfm(project_path, tmp_path) -> None:
+def test_the_record_tables_are_well_formed_gfm(project_path, record) -> None:
     # GFM table rule: header row, delimiter row of ---/---:, and every row with as many cells.
-    text = _record(project_path, tmp_path)
+    text = record
     lines = text.splitlines()
     split = re.compile(r"(?<!\\)\|")
     tables = 0
