@@ -472,6 +472,8 @@ def screen_line(
             "danger", "Wylie & Streeter, Fluid Transients in Systems (1993)",
         ))
         reported_min = fluid.vapor_pressure - atmospheric_pressure
+        # no point of the line can stand below vapour pressure either
+        reported_max = max(reported_max, reported_min)
     return LineSurge(
         wave_speed=a, formula=formula, joukowsky=jouk, round_trip=trip,
         effective_closure=effective_closure, rapid_closure=rapid,
