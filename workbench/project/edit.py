@@ -31,9 +31,10 @@ def _fail(project: Project, key: str, message: str) -> ProjectError:
 
 
 def _copy_doc(project: Project):
-    import tomlkit
+    """A fresh document to edit: parsed from the text (the text is always the document's)."""
+    from workbench.project.load import parse_doc
 
-    return tomlkit.parse(project.doc.as_string())
+    return parse_doc(project.text, project.name)
 
 
 def _item(value: Any):
@@ -299,7 +300,7 @@ def rename_element(project: Project, old_id: str, new_id: str) -> Project:
     header = re.compile(
         r"^(\s*\[\s*" + re.escape(section) + r"\s*\.\s*)(" + re.escape(old_id)
         + r"|\"" + re.escape(old_id) + r"\")(\s*[\].])", re.M)
-    text = header.sub(lambda mt: mt.group(1) + new_id + mt.group(3), project.doc.as_string())
+    text = header.sub(lambda mt: mt.group(1) + new_id + mt.group(3), project.text)
     doc = tomlkit.parse(text)
     for lid in dependents(project, old_id):
         line = doc["lines"][lid]

@@ -11,7 +11,7 @@ from __future__ import annotations
 import hashlib
 import re
 import tomllib
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
@@ -22,7 +22,8 @@ if TYPE_CHECKING:  # pragma: no cover
 
     from workbench.core.model import System
 
-__all__ = ["Project", "load_project", "load_project_text", "locate_key", "parse_toml", "project_from_doc"]
+__all__ = ["Project", "load_project", "load_project_text", "locate_key", "parse_data", "parse_doc",
+           "parse_toml", "project_from_doc"]
 
 _CONFLICT = re.compile(r"^(<{7}|={7}|>{7}|\|{7})(\s|$)")
 _TOML_POSITION = re.compile(r"\s*\(at line (\d+), column (\d+)\)\s*$")
@@ -41,8 +42,6 @@ class Project:
     """File it was loaded from, or ``None`` for text."""
     text: str
     """The document's text (as loaded, or as edited)."""
-    doc: "tomlkit.TOMLDocument"
-    """Comment-preserving document; saves write it."""
     data: dict
     """Plain data, as ``tomllib`` reads ``text``."""
     system: "System"
@@ -53,6 +52,18 @@ class Project:
     """sha256 (hex) of the bytes as loaded from disk (or of the text given)."""
     name: str = "<text>"
     """File name used in messages."""
+    _doc: Any = field(default=None, repr=False)
+    """The comment-preserving document once parsed (see :attr:`doc`)."""
+
+    @property
+    def doc(self) -> "tomlkit.TOMLDocument":
+        """Comment-preserving document of :attr:`text`; saves and edits use it.
+
+        Parsed on first use (``tomlkit`` is slow; checking a file does not need it).
+        """
+        if self._doc is None:
+            object.__setattr__(self, "_doc", parse_doc(self.text, self.name))
+        return self._doc
 
     @property
     def modified(self) -> bool:
@@ -83,8 +94,8 @@ def _conflict_markers(text: str, name: str) -> list[Problem]:
     return problems
 
 
-def parse_toml(text: str, name: str | None) -> tuple[dict, "tomlkit.TOMLDocument"]:
-    """Parse text as TOML twice: plain data (tomllib) and the layout-keeping document.
+def parse_data(text: str, name: str | None) -> dict:
+    """Plain data of TOML text (``tomllib``), after a look for conflict markers.
 
     Raises
     ------
@@ -98,23 +109,29 @@ def parse_toml(text: str, name: str | None) -> tuple[dict, "tomlkit.TOMLDocument
     if markers:
         raise ProjectError(markers)
     try:
-        data = tomllib.loads(text)
+        return tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         raise ProjectError(_syntax_problem(exc, label)) from None
-    except RecursionError:
-        raise ProjectError(Problem(label, "", "lists or tables nested too deeply to read (a "
-                                   "project file needs only a few levels)")) from None
+
+
+def parse_doc(text: str, name: str | None) -> "tomlkit.TOMLDocument":
+    """The layout-keeping document of TOML text (``tomlkit``); raises ProjectError."""
     import tomlkit
     from tomlkit.exceptions import TOMLKitError
 
     try:
-        doc = tomlkit.parse(text)
+        return tomlkit.parse(text)
     except (TOMLKitError, ValueError, KeyError, IndexError) as exc:
         line = getattr(exc, "line", None)
         col = getattr(exc, "col", None)
-        raise ProjectError(Problem(label, "", f"TOML the editor cannot keep: {exc}", line,
-                                   col)) from None
-    return data, doc
+        raise ProjectError(Problem(name or "<text>", "", f"TOML the editor cannot keep: {exc}",
+                                   line, col)) from None
+
+
+def parse_toml(text: str, name: str | None) -> tuple[dict, "tomlkit.TOMLDocument"]:
+    """Parse text as TOML twice: plain data (tomllib) and the layout-keeping document."""
+    data = parse_data(text, name)
+    return data, parse_doc(text, name)
 
 
 def locate_key(text: str, key: str) -> int | None:
@@ -159,14 +176,14 @@ def project_from_doc(text: str, *, path: Path | None, name: str, loaded_hash: st
     """Validate text (already parsed when ``doc``/``data`` are given) into a Project."""
     from workbench.project.validate import check_data
 
-    if doc is None or data is None:
-        data, doc = parse_toml(text, name)
+    if data is None:
+        data = parse_data(text, name)
     system, problems = check_data(data, name)
     if problems or system is None:
         raise ProjectError(_with_lines(problems, text) or [Problem(name, "", "cannot build")])
     units = data.get("project", {}).get("units", "SI")
-    return Project(path=path, text=text, doc=doc, data=data, system=system,
-                   unit_system=units, loaded_hash=loaded_hash, name=name)
+    return Project(path=path, text=text, data=data, system=system, unit_system=units,
+                   loaded_hash=loaded_hash, name=name, _doc=doc)
 
 
 def load_project_text(text: str, name: str = "<text>") -> Project:

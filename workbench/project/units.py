@@ -303,6 +303,14 @@ def parse_value(text: object, kind: str) -> ParsedQuantity:
                             f"got the bare number {text!r}")
         raise UnitError(f"expected {_a(what)} as text with a unit, e.g. {spec.example!r}, "
                         f"got {type(text).__name__} {text!r}")
+    return _parse_text(text, kind)
+
+
+@lru_cache(maxsize=4096)
+def _parse_text(text: str, kind: str) -> ParsedQuantity:
+    """Parse one quantity text (cached: sweeps and edits re-read the same texts)."""
+    spec = QUANTITY_KINDS[kind]
+    what = spec.name
     value, unit_text = _split_number(text, what)
     if not unit_text:
         raise UnitError(f"{text!r} is not {_a(what)}: a unit is needed, e.g. {spec.example!r}")
