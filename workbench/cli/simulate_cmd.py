@@ -100,6 +100,13 @@ def run(args: argparse.Namespace) -> ExitCode:
     if not result.success and result.status == -1 and len(result.t) < 2:
         print(f"{args.project}: {result.message}", file=sys.stderr)
         return ExitCode.INVALID
+    from workbench.core.sanity import check_transient, describe
+
+    broken = check_transient(system, result)
+    if broken:
+        print(f"{args.project}: internal consistency check failed: {describe(broken)}; "
+              "please report", file=sys.stderr)
+        return ExitCode.INTERNAL
 
     if args.csv:
         from workbench.output.transient import transient_csv

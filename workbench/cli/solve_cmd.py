@@ -45,6 +45,13 @@ def run(args: argparse.Namespace) -> ExitCode:
     if not result.success:
         print(f"{args.project}: {result.message}", file=sys.stderr)
         return ExitCode.INVALID
+    from workbench.core.sanity import check_steady, describe
+
+    broken = check_steady(system, result)
+    if broken:
+        print(f"{args.project}: internal consistency check failed: {describe(broken)}; "
+              "please report", file=sys.stderr)
+        return ExitCode.INTERNAL
     if args.json:
         json.dump(steady_to_json(result, system), sys.stdout, indent=1, allow_nan=False)
         sys.stdout.write("\n")

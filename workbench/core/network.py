@@ -364,8 +364,14 @@ def solve_steady(system: System, *, levels: dict[str, float] | None = None,
     x = fc = fe = None
     status = 1
     newton = None
+    cut = np.zeros(lines.n, bool)
     for _pass in range(lines.n + 1):
         blocked = shut | back
+        # Junctions cut off from every fixed head (by shut valves) hold still: the lines
+        # among them carry no flow (their pinned heads must not drive any).
+        cut_off = [topo.node_index(j) for j in topo.unreached_junctions(~blocked)]
+        cut = np.isin(topo.line_from, cut_off) | np.isin(topo.line_to, cut_off)
+        blocked = blocked | cut
         newton = _Newton(lines, topo, h_fixed, x_open, blocked)
         x0 = newton.start()
         if x is not None:
@@ -399,8 +405,8 @@ def solve_steady(system: System, *, levels: dict[str, float] | None = None,
         )
         return SteadyResult(False, status, msg, total_it, residuals,
                             line_ids=topo.line_ids, solve_time=time.perf_counter() - t0)
-    return _assemble(system, topo, lines, newton, x, h_fixed, x_open, shut, back, levels,
-                     total_it, residuals, t0)
+    return _assemble(system, topo, lines, newton, x, h_fixed, x_open, shut | (cut & ~back), back,
+                     levels, total_it, residuals, t0)
 
 
 def _assemble(system, topo, lines, newton, x, h_fixed, x_open, shut, back, levels,

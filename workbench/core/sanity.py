@@ -248,10 +248,16 @@ def check_transient(system: System, result) -> list[Violation]:
         if not np.all(np.isfinite(arr)):
             out.append(Violation("finite", "", f"the {name} series holds {np.sum(~np.isfinite(arr))} "
                                  "non-finite values"))
-    for name, table in (("max_pressure", result.max_pressure), ("min_pressure", result.min_pressure)):
-        for lid, value in table.items():
-            if not np.isfinite(value):
-                out.append(Violation("finite", lid, f"{name} is {value!r}"))
+    for lid, high in result.max_pressure.items():
+        low = result.min_pressure.get(lid, np.inf)
+        # (-inf, +inf) is the solver's "never tracked" mark (a line standing empty or
+        # part-full all run; shown as no value); anything else must be finite.
+        never = high == -np.inf and low == np.inf
+        if not never and not (np.isfinite(high) and np.isfinite(low)):
+            out.append(Violation("finite", lid, f"pressure range {low!r} to {high!r} Pa"))
+        elif not never and low > high:
+            out.append(Violation("finite", lid, f"minimum pressure {low:.6g} Pa above the "
+                                 f"maximum {high:.6g} Pa"))
     if out:
         return out
     if t.size and np.any(np.diff(t) < 0.0):
