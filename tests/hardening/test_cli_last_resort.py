@@ -68,3 +68,13 @@ def test_numeric_warnings_do_not_print_ahead_of_the_message(tmp_path):
     assert "Warning" not in proc.stderr, proc.stderr
     if proc.returncode == 1:
         assert proc.stderr.startswith(str(path)), proc.stderr
+
+
+def test_a_file_nested_too_deeply_for_the_reader_gets_a_message(tmp_path, capsys):
+    # Found by the fuzz suite (twice: it came back in a refactor): tomllib recurses per
+    # nesting level and raised RecursionError on ``x = [[[[...]]]]`` a thousand deep.
+    path = Path(tmp_path) / "deep.toml"
+    path.write_text("schema = 1\njunk = " + "[" * 3000 + "]" * 3000 + "\n")
+    code = main(["check", str(path)])
+    assert code == ExitCode.INVALID
+    assert capsys.readouterr().err.startswith(f"{path}: lists or tables nested too deeply")

@@ -112,6 +112,9 @@ def parse_data(text: str, name: str | None) -> dict:
         return tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         raise ProjectError(_syntax_problem(exc, label)) from None
+    except RecursionError:
+        raise ProjectError(Problem(label, "", "lists or tables nested too deeply to read (a "
+                                   "project file needs only a few levels)")) from None
 
 
 def parse_doc(text: str, name: str | None) -> "tomlkit.TOMLDocument":
