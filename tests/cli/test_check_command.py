@@ -55,7 +55,7 @@ def test_a_missing_file_is_reported_not_raised(capsys, tmp_path):
     assert "no such file" in capsys.readouterr().err
 
 
-@pytest.mark.parametrize("path", sorted(BROKEN.glob("*.toml"))[:8], ids=lambda p: p.stem)
+@pytest.mark.parametrize("path", [BROKEN / n for n in ("unknown_unit.toml", "unterminated_string.toml", "several_problems.toml")], ids=lambda p: p.stem)
 def test_the_installed_command_never_prints_a_traceback(path):
     result = subprocess.run([sys.executable, "-m", "workbench", "check", str(path)],
                             capture_output=True, text=True, cwd=ROOT)

@@ -80,7 +80,7 @@ def test_a_reader_never_sees_a_partial_file_while_saves_run(project_file):
         "import sys\n"
         "from workbench.project.save import atomic_write\n"
         "texts = [open(sys.argv[2], encoding='utf-8').read(), open(sys.argv[3], encoding='utf-8').read()]\n"
-        "for i in range(300):\n"
+        "for i in range(120):\n"
         "    atomic_write(sys.argv[1], texts[i % 2])\n"
     )
     a, b = project_file.parent / "a.txt", project_file.parent / "b.txt"
