@@ -819,7 +819,10 @@ class _Run:
                     y_stop = y_new.copy() if t_stop == t_new else sol(t_stop)
                     self._peaks(y_stop[:nl])
                     delta = 1e-3 * (t_stop - t_old)
-                    qdot = (y_stop[:nl] - sol(t_stop - delta)[:nl]) / delta
+                    if delta > 0.0:
+                        qdot = (y_stop[:nl] - sol(t_stop - delta)[:nl]) / delta
+                    else:  # an event right at the step's start
+                        qdot = self.rhs(t_stop, y_stop)[:nl]
                     self.track(t_stop, y_stop, qdot)
                     t, y = t_stop, y_stop
                     self.report_progress(t)
