@@ -719,6 +719,12 @@ class _Run:
             if not stop.any():
                 break
             self.backstopped |= stop
+            if t_a > 0.0:
+                for i in np.flatnonzero(stop):
+                    lid = model.topo.line_ids[i]
+                    self._event(t_a, "line.reversal", lid,
+                                f"line {lid} cannot discharge: the head upstream is below its "
+                                "open outlet (air enters and the line stops)")
         # a reversal in the new configuration needs a real swing of the flow first
         self.peak_since_rev = np.zeros(model.nl)
         self._arm()
