@@ -260,8 +260,8 @@ def test_equalising_tanks_conserve_volume_and_end_level():
         [Reservoir("T1", "tank", 2.0, 4.0, shape=TankShape("vertical_cylinder", diameter=2.0)),
          Reservoir("T2", "tank", 0.0, 1.0, shape=TankShape("cone_bottom", diameter=3.0,
                                                            cone_height=0.5))],
-        [Line("L1", "T1", "T2", 30.0, 0.08, roughness=4.5e-5)],
-        duration=4000.0, initial="at_rest",
+        [Line("L1", "T1", "T2", 30.0, 0.04, roughness=4.5e-5)],
+        duration=20000.0, initial="at_rest",
     )
     res = simulate(system)
     assert res.success, res.message
