@@ -19,6 +19,7 @@ from __future__ import annotations
 import math
 import os
 import re
+import tempfile
 import tomllib
 from pathlib import Path
 from typing import Any
@@ -35,8 +36,6 @@ _BARE_KEY = re.compile(r"[A-Za-z0-9_-]+\Z")
 
 def atomic_write(path: str | os.PathLike, text: str) -> None:
     """Write ``text`` (UTF-8) to ``path`` atomically: temp file, flush, fsync, replace."""
-    import tempfile
-
     path = Path(path)
     folder = path.parent if str(path.parent) else Path(".")
     mode = None
