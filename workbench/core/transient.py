@@ -210,7 +210,8 @@ class _Model:
         self.nl = topo.n_lines
         rho = system.fluid.density
         self.rho = rho
-        self.alpha = G * self.lines.area / self.lines.length  # rho*g/I [1/(s^2 m)]... per m^2
+        # rho*g/I = g*A/L [m^2/s^2]: the rate of change of flow per metre of head
+        self.alpha = G * self.lines.area / self.lines.length
         self.m_dense = np.asarray(topo.incidence.toarray(), dtype=float)
         f_dense = np.asarray(topo.fixed_incidence.toarray(), dtype=float)
         self.f_dense = f_dense
@@ -277,12 +278,15 @@ class _Model:
             z_from = system.node_elevation(line.from_node)
             z_to = system.node_elevation(line.to_node)
             pts = [(0.0, z_from)]
+            end = (line.length, z_to)
             for d, z in line.profile:
                 if 0.0 < d < line.length:
                     pts.append((d, z))
                 elif d <= 0.0:
                     pts[0] = (0.0, z)
-            pts.append((line.length, z_to))
+                else:  # a profile point at (or past) the to-end gives its elevation
+                    end = (line.length, z)
+            pts.append(end)
             for d, z in pts:
                 frac.append(d / line.length)
                 elev.append(z)
