@@ -221,11 +221,10 @@ def transient_tables(result: TransientResult, system: System, unit_system: str =
 
     closing = {lid: s for lid, s in result.surge.items() if s.effective_closure is not None}
     if closing:
-        st = table("Surge screening of valve closures")
-        for col, just in (("line", "left"), ("wave speed", "right"), ("2L/a", "right"),
-                          ("effective closure", "right"), ("round trips", "right"),
-                          ("Joukowsky rise", "right"), ("verdict", "left")):
-            st.add_column(col, justify=just, no_wrap=col != "verdict")
+        st = table("Surge screening of valve closures (a: wave speed; trips: closure / 2L/a)")
+        for col in ("line", "a", "2L/a", "eff. closure", "trips", "Joukowsky"):
+            st.add_column(col, justify="left" if col == "line" else "right", no_wrap=True)
+        st.add_column("verdict", overflow="fold", ratio=1)
         for lid, s in closing.items():
             trips = (s.effective_closure / s.round_trip) if s.round_trip else None
             verdict = ("RAPID: elastic analysis needed" if s.rapid_closure
