@@ -800,7 +800,11 @@ class _Run:
                     msg = solver.step()
                     self.nsteps += 1
                     if solver.status == "failed":
-                        status, message = -1, f"integration failed at t = {solver.t:.6g} s: {msg}"
+                        status, message = -1, (
+                            f"integration failed at t = {solver.t:.6g} s: {msg}; results up "
+                            "to then are kept. Check for a valve that shuts almost at once, a "
+                            "line with almost no length or resistance, or a level at a tank's "
+                            "limits; a slower valve move or a shorter duration may help")
                         break
                     t_new, y_new = solver.t, solver.y
                     sol = solver.dense_output()

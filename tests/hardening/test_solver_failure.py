@@ -1,0 +1,143 @@
+"""Solver failures are reported in words with what to change, never as a result.
+
+Non-convergence, a singular Newton system, an integration that stalls and a tank that
+overflows: each through the core result (``success``, ``status``, ``message``) and through
+the CLI (exit 1 with the reason on stderr after the file name; exit 0 with a warning for
+the overflow, which is a result the engineer must see, not a failure).
+"""
+
+from __future__ import annotations
+
+import json
+
+import numpy as np
+import pytest
+
+from tests.hardening.harness import ROOT, run_cli, simulate_argv
+from workbench.cli.exit_codes import ExitCode
+from workbench.core import network
+from workbench.core.network import solve_steady
+from workbench.core.transient import simulate
+from workbench.project.document import load_project, load_project_text
+
+NETWORK = ROOT / "projects" / "fellgate_cooling_water_network.toml"
+TRANSFER = ROOT / "projects" / "fellgate_process_water_transfer.toml"
+DRAIN = ROOT / "projects" / "fellgate_neutraliser_drain.toml"
+
+
+def test_newton_that_runs_out_of_steps_says_so_and_what_to_check():
+    result = solve_steady(load_project(NETWORK).system, max_iterations=1)
+    assert not result.success and result.status == 1
+    assert "did not converge" in result.message
+    assert "check for lines with almost no resistance" in result.message
+
+
+def test_the_solve_command_reports_non_convergence_on_stderr_with_exit_1(monkeypatch):
+    real = network.solve_steady
+    monkeypatch.setattr(network, "solve_steady",
+                        lambda system, **kw: real(system, max_iterations=1, **kw))
+    outcome = run_cli(["solve", str(NETWORK), "--json"], project_path=str(NETWORK))
+    assert outcome.ok and outcome.code == ExitCode.INVALID
+    assert outcome.stderr.startswith(f"{NETWORK}: no steady solution found: did not converge")
+    assert "check for" in outcome.stderr and outcome.stdout == ""
+
+
+@pytest.mark.filterwarnings("ignore::RuntimeWarning")  # the overflow is the point
+def test_a_singular_newton_system_is_reported_in_words(tmp_path):
+    # A line 1e307 m long: its resistance overflows, the Jacobian has no usable entries.
+    text = DRAIN.read_text().replace('length = "86 m"', 'length = "9.9e307 m"')
+    system = load_project_text(text).system
+    result = solve_steady(system)
+    assert not result.success and result.status == 2
+    assert "singular" in result.message and "check for" in result.message
+    path = tmp_path / "huge.toml"
+    path.write_text(text)
+    outcome = run_cli(["solve", str(path)], project_path=str(path))
+    assert outcome.ok and outcome.code == ExitCode.INVALID
+    assert "no steady solution found" in outcome.stderr
+
+
+@pytest.fixture
+def stalling_integrator(monkeypatch):
+    """Radau that fails after a few steps, as it does when the step size underflows."""
+    from scipy import integrate
+
+    real = integrate.Radau._step_impl
+    calls = {"n": 0}
+
+    def step(self):
+        calls["n"] += 1
+        if calls["n"] > 5:
+            return False, "Required step size is less than spacing between numbers."
+        return real(self)
+
+    monkeypatch.setattr(integrate.Radau, "_step_impl", step)
+    return calls
+
+
+def test_an_integration_that_stalls_keeps_what_it_computed_and_says_what_to_change(
+        stalling_integrator):
+    system = load_project(TRANSFER).system
+    result = simulate(system, duration=60.0)
+    assert not result.success and result.status == -1
+    assert "integration failed at t = " in result.message
+    assert "slower valve move" in result.message
+    assert result.t.size >= 2 and np.all(np.isfinite(result.flows))
+
+
+def test_the_simulate_command_reports_a_stalled_integration_with_exit_1(stalling_integrator):
+    outcome = run_cli(simulate_argv(str(TRANSFER), "60 s"), project_path=str(TRANSFER))
+    assert outcome.code == ExitCode.INVALID
+    assert "Traceback" not in outcome.stderr
+    assert f"{TRANSFER}: integration failed at t = " in outcome.stderr
+    data = json.loads(outcome.stdout)  # the partial run, marked as such
+    assert data.get("success") is False
+
+
+OVERFLOWING = """
+schema = 1
+[project]
+title = "tank filled from a header above it"
+[fluid]
+kind = "water"
+temperature = "20 degC"
+[reservoirs.HEADER]
+kind = "constant_level"
+bottom_elevation = "30 m"
+level = "2 m"
+[reservoirs.TK]
+kind = "tank"
+shape = "vertical_cylinder"
+diameter = "1.2 m"
+height = "3 m"
+bottom_elevation = "0 m"
+level = "2.8 m"
+[lines.FILL]
+from = "HEADER"
+to = "TK"
+length = "40 m"
+inner_diameter = "100 mm"
+roughness = "0.045 mm"
+[simulation]
+duration = "60 s"
+"""
+
+
+def test_a_tank_that_overflows_is_an_event_and_a_danger_warning_with_advice(tmp_path):
+    # Inflow with the header 29 m above: the 0.2 m left below the overflow (0.23 m3 in a
+    # 1.2 m tank) fills in seconds. Overflow capacity is a design check (common practice).
+    system = load_project_text(OVERFLOWING).system
+    result = simulate(system, duration=60.0)
+    assert result.success
+    codes = [e.code for e in result.events]
+    assert "tank.overflow" in codes
+    warning = next(w for w in result.warnings if w.code == "tank.overflow")
+    assert warning.severity == "danger" and "overflow capacity" in warning.message
+    assert np.max(result.levels[result.tank_ids.index("TK")]) <= 3.0 + 1e-6
+    path = tmp_path / "overflow.toml"
+    path.write_text(OVERFLOWING)
+    outcome = run_cli(simulate_argv(str(path), "60 s"), project_path=str(path))
+    assert outcome.ok and outcome.code == ExitCode.OK
+    data = json.loads(outcome.stdout)
+    assert any(e["code"] == "tank.overflow" for e in data["events"])
+    assert any(w["code"] == "tank.overflow" for w in data["warnings"])
