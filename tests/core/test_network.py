@@ -312,3 +312,18 @@ def test_the_analytic_jacobian_matches_finite_differences_and_the_schur_step_sol
     np.testing.assert_allclose(jac, numeric, rtol=1e-5, atol=1e-6)
     full = spsolve(newton.jacobian(dh, x[newton.nj:]).tocsc(), -np.concatenate([fc, fe]))
     np.testing.assert_allclose(newton.step(fc, fe, dh), full, rtol=1e-9, atol=1e-12)
+
+
+@pytest.mark.parametrize("opening", [1e-12, 1e-9, 1e-6])
+def test_a_valve_opened_a_hair_still_converges_to_the_orifice_law(opening):
+    # Source: K = K_open/c^2 (IEC 60534-2-4 characteristic) and h = K v^2/2g: a nearly shut
+    # valve takes the whole head difference between J1 and the day tank, so
+    # q = A sqrt(2 g dH / K), with c on the tangent line c = x e ln(R)/R below 1/ln R.
+    result = solve_steady(three_reservoirs(), openings={"L3": opening})
+    assert result.success, result.message
+    r = 50.0
+    c = opening * math.e * math.log(r) / r
+    k = 0.2 / c**2
+    dh = result.nodes["J1"].head - 8.0
+    area = math.pi * 0.125**2 / 4
+    assert result.lines["L3"].flow == pytest.approx(area * math.sqrt(2 * G * dh / k), rel=1e-4)

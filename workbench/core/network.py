@@ -263,7 +263,12 @@ class _Newton:
         q_ref = v_ref * lines.area
         h_ref, dh_ref = lines.head_loss(q_ref, self.openings)
         r = np.where(self.blocked, np.inf, np.maximum(h_ref / q_ref, 1e-12))
-        self._dh_floor = 1e-6 * np.where(np.isfinite(r), r, 1.0)
+        # Floor on dh/dq for the Jacobian: the slope at zero flow (laminar friction and the
+        # K1/Re fitting terms, never above the true slope), or where that vanishes (a fixed
+        # friction factor) a small fraction of the secant resistance.
+        _, dh_zero = lines.head_loss(np.zeros(lines.n), self.openings)
+        self._dh_floor = np.where(dh_zero > 0.0, dh_zero,
+                                  1e-9 * np.where(np.isfinite(r), r, 1.0))
         g = np.where(self.blocked, 0.0, 1.0 / r)
         # Linear network: q = g (H_from - H_to), A q = 0  ->  (A g A^T) H = -A g (Af^T H_f).
         fixed_only = np.concatenate([np.zeros(self.nj), self.h_fixed])
@@ -301,7 +306,7 @@ class _Newton:
             it += 1
             m0 = self.merit(fc, fe, qscale)
             lam = 1.0
-            for _ in range(30):
+            for _ in range(60):  # down to 1e-18: nearly shut valves need tiny steps
                 xn = x + lam * step
                 fcn, fen, dhn = self.residual(xn)
                 if np.all(np.isfinite(fen)) and self.merit(fcn, fen, qscale) <= (1 - 1e-4 * lam) * m0:
