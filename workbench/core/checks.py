@@ -25,6 +25,7 @@ from workbench.core.friction import (
     RE_LAMINAR,
     RE_TURBULENT,
     friction_colebrook,
+    in_published_range,
 )
 from workbench.core.model import Finding, G, System
 
@@ -256,7 +257,7 @@ def steady_findings(system: System, line_ids, details: dict[str, np.ndarray], q:
                     f"f = {_fmt(f_used[i], 4)}",
                     "caution", "regime limits 2000 and 4000, common practice; Colebrook (1939)"))
             rr = line.roughness / line.diameter
-            if re >= RE_TURBULENT and not (re <= 1e8 and rr <= 0.05):
+            if re >= RE_TURBULENT and not in_published_range("colebrook", re, rr):
                 out.append(Finding(
                     "correlation.range", lid,
                     f"Re {_fmt(re)} or relative roughness {_fmt(rr)} lies outside the range of "
