@@ -348,7 +348,7 @@ def simulate(
     progress: Callable[[float], None] | None = None,
     cancel: Callable[[], bool] | None = None,
     method: str = "Radau",
-    rtol: float = 1e-6,
+    rtol: float = 1e-5,
     atol: float | None = None,
     output_interval: float | None = None,
     initial_state: str | None = None,
