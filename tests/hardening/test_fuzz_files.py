@@ -8,7 +8,7 @@ limit (see :mod:`tests.hardening.harness`).
 Budget: ``WORKBENCH_FUZZ_CASES`` (default 240) mutated demo files run through ``check`` and
 ``solve``, one in four also through ``simulate`` with a short ``--duration``; hypothesis
 draws ``WORKBENCH_FUZZ_CASES // 4`` generated projects (valid and damaged). The files of
-several megabytes run ``WORKBENCH_FUZZ_HEAVY`` cases (default 3). For a long hunt:
+several megabytes run ``WORKBENCH_FUZZ_HEAVY`` cases (default 2). For a long hunt:
 ``WORKBENCH_FUZZ_CASES=5000 WORKBENCH_FUZZ_HEAVY=20 .venv/bin/python -m pytest tests/hardening``
 (see docs/errors.md). Mutation cases are seeded: a failure names its seed and mutation.
 """
@@ -27,7 +27,10 @@ from tests.hardening.mutations import Case, mutate
 from tests.hardening.strategies import damaged_projects, to_toml, valid_projects
 
 CASES = int(os.environ.get("WORKBENCH_FUZZ_CASES", "240"))
-HEAVY = int(os.environ.get("WORKBENCH_FUZZ_HEAVY", "3"))
+HEAVY = int(os.environ.get("WORKBENCH_FUZZ_HEAVY", "2"))
+#: Time limit per call for the files of several megabytes [s]: Python's own TOML reader
+#: takes several seconds for 5 MB on a busy machine; a hang is what never ends.
+HEAVY_LIMIT = 120.0
 CHUNK = 40
 SIMULATE_EVERY = 4
 
@@ -38,10 +41,10 @@ def _write(folder: Path, case: Case) -> str:
     return str(path)
 
 
-def _run_case(folder: Path, case: Case, *, simulate: bool) -> list:
+def _run_case(folder: Path, case: Case, *, simulate: bool, limit: float | None = None) -> list:
     path = _write(folder, case)
-    outcomes = [run_cli(["check", path], project_path=path),
-                run_cli(["solve", path, "--json"], project_path=path)]
+    outcomes = [run_cli(["check", path], project_path=path, limit=limit),
+                run_cli(["solve", path, "--json"], project_path=path, limit=limit)]
     if simulate:
         outcomes.append(run_cli(simulate_argv(path, "5 s"), project_path=path))
     return outcomes
@@ -75,7 +78,7 @@ def test_files_of_several_megabytes_end_in_a_result_or_a_message(tmp_path, seed)
     case = mutate(10_000 + seed, heavy=True)
     assert len(case.text) > 1_000_000 or "junctions" in case.name
     failures: dict = defaultdict(list)
-    for outcome in _run_case(tmp_path, case, simulate=False):
+    for outcome in _run_case(tmp_path, case, simulate=False, limit=HEAVY_LIMIT):
         if not outcome.ok:
             failures[outcome.signature()].append((case.name, outcome))
     _assert_all_ended_well(failures)
@@ -83,7 +86,7 @@ def test_files_of_several_megabytes_end_in_a_result_or_a_message(tmp_path, seed)
 
 def test_a_damaged_file_is_refused_in_a_real_process_without_a_traceback(tmp_path):
     """A few cases through ``python -m workbench``: what a user on a shell actually sees."""
-    picked = [mutate(seed) for seed in (1, 2, 3)] + [mutate(10_000, heavy=True)]
+    picked = [mutate(seed) for seed in (1, 2)] + [mutate(10_000, heavy=True)]
     for case in picked:
         path = _write(tmp_path, case)
         for argv in (["check", path], ["solve", path, "--json"], simulate_argv(path, "2 s")):
