@@ -38,13 +38,15 @@ def make(path: Path, **kwargs):
 
 
 async def settle(pilot, *, timeout: float = 30.0) -> None:
-    """Wait until no steady solve is pending or running (workers, not sleeps)."""
+    """Wait until no steady solve is pending or running and the forms are built."""
     app = pilot.app
     waited = 0.0
     while waited < timeout:
         await pilot.pause()
         await app.workers.wait_for_complete()
-        if app.steady_status in {"fresh", "failed"} and app._steady_timer is None:
+        forms_ready = all(pane.prebuilt for pane in app.screen.query("SystemPane"))
+        if (app.steady_status in {"fresh", "failed"} and app._steady_timer is None
+                and forms_ready):
             await pilot.pause()
             return
         await pilot.pause(0.05)

@@ -30,14 +30,20 @@ class FieldInput(Input):
         Binding("escape", "revert", "Revert", id="field.revert"),
     ]
 
-    def __init__(self, field: Field, value: str) -> None:
+    def __init__(self, field: Field, value: str, choices: tuple[str, ...] | None = None) -> None:
+        suggester = None
+        if choices:
+            from textual.suggester import SuggestFromList
+
+            suggester = SuggestFromList(choices, case_sensitive=False)
         super().__init__(value, compact=True, placeholder=_placeholder(field),
-                         id=None, classes="field-editor")
+                         suggester=suggester, classes="field-editor")
         self.field = field
+        self.choices = choices
 
     def action_revert(self) -> None:
         """Put back the stored value and clear the message."""
-        row = self.parent.parent
+        row = self.parent
         if isinstance(row, FieldRow):
             row.revert()
 
@@ -51,56 +57,64 @@ def _placeholder(field: Field) -> str:
     return "required" if spec.required else ""
 
 
-class FieldRow(Vertical):
-    """Name, editor and display-unit hint on one line, the problem (if any) under them."""
+class FieldRow(Horizontal):
+    """Name, editor, and beside them the value in the display unit, or what is wrong.
+
+    A refused entry replaces the unit hint with the reason (wrapping onto more lines as
+    needed), so the message sits right beside the field it is about.
+    """
 
     class Focused(Message):
-        def __init__(self, field: Field) -> None:
+        """One of the row's widgets got the focus."""
+
+        def __init__(self, row: "FieldRow") -> None:
             super().__init__()
-            self.field = field
+            self.row = row
+            self.field = row.field
 
     def __init__(self, field: Field, stored: Any, choices: tuple[str, ...] | None) -> None:
         super().__init__(classes="field-row")
         self.field = field
         self.stored = stored
         self.choices = choices
+        self.problem = ""
+        self._hint_text = ""
+        self._editor: Input | Select | None = None
+        self._note: Static | None = None
 
     def compose(self) -> ComposeResult:
         spec = self.field.spec
-        with Horizontal(classes="field-line"):
-            mark = "*" if spec.required else " "
-            yield Label(f"{spec.name}{mark}", classes="field-name")
-            if self.choices:
-                options = [(c, c) for c in self.choices]
-                current = value_text(self.stored)
-                if current and current not in self.choices:
-                    options.append((current, current))
-                yield Select(options, value=current if current else Select.NULL,
-                             allow_blank=True, compact=True, classes="field-editor",
-                             prompt=str(spec.default) if spec.default is not None else "—")
-            else:
-                yield FieldInput(self.field, value_text(self.stored))
-            yield Static("", classes="field-hint")
-        yield Static("", classes="problem")
+        mark = "*" if spec.required else " "
+        yield Label(f"{spec.name}{mark}", classes="field-name")
+        # Choices are typed, with the rest of a matching word suggested (Right accepts);
+        # a plain input is far lighter to build than a drop-down, which keeps forms fast.
+        self._editor = FieldInput(self.field, value_text(self.stored), self.choices)
+        yield self._editor
+        self._note = Static("", classes="field-hint")
+        yield self._note
 
     @property
     def editor(self) -> Input | Select:
-        return self.query_one(".field-editor")
+        return self._editor
 
     def show_problem(self, text: str) -> None:
-        problem = self.query_one(".problem", Static)
-        problem.update(f"✗ {text}" if text else "")
-        problem.display = bool(text)
+        if text == self.problem:
+            return
+        self.problem = text
         self.set_class(bool(text), "-invalid")
+        self._show_note()
+
+    def _show_note(self) -> None:
+        if self._note is not None:
+            self._note.update(f"✗ {self.problem}" if self.problem else self._hint_text)
 
     def set_stored(self, stored: Any, unit_system: str) -> None:
         """Show a new stored value (after an edit, undo or redo elsewhere)."""
         changed = stored != self.stored
         self.stored = stored
-        editors = self.query(".field-editor")
-        if not editors:  # not composed yet: compose reads self.stored
+        editor = self._editor
+        if editor is None or not editor.is_mounted:
             return
-        editor = editors.first()
         text = value_text(stored)
         if isinstance(editor, Select):
             target = text if text else Select.NULL
@@ -109,8 +123,8 @@ class FieldRow(Vertical):
                     if text and text not in (self.choices or ()):
                         editor.set_options([(c, c) for c in (*self.choices, text)])
                     editor.value = target
-        elif changed or not self.has_class("-invalid"):
-            if editor.value != text and not (editor.has_focus and self.has_class("-invalid")):
+        elif changed or not self.problem:
+            if editor.value != text and not (editor.has_focus and self.problem):
                 editor.value = text
         if changed:
             self.show_problem("")
@@ -120,9 +134,14 @@ class FieldRow(Vertical):
         """Point the row at the same key of another element (values follow in set_stored)."""
         self.field = field
         self.show_problem("")
-        editor = self.editor
+        editor = self._editor
         if isinstance(editor, FieldInput):
             editor.field = field
+            if choices != self.choices and choices:
+                from textual.suggester import SuggestFromList
+
+                editor.suggester = SuggestFromList(choices, case_sensitive=False)
+            self.choices = editor.choices = choices
         elif isinstance(editor, Select) and choices != self.choices:
             self.choices = choices
             with editor.prevent(Select.Changed):
@@ -130,16 +149,19 @@ class FieldRow(Vertical):
         self.stored = object()  # forces the value to be shown afresh
 
     def revert(self) -> None:
-        editor = self.editor
-        if isinstance(editor, Input):
-            editor.value = value_text(self.stored)
+        if isinstance(self._editor, Input):
+            self._editor.value = value_text(self.stored)
         self.show_problem("")
 
     def show_hint(self, unit_system: str) -> None:
-        self.query_one(".field-hint", Static).update(hint(self.field, self.stored, unit_system))
+        text = hint(self.field, self.stored, unit_system)
+        if text != self._hint_text:
+            self._hint_text = text
+            if not self.problem:
+                self._show_note()
 
     def on_descendant_focus(self) -> None:
-        self.post_message(self.Focused(self.field))
+        self.post_message(self.Focused(self))
 
 
 def hint(field: Field, stored: Any, unit_system: str) -> str:
@@ -171,6 +193,7 @@ class FieldForm(VerticalScroll):
         super().__init__(**kwargs)
         self.entry: Entry | None = None
         self._building = asyncio.Lock()
+        self._rows: dict[str, list[FieldRow]] = {}
 
     async def show(self, entry: Entry | None, data: dict, unit_system: str) -> None:
         """Build the form for ``entry`` (or refresh values when it is already shown)."""
@@ -183,6 +206,14 @@ class FieldForm(VerticalScroll):
         self.entry = entry
         if entry is None:
             return
+        holder = await self._holder(entry, data)
+        for other in self.query(".form-section"):
+            other.display = other is holder
+        self.refresh_values(data, unit_system)
+        self.scroll_home(animate=False)
+
+    async def _holder(self, entry: Entry, data: dict, hidden: bool = False):
+        """The rows of ``entry``'s section, built if needed, bound to ``entry``'s keys."""
         holder_id = "form-" + entry.section
         holders = self.query(f"#{holder_id}")
         fields = form_fields(entry)
@@ -196,21 +227,27 @@ class FieldForm(VerticalScroll):
                 rows.append(FieldRow(field, lookup(data, field.keypath),
                                      choices_for(field, data)))
             holder = Vertical(*rows, id=holder_id, classes="form-section")
+            holder.display = not hidden
             await self.mount(holder)
+            self._rows[entry.section] = [r for r in rows if isinstance(r, FieldRow)]
         else:
             holder = holders.first()
-            for row, field in zip(holder.query(FieldRow), fields):
-                row.rebind(field, choices_for(field, data))
-        for other in self.query(".form-section"):
-            other.display = other is holder
-        self.refresh_values(data, unit_system)
-        self.scroll_home(animate=False)
+            if not hidden:
+                for row, field in zip(self._rows[entry.section], fields):
+                    row.rebind(field, choices_for(field, data))
+        return holder
+
+    async def prebuild(self, entries: list[Entry], data: dict) -> None:
+        """Build the forms of other sections while the user reads (mounting is slow)."""
+        for entry in entries:
+            async with self._building:
+                if not self.query("#form-" + entry.section):
+                    await self._holder(entry, data, hidden=True)
 
     def current_rows(self) -> list[FieldRow]:
         if self.entry is None:
             return []
-        holders = self.query("#form-" + self.entry.section)
-        return list(holders.first().query(FieldRow)) if holders else []
+        return self._rows.get(self.entry.section, [])
 
     def refresh_values(self, data: dict, unit_system: str) -> None:
         for row in self.current_rows():
@@ -225,18 +262,18 @@ class FieldForm(VerticalScroll):
     def on_input_submitted(self, event: Input.Submitted) -> None:
         if isinstance(event.input, FieldInput):
             event.stop()
-            self._commit(event.input.parent.parent, event.value)
+            self._commit(event.input.parent, event.value)
 
     def on_descendant_blur(self, event) -> None:
         widget = event.control if hasattr(event, "control") else None
         if isinstance(widget, FieldInput):
-            row = widget.parent.parent
+            row = widget.parent
             if isinstance(row, FieldRow) and widget.value != value_text(row.stored):
                 self._commit(row, widget.value)
 
     def on_select_changed(self, event: Select.Changed) -> None:
         event.stop()
-        row = event.select.parent.parent
+        row = event.select.parent
         if isinstance(row, FieldRow):
             value = "" if event.value is Select.NULL else str(event.value)
             self._commit(row, value)

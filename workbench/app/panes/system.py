@@ -6,7 +6,7 @@ from textual.app import ComposeResult
 from textual.containers import Horizontal, Vertical
 from textual.widgets import Static
 
-from workbench.app.outline import NOUN, Entry
+from workbench.app.outline import NOUN, Entry, entries
 from workbench.app.panes.elements import ElementList
 from workbench.app.panes.form import FieldForm, FieldRow
 
@@ -22,6 +22,9 @@ class SystemPane(Horizontal):
             yield Static("", id="field-help")
 
     def on_mount(self) -> None:
+        self._prebuilt = False
+        self.prebuilt = False
+        """True once every section's form is built (tests wait for it)."""
         self.watch(self.app, "project", self._project_changed)
         self.watch(self.app, "unit_system", self._units_changed, init=False)
 
@@ -31,6 +34,21 @@ class SystemPane(Horizontal):
         elements = self.query_one(ElementList)
         elements.show(project.data)
         await self._show_entry(elements.entry)
+        if not self._prebuilt:
+            self._prebuilt = True
+            self.set_timer(0.3, self._prebuild)
+
+    async def _prebuild(self) -> None:
+        project = self.app.project
+        if project is None:
+            return
+        firsts: dict[str, Entry] = {}
+        for entry in entries(project.data):
+            firsts.setdefault(entry.section, entry)
+        order = ["lines", "reservoirs", "receivers", "junctions", "fluid", "simulation"]
+        await self.query_one(FieldForm).prebuild(
+            [firsts[s] for s in order if s in firsts], project.data)
+        self.prebuilt = True
 
     async def _units_changed(self, _units: str) -> None:
         if self.app.project is not None:
@@ -53,4 +71,8 @@ class SystemPane(Horizontal):
 
     def on_field_row_focused(self, message: FieldRow.Focused) -> None:
         spec = message.field.spec
-        self.query_one("#field-help", Static).update(f"{message.field.keypath}: {spec.help}")
+        text = f"{message.field.keypath}: {spec.help}"
+        row = message.row
+        if row.choices:
+            text += " · one of: " + ", ".join(row.choices)
+        self.query_one("#field-help", Static).update(text)
