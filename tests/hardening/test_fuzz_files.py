@@ -10,7 +10,8 @@ Budget: ``WORKBENCH_FUZZ_CASES`` (default 240) mutated demo files run through ``
 draws ``WORKBENCH_FUZZ_CASES // 4`` generated projects (valid and damaged). The files of
 several megabytes run ``WORKBENCH_FUZZ_HEAVY`` cases (default 2). For a long hunt:
 ``WORKBENCH_FUZZ_CASES=5000 WORKBENCH_FUZZ_HEAVY=20 .venv/bin/python -m pytest tests/hardening``
-(see docs/errors.md). Mutation cases are seeded: a failure names its seed and mutation.
+(see docs/errors.md). Mutation cases are seeded: a failure names its seed and mutation;
+``WORKBENCH_FUZZ_START`` sets the first seed.
 """
 
 from __future__ import annotations
@@ -27,6 +28,8 @@ from tests.hardening.mutations import Case, mutate
 from tests.hardening.strategies import damaged_projects, to_toml, valid_projects
 
 CASES = int(os.environ.get("WORKBENCH_FUZZ_CASES", "240"))
+#: First seed of the mutation cases (a long hunt can start where the last one stopped).
+START = int(os.environ.get("WORKBENCH_FUZZ_START", "0"))
 HEAVY = int(os.environ.get("WORKBENCH_FUZZ_HEAVY", "2"))
 #: Time limit per call for the files of several megabytes [s]: Python's own TOML reader
 #: takes several seconds for 5 MB on a busy machine; a hang is what never ends.
@@ -47,7 +50,25 @@ def _run_case(folder: Path, case: Case, *, simulate: bool, limit: float | None =
                 run_cli(["solve", path, "--json"], project_path=path, limit=limit)]
     if simulate:
         outcomes.append(run_cli(simulate_argv(path, "5 s"), project_path=path))
+        outcomes.append(_format_keeps_the_data(path, limit))
     return outcomes
+
+
+def _format_keeps_the_data(path: str, limit: float | None):
+    """``format`` on a damaged file: a message, or the same data in canonical form, twice."""
+    import tomllib
+
+    before = Path(path).read_text(encoding="utf-8")
+    outcome = run_cli(["format", path], project_path=path, limit=limit)
+    if outcome.ok and outcome.code == 0:
+        after = Path(path).read_text(encoding="utf-8")
+        if tomllib.loads(after) != tomllib.loads(before.removeprefix("\ufeff")):
+            outcome.problems.append("format changed the data")
+        elif run_cli(["format", "--check", path], limit=limit).code != 0:
+            outcome.problems.append("format is not idempotent")
+    elif outcome.ok and Path(path).read_text(encoding="utf-8") != before:
+        outcome.problems.append("format refused the file but rewrote it")
+    return outcome
 
 
 def _assert_all_ended_well(failures: dict) -> None:
@@ -63,7 +84,7 @@ def _assert_all_ended_well(failures: dict) -> None:
 def test_mutated_demo_files_end_in_a_result_or_a_message(tmp_path, start):
     failures: dict = defaultdict(list)
     ran = 0
-    for seed in range(start, min(start + CHUNK, CASES)):
+    for seed in range(START + start, START + min(start + CHUNK, CASES)):
         case = mutate(seed)
         for outcome in _run_case(tmp_path, case, simulate=seed % SIMULATE_EVERY == 0):
             ran += 1
