@@ -179,6 +179,9 @@ def check_steady(system: System, result) -> list[Violation]:
         if (shut or lr.status == "closed") and lr.flow != 0.0:
             out.append(Violation("closed_valve", lid, f"flow {lr.flow:.6g} m3/s through a "
                                  "shut valve"))
+        elif lr.status in ("isolated", "drains_back") and lr.flow != 0.0:
+            out.append(Violation("continuity", lid, f"flow {lr.flow:.6g} m3/s in a line "
+                                 f"reported as {lr.status.replace('_', ' ')} (no flow)"))
 
     # Energy along every path of flowing lines from the fixed heads (and around loops).
     flowing = {lid: system.lines[lid] for lid, lr in result.lines.items()
