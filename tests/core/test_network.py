@@ -327,3 +327,19 @@ def test_a_valve_opened_a_hair_still_converges_to_the_orifice_law(opening):
     dh = result.nodes["J1"].head - 8.0
     area = math.pi * 0.125**2 / 4
     assert result.lines["L3"].flow == pytest.approx(area * math.sqrt(2 * G * dh / k), rel=1e-4)
+
+
+def test_lines_among_junctions_cut_off_by_shut_valves_carry_no_flow():
+    # Trapped liquid between two shut valves cannot flow, whatever the junction elevations.
+    shut = Valve("linear", 0.2, opening=0.0)
+    system = make_system(
+        reservoirs=[tank("A", 5.0, 1.0), tank("B", 0.0, 1.0)],
+        junctions=[Junction("J1", 4.0), Junction("J2", 0.0)],
+        lines=[pipe("L1", "A", "J1", 10.0, 0.05, valve=shut),
+               pipe("L2", "J1", "J2", 10.0, 0.05),
+               pipe("L3", "J2", "B", 10.0, 0.05, valve=shut)],
+    )
+    result = solve_steady(system)
+    assert result.success, result.message
+    assert result.lines["L2"].flow == 0.0 and result.lines["L2"].status == "isolated"
+    assert {w.element for w in result.warnings if w.code == "node.isolated"} == {"J1", "J2"}

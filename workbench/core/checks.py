@@ -10,7 +10,8 @@ site's atmospheric pressure (:attr:`System.atmospheric_pressure`).
 Findings carry stable codes (``regime.laminar``, ``regime.transitional``,
 ``correlation.range``, ``profile.subatmospheric``, ``profile.vapor``,
 ``profile.vapor_unchecked``, ``velocity.high``, ``velocity.low``, ``drain.self_venting``,
-``outlet.submergence``, ``line.closed``, ``line.drains_back``, ``node.isolated``), the element
+``outlet.submergence``, ``line.closed``, ``line.drains_back``, ``line.isolated``,
+``node.isolated``), the element
 id, words a user can act on, a severity and a source ("common practice" where there is none).
 """
 
@@ -226,6 +227,11 @@ def steady_findings(system: System, line_ids, details: dict[str, np.ndarray], q:
         st = status[i]
         if st == "closed":
             out.append(Finding("line.closed", lid, "the valve is shut: the line carries no flow",
+                               "info", "model"))
+        elif st == "isolated":
+            out.append(Finding("line.isolated", lid,
+                               "the line lies among junctions cut off from every known head by "
+                               "shut valves: no flow, its pressures are undetermined",
                                "info", "model"))
         elif st == "drains_back":
             recv = line.to_node if line.to_node in system.receivers else line.from_node

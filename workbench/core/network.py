@@ -85,7 +85,9 @@ class LineResult:
     velocity_head: float
     """v^2/2g [m]."""
     status: str
-    """``"flowing"``, ``"closed"`` (valve shut) or ``"drains_back"``."""
+    """``"flowing"``, ``"closed"`` (valve shut), ``"drains_back"`` (would run backwards
+    from an open discharge: no flow) or ``"isolated"`` (between junctions cut off from
+    every known head by shut valves: no flow)."""
     from_node: str
     to_node: str
 
@@ -410,22 +412,23 @@ def solve_steady(system: System, *, levels: dict[str, float] | None = None,
         )
         return SteadyResult(False, status, msg, total_it, residuals,
                             line_ids=topo.line_ids, solve_time=time.perf_counter() - t0)
-    return _assemble(system, topo, lines, newton, x, h_fixed, x_open, shut | (cut & ~back), back,
-                     levels, total_it, residuals, t0)
+    return _assemble(system, topo, lines, newton, x, h_fixed, x_open, shut, back, levels,
+                     total_it, residuals, t0, cut & ~shut & ~back)
 
 
 def _assemble(system, topo, lines, newton, x, h_fixed, x_open, shut, back, levels,
-              iterations, residuals, t0) -> SteadyResult:
+              iterations, residuals, t0, cut=None) -> SteadyResult:
     nj = topo.n_junctions
     hj = x[:nj].copy()
     hj[newton.isolated] = np.nan
     q = x[nj:].copy()
-    q[shut | back] = 0.0
+    cut = np.zeros(lines.n, bool) if cut is None else cut
+    q[shut | back | cut] = 0.0
     rho = system.fluid.density
     det = lines.details(q, x_open)
     node_h = np.concatenate([hj, h_fixed])
-    status = ["closed" if shut[i] else "drains_back" if back[i] else "flowing"
-              for i in range(lines.n)]
+    status = ["closed" if shut[i] else "drains_back" if back[i] else
+              "isolated" if cut[i] else "flowing" for i in range(lines.n)]
     line_results: dict[str, LineResult] = {}
     cols = {k: np.abs(det[k]).tolist() for k in (
         "friction_loss", "fittings_loss", "valve_loss", "entrance_loss", "exit_loss",
