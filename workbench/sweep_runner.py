@@ -322,12 +322,42 @@ def _usable_stderr():
             sys.stderr = saved
 
 
+#: Modules every case needs; imported before worker processes start so that they start warm.
+_CASE_MODULES = (
+    "workbench.project.document",
+    "workbench.core.network",
+    "workbench.core.transient",
+    "workbench.core.elastic",
+    "workbench.output.steady",
+    "workbench.output.transient",
+    "workbench.output.elastic",
+    "workbench.cli.elastic_option",
+    "workbench.sweep_runner",
+)
+
+
 def _pool_context():
+    """How worker processes start.
+
+    From a single-threaded process (the CLI), ``fork``: the workers inherit the modules
+    already imported and start at once. From a threaded one (the app runs sweeps in a
+    worker thread, where forking is unsafe), ``forkserver`` with the case modules preloaded,
+    so each worker forks from one warm server instead of importing scipy and the rest again.
+    """
+    import importlib
     import multiprocessing
+    import threading
 
     methods = multiprocessing.get_all_start_methods()
-    # forkserver: safe from a threaded parent (the app runs sweeps in a worker thread).
-    return multiprocessing.get_context("forkserver" if "forkserver" in methods else "spawn")
+    if "fork" in methods and threading.active_count() == 1:
+        for name in _CASE_MODULES:
+            importlib.import_module(name)
+        return multiprocessing.get_context("fork")
+    if "forkserver" in methods:
+        ctx = multiprocessing.get_context("forkserver")
+        ctx.set_forkserver_preload(list(_CASE_MODULES))
+        return ctx
+    return multiprocessing.get_context("spawn")
 
 
 def run_sweep(
@@ -365,11 +395,20 @@ def run_sweep(
 
         n = workers or os.cpu_count() or 1
         quiet = not _stderr_is_real()
+        context = _pool_context()
+        remaining = list(plan.cases)
+        if context.get_start_method() == "fork":
+            # The first case runs here: it imports whatever the solvers load lazily, and the
+            # forked workers inherit all of it instead of each importing it again.
+            first = remaining.pop(0)
+            solved[first.index] = solve_case(project, first.settings, True)
+            if progress:
+                progress(len(solved), total)
         with _usable_stderr(), ProcessPoolExecutor(
-            max_workers=min(n, total), mp_context=_pool_context(),
+            max_workers=max(1, min(n, len(remaining))), mp_context=context,
             initializer=_worker_init, initargs=(project.text, project.name, quiet),
         ) as pool:
-            pending = {pool.submit(_worker_case, c.settings, True): c.index for c in plan.cases}
+            pending = {pool.submit(_worker_case, c.settings, True): c.index for c in remaining}
             while pending:
                 done, _ = wait(pending, timeout=0.2, return_when=FIRST_COMPLETED)
                 for fut in done:
