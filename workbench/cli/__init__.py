@@ -27,6 +27,7 @@ COMMANDS: dict[str, tuple[str, str]] = {
     "open": ("workbench.cli.open_cmd", "open a project in the keyboard-driven terminal workbench"),
     "sweep": ("workbench.cli.sweep_cmd", "what-if sweeps: vary inputs, judge each case, name the first that passes"),
     "report": ("workbench.cli.report_cmd", "write the Markdown calculation record (and CSV exports) of a project"),
+    "cautions": ("workbench.cli.cautions_cmd", "print the safety cautions that go with every result"),
 }
 
 
