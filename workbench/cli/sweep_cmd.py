@@ -58,8 +58,10 @@ def _progress_bar():
     from rich.console import Console
     from rich.progress import BarColumn, MofNCompleteColumn, Progress, TextColumn, TimeRemainingColumn
 
+    # No refresh thread (auto_refresh off; the callback refreshes): worker processes can then
+    # be forked from this single-threaded process and start warm.
     return Progress(TextColumn("sweep"), BarColumn(), MofNCompleteColumn(), TimeRemainingColumn(),
-                    console=Console(stderr=True), transient=True)
+                    console=Console(stderr=True), transient=True, auto_refresh=False)
 
 
 def _print_table(project, sweep: dict, keypaths) -> None:
@@ -136,8 +138,11 @@ def run(args: argparse.Namespace) -> ExitCode:
         else:
             with bar:
                 task = bar.add_task("sweep", total=len(plan.cases))
-                outcome = run_sweep(project, plan, workers=args.workers,
-                                    progress=lambda done, total: bar.update(task, completed=done))
+                def advance(done: int, total: int) -> None:
+                    bar.update(task, completed=done)
+                    bar.refresh()
+
+                outcome = run_sweep(project, plan, workers=args.workers, progress=advance)
         sweep = outcome.to_json()
     if plan.criteria:
         sweep["criteria"] = [c.text for c in plan.criteria]
