@@ -134,6 +134,34 @@ def bench_steady(n: int, n_loop: int) -> None:
     print(f"  largest relative velocity difference vs the loop: {diff:.2e}")
 
 
+def _spin(n: int) -> int:
+    total = 0
+    for i in range(n):
+        total += i * i
+    return total
+
+
+def free_parallelism() -> float:
+    """Speed-up of two plain CPU loops in two processes over one after the other.
+
+    About 2 on an idle two-core machine; near 1 when other work already fills the cores,
+    in which case no process pool can show a speed-up either.
+    """
+    from concurrent.futures import ProcessPoolExecutor
+
+    n = 4_000_000
+    t0 = time.perf_counter()
+    _spin(n)
+    _spin(n)
+    serial = time.perf_counter() - t0
+    with ProcessPoolExecutor(2) as pool:
+        list(pool.map(_spin, [1000, 1000]))  # start the workers outside the timing
+        t0 = time.perf_counter()
+        list(pool.map(_spin, [n, n]))
+        parallel = time.perf_counter() - t0
+    return serial / parallel
+
+
 def bench_transient(n: int, serial: bool) -> None:
     from workbench.project.document import load_project
     from workbench.sweep_runner import plan_sweep, run_sweep
@@ -148,7 +176,9 @@ def bench_transient(n: int, serial: bool) -> None:
         outcome = run_sweep(project, plan)
         wall = time.perf_counter() - t0
         failed = sum(1 for c in outcome.cases if c.error)
-        print(f"Transient sweep: {n} simulated drain cases on {cores} cores")
+        print(f"Transient sweep: {n} simulated drain cases on {cores} cores "
+              f"(control: two plain CPU loops run {free_parallelism():.2f}x faster in two processes; "
+              f"load average {os.getloadavg()[0]:.1f})")
         print(f"  process pool           : {wall:8.2f} s wall ({n / wall:.1f} cases/s), failed cases {failed},"
               f" first passing #{outcome.first_passing}")
         if serial:
