@@ -226,3 +226,29 @@ def test_cases_built_from_systems_balance_the_network_line_model_head_loss(valve
     for system, q, dh in zip(systems, result.flow, cases.head_from - cases.head_to):
         h, _ = LineSet(system).head_loss(np.array([q]))
         assert float(h[0]) == pytest.approx(dh, rel=1e-9)
+
+
+def test_both_friction_implementations_give_the_same_flows() -> None:
+    # Newton on Colebrook (ours) against the network solver's Clamond (2009) implementation:
+    # two independent solutions of the same law must agree to rounding.
+    from workbench.core.sweep import FRICTION_METHODS
+
+    rng = np.random.default_rng(3)
+    n = 500
+    cases = LineCases.from_mapping(dict(
+        head_from=rng.uniform(0.05, 30.0, n), head_to=0.0, length=rng.uniform(1.0, 300.0, n),
+        diameter=rng.uniform(0.01, 0.3, n), roughness=rng.choice([0.0, 4.5e-5, 1.5e-4], n),
+        density=998.0, viscosity=10 ** rng.uniform(-3.0, -0.5, n), k_forward=rng.uniform(0.5, 8.0, n)))
+    assert set(FRICTION_METHODS) == {"colebrook_blend", "network"}
+    ours = solve_line_cases(cases, method="colebrook_blend")
+    network = solve_line_cases(cases, method="network")
+    assert ours.success and network.success
+    np.testing.assert_allclose(ours.flow, network.flow, rtol=1e-11)
+    assert np.any(ours.reynolds < 2000) and np.any((ours.reynolds > 2000) & (ours.reynolds < 4000))
+
+
+def test_an_unknown_friction_method_is_refused_with_the_known_names() -> None:
+    cases = LineCases.from_mapping(dict(head_from=1.0, head_to=0.0, length=1.0, diameter=0.1,
+                                        roughness=0.0, density=1000.0, viscosity=1e-3, k_forward=1.5))
+    with pytest.raises(ValueError, match="colebrook_blend"):
+        solve_line_cases(cases, method="moody")

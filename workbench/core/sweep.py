@@ -166,11 +166,27 @@ def darcy_friction_vectorised(re, rel_roughness) -> tuple[np.ndarray, np.ndarray
     return f, df
 
 
-FrictionMethod = Callable[[np.ndarray, np.ndarray], tuple[np.ndarray, np.ndarray]]
+def network_friction(re, rel_roughness) -> tuple[np.ndarray, np.ndarray]:
+    """The network solver's friction law (:func:`workbench.core.friction.friction_re_product`).
+
+    The same laminar/blend/Colebrook law as :func:`darcy_friction_vectorised`, with Colebrook
+    solved by Clamond's (2009) method instead of Newton's: a second, independent
+    implementation, and the one to pick to match ``solve_steady`` bit for bit.
+    """
+    from workbench.core.friction import friction_re_product
+
+    re = np.asarray(re, dtype=float)
+    phi, dphi = friction_re_product(re, rel_roughness)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return phi / re, (dphi - phi / re) / re
+
+
+VectorisedFriction = Callable[[np.ndarray, np.ndarray], tuple[np.ndarray, np.ndarray]]
 
 #: Vectorised friction methods by name: each maps (Re, eps/D) to (f, df/dRe).
-FRICTION_METHODS: dict[str, FrictionMethod] = {
+FRICTION_METHODS: dict[str, VectorisedFriction] = {
     "colebrook_blend": darcy_friction_vectorised,
+    "network": network_friction,
 }
 
 
@@ -255,7 +271,7 @@ class LineCasesResult:
     """Newton iterations taken by the slowest case."""
 
 
-def _resistance(v, cases: LineCases, k_const, friction: FrictionMethod):
+def _resistance(v, cases: LineCases, k_const, friction: VectorisedFriction):
     """Loss coefficient K_t(V) = f L/D + K_c + k_re/Re and dK_t/dV, for V > 0."""
     nu = cases.viscosity / cases.density
     re = v * cases.diameter / nu
