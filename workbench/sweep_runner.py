@@ -180,6 +180,13 @@ def prepared_base(project: Project, axes: Sequence[Axis]) -> Project:
     return project
 
 
+def _unexpected(exc: Exception) -> str:
+    """Words for a solver exception: a set-up problem (ValueError) as is, else a bug."""
+    if isinstance(exc, ValueError):
+        return str(exc) or type(exc).__name__
+    return f"internal error ({type(exc).__name__}): {exc} - please report it"
+
+
 def _apply(project: Project, settings) -> Project:
     from workbench.project.document import set_value
 
@@ -212,7 +219,7 @@ def solve_case(project: Project, settings, simulate: bool) -> tuple[dict | None,
         else:
             errors.append(f"steady: {result.message}")
     except Exception as exc:  # noqa: BLE001 - a case's failure is reported, the sweep goes on
-        errors.append(f"steady: {type(exc).__name__}: {exc}")
+        errors.append(f"steady: {_unexpected(exc)}")
     if simulate:
         try:
             from workbench.core.transient import simulate as run_simulation
@@ -223,12 +230,12 @@ def solve_case(project: Project, settings, simulate: bool) -> tuple[dict | None,
             if not sim.success:
                 errors.append(f"simulation: {sim.message}")
         except Exception as exc:  # noqa: BLE001 - reported per case
-            errors.append(f"simulation: {type(exc).__name__}: {exc}")
+            errors.append(f"simulation: {_unexpected(exc)}")
         if sim_json is not None:
             try:
                 _add_elastic(sim_json, system)
             except Exception as exc:  # noqa: BLE001 - reported per case
-                errors.append(f"elastic surge: {type(exc).__name__}: {exc}")
+                errors.append(f"elastic surge: {_unexpected(exc)}")
     return steady_json, sim_json, ("; ".join(errors) or None)
 
 
