@@ -316,7 +316,7 @@ def mutate(seed: int, *, heavy: bool = False) -> Case:
             mutation = rng.choice(DATA_MUTATIONS)
             try:
                 labels.append(mutation(data, rng))
-            except (KeyError, TypeError, IndexError, ValueError, AttributeError):
+            except (KeyError, TypeError, IndexError, ValueError, AttributeError, StopIteration):
                 labels.append(f"({mutation.__name__} did not apply)")  # earlier damage
         text = dumps(data)
     return Case(f"seed{seed}-{demo.stem}: " + "; ".join(labels), text)
