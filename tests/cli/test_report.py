@@ -237,3 +237,15 @@ def test_lines_marked_elastic_get_the_elastic_surge_run_and_its_findings(tmp_pat
     assert findings, "the closure was meant to give an elastic finding"
     for w in findings:
         assert w["message"].replace("|", "\\|") in text
+
+
+def test_every_table_renders_as_a_table_in_a_gfm_parser(record) -> None:
+    # Outside reference: markdown-it-py (CommonMark with the GFM table extension, the parser
+    # rich itself uses). Every delimiter row must give one <table>, and nothing may pass
+    # through as raw HTML.
+    from markdown_it import MarkdownIt
+
+    html = MarkdownIt("commonmark", {"html": False}).enable("table").render(record)
+    delimiter_rows = sum(1 for line in record.splitlines() if re.match(r"^\| (---:?|:?---) \|", line))
+    assert html.count("<table>") == delimiter_rows > 0
+    assert "&lt;" not in html.replace("&lt;=", "")
