@@ -84,9 +84,10 @@ def _q(value: float | None, kind: str, units: str, digits: int = 4) -> str:
         return "-"
     if isinstance(value, float) and math.isinf(value):
         return "infinite"
+    from workbench.output.sweep_table import tidy
     from workbench.project.units import format_quantity
 
-    return format_quantity(float(value), kind, units, digits)
+    return format_quantity(tidy(float(value), kind), kind, units, digits)
 
 
 def _num(value: float | None, digits: int = 4) -> str:

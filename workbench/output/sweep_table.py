@@ -13,7 +13,7 @@ from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from pathlib import Path
 
-__all__ = ["SweepColumn", "display_rows", "format_time", "sweep_table", "write_csv"]
+__all__ = ["SweepColumn", "display_rows", "format_time", "sweep_table", "tidy", "write_csv"]
 
 #: SI unit written in CSV headers for each quantity kind used here.
 _SI_UNITS = {"flow": "m^3/s", "velocity": "m/s", "time": "s", "pressure": "Pa", "head": "m"}
@@ -102,6 +102,15 @@ def sweep_table(sweep: Mapping, keypaths: Sequence[str] | None = None) -> tuple[
     return columns, rows
 
 
+#: Magnitudes below which an SI value is rounding noise of the solvers, shown as 0.
+_NOISE = {"pressure": 1e-6, "pressure_abs": 1e-6, "head": 1e-9, "flow": 1e-12, "velocity": 1e-9}
+
+
+def tidy(value: float, kind: str | None) -> float:
+    """``value`` with solver rounding noise (e.g. -3e-13 Pa at a free outlet) set to 0."""
+    return 0.0 if kind in _NOISE and abs(value) < _NOISE[kind] else value
+
+
 def format_time(seconds: float) -> str:
     """Readable duration: ``'45 s'``, ``'12.5 min'``, ``'3.25 h'``; ``'not reached'`` for inf."""
     if seconds is None:
@@ -129,7 +138,7 @@ def display_rows(columns: Sequence[SweepColumn], rows: Sequence[Mapping], unit_s
             elif col.kind == "time":
                 cells.append(format_time(float(value)))
             elif col.kind is not None:
-                cells.append(format_quantity(float(value), col.kind, unit_system))
+                cells.append(format_quantity(tidy(float(value), col.kind), col.kind, unit_system))
             else:
                 cells.append(str(value))
         out.append(cells)
