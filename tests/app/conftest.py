@@ -34,6 +34,7 @@ def make(path: Path, **kwargs):
     from workbench.project.document import load_project
 
     kwargs.setdefault("debounce", 0.05)
+    kwargs.setdefault("prebuild_forms", False)
     return make_app(load_project(path), path=path, **kwargs)
 
 

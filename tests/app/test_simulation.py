@@ -97,7 +97,11 @@ async def test_escape_stops_a_running_simulation(project_file):
     app = make(path)
     async with app.run_test(size=SIZE) as pilot:
         await settle(pilot)
-        await pilot.press("ctrl+r", "escape")
+        # Start the run without waiting for the app to go idle (the pilot's key press
+        # would wait for the run to end), then press Escape while it runs.
+        app.action_simulate()
+        assert app.run_status == "running"
+        await pilot.press("escape")
         await app.workers.wait_for_complete()
         await pilot.pause()
         assert app.run_status == "cancelled"

@@ -125,6 +125,7 @@ class WorkbenchApp(App[int]):
         offer_new: bool = False,
         unit_system: str | None = None,
         debounce: float = DEBOUNCE,
+        prebuild_forms: bool = True,
     ) -> None:
         super().__init__()
         self._initial_project = project
@@ -132,6 +133,7 @@ class WorkbenchApp(App[int]):
         self._offer_new = offer_new
         self._unit_override = unit_system
         self.debounce = debounce
+        self.prebuild_forms = prebuild_forms
         self.history: History[Any] | None = None
         self.disk_hash: str | None = None
         self.transient_system: Any = None

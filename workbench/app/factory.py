@@ -13,6 +13,7 @@ def make_app(
     offer_new: bool = False,
     unit_system: str | None = None,
     debounce: float | None = None,
+    prebuild_forms: bool = True,
 ):
     """Build the workbench around a project.
 
@@ -22,6 +23,8 @@ def make_app(
         offer_new: with neither, ask to start from the starter template.
         unit_system: ``"SI"`` or ``"US"`` to override the file's display preference.
         debounce: seconds between an edit and its steady solve (tests may shorten it).
+        prebuild_forms: build every section's form in idle time after loading, so that
+            moving through the element list is quick (tests skip it to run faster).
     """
     from workbench.app.app import DEBOUNCE, WorkbenchApp
 
@@ -31,4 +34,5 @@ def make_app(
         offer_new=offer_new,
         unit_system=unit_system,
         debounce=DEBOUNCE if debounce is None else debounce,
+        prebuild_forms=prebuild_forms,
     )

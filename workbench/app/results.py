@@ -131,3 +131,30 @@ def duration_text(seconds: float) -> str:
         return f"{minutes} min {sec:02d} s"
     hours, minutes = divmod(minutes, 60)
     return f"{hours} h {minutes:02d} min"
+
+
+def decimate(x, y, buckets: int = 300) -> tuple[list[float], list[float]]:
+    """At most ``2*buckets`` points of a series for a terminal plot, keeping its peaks.
+
+    Each bucket of consecutive samples keeps its lowest and highest point (in time
+    order), so a short pressure spike or a flow reversal survives the thinning.
+    """
+    import numpy as np
+
+    x = np.asarray(x, dtype=float)
+    y = np.asarray(y, dtype=float)
+    n = len(x)
+    if n <= 2 * buckets:
+        return x.tolist(), y.tolist()
+    edges = np.linspace(0, n, buckets + 1).astype(int)
+    keep: list[int] = []
+    for lo, hi in zip(edges[:-1], edges[1:]):
+        if hi <= lo:
+            continue
+        chunk = y[lo:hi]
+        a, b = lo + int(np.nanargmin(chunk)), lo + int(np.nanargmax(chunk))
+        keep.extend(sorted({a, b}))
+    if keep[-1] != n - 1:
+        keep.append(n - 1)
+    index = np.asarray(keep)
+    return x[index].tolist(), y[index].tolist()

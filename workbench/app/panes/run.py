@@ -13,7 +13,7 @@ from textual.binding import Binding
 from textual.containers import Horizontal, Vertical
 from textual.widgets import ProgressBar, SelectionList, Static
 
-from workbench.app.results import _get
+from workbench.app.results import _get, decimate
 
 RUN_WORDS = {
     "idle": "not run yet: Ctrl+R simulates",
@@ -24,7 +24,7 @@ RUN_WORDS = {
 }
 
 
-def trend_series(result: Any) -> list[tuple[str, str, str, list[float]]]:
+def trend_series(result: Any) -> list[tuple[str, str, str, Any]]:
     """``(key, label, kind, values SI)`` for every tank level and line flow of a run.
 
     Levels and flows are arrays (tanks x times, lines x times) named by ``tank_ids`` and
@@ -33,10 +33,10 @@ def trend_series(result: Any) -> list[tuple[str, str, str, list[float]]]:
     found: list[tuple[str, str, str, list[float]]] = []
     for tank, values in zip(_get(result, "tank_ids", default=()) or (),
                             _get(result, "levels", default=()) if result is not None else ()):
-        found.append((f"level:{tank}", f"level {tank}", "length", [float(v) for v in values]))
+        found.append((f"level:{tank}", f"level {tank}", "length", values))
     for line, values in zip(_get(result, "line_ids", default=()) or (),
                             _get(result, "flows", default=()) if result is not None else ()):
-        found.append((f"flow:{line}", f"flow {line}", "flow", [float(v) for v in values]))
+        found.append((f"flow:{line}", f"flow {line}", "flow", values))
     return found
 
 
@@ -116,16 +116,18 @@ class RunPane(Vertical):
         from workbench.project.units import display_unit, to_display
 
         units = self.app.unit_system
-        t = [float(v) for v in _get(result, "t", "time", "time_s", default=[])]
-        hours = bool(t) and t[-1] > 7200
-        x = [v / 3600 if hours else v for v in t]
+        import numpy as np
+
+        t = np.asarray(_get(result, "t", default=[]), dtype=float)
+        hours = bool(len(t)) and t[-1] > 7200
+        x = t / 3600 if hours else t
         markers = "•+ox*#@%&"
         for n, (key, label, kind, values) in enumerate(self._series):
             if key not in (self._chosen or set()) or len(values) != len(x):
                 continue
             side = "left" if kind == "length" else "right"
-            y = [float(to_display(v, kind, units)) for v in values]
-            plt.plot(x, y, label=f"{label} [{display_unit(kind, units)}]",
+            xs, y = decimate(x, to_display(np.asarray(values, dtype=float), kind, units))
+            plt.plot(xs, y, label=f"{label} [{display_unit(kind, units)}]",
                      marker=markers[n % len(markers)], yside=side)
         plt.xlabel("time [h]" if hours else "time [s]")
         plt.ylabel(f"level [{display_unit('length', units)}]", yside="left")

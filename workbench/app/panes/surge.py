@@ -168,9 +168,12 @@ class SurgePane(Horizontal):
             title.update(f"Surge {self._line}: no valve in this chain (v: envelope)")
             note.update("")
             return
-        t = [float(v) for v in result.time]
+        from workbench.app.results import decimate
+
+        t = [float(result.time[0]), float(result.time[-1])]
         conv = lambda v: [float(to_display(p, "pressure", units)) for p in v]  # noqa: E731
-        plt.plot(t, conv(result.valve_pressure), label="at valve", marker="hd")
+        xs, ys = decimate(result.time, result.valve_pressure)
+        plt.plot(xs, conv(ys), label="at valve", marker="hd")
         rating = system.lines[result.valve_line].pressure_rating
         if rating is not None:
             plt.plot([t[0], t[-1]], conv([rating, rating]), label="rating", marker="#")

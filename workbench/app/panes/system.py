@@ -36,7 +36,10 @@ class SystemPane(Horizontal):
         await self._show_entry(elements.entry)
         if not self._prebuilt:
             self._prebuilt = True
-            self.set_timer(0.3, self._prebuild)
+            if getattr(self.app, "prebuild_forms", True):
+                self.set_timer(0.3, self._prebuild)
+            else:
+                self.prebuilt = True
 
     async def _prebuild(self) -> None:
         project = self.app.project
