@@ -137,3 +137,19 @@ def test_generated_valid_projects_solve_and_simulate_with_finite_results(tmp_pat
     for argv in (["solve", path, "--json"], simulate_argv(path, "3 s")):
         outcome = run_cli(argv, project_path=path)
         assert outcome.ok, outcome.report()
+
+
+def test_odd_ids_and_long_strings_render_in_the_tables_and_plots(tmp_path):
+    """The readable output (rich tables, terminal plots), not only JSON, survives unicode,
+    control characters and very long strings in ids and texts."""
+    cases = [c for c in (mutate(seed) for seed in range(START, START + 400))
+             if "rename" in c.name or "long string" in c.name][: max(CASES // 20, 8)]
+    assert cases
+    failures: dict = defaultdict(list)
+    for case in cases:
+        path = _write(tmp_path, case)
+        for argv in (["solve", path], ["simulate", path, "--duration", "2 s", "--plot"]):
+            outcome = run_cli(argv, project_path=path)
+            if not outcome.ok:
+                failures[outcome.signature()].append((case.name, outcome))
+    _assert_all_ended_well(failures)
