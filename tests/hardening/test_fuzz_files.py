@@ -54,6 +54,17 @@ def _run_case(folder: Path, case: Case, *, simulate: bool, limit: float | None =
     return outcomes
 
 
+def _same(data):
+    """Data with NaN made comparable (NaN is not equal to itself)."""
+    if isinstance(data, dict):
+        return {k: _same(v) for k, v in data.items()}
+    if isinstance(data, list):
+        return [_same(v) for v in data]
+    if isinstance(data, float) and data != data:
+        return "nan"
+    return data
+
+
 def _format_keeps_the_data(path: str, limit: float | None):
     """``format`` on a damaged file: a message, or the same data in canonical form, twice."""
     import tomllib
@@ -62,7 +73,7 @@ def _format_keeps_the_data(path: str, limit: float | None):
     outcome = run_cli(["format", path], project_path=path, limit=limit)
     if outcome.ok and outcome.code == 0:
         after = Path(path).read_text(encoding="utf-8")
-        if tomllib.loads(after) != tomllib.loads(before.removeprefix("\ufeff")):
+        if _same(tomllib.loads(after)) != _same(tomllib.loads(before.removeprefix("\ufeff"))):
             outcome.problems.append("format changed the data")
         elif run_cli(["format", "--check", path], limit=limit).code != 0:
             outcome.problems.append("format is not idempotent")

@@ -141,3 +141,16 @@ def test_a_tank_that_overflows_is_an_event_and_a_danger_warning_with_advice(tmp_
     data = json.loads(outcome.stdout)
     assert any(e["code"] == "tank.overflow" for e in data["events"])
     assert any(w["code"] == "tank.overflow" for w in data["warnings"])
+
+
+def test_an_output_interval_far_too_fine_is_widened_with_a_note_not_a_hang():
+    # Found by the fuzz suite: output_interval = "0.0000001 s" asked for 5e7 points over a
+    # 5 s run and never finished. The series is capped; events keep their exact times.
+    from workbench.core.transient import MAX_OUTPUT_POINTS
+
+    system = load_project(DRAIN).system
+    result = simulate(system, duration=5.0, output_interval=1e-7)
+    assert result.success
+    assert result.t.size <= MAX_OUTPUT_POINTS + 1 + len(result.events)
+    note = next(w for w in result.warnings if w.code == "simulation.output_interval")
+    assert "1e-07 s" in note.message and note.severity == "info"

@@ -83,6 +83,9 @@ METHODS: dict[str, str] = {
     "RK45": "explicit Runge-Kutta 5(4) (for comparison: slow on stiff systems)",
 }
 
+#: Most points of the reported series; a finer output interval is widened (with a note).
+MAX_OUTPUT_POINTS = 200_000
+
 #: Status codes of :class:`TransientResult`.
 STATUS = {
     -1: "integration failed",
@@ -423,10 +426,19 @@ def simulate(
         output_interval = settings.output_interval
     if output_interval is None or not output_interval > 0.0:
         output_interval = duration / 1000.0
+    asked = output_interval
+    if duration / output_interval > MAX_OUTPUT_POINTS:  # memory and time stay bounded
+        output_interval = duration / MAX_OUTPUT_POINTS
 
     model = _Model(system)
     run = _Run(model, duration, method, rtol, atol, output_interval, initial_state,
                stop_when, progress, cancel)
+    if output_interval != asked:
+        run.notes.append(Finding(
+            "simulation.output_interval", "simulation",
+            f"an output interval of {asked:.3g} s gives more than {MAX_OUTPUT_POINTS:,} points "
+            f"over {duration:.6g} s: the series are reported every {output_interval:.3g} s "
+            "instead (events keep their exact times)", "info", "workbench output limit"))
     result = run.execute()
     return _finish(model, run, result, _time.perf_counter() - wall0)
 
