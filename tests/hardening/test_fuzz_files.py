@@ -51,6 +51,8 @@ def _run_case(folder: Path, case: Case, *, simulate: bool, limit: float | None =
     if simulate:
         outcomes.append(run_cli(simulate_argv(path, "5 s"), project_path=path))
         outcomes.append(_format_keeps_the_data(path, limit))
+    if "'simulation'" in case.name:  # the file's own [simulation] settings were damaged
+        outcomes.append(run_cli(["simulate", path, "--json"], project_path=path, limit=limit))
     return outcomes
 
 

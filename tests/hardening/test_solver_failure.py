@@ -154,3 +154,13 @@ def test_an_output_interval_far_too_fine_is_widened_with_a_note_not_a_hang():
     assert result.t.size <= MAX_OUTPUT_POINTS + 1 + len(result.events)
     note = next(w for w in result.warnings if w.code == "simulation.output_interval")
     assert "1e-07 s" in note.message and note.severity == "info"
+
+
+def test_an_absurd_duration_is_refused_in_words_instead_of_running_for_ever(tmp_path):
+    # Found by hand after the fuzz: a [simulation] duration of 1e300 s never finished.
+    text = DRAIN.read_text().replace('duration = "3 h"', 'duration = "1e300 s"')
+    path = tmp_path / "forever.toml"
+    path.write_text(text)
+    outcome = run_cli(["simulate", str(path), "--json"], project_path=str(path))
+    assert outcome.ok and outcome.code == ExitCode.INVALID
+    assert "years: give a shorter simulation.duration" in outcome.stderr

@@ -83,6 +83,9 @@ METHODS: dict[str, str] = {
     "RK45": "explicit Runge-Kutta 5(4) (for comparison: slow on stiff systems)",
 }
 
+#: Longest simulated duration accepted [s] (about 32 years).
+MAX_DURATION = 1e9
+
 #: Most points of the reported series; a finer output interval is widened (with a note).
 MAX_OUTPUT_POINTS = 200_000
 
@@ -414,6 +417,10 @@ def simulate(
         duration = settings.duration
     if not (duration > 0.0 and math.isfinite(duration)):
         raise ValueError(f"duration must be a positive number of seconds, got {duration!r}")
+    if duration > MAX_DURATION:  # far past any drain or transfer; near 1e300 s steps overflow
+        raise ValueError(f"a simulated duration of {duration:.3g} s is more than "
+                         f"{MAX_DURATION / 3.15576e7:.0f} years: give a shorter "
+                         "simulation.duration (or --duration)")
     if method not in METHODS:
         raise ValueError(f"unknown method {method!r}; choose one of {', '.join(METHODS)}")
     if initial_state is None:
