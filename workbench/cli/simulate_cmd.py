@@ -46,6 +46,9 @@ def add_parser(subparsers, name: str, help_text: str) -> argparse.ArgumentParser
                         help="write the time series (flows, levels; SI units) as CSV")
     parser.add_argument("--plot", action="store_true",
                         help="draw trend plots of tank levels and line flows in the terminal")
+    from workbench.cli.elastic_option import add_elastic_option
+
+    add_elastic_option(parser)
     return parser
 
 
@@ -88,6 +91,13 @@ def run(args: argparse.Namespace) -> ExitCode:
               "with duration = '...' or give --duration", file=sys.stderr)
         return ExitCode.INVALID
 
+    from workbench.cli.elastic_option import check_elastic_names, run_elastic_lines
+
+    elastic_names_problem = check_elastic_names(args, system)
+    if elastic_names_problem:
+        print(elastic_names_problem, file=sys.stderr)
+        return ExitCode.USAGE
+
     from workbench.core.topology import TopologyError
     from workbench.core.transient import simulate
 
@@ -119,10 +129,14 @@ def run(args: argparse.Namespace) -> ExitCode:
                   file=sys.stderr)
             return ExitCode.INVALID
 
+    elastic, elastic_problem = run_elastic_lines(args, system, max_duration=duration)
     if args.json:
         from workbench.output.transient import transient_to_json
 
-        json.dump(transient_to_json(result, system), sys.stdout, indent=1, allow_nan=False)
+        from workbench.cli.elastic_option import add_elastic_json
+
+        json.dump(add_elastic_json(transient_to_json(result, system), elastic), sys.stdout,
+                  indent=1, allow_nan=False)
         sys.stdout.write("\n")
     else:
         from rich.console import Console
@@ -133,6 +147,9 @@ def run(args: argparse.Namespace) -> ExitCode:
         console = Console(soft_wrap=False)
         for renderable in transient_tables(result, system, project.unit_system):
             console.print(renderable)
+        from workbench.cli.elastic_option import print_elastic_tables
+
+        print_elastic_tables(console, elastic, system, project.unit_system)
         console.print(f"\n{PREAMBLE} See 'workbench cautions'.")
     if args.plot:
         # plots go with the tables on stdout, or to stderr when stdout carries JSON
@@ -140,6 +157,9 @@ def run(args: argparse.Namespace) -> ExitCode:
         print(_plots(result, project.unit_system, colour=stream.isatty()), file=stream)
     if not result.success:
         print(f"{args.project}: {result.message}", file=sys.stderr)
+        return ExitCode.INVALID
+    if elastic_problem:
+        print(elastic_problem, file=sys.stderr)
         return ExitCode.INVALID
     return ExitCode.OK
 

@@ -1,0 +1,188 @@
+"""``workbench simulate --elastic``: the extra JSON keys, the table, bad line names.
+
+The numbers are checked against the Joukowsky rise with a wave speed computed here by hand
+from the Korteweg formula, and the flow before closure taken from the rigid-column run's
+own steady start (an independent solution) in the same JSON object.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+from pathlib import Path
+
+import pytest
+
+from workbench.cli import main
+
+G = 9.80665
+
+# A 1.2 km DN150 steel line from a constant-level reservoir to a valve discharging into a
+# second reservoir; the valve shuts in 0.1 s, much less than 2L/a (about 1.8 s).
+PROJECT = """\
+schema = 1
+
+[project]
+title = "Elastic surge test line"
+units = "SI"
+
+[fluid]
+kind = "custom"
+name = "water"
+density = "998.2 kg/m3"
+viscosity = "1.002 mPa*s"
+vapor_pressure = "2339 Pa"
+bulk_modulus = "2.19 GPa"
+
+[reservoirs.HEAD]
+kind = "constant_level"
+bottom_elevation = "0 m"
+level = "60 m"
+
+[reservoirs.TAIL]
+kind = "constant_level"
+bottom_elevation = "0 m"
+level = "10 m"
+
+[lines.L1]
+from = "HEAD"
+to = "TAIL"
+length = "1200 m"
+inner_diameter = "154.05 mm"
+roughness = "0.045 mm"
+wall_thickness = "7.11 mm"
+elastic_modulus = "207 GPa"
+poisson_ratio = 0.3
+support = "anchored"
+entrance = "sharp"
+
+[lines.L1.valve]
+characteristic = "linear"
+k_open = 4.0
+schedule = [
+    { time = "0 s", opening = 1.0 },
+    { time = "1 s", opening = 1.0 },
+    { time = "1.1 s", opening = 0.0 },
+]
+
+[simulation]
+duration = "20 s"
+"""
+
+
+def write(tmp_path: Path, text: str = PROJECT) -> Path:
+    path = tmp_path / "line.toml"
+    path.write_text(text, encoding="utf-8")
+    return path
+
+
+def korteweg(k, rho, d, e, modulus, nu):
+    """Korteweg wave speed, thin wall anchored throughout, c1 = 1 - nu^2.
+
+    a = sqrt((K/rho)/(1 + c1 K D/(E e))) (Wylie & Streeter 1993, ch. 2; c1 from memory).
+    D/e = 21.7 here, so the thick-wall form applies: c1 = 2e/D (1 + nu) + D(1 - nu^2)/(D + e)
+    (same source, from memory).
+    """
+    c1 = 2 * e / d * (1 + nu) + d * (1 - nu * nu) / (d + e)
+    return math.sqrt((k / rho) / (1 + c1 * k * d / (modulus * e)))
+
+
+def simulate_json(tmp_path, capsys, *extra):
+    code = main(["simulate", str(write(tmp_path)), "--json", *extra])
+    out = capsys.readouterr().out
+    return code, (json.loads(out) if out.strip() else None)
+
+
+def test_elastic_option_adds_the_envelope_and_series_under_the_line_surge_key(tmp_path, capsys):
+    code, data = simulate_json(tmp_path, capsys, "--elastic", "L1")
+    assert code == 0
+    # the transient keys are still there, unchanged in shape (issue 4)
+    for key in ("schema", "time_s", "lines", "levels", "events", "surge", "warnings"):
+        assert key in data
+    assert "flow_m3_s" in data["lines"]["L1"]
+    el = data["surge"]["L1"]["elastic"]
+    n = len(el["distance_m"])
+    assert n == el["reaches"] + 1
+    for key in ("max_head_m", "min_head_m", "max_pressure_pa", "min_pressure_pa"):
+        assert len(el[key]) == n
+    assert len(el["time_s"]) == len(el["valve_pressure_pa"]) == len(el["midline_pressure_pa"])
+    assert el["distance_m"][0] == 0.0 and el["distance_m"][-1] == pytest.approx(1200.0)
+    assert el["dt_s"] > 0 and abs(el["wave_speed_adjustment"]) < 1e-12
+
+
+def test_the_valve_pressure_jumps_by_joukowsky_with_the_korteweg_speed(tmp_path, capsys):
+    # Joukowsky (1898): dp = rho a v0 for a closure faster than 2L/a; a by hand (Korteweg).
+    code, data = simulate_json(tmp_path, capsys, "--elastic", "L1")
+    assert code == 0
+    el = data["surge"]["L1"]["elastic"]
+    a = korteweg(2.19e9, 998.2, 0.15405, 0.00711, 207e9, 0.3)
+    assert el["wave_speed_m_s"] == pytest.approx(a, rel=1e-6)
+    v0 = data["lines"]["L1"]["flow_m3_s"][0] / (math.pi * 0.15405**2 / 4)
+    t = el["time_s"]
+    p = el["valve_pressure_pa"]
+    before = p[0]
+    # just after the closure ends (1.1 s) and before the reflection returns (1 s + 2L/a)
+    i = next(k for k, tk in enumerate(t) if tk >= 1.1 + 0.05)
+    rise = p[i] - before
+    # friction makes the rise a little larger (line packing) during the short wait
+    assert rise == pytest.approx(998.2 * a * v0, rel=0.03)
+
+
+def test_lines_marked_elastic_in_the_project_run_without_the_option(tmp_path, capsys):
+    text = PROJECT.replace("[simulation]", '[lines.L1.surge]\nmodel = "elastic"\n'
+                           "reaches = 24\n\n[simulation]")
+    code = main(["simulate", str(write(tmp_path, text)), "--json"])
+    data = json.loads(capsys.readouterr().out)
+    assert code == 0
+    assert data["surge"]["L1"]["elastic"]["reaches"] == 24
+
+
+def test_without_elastic_lines_the_json_has_no_elastic_keys(tmp_path, capsys):
+    code, data = simulate_json(tmp_path, capsys)
+    assert code == 0
+    assert all("elastic" not in entry for entry in data["surge"].values())
+
+
+def test_an_unknown_elastic_line_is_a_usage_error_naming_it(tmp_path, capsys):
+    code = main(["simulate", str(write(tmp_path)), "--json", "--elastic", "L9"])
+    err = capsys.readouterr().err
+    assert code == 2
+    assert "L9" in err and "L1" in err
+
+
+def test_the_summary_shows_an_elastic_surge_table(tmp_path, capsys):
+    code = main(["simulate", str(write(tmp_path)), "--elastic", "L1"])
+    out = capsys.readouterr().out
+    assert code == 0
+    assert "Elastic surge" in out and "L1" in out
+
+
+def test_a_branch_named_for_the_elastic_model_fails_with_a_message(tmp_path, capsys):
+    # The elastic model takes lines in series only; a tee is refused in words, the rigid
+    # results are still printed, and the exit status says the request was not met.
+    text = PROJECT.replace('to = "TAIL"', 'to = "J1"').replace("[lines.L1.valve]", """\
+[junctions.J1]
+elevation = "0 m"
+
+[lines.L2]
+from = "J1"
+to = "TAIL"
+length = "100 m"
+inner_diameter = "154.05 mm"
+roughness = "0.045 mm"
+
+[lines.L3]
+from = "J1"
+to = "TAIL"
+length = "150 m"
+inner_diameter = "154.05 mm"
+roughness = "0.045 mm"
+
+[lines.L1.valve]""")
+    code = main(["simulate", str(write(tmp_path, text)), "--json", "--elastic", "L2"])
+    captured = capsys.readouterr()
+    data = json.loads(captured.out)
+    assert code == 1
+    assert "J1" in captured.err and "series" in captured.err
+    assert data["surge"]["L2"]["elastic"]["success"] is False
+    assert "surge.elastic_failed" in [w["code"] for w in data["warnings"]]
