@@ -116,9 +116,12 @@ def elastic_table(results: dict[str, ElasticResult], system: System, unit_system
     from workbench.project.units import format_quantity
 
     table = Table(title="Elastic surge (method of characteristics)", title_justify="left")
-    for col in ("line", "wave speed", "reaches", "dt", "max pressure", "min pressure",
-                "rating", "note"):
-        table.add_column(col, justify="left" if col in ("line", "note") else "right")
+    for col in ("line", "a", "reaches", "dt", "p max", "p min", "rating", "note"):
+        table.add_column(col, justify="left" if col in ("line", "note") else "right",
+                         no_wrap=col != "note")
+    table.caption = ("a: wave speed used; p: gauge pressure, highest and lowest anywhere "
+                     "on the line over the surge run")
+    table.caption_justify = "left"
     for lid, res in results.items():
         env = res.envelopes.get(lid)
         if env is None:
