@@ -55,3 +55,32 @@ async def test_an_unforeseen_exception_in_the_solver_is_words_not_a_crash(
         assert "ZeroDivisionError" in app.steady_message
         assert "please report" in app.steady_message
         assert app.project.system.lines[LINE].length == 264.0 and app.modified
+
+
+async def test_opening_a_damaged_file_shows_its_problems_in_words(tmp_path):
+    """The workbench opened on a broken file (conflict markers, nesting, a wrong type) asks
+    what to do, naming the file and the problem; it never crashes."""
+    from tests.hardening.mutations import mutate
+    from workbench.app.factory import make_app
+    from workbench.app.screens.dialogs import AskScreen
+
+    for case in (mutate(1), mutate(22), mutate(3)):
+        path = tmp_path / "damaged.toml"
+        path.write_text(case.text, encoding="utf-8")
+        from workbench.project.document import ProjectError, load_project
+
+        try:
+            load_project(path)
+            continue  # this mutation left a valid project: nothing to show
+        except ProjectError as error:
+            first = str(error.problems[0])
+        app = make_app(path=path, debounce=0.05)
+        async with app.run_test(size=SIZE) as pilot:
+            for _ in range(100):
+                await pilot.pause(0.05)
+                if isinstance(app.screen, AskScreen):
+                    break
+            assert isinstance(app.screen, AskScreen), case.name
+            assert "could not be opened" in app.screen.question
+            assert first.split(": ")[0] in app.screen.question
+            assert app.is_running
