@@ -46,6 +46,7 @@ async def settle(pilot, *, timeout: float = 30.0) -> None:
         await pilot.pause()
         await app.workers.wait_for_complete()
         forms_ready = all(pane.prebuilt for pane in app.screen.query("SystemPane"))
+        forms_ready = forms_ready and getattr(app.screen, "views_built", True)
         if (app.steady_status in {"fresh", "failed"} and app._steady_timer is None
                 and forms_ready):
             await pilot.pause()

@@ -18,7 +18,7 @@ def flow_cell(app) -> float:
 async def test_changing_a_line_diameter_changes_the_flow_shown_after_the_worker_finishes(
         project_file):
     path = project_file(TRANSFER)
-    app = make(path, debounce=3.0)  # long enough to see the stale mark before the solve
+    app = make(path, debounce=1.0)  # long enough to see the stale mark before the solve
     async with app.run_test(size=SIZE) as pilot:
         await settle(pilot)
         await pilot.press("f3")

@@ -19,7 +19,6 @@ from textual.reactive import var
 from textual.worker import Worker, WorkerState, get_current_worker
 
 from workbench.app import jobs
-from workbench.app.commands import WorkbenchCommands
 from workbench.app.history import History
 
 #: Seconds between the last edit and the start of a steady solve.
@@ -28,12 +27,19 @@ DEBOUNCE = 0.3
 VIEWS = ("system", "flows", "grade", "run", "events", "surge")
 
 
+def _palette_commands():
+    """Our palette commands, imported when the palette first opens (keeps start-up quick)."""
+    from workbench.app.commands import WorkbenchCommands
+
+    return WorkbenchCommands
+
+
 class WorkbenchApp(App[int]):
     """A gravity-system workbench around one project file."""
 
     CSS_PATH = "workbench.tcss"
     TITLE = "Gravity workbench"
-    COMMANDS = App.COMMANDS | {WorkbenchCommands}
+    COMMANDS = App.COMMANDS | {_palette_commands}
     ENABLE_COMMAND_PALETTE = True
 
     BINDINGS: ClassVar = [
@@ -266,7 +272,7 @@ class WorkbenchApp(App[int]):
             return
         self.run_status = "running"
         self.run_progress = 0.0
-        self.action_view("run")
+        self.call_later(self.action_view, "run")
         self.simulation_worker(self.project.system)
         self.refresh_bindings()
 
@@ -362,11 +368,11 @@ class WorkbenchApp(App[int]):
             return self.run_status == "running" or None
         return True
 
-    def action_view(self, name: str) -> None:
+    async def action_view(self, name: str) -> None:
         from workbench.app.screens.desk import DeskScreen
 
         if isinstance(self.screen, DeskScreen):
-            self.screen.show_view(name)
+            await self.screen.show_view(name)
 
     def action_keys(self) -> None:
         from workbench.app.screens.keys import KeysScreen

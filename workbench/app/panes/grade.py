@@ -68,9 +68,12 @@ class GradePane(Horizontal):
             yield Vertical(id="grade-plot-holder")
             yield Static("", id="grade-note")
 
-    def on_mount(self) -> None:
+    def __init__(self, **kwargs) -> None:
+        super().__init__(**kwargs)
         self._plot = None
         self._line: str | None = None
+
+    def on_mount(self) -> None:
         self.watch(self.app, "steady", self._redraw, init=False)
         self.watch(self.app, "unit_system", self._redraw, init=False)
         self.watch(self.app, "project", self._list_lines)
@@ -100,6 +103,9 @@ class GradePane(Horizontal):
 
     def activate(self) -> None:
         """Called when the view is shown: build the plot on first use, then draw."""
+        if not self.query("#grade-plot-holder"):  # mounted but not composed yet
+            self.call_after_refresh(self.activate)
+            return
         if self._plot is None:
             from textual_plotext import PlotextPlot
 

@@ -55,13 +55,16 @@ class RunPane(Vertical):
             yield SelectionList[str](id="run-series")
             yield Vertical(id="run-plot-holder")
 
-    def on_mount(self) -> None:
+    def __init__(self, **kwargs) -> None:
+        super().__init__(**kwargs)
         self._plot = None
-        self._series: list[tuple[str, str, str, list[float]]] = []
+        self._series: list[tuple[str, str, str, Any]] = []
         self._chosen: set[str] | None = None
+
+    def on_mount(self) -> None:
         self.watch(self.app, "run_status", self._show_status)
         self.watch(self.app, "run_progress", self._show_progress)
-        self.watch(self.app, "transient", self._show_result, init=False)
+        self.watch(self.app, "transient", self._show_result)
         self.watch(self.app, "unit_system", self._redraw, init=False)
 
     def _show_status(self, status: str) -> None:
@@ -72,6 +75,9 @@ class RunPane(Vertical):
         self.query_one("#run-progress", ProgressBar).update(progress=fraction)
 
     def activate(self) -> None:
+        if not self.query("#run-plot-holder"):  # mounted but not composed yet
+            self.call_after_refresh(self.activate)
+            return
         if self._plot is None:
             from textual_plotext import PlotextPlot
 

@@ -62,10 +62,13 @@ class SurgePane(Horizontal):
             yield Vertical(id="surge-plot-holder")
             yield Static("", id="surge-note")
 
-    def on_mount(self) -> None:
+    def __init__(self, **kwargs) -> None:
+        super().__init__(**kwargs)
         self._plot = None
         self._line: str | None = None
         self.picture = "envelope"
+
+    def on_mount(self) -> None:
         self.watch(self.app, "elastic", self._list_lines)
         self.watch(self.app, "unit_system", self._redraw, init=False)
 
@@ -91,6 +94,9 @@ class SurgePane(Horizontal):
         self._redraw()
 
     def activate(self) -> None:
+        if not self.query("#surge-plot-holder"):  # mounted but not composed yet
+            self.call_after_refresh(self.activate)
+            return
         if self._plot is None:
             from textual_plotext import PlotextPlot
 

@@ -6,25 +6,28 @@ from textual.app import ComposeResult
 from textual.screen import Screen
 from textual.widgets import Static, TabbedContent, TabPane
 
+import importlib
+
 from workbench.app.panes.elements import ElementList
-from workbench.app.panes.events import EventsPane
-from workbench.app.panes.flows import FlowsPane
-from workbench.app.panes.grade import GradePane
-from workbench.app.panes.run import RunPane
-from workbench.app.panes.surge import SurgePane
 from workbench.app.panes.system import SystemPane
 from workbench.app.widgets.keyfooter import KeyFooter
 
-#: view id -> (tab title, the pane class). The F-key is in the title so it reads without
-#: the footer.
+#: view id -> (tab title, "module:class" of the pane). The F-key is in the title so it
+#: reads without the footer. Panes other than System are built the first time they are
+#: shown, which keeps the first paint quick.
 VIEWS = {
-    "system": ("F2 System", SystemPane),
-    "flows": ("F3 Flows", FlowsPane),
-    "grade": ("F4 Grade line", GradePane),
-    "run": ("F5 Run", RunPane),
-    "events": ("F6 Events", EventsPane),
-    "surge": ("F10 Surge", SurgePane),
+    "system": ("F2 System", "workbench.app.panes.system:SystemPane"),
+    "flows": ("F3 Flows", "workbench.app.panes.flows:FlowsPane"),
+    "grade": ("F4 Grade line", "workbench.app.panes.grade:GradePane"),
+    "run": ("F5 Run", "workbench.app.panes.run:RunPane"),
+    "events": ("F6 Events", "workbench.app.panes.events:EventsPane"),
+    "surge": ("F10 Surge", "workbench.app.panes.surge:SurgePane"),
 }
+
+
+def pane_class(view: str) -> type:
+    module, _, name = VIEWS[view][1].partition(":")
+    return getattr(importlib.import_module(module), name)
 
 STEADY_WORDS = {"idle": "—", "stale": "STALE", "solving": "solving…", "fresh": "ok",
                 "failed": "FAILED"}
@@ -59,15 +62,28 @@ class DeskScreen(Screen):
     def compose(self) -> ComposeResult:
         yield StatusLine(id="status")
         with TabbedContent(id="views", initial="system"):
-            for view, (title, pane) in VIEWS.items():
+            for view, (title, _pane) in VIEWS.items():
                 with TabPane(title, id=view):
-                    yield pane(id=f"{view}-pane")
+                    if view == "system":
+                        yield SystemPane(id="system-pane")
         yield KeyFooter(compact=True, show_command_palette=False)
 
-    def show_view(self, name: str) -> None:
+    async def pane(self, view: str):
+        """The pane of a view, built on first use."""
+        found = self.query(f"#{view}-pane")
+        if found:
+            return found.first()
+        pane = pane_class(view)(id=f"{view}-pane")
+        await self.query_one(f"TabPane#{view}").mount(pane)
+        return pane
+
+    async def show_view(self, name: str) -> None:
         tabs = self.query_one(TabbedContent)
         tabs.active = name
-        pane = self.query_one(f"#{name}-pane")
+        await self._activate(name)
+
+    async def _activate(self, name: str) -> None:
+        pane = await self.pane(name)
         if hasattr(pane, "activate"):
             pane.activate()
         elif name == "system":
@@ -78,28 +94,36 @@ class DeskScreen(Screen):
                     widget.focus()
                     break
 
-    def on_tabbed_content_tab_activated(self, event: TabbedContent.TabActivated) -> None:
-        pane = self.query_one(f"#{event.pane.id}-pane")
-        if hasattr(pane, "activate"):
-            pane.activate()
+    async def on_tabbed_content_tab_activated(self, event: TabbedContent.TabActivated) -> None:
+        await self._activate(event.pane.id)
 
     def on_mount(self) -> None:
         self.query_one(ElementList).focus()
+        self.views_built = False
+        # After the first frame is on screen (call_after_refresh), with a pause for the
+        # file to load: building views sooner would delay the first paint.
+        self.call_after_refresh(self.set_timer, 1.0, self._build_views)
+
+    async def _build_views(self) -> None:
+        """Build the other views once the first frame is up, so switching is instant."""
+        for view in VIEWS:
+            await self.pane(view)
+        self.views_built = True
 
     # --- palette actions on the element list -------------------------------------------
-    def _elements(self) -> ElementList:
-        self.show_view("system")
+    async def _elements(self) -> ElementList:
+        await self.show_view("system")
         return self.query_one(ElementList)
 
-    def action_add(self, section: str | None = None) -> None:
+    async def action_add(self, section: str | None = None) -> None:
         if self.app.project is not None:
-            self._elements().action_add(section)
+            (await self._elements()).action_add(section)
 
-    def action_duplicate(self) -> None:
-        self._elements().action_duplicate()
+    async def action_duplicate(self) -> None:
+        (await self._elements()).action_duplicate()
 
-    def action_rename(self) -> None:
-        self._elements().action_rename()
+    async def action_rename(self) -> None:
+        (await self._elements()).action_rename()
 
-    def action_delete(self) -> None:
-        self._elements().action_delete()
+    async def action_delete(self) -> None:
+        (await self._elements()).action_delete()
