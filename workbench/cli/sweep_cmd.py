@@ -74,20 +74,36 @@ def _print_table(project, sweep: dict, keypaths) -> None:
     # Columns with nothing in any case (no errors, a quick sweep's pressures) are left out.
     columns = [c for c in columns
                if c.swept or c.key == "case" or any(row.get(c.key) not in (None, "") for row in rows)]
-    table = Table(title=f"Sweep of {project.system.title}", title_justify="left")
+    console = Console()
+    titles = []
     for col in columns:
         title = col.title
         if col.swept and title.split(".")[0] in ("reservoirs", "junctions", "receivers", "lines"):
             title = title.split(".", 1)[1]  # the element id already says which section
-        table.add_column(title, justify="right" if col.kind or col.key == "case" else "left",
-                         overflow="fold", no_wrap=col.swept,
-                         min_width=24 if col.key == "warnings" else None)
-    warn = [i for i, col in enumerate(columns) if col.key == "warnings"]
-    for cells in display_rows(columns, rows, project.unit_system):
-        for i in warn:
-            cells[i] = cells[i].replace(", ", "\n")
-        table.add_row(*cells)
-    console = Console()
+        titles.append(title)
+    cells_by_row = display_rows(columns, rows, project.unit_system)
+    widths = [max([len(t)] + [len(line) for r in cells_by_row for line in r[i].split(", ")])
+              for i, t in enumerate(titles)]
+    if sum(w + 3 for w in widths) > console.width and len(rows) * 14 + 30 <= console.width:
+        # Too many results for one row a case at this width: one column a case instead,
+        # so every value stays whole on an 80-column terminal.
+        table = Table(title=f"Sweep of {project.system.title}", title_justify="left")
+        table.add_column("result", no_wrap=True)
+        for cells in cells_by_row:
+            table.add_column(f"case #{cells[0]}", justify="right", overflow="fold")
+        for i, title in enumerate(titles[1:], start=1):
+            table.add_row(title, *[cells[i].replace(", ", "\n") for cells in cells_by_row])
+    else:
+        table = Table(title=f"Sweep of {project.system.title}", title_justify="left")
+        for col, title in zip(columns, titles):
+            table.add_column(title, justify="right" if col.kind or col.key == "case" else "left",
+                             overflow="fold", no_wrap=col.swept,
+                             min_width=24 if col.key == "warnings" else None)
+        warn = [i for i, col in enumerate(columns) if col.key == "warnings"]
+        for cells in cells_by_row:
+            for i in warn:
+                cells[i] = cells[i].replace(", ", "\n")
+            table.add_row(*cells)
     console.print(table)
     first = sweep.get("first_passing")
     if any(c.get("pass") is not None for c in sweep["cases"]) or sweep.get("criteria"):
