@@ -34,6 +34,10 @@ __all__ = ["ID_PATTERN", "build_system", "check_data", "describe", "did_you_mean
 #: Element ids: letters, digits, '_' and '-' (TOML bare keys), starting with a letter or digit.
 ID_PATTERN = re.compile(r"[A-Za-z0-9][A-Za-z0-9_-]*\Z")
 
+#: Largest magnitude of any quantity in SI units: far beyond any plant (a million km, ten
+#: million bar), small enough that the solvers' arithmetic cannot overflow on it.
+QUANTITY_LIMIT = 1e12
+
 _SECTION_WORD = {
     "reservoirs": "reservoir",
     "junctions": "junction",
@@ -108,6 +112,10 @@ class _Checker:
             value = parse_quantity(table[name], kind, atmosphere=self.atmosphere)
         except UnitError as exc:
             self.add(key, str(exc))
+            return None
+        if abs(value) > QUANTITY_LIMIT:
+            self.add(key, f"{table[name]!r}: far beyond any plant; check the number and its "
+                     "unit")
             return None
         if positive and not value > 0:
             self.add(key, f"{table[name]!r}: the {QUANTITY_KINDS[kind].name} must be positive")
