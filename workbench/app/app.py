@@ -146,6 +146,11 @@ class WorkbenchApp(App[int]):
         self._generation = 0
         self._steady_timer = None
 
+    def notify(self, message: str, *, title: str = "", severity="information",
+               timeout: float | None = None, markup: bool = False) -> None:
+        """Notifications carry file text (key paths, lists in brackets): no markup."""
+        super().notify(message, title=title, severity=severity, timeout=timeout, markup=markup)
+
     # --- start-up ----------------------------------------------------------------------
     def get_default_screen(self):
         from workbench.app.screens.desk import DeskScreen

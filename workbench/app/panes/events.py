@@ -80,11 +80,11 @@ class EventsPane(Vertical):
     """Events, surge summary and warnings of the last run."""
 
     def compose(self) -> ComposeResult:
-        yield Static("", id="run-summary", classes="pane-heading")
+        yield Static("", id="run-summary", classes="pane-heading", markup=False)
         yield DataTable(id="event-table", cursor_type="row", zebra_stripes=True)
-        yield Static("Surge and pressure extremes (gauge)", classes="pane-heading")
+        yield Static("Surge and pressure extremes (gauge)", classes="pane-heading", markup=False)
         yield DataTable(id="surge-table", cursor_type="row", zebra_stripes=True)
-        yield Static("Warnings", classes="pane-heading")
+        yield Static("Warnings", classes="pane-heading", markup=False)
         yield DataTable(id="run-finding-table", cursor_type="row")
 
     def on_mount(self) -> None:

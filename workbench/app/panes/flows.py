@@ -22,11 +22,11 @@ class FlowsPane(Vertical):
     """Live steady results: re-solved in the background after every valid edit."""
 
     def compose(self) -> ComposeResult:
-        yield Static("", id="steady-banner")
+        yield Static("", id="steady-banner", markup=False)
         yield DataTable(id="line-table", cursor_type="row", zebra_stripes=True)
         yield DataTable(id="node-table", cursor_type="row", zebra_stripes=True)
         yield DataTable(id="finding-table", cursor_type="row")
-        yield Static("", id="finding-detail")
+        yield Static("", id="finding-detail", markup=False)
 
     def on_mount(self) -> None:
         self.watch(self.app, "steady", self._show, init=False)

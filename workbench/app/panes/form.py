@@ -90,7 +90,7 @@ class FieldRow(Horizontal):
         # a plain input is far lighter to build than a drop-down, which keeps forms fast.
         self._editor = FieldInput(self.field, value_text(self.stored), self.choices)
         yield self._editor
-        self._note = Static("", classes="field-hint")
+        self._note = Static("", classes="field-hint", markup=False)
         yield self._note
 
     @property
@@ -223,7 +223,7 @@ class FieldForm(VerticalScroll):
             for field in fields:
                 if field.group != group:
                     group = field.group
-                    rows.append(Static(f"── {group} ──", classes="field-group"))
+                    rows.append(Static(f"── {group} ──", classes="field-group", markup=False))
                 rows.append(FieldRow(field, lookup(data, field.keypath),
                                      choices_for(field, data)))
             holder = Vertical(*rows, id=holder_id, classes="form-section")

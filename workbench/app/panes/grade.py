@@ -64,9 +64,9 @@ class GradePane(Horizontal):
     def compose(self) -> ComposeResult:
         yield OptionList(id="grade-lines")
         with Vertical(id="grade-side"):
-            yield Static("", id="grade-title")
+            yield Static("", id="grade-title", markup=False)
             yield Vertical(id="grade-plot-holder")
-            yield Static("", id="grade-note")
+            yield Static("", id="grade-note", markup=False)
 
     def __init__(self, **kwargs) -> None:
         super().__init__(**kwargs)

@@ -49,7 +49,7 @@ class RunPane(Vertical):
 
     def compose(self) -> ComposeResult:
         with Horizontal(id="run-head"):
-            yield Static("", id="run-status")
+            yield Static("", id="run-status", markup=False)
             yield ProgressBar(total=1.0, show_eta=False, id="run-progress")
         with Horizontal(id="run-body"):
             yield SelectionList[str](id="run-series")

@@ -58,9 +58,9 @@ class SurgePane(Horizontal):
     def compose(self) -> ComposeResult:
         yield OptionList(id="surge-lines")
         with Vertical(id="surge-side"):
-            yield Static("", id="surge-title")
+            yield Static("", id="surge-title", markup=False)
             yield Vertical(id="surge-plot-holder")
-            yield Static("", id="surge-note")
+            yield Static("", id="surge-note", markup=False)
 
     def __init__(self, **kwargs) -> None:
         super().__init__(**kwargs)

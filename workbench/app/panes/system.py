@@ -17,9 +17,9 @@ class SystemPane(Horizontal):
     def compose(self) -> ComposeResult:
         yield ElementList(id="elements")
         with Vertical(id="form-side"):
-            yield Static("", id="form-title")
+            yield Static("", id="form-title", markup=False)
             yield FieldForm(id="form")
-            yield Static("", id="field-help")
+            yield Static("", id="field-help", markup=False)
 
     def on_mount(self) -> None:
         self._prebuilt = False

@@ -21,10 +21,10 @@ class CautionsScreen(ModalScreen[None]):
             box.border_title = "Cautions"
             box.border_subtitle = "Esc closes"
             with VerticalScroll(id="cautions-body"):
-                yield Static(PREAMBLE, classes="caution-preamble")
+                yield Static(PREAMBLE, classes="caution-preamble", markup=False)
                 for caution in CAUTIONS:
-                    yield Static(f"▲ {caution.topic}", classes="caution-topic")
-                    yield Static(caution.text, classes="caution-text")
+                    yield Static(f"▲ {caution.topic}", classes="caution-topic", markup=False)
+                    yield Static(caution.text, classes="caution-text", markup=False)
 
     def on_mount(self) -> None:
         self.query_one("#cautions-body").focus()

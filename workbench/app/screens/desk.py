@@ -60,7 +60,7 @@ class DeskScreen(Screen):
     """The main screen of the workbench."""
 
     def compose(self) -> ComposeResult:
-        yield StatusLine(id="status")
+        yield StatusLine(id="status", markup=False)
         with TabbedContent(id="views", initial="system"):
             for view, (title, _pane) in VIEWS.items():
                 with TabPane(title, id=view):

@@ -36,7 +36,7 @@ class AskScreen(ModalScreen[str | None]):
     def compose(self) -> ComposeResult:
         with Vertical(classes="dialog-box") as box:
             box.border_title = self.box_title
-            yield Static(self.question, classes="dialog-question")
+            yield Static(self.question, classes="dialog-question", markup=False)
             yield OptionList(
                 *(Option(Text(f"[{key}] {label}"), id=key) for key, label in self.answers),
                 id="answers",
@@ -84,10 +84,10 @@ class TextScreen(ModalScreen[str | None]):
     def compose(self) -> ComposeResult:
         with Vertical(classes="dialog-box") as box:
             box.border_title = self.box_title
-            yield Label(self.prompt, classes="dialog-question")
+            yield Label(self.prompt, classes="dialog-question", markup=False)
             yield Input(self.value, id="answer")
-            yield Static("", id="answer-problem", classes="problem")
-            yield Static("Enter to accept, Escape to go back", classes="dialog-hint")
+            yield Static("", id="answer-problem", classes="problem", markup=False)
+            yield Static("Enter to accept, Escape to go back", classes="dialog-hint", markup=False)
 
     def on_input_submitted(self, event: Input.Submitted) -> None:
         event.stop()
