@@ -78,6 +78,7 @@ async def test_undo_and_redo_step_through_the_edits(project_file):
         await pilot.pause()
         assert app.project.data["lines"][LINE]["length"] == "300 m"
         assert app.modified
+        assert "[modified]" in str(app.screen.query_one("#status").render())
 
 
 async def test_saving_writes_the_change_and_keeps_the_comments_elsewhere(project_file):
