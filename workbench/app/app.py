@@ -18,7 +18,7 @@ from textual.message import Message
 from textual.reactive import var
 from textual.worker import Worker, WorkerState, get_current_worker
 
-from workbench.app import jobs
+from workbench.app import jobs, recovery_copy
 from workbench.app.history import History
 
 #: Seconds between the last edit and the start of a steady solve.
@@ -211,6 +211,7 @@ class WorkbenchApp(App[int]):
         self.run_progress = 0.0
         self.steady = None
         self._set_project(project)
+        recovery_copy.offer(self, self.path)  # unsaved edits of a session that died
 
     # --- edits -------------------------------------------------------------------------
     def apply_edit(self, change, *args: Any, label: str = "edit") -> Any:
@@ -233,6 +234,7 @@ class WorkbenchApp(App[int]):
     def _set_project(self, project: Any) -> None:
         self.project = project
         self.modified = self.history.modified if self.history else False
+        recovery_copy.keep(self)  # unsaved edits kept beside the project until saved
         self.schedule_steady()
         self.refresh_bindings()
 

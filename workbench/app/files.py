@@ -14,7 +14,7 @@ from collections.abc import Callable
 from pathlib import Path
 from typing import TYPE_CHECKING
 
-from workbench.app import jobs
+from workbench.app import jobs, recovery_copy
 from workbench.app.screens.dialogs import AskScreen, TextScreen
 
 if TYPE_CHECKING:
@@ -77,9 +77,11 @@ def _write(app: "WorkbenchApp", path: Path, then: Callable[[], None] | None) -> 
     history = app.history
     history.snapshots[history.index] = saved
     history.mark_saved()
+    old_path = app.path
     app.path = Path(path)
     app.disk_hash = jobs.file_hash(path)
     app.modified = False
+    recovery_copy.saved(app, old_path)
     app.project_saved(saved)
     app.notify(f"saved {path}", timeout=3)
     if then is not None:
@@ -109,7 +111,11 @@ def guard_unsaved(app: "WorkbenchApp", doing: str, proceed: Callable[[], None]) 
 
 def leave(app: "WorkbenchApp") -> None:
     """Quit, asking first about unsaved edits."""
-    guard_unsaved(app, "quit", lambda: app.exit(0))
+    def quit_cleanly() -> None:
+        recovery_copy.quitting(app)
+        app.exit(0)
+
+    guard_unsaved(app, "quit", quit_cleanly)
 
 
 def open_other(app: "WorkbenchApp") -> None:
