@@ -84,3 +84,29 @@ async def test_opening_a_damaged_file_shows_its_problems_in_words(tmp_path):
             assert "could not be opened" in app.screen.question
             assert first.split(": ")[0] in app.screen.question
             assert app.is_running
+
+
+async def test_a_result_that_breaks_continuity_is_refused_by_the_app_as_an_internal_error(
+        project_file, monkeypatch):
+    """The sanity checks guard the live results too: a corrupted solve is never shown."""
+    import dataclasses
+
+    path = project_file(TRANSFER)
+    app = make(path)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        real = network.solve_steady
+
+        def corrupted(system, **kw):
+            result = real(system, **kw)
+            lines = dict(result.lines)
+            lines[LINE] = dataclasses.replace(lines[LINE], head_loss=lines[LINE].head_loss * 0.9)
+            return dataclasses.replace(result, lines=lines)
+
+        monkeypatch.setattr(network, "solve_steady", corrupted)
+        await choose_entry(pilot, f"lines:{LINE}")
+        await type_into(pilot, f"lines.{LINE}.length", "266 m")
+        await settle(pilot)
+        assert app.is_running and app.steady_status == "failed"
+        assert "internal consistency check failed: energy" in app.steady_message
+        assert "please report" in app.steady_message

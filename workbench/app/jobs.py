@@ -27,10 +27,21 @@ def load_starter() -> Any:
 
 
 def solve(system: Any) -> Any:
-    """The steady solution of a system (a ``SteadyResult``)."""
+    """The steady solution of a system (a ``SteadyResult``), checked for physical sanity."""
     from workbench.core.network import solve_steady
+    from workbench.core.sanity import check_steady
 
-    return solve_steady(system)
+    result = solve_steady(system)
+    _refuse_if_broken(check_steady(system, result))
+    return result
+
+
+def _refuse_if_broken(violations: list) -> None:
+    """A result that breaks continuity or energy is a bug: never shown as a result."""
+    if violations:
+        from workbench.core.sanity import describe
+
+        raise RuntimeError(f"internal consistency check failed: {describe(violations)}")
 
 
 def simulate(
@@ -50,6 +61,9 @@ def simulate(
     elastic_ids = elastic_line_ids(system)
     share = 0.5 if elastic_ids else 1.0
     result = run_rigid(system, progress=lambda f: progress(share * f), cancel=cancel)
+    from workbench.core.sanity import check_transient
+
+    _refuse_if_broken(check_transient(system, result))
     elastic: dict[str, Any] = {}
     if elastic_ids and not cancel():
         elastic = run_elastic(system, elastic_ids, cancel=cancel,
