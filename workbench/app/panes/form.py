@@ -254,7 +254,7 @@ class FieldForm(VerticalScroll):
             row.set_stored(lookup(data, row.field.keypath), unit_system)
 
     def focus_first(self) -> None:
-        rows = self.current_rows()
+        rows = [row for row in self.current_rows() if row.editor is not None]
         if rows:
             rows[0].editor.focus()
 

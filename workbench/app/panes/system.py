@@ -69,7 +69,11 @@ class SystemPane(Horizontal):
     async def on_element_list_chosen(self, message: ElementList.Chosen) -> None:
         await self._show_entry(message.entry)
 
-    def on_element_list_edit_requested(self, _message: ElementList.EditRequested) -> None:
+    async def on_element_list_edit_requested(self, _message: ElementList.EditRequested) -> None:
+        # The highlighted element's form may still be waiting behind a form being built in
+        # idle time: show it first (that waits its turn), so the focus lands in the fields
+        # of the element the user chose and never in another section's hidden form.
+        await self._show_entry(self.query_one(ElementList).entry)
         self.query_one(FieldForm).focus_first()
 
     def on_field_row_focused(self, message: FieldRow.Focused) -> None:
