@@ -28,16 +28,10 @@ def add_parser(subparsers, name: str, help_text: str) -> None:
 
 
 def run(args: argparse.Namespace) -> ExitCode:
-    from workbench.project.document import ProjectError, load_project
+    from workbench.cli.common import load_or_report
 
-    try:
-        project = load_project(args.project)
-    except ProjectError as exc:
-        for problem in exc.problems:
-            print(problem, file=sys.stderr)
-        return ExitCode.INVALID
-    except OSError as exc:
-        print(f"{args.project}: {exc.strerror or exc}", file=sys.stderr)
+    project = load_or_report(args.project)
+    if project is None:
         return ExitCode.INVALID
 
     from workbench.core.network import solve_steady

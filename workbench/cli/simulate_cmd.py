@@ -69,21 +69,15 @@ def _duration(text: str | None) -> float | None:
 def run(args: argparse.Namespace) -> ExitCode:
     import json
 
-    from workbench.project.document import ProjectError, load_project
+    from workbench.cli.common import load_or_report
 
     try:
         duration = _duration(args.duration)
     except ValueError as exc:
         print(f"--duration: {exc}", file=sys.stderr)
         return ExitCode.USAGE
-    try:
-        project = load_project(args.project)
-    except ProjectError as exc:
-        for problem in exc.problems:
-            print(problem, file=sys.stderr)
-        return ExitCode.INVALID
-    except OSError as exc:
-        print(f"{args.project}: cannot read the file: {exc.strerror or exc}", file=sys.stderr)
+    project = load_or_report(args.project)
+    if project is None:
         return ExitCode.INVALID
     system = project.system
     if duration is None and system.simulation is None:

@@ -29,16 +29,10 @@ def run(args: argparse.Namespace) -> ExitCode:
 
     from workbench.core.network import solve_steady
     from workbench.output.steady import steady_tables, steady_to_json
-    from workbench.project.document import ProjectError, load_project
+    from workbench.cli.common import load_or_report
 
-    try:
-        project = load_project(args.project)
-    except ProjectError as exc:
-        for problem in exc.problems:
-            print(problem, file=sys.stderr)
-        return ExitCode.INVALID
-    except OSError as exc:
-        print(f"{args.project}: cannot read the file: {exc.strerror or exc}", file=sys.stderr)
+    project = load_or_report(args.project)
+    if project is None:
         return ExitCode.INVALID
     system = project.system
     result = solve_steady(system)

@@ -121,18 +121,12 @@ def run(args: argparse.Namespace) -> ExitCode:
     if args.workers is not None and args.workers < 1:
         print("workbench sweep: --workers must be at least 1", file=sys.stderr)
         return ExitCode.USAGE
-    from workbench.project.document import ProjectError, load_project
+    from workbench.cli.common import load_or_report
     from workbench.project.sweep_spec import SweepSpecError
     from workbench.sweep_runner import plan_sweep, quick_sweep_json, run_quick_sweep, run_sweep
 
-    try:
-        project = load_project(args.project)
-    except ProjectError as exc:
-        for problem in exc.problems:
-            print(problem, file=sys.stderr)
-        return ExitCode.INVALID
-    except OSError as exc:
-        print(f"{args.project}: {exc.strerror or exc}", file=sys.stderr)
+    project = load_or_report(args.project)
+    if project is None:
         return ExitCode.INVALID
     try:
         plan = plan_sweep(project, args.vary, args.require,
