@@ -10,7 +10,7 @@ Budget: ``WORKBENCH_FUZZ_CASES`` (default 240) mutated demo files run through ``
 draws ``WORKBENCH_FUZZ_CASES // 4`` generated projects (valid and damaged). The files of
 several megabytes run ``WORKBENCH_FUZZ_HEAVY`` cases (default 2). For a long hunt:
 ``WORKBENCH_FUZZ_CASES=5000 WORKBENCH_FUZZ_HEAVY=20 .venv/bin/python -m pytest tests/hardening``
-(see docs/errors.md). Mutation cases are seeded: a failure names its seed and mutation;
+(see the README, "Reference: error messages"). Mutation cases are seeded: a failure names its seed and mutation;
 ``WORKBENCH_FUZZ_START`` sets the first seed.
 """
 
