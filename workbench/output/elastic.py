@@ -8,7 +8,8 @@ These only add keys to the transient JSON; they never rename or reshape its keys
 
 from __future__ import annotations
 
-import math
+from workbench.output.common import json_float as _num, json_list as _list
+
 from typing import TYPE_CHECKING, Any
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -16,18 +17,6 @@ if TYPE_CHECKING:  # pragma: no cover
     from workbench.core.model import System
 
 __all__ = ["elastic_findings", "elastic_line_json", "elastic_table", "elastic_to_json"]
-
-
-def _num(x: Any) -> float | None:
-    """A JSON-safe float: ``None`` for ``None``, nan and infinities."""
-    if x is None:
-        return None
-    x = float(x)
-    return x if math.isfinite(x) else None
-
-
-def _list(a) -> list[float | None]:
-    return [_num(v) for v in a]
 
 
 def elastic_line_json(result: ElasticResult, line_id: str) -> dict:

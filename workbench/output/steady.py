@@ -8,7 +8,9 @@ as a word and a colour, never colour alone.
 
 from __future__ import annotations
 
-import math
+from workbench.output.common import SEVERITY_STYLE, quantity_text, simple_table
+from workbench.output.common import json_float as _num, json_list as _list
+
 from typing import TYPE_CHECKING, Any
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -16,21 +18,6 @@ if TYPE_CHECKING:  # pragma: no cover
     from workbench.core.network import SteadyResult
 
 __all__ = ["SEVERITY_STYLE", "steady_tables", "steady_to_json"]
-
-#: Severity word -> rich style (theme-neutral colours; the word carries the meaning).
-SEVERITY_STYLE = {"info": "cyan", "caution": "yellow", "danger": "bold red"}
-
-
-def _num(x: Any) -> float | None:
-    """A JSON-safe float: ``None`` for ``None``, nan and infinities."""
-    if x is None:
-        return None
-    x = float(x)
-    return x if math.isfinite(x) else None
-
-
-def _list(a) -> list[float | None]:
-    return [_num(v) for v in a]
 
 
 def steady_to_json(result: SteadyResult, system: System) -> dict:
@@ -124,18 +111,12 @@ def steady_tables(result: SteadyResult, system: System, unit_system: str = "SI")
     unit_system : {"SI", "US"}
         Display units (through :func:`workbench.project.units.format_quantity`).
     """
-    from rich import box
-    from rich.table import Table
     from rich.text import Text
 
-    def table(title: str) -> Table:
-        return Table(title=title, title_justify="left", box=box.SIMPLE_HEAD, pad_edge=False)
-
-    from workbench.project.units import format_quantity
+    table = simple_table
 
     def q(value, kind: str, digits: int = 4) -> str:
-        v = _num(value)
-        return "—" if v is None else format_quantity(v, kind, unit_system, digits)
+        return quantity_text(value, kind, unit_system, digits)
 
     def plain(value, digits: int = 4) -> str:
         v = _num(value)

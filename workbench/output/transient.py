@@ -10,6 +10,9 @@ screening, events and warnings; a warning's severity is a word as well as a colo
 
 from __future__ import annotations
 
+from workbench.output.common import SEVERITY_STYLE, quantity_text, simple_table
+from workbench.output.common import json_float as _num, json_list as _list
+
 import csv
 import math
 from typing import TYPE_CHECKING, Any, TextIO
@@ -21,21 +24,6 @@ if TYPE_CHECKING:  # pragma: no cover
     from workbench.core.transient import TransientResult
 
 __all__ = ["transient_csv", "transient_tables", "transient_to_json", "settle_time"]
-
-#: Severity word -> rich style (the word carries the meaning, the colour only helps).
-SEVERITY_STYLE = {"info": "cyan", "caution": "yellow", "danger": "bold red"}
-
-
-def _num(x: Any) -> float | None:
-    """A JSON-safe float: ``None`` for ``None``, nan and infinities."""
-    if x is None:
-        return None
-    x = float(x)
-    return x if math.isfinite(x) else None
-
-
-def _list(a) -> list[float | None]:
-    return [_num(v) for v in np.asarray(a, dtype=float).tolist()]
 
 
 def settle_time(t: np.ndarray, series: np.ndarray, fraction: float = 0.99) -> float | None:
@@ -158,18 +146,14 @@ def transient_tables(result: TransientResult, system: System, unit_system: str =
     unit_system : {"SI", "US"}
         Display units (through :func:`workbench.project.units.format_quantity`).
     """
-    from rich import box
-    from rich.table import Table
     from rich.text import Text
 
     from workbench.project.units import format_quantity
 
-    def table(title: str) -> Table:
-        return Table(title=title, title_justify="left", box=box.SIMPLE_HEAD, pad_edge=False)
+    table = simple_table
 
     def q(value, kind: str, digits: int = 4) -> str:
-        v = _num(value)
-        return "—" if v is None else format_quantity(v, kind, unit_system, digits)
+        return quantity_text(value, kind, unit_system, digits)
 
     def when(value) -> str:
         """A time in one readable unit: seconds below 2 min, then minutes, then hours."""
