@@ -91,8 +91,14 @@ def _print_table(project, sweep: dict, keypaths) -> None:
         table.add_column("result", no_wrap=True)
         for cells in cells_by_row:
             table.add_column(f"case #{cells[0]}", justify="right", overflow="fold")
+        from rich.text import Text
+
         for i, title in enumerate(titles[1:], start=1):
-            table.add_row(title, *[cells[i].replace(", ", "\n") for cells in cells_by_row])
+            # numbers line up on the right; words (values typed, warnings, errors) read left
+            justify = "right" if columns[i].kind else "left"
+            split = columns[i].key == "warnings"  # one warning code a line
+            table.add_row(title, *[Text(cells[i].replace(", ", "\n") if split else cells[i],
+                                        justify=justify) for cells in cells_by_row])
     else:
         table = Table(title=f"Sweep of {project.system.title}", title_justify="left")
         for col, title in zip(columns, titles):
