@@ -1,13 +1,15 @@
-"""Elastic surge (method of characteristics): vectorised core against a plain Python loop.
+"""Elastic surge (method of characteristics): the core's kernels against a plain Python loop.
 
 A 2 km steel line (DN 300, Korteweg wave speed) from a reservoir to a valve discharging to
 a downstream reservoir, 200 reaches, 120 s of simulated time: a 6 s closure and the
 oscillation after it. Prints the wall time and node-updates per second of
-``workbench.core.elastic.simulate_elastic`` and of the same equations written as a plain
-Python loop over reaches (Wylie & Streeter's textbook form, below), and their ratio.
-Both runs use the same grid, friction and valve law and must give the same envelope.
+``workbench.core.elastic.simulate_elastic`` with each time-stepping kernel (compiled by
+numba, and numpy-vectorised) and of the same equations written as a plain Python loop over
+reaches (Wylie & Streeter's textbook form, below), and the ratios. All runs use the same
+grid, friction and valve law and must give the same envelope. It also prints the one-off
+cost of loading and of compiling the compiled kernel in a new process.
 
-Target: the vectorised core at least 50x the plain loop.
+Target: the core at least 50x the plain loop.
 
 Run: .venv/bin/python tests/benchmarks/bench_elastic.py
 """
@@ -15,10 +17,14 @@ Run: .venv/bin/python tests/benchmarks/bench_elastic.py
 from __future__ import annotations
 
 import math
+import subprocess
+import sys
 import time
+from pathlib import Path
 
 import numpy as np
 
+from workbench.core import elastic_kernel
 from workbench.core.elastic import simulate_elastic
 from workbench.core.model import (
     G,
@@ -132,52 +138,118 @@ def plain_loop(system: System, result) -> dict:
     return {"max_head": h_max, "min_head": h_min, "valve_head": valve_series, "steps": steps}
 
 
-def compare(reaches: int, duration: float, repeats: int = 5) -> None:
-    system = bench_system(reaches)
-    simulate_elastic(system, "L1", duration=1.0)  # warm-up: imports, caches
+def timed_runs(system: System, duration: float, kernel: str, repeats: int):
     walls = []
     result = None
     for _ in range(repeats):
         t0 = time.perf_counter()
-        result = simulate_elastic(system, "L1", duration=duration)
+        result = simulate_elastic(system, "L1", duration=duration, kernel=kernel)
         walls.append(time.perf_counter() - t0)
     assert result.success, result.message
+    assert result.kernel == kernel, f"asked for the {kernel} kernel, got {result.kernel!r}"
+    return result, min(walls)
+
+
+def compare(reaches: int, duration: float, repeats: int = 5) -> float:
+    """Print the figures for one grid; return the compiled kernel's ratio to the loop."""
+    system = bench_system(reaches)
+    kernels = ["compiled", "numpy"] if elastic_kernel.compiled_available() else ["numpy"]
+    results = {}
+    for kernel in kernels:
+        simulate_elastic(system, "L1", duration=1.0, kernel=kernel)  # warm-up: loads, caches
+        results[kernel] = timed_runs(system, duration, kernel, repeats)
+    result = results[kernels[0]][0]
     steps = len(result.time) - 1
     nodes = result.reaches["L1"] + 1
     updates = steps * nodes
-    wall_core = min(walls)
 
     t0 = time.perf_counter()
     loop = plain_loop(system, result)
     wall_loop = time.perf_counter() - t0
 
     env = result.envelopes["L1"]
-    dev = max(np.abs(np.asarray(loop["max_head"]) - env.max_head).max(),
-              np.abs(np.asarray(loop["min_head"]) - env.min_head).max(),
-              np.abs(np.asarray(loop["valve_head"]) - result.valve_head).max())
-
     print(f"line: {LENGTH:.0f} m, {result.reaches['L1']} reaches, wave speed "
           f"{result.wave_speeds['L1'].used:.1f} m/s (Korteweg), dt = {result.dt * 1e3:.3f} ms")
     print(f"simulated {result.duration:.1f} s: {steps} steps x {nodes} nodes = "
           f"{updates / 1e6:.2f} M node-updates; friction '{result.friction}'")
     print(f"peak valve head {result.valve_head.max():.2f} m, lowest head on the line "
           f"{env.min_head.min():.2f} m, status {result.status}")
-    print(f"vectorised core (best of {len(walls)}): {wall_core:8.3f} s  "
-          f"{updates / wall_core / 1e6:8.2f} M node-updates/s  "
-          f"({wall_core / steps * 1e6:.1f} us per step)")
-    print(f"plain Python loop:              {wall_loop:8.3f} s  "
-          f"{updates / wall_loop / 1e6:8.2f} M node-updates/s  "
-          f"({wall_loop / steps * 1e6:.1f} us per step)")
-    print(f"ratio (loop / core): {wall_loop / wall_core:.1f}x   (target >= 50x)")
-    print(f"largest difference between the two (heads): {dev:.2e} m")
+    labels = {"compiled": "compiled kernel (numba)", "numpy": "numpy-vectorised kernel"}
+    for kernel in kernels:
+        res, wall = results[kernel]
+        e = res.envelopes["L1"]
+        dev = max(np.abs(np.asarray(loop["max_head"]) - e.max_head).max(),
+                  np.abs(np.asarray(loop["min_head"]) - e.min_head).max(),
+                  np.abs(np.asarray(loop["valve_head"]) - res.valve_head).max())
+        print(f"{labels[kernel] + f', best of {repeats}:':36s}{wall:8.4f} s "
+              f"{updates / wall / 1e6:7.1f} M node-updates/s {wall / steps * 1e6:7.2f} us/step")
+        print(f"{'':36s}ratio to the plain loop {wall_loop / wall:6.1f}x, "
+              f"largest head difference {dev:.1e} m")
+    print(f"{'plain Python loop:':36s}{wall_loop:8.4f} s "
+          f"{updates / wall_loop / 1e6:7.1f} M node-updates/s {wall_loop / steps * 1e6:7.2f} us/step")
+    print("(core times are whole simulate_elastic calls: steady start, grid, valve law, "
+          "stepping,\n envelope and series)")
+    return wall_loop / results[kernels[0]][1]
+
+
+def load_costs() -> None:
+    """One-off cost of the compiled kernel in a new process: numba's import and start-up and
+    loading the kernel from numba's on-disk cache, or compiling it when there is no cache.
+
+    Measured as the first compiled run of a short case less a numpy run of the same case,
+    both after a warm-up run that has imported scipy and the rest.
+    """
+    code = (
+        "import sys, time\n"
+        "sys.path.insert(0, %r)\n"
+        "from bench_elastic import bench_system\n"
+        "from workbench.core.elastic import simulate_elastic\n"
+        "system = bench_system(20)\n"
+        "simulate_elastic(system, 'L1', duration=0.5, kernel='numpy')\n"
+        "t0 = time.perf_counter()\n"
+        "simulate_elastic(system, 'L1', duration=0.5, kernel='numpy')\n"
+        "t1 = time.perf_counter()\n"
+        "simulate_elastic(system, 'L1', duration=0.5, kernel='compiled')\n"
+        "t2 = time.perf_counter()\n"
+        "print((t2 - t1) - (t1 - t0))\n"
+    ) % str(Path(__file__).resolve().parent)
+    cache = Path(elastic_kernel.__file__).resolve().parent / "__pycache__"
+
+    def run_fresh() -> float:
+        out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                             check=True).stdout
+        return float(out.split()[-1])
+
+    run_fresh()  # make sure the cache holds this source's kernel
+    warm = sorted(run_fresh() for _ in range(3))[1]
+    saved = {p: p.read_bytes() for p in cache.glob("elastic_kernel.*.nb*")}
+    for p in saved:
+        p.unlink()
+    try:
+        cold = run_fresh()
+    finally:
+        for p, data in saved.items():  # put the cache back as it was
+            p.write_bytes(data)
+    print(f"loading the compiled kernel in a new process: {warm:.2f} s from numba's on-disk "
+          f"cache (median of 3), {cold:.2f} s compiling it with no cache")
+    print(f"'auto' keeps a run under {elastic_kernel.AUTO_COMPILED_UPDATES / 1e6:.0f} M "
+          "node-updates on numpy until the compiled kernel has run in the process")
 
 
 def main() -> None:
     print("== the benchmark case: 2 km, 200 reaches, 120 s ==")
-    compare(REACHES, DURATION)
+    ratio = compare(REACHES, DURATION)
+    print(f"target: at least 50x the plain loop; compiled kernel {ratio:.1f}x: "
+          f"{'met' if ratio >= 50 else 'NOT met'}")
     print()
     print("== scaling: the same line with 2000 reaches, 6 s simulated ==")
     compare(10 * REACHES, 6.0, repeats=3)
+    if elastic_kernel.compiled_available():
+        print()
+        print("== one-off costs of the compiled kernel ==")
+        load_costs()
+    else:
+        print("numba is not installed: only the numpy kernel was measured")
 
 
 if __name__ == "__main__":

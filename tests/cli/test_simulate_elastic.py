@@ -108,6 +108,7 @@ def test_elastic_option_adds_the_envelope_and_series_under_the_line_surge_key(tm
     assert len(el["time_s"]) == len(el["valve_pressure_pa"]) == len(el["midline_pressure_pa"])
     assert el["distance_m"][0] == 0.0 and el["distance_m"][-1] == pytest.approx(1200.0)
     assert el["dt_s"] > 0 and abs(el["wave_speed_adjustment"]) < 1e-12
+    assert el["kernel"] in ("compiled", "numpy")
 
 
 def test_the_valve_pressure_jumps_by_joukowsky_with_the_korteweg_speed(tmp_path, capsys):

@@ -34,6 +34,13 @@ from workbench.core.model import (
     ValveSchedule,
 )
 
+@pytest.fixture(autouse=True, params=["numpy", "compiled"])
+def kernel(request, monkeypatch):
+    """Every check runs on both time-stepping kernels (workbench.core.elastic_kernel)."""
+    monkeypatch.setenv("WORKBENCH_KERNEL", request.param)
+    return request.param
+
+
 # Water at 20 degC: density and viscosity IAPWS-95 / IAPWS 2008, vapour pressure IF97
 # (HYDRAULICS.md table); bulk modulus 2.19 GPa (common practice, no source).
 WATER = FluidProps("water", 998.207, 1.0016e-3, 2339.2, 2.19e9, 293.15)
@@ -479,3 +486,24 @@ def test_a_cancelled_run_stops_with_status_minus_two_and_reports_progress():
     assert res.status == -2 and not res.success
     assert 0.0 < seen[-1] < 1.0 and seen == sorted(seen)
     assert len(res.time) == len(res.valve_head) and res.duration < 30.0
+
+
+def test_a_shut_valve_at_the_outlet_of_a_dead_ended_chain_leaves_finite_heads():
+    # Regression (found by the kernel comparison): a shut valve at the reservoir end of a
+    # chain that ends in a dead end gave K*Q|Q| = inf*0 = NaN for the initial head. With
+    # no flow anywhere, the chain rests at the reservoir head (hydrostatics).
+    lines = {
+        "L1": Line("L1", "R1", "J1", 300.0, 0.3, friction_factor=0.02,
+                   valve=Valve("linear", 2.0, opening=0.0, position="from",
+                               schedule=ValveSchedule((0.5, 0.7), (0.0, 1.0)))),
+        "L2": Line("L2", "J1", "J2", 200.0, 0.2, friction_factor=0.02),
+    }
+    system = System("dead", WATER, {"R1": Reservoir("R1", "constant_level", 0.0, 50.0)},
+                    {"J1": Junction("J1", 0.0), "J2": Junction("J2", 0.0)}, {}, lines)
+    res = simulate_elastic(system, "L2", wave_speeds={"L1": 1300.0, "L2": 1200.0},
+                           duration=2.0)
+    assert res.success
+    for env in res.envelopes.values():
+        assert np.all(np.isfinite(env.initial_head))
+        assert env.max_head == pytest.approx(np.full_like(env.max_head, 50.0), abs=1e-9)
+        assert env.min_head == pytest.approx(np.full_like(env.min_head, 50.0), abs=1e-9)

@@ -192,6 +192,8 @@ class ElasticResult:
     findings: tuple[Finding, ...] = ()
     notes: tuple[str, ...] = ()
     """Plain-language notes on the model (held levels, friction, adjustments)."""
+    kernel: str = ""
+    """Time-stepping kernel used: ``"compiled"`` or ``"numpy"`` (same numbers to round-off)."""
 
     @property
     def duration(self) -> float:
@@ -441,6 +443,7 @@ def simulate_elastic(
     wave_speeds: dict[str, float] | None = None,
     progress: Callable[[float], None] | None = None,
     cancel: Callable[[], bool] | None = None,
+    kernel: str = "auto",
 ) -> ElasticResult:
     r"""Run the method of characteristics on the chain of lines in series containing a line.
 
@@ -472,6 +475,10 @@ def simulate_elastic(
         Called with the fraction of simulated time done, 0..1.
     cancel : callable, optional
         Polled between blocks of steps; returning true stops the run (status -2).
+    kernel : str
+        ``"compiled"`` (numba), ``"numpy"`` or ``"auto"`` (the compiled kernel for a long
+        run or once it is loaded, see :func:`workbench.core.elastic_kernel.choose_kernel`).
+        Both give the same numbers to round-off. Without numba, numpy is always used.
 
     Returns
     -------
@@ -513,7 +520,7 @@ def simulate_elastic(
     """
     try:
         return _simulate(system, line_id, duration, max_duration, reaches, friction,
-                         speed_tolerance, wave_speeds, progress, cancel)
+                         speed_tolerance, wave_speeds, progress, cancel, kernel)
     except (ElasticSetupError, ValueError, KeyError) as exc:
         # set-up problems (missing data, unknown fitting or characteristic names, bad wave
         # speed inputs) come back as a failed result whose message says what was wrong
@@ -571,7 +578,7 @@ def run_elastic(
 
 
 def _simulate(system, line_id, duration, max_duration, reaches, friction, tolerance,
-              speed_override, progress, cancel) -> ElasticResult:
+              speed_override, progress, cancel, kernel="auto") -> ElasticResult:
     from workbench.core.surge import wave_speed
     from workbench.core.valve import opening_at, relative_flow_coefficient, valve_k
 
@@ -696,17 +703,12 @@ def _simulate(system, line_id, duration, max_duration, reaches, friction, tolera
 
     def valve_kappa(t_values: np.ndarray, ln: Line, inv: float) -> np.ndarray:
         v = ln.valve
-        x = np.empty(len(t_values))
         if v.schedule is not None and len(v.schedule.times) > 0:
-            # opening_at holds the first and last openings outside the schedule: call it
-            # once for each of those stretches and at every step only while the valve moves
-            first, last = v.schedule.times[0], v.schedule.times[-1]
-            i0, i1 = np.searchsorted(t_values, [first, last], side="left")
-            x[:i0] = opening_at(v, first)
-            x[i1:] = opening_at(v, last)
-            x[i0:i1] = [opening_at(v, float(t)) for t in t_values[i0:i1]]
+            # opening_at's rule, for every step at once: piecewise linear, holding the first
+            # and last openings outside the schedule
+            x = np.interp(t_values, v.schedule.times, v.schedule.openings)
         else:
-            x[:] = opening_at(v, 0.0)
+            x = np.full(len(t_values), opening_at(v, 0.0))
         c = relative_flow_coefficient(v.characteristic, x, v.rangeability)
         return np.asarray(valve_k(v.k_open, c), dtype=float) * inv
 
@@ -786,7 +788,7 @@ def _simulate(system, line_id, duration, max_duration, reaches, friction, tolera
     if q0 != 0.0 or ends[0].kind == "fixed":
         if ends[0].kind == "fixed":
             k0 = (ends[0].k_forward if q0 >= 0 else ends[0].k_backward) + kappa0.get(0, 0.0)
-            h = ends[0].head - k0 * q0 * abs(q0)
+            h = ends[0].head - (0.0 if q0 == 0.0 else k0 * q0 * abs(q0))  # k0 may be inf
         else:
             h = ends[-1].head + total_loss(q0)
         for i, c in enumerate(counts):
@@ -908,12 +910,31 @@ def _simulate(system, line_id, duration, max_duration, reaches, friction, tolera
                           rho, system.atmospheric_pressure)
 
     status = 0
+    k_step = 0
+    cancelled = False
+    from workbench.core import elastic_kernel  # numba, if present, loads only for a run
+
+    used_kernel = elastic_kernel.choose_kernel(kernel, updates=float(n_steps) * n)
+    if used_kernel == "compiled":
+        try:
+            k_step, cancelled, found = elastic_kernel.run_compiled(
+                h_init, b_node, q0, r_node, quasi, bounds, kappa_t, n_steps, h_max, h_min,
+                series, series_nodes, h_vap if sep is None else None, progress, cancel)
+        except Exception as exc:  # numba could not compile or run it here: numpy instead
+            elastic_kernel.note_failure(exc)
+            notes.append(f"compiled kernel failed ({exc}); the numpy kernel was used")
+            used_kernel = "numpy"
+            h_max[:] = h_init
+            h_min[:] = h_init
+        else:
+            if found is not None:
+                k_sep, k_node, head = found
+                sep = _separation(float(times[k_sep]), k_node, head, z_node[k_node], chain,
+                                  offsets, xs, rho, system.atmospheric_pressure)
     inf = math.inf
     sqrt = math.sqrt
     subtract, add, multiply, absolute = np.subtract, np.add, np.multiply, np.abs
-    k_step = 0
-    cancelled = False
-    while k_step < n_steps:
+    while used_kernel == "numpy" and k_step < n_steps:
         m = min(_BLOCK, n_steps - k_step)
         for j in range(m):
             k = k_step + j + 1
@@ -993,6 +1014,12 @@ def _simulate(system, line_id, duration, max_duration, reaches, friction, tolera
             break
 
     n_done = k_step
+    if not (np.isfinite(h_max).all() and np.isfinite(h_min).all()):
+        # a guard, not a model result: never report a run whose heads are not numbers
+        return _failed(
+            f"{STATUS_MESSAGES[-1]} The computed heads on {' - '.join(chain)} stopped being "
+            "finite numbers; check the line data (diameters, lengths, valve coefficients) "
+            "and report the project if they look sound.", line_ids=chain)
     times = times[:n_done + 1]
     series = series[:n_done + 1]
     if cancelled:
@@ -1051,6 +1078,7 @@ def _simulate(system, line_id, duration, max_duration, reaches, friction, tolera
         valve_pressure=valve_pressure, midline_head=midline_head,
         midline_pressure=midline_pressure, envelopes=envelopes, column_separation=sep,
         trusted_until=trusted_until, findings=tuple(findings), notes=tuple(notes),
+        kernel=used_kernel,
     )
 
 

@@ -31,7 +31,8 @@ def elastic_line_json(result: ElasticResult, line_id: str) -> dict:
     ``wave_speed_adjustment`` (relative, used/Korteweg - 1), ``wave_speed_formula``,
     ``friction_model``, ``initial_flow_m3_s``, ``trusted_until_s`` (``null``: trusted
     throughout), ``column_separation`` (``null`` or {``time_s``, ``line``, ``distance_m``,
-    ``pressure_abs_pa``}) and ``notes``.
+    ``pressure_abs_pa``}), ``notes`` and ``kernel`` (the time-stepping kernel used,
+    ``"compiled"`` or ``"numpy"``; the numbers agree to round-off).
     """
     out: dict[str, Any] = {
         "success": bool(result.success),
@@ -69,6 +70,7 @@ def elastic_line_json(result: ElasticResult, line_id: str) -> dict:
             "pressure_abs_pa": _num(sep.pressure_abs),
         },
         "notes": list(result.notes),
+        "kernel": result.kernel,
     })
     return out
 
