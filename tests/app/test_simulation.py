@@ -4,6 +4,8 @@ from __future__ import annotations
 
 import math
 
+import pytest
+
 from tests.app.conftest import SIZE, TRANSFER, make, settle, table_cells
 
 DRAIN = "fellgate_neutraliser_drain.toml"
@@ -129,3 +131,57 @@ async def test_a_valve_trip_shows_its_closure_event_and_the_elastic_surge_view(p
     assert surge and surge[0][0] == "310-PW-12"
     assert "envelope" in title
     assert "pressure at the valve" in title_after
+
+
+async def test_e_in_the_surge_view_runs_the_highlighted_line_and_marks_it(project_file):
+    from workbench.core.elastic import simulate_elastic
+    from workbench.project.document import set_value
+
+    app = make(project_file(TRANSFER))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("f10")
+        await pilot.pause()
+        before = str(app.screen.query_one("#surge-title").render())
+        await pilot.press("e")
+        await app.workers.wait_for_complete()
+        await pilot.pause()
+        title = str(app.screen.query_one("#surge-title").render())
+        note = str(app.screen.query_one("#surge-note").render())
+        listed = [str(o.prompt) for o in app.screen.query_one("#surge-lines").options]
+        shown = app.elastic["310-PW-12"]
+        system = app.project.system
+        app.apply_edit(set_value, "lines.310-PW-12.length", "250 m")
+        await settle(pilot)
+        stale = str(app.screen.query_one("#surge-title").render())
+    assert "no elastic run yet" in before
+    assert app.elastic_status == "done"
+    assert "head envelope" in title and "STALE" not in title
+    assert listed == ["● 310-PW-12"]
+    # the view shows what the core gives for the same line run on its own
+    direct = simulate_elastic(system, "310-PW-12")
+    assert shown.envelopes["310-PW-12"].max_head == pytest.approx(
+        direct.envelopes["310-PW-12"].max_head, abs=1e-9)
+    peak_kpa = direct.envelopes["310-PW-12"].max_pressure.max() / 1e3
+    assert f"peak {peak_kpa:.0f} kPa g" in note
+    assert "STALE" in stale
+
+
+async def test_e_on_a_branched_line_says_why_the_elastic_model_refuses_it(project_file):
+    from tests.app.conftest import NETWORK
+
+    app = make(project_file(NETWORK))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("f10")
+        await pilot.pause()
+        await pilot.press("down", "e")
+        await app.workers.wait_for_complete()
+        await pilot.pause()
+        title = str(app.screen.query_one("#surge-title").render())
+        note = str(app.screen.query_one("#surge-note").render())
+        listed = [str(o.prompt) for o in app.screen.query_one("#surge-lines").options]
+    assert app.elastic_status == "failed"
+    assert "failed" in title
+    assert "series only" in note
+    assert listed[1].startswith("✗")

@@ -86,6 +86,10 @@ class WorkbenchApp(App[int]):
     """The last ``TransientResult``."""
     elastic: var[Any] = var(None, always_update=True)
     """Line id -> ``ElasticResult`` of the last run's elastic surge runs (may be empty)."""
+    elastic_status: var[str] = var("idle")
+    """An elastic run asked for from the Surge view: ``idle``, ``running``, ``done``,
+    ``cancelled`` or ``failed``."""
+    elastic_progress: var[float] = var(0.0)
     modified: var[bool] = var(False)
     path: var[Path | None] = var(None)
 
@@ -112,6 +116,23 @@ class WorkbenchApp(App[int]):
         def __init__(self, fraction: float) -> None:
             super().__init__()
             self.fraction = fraction
+
+    class ElasticProgressed(Message):
+        """The elastic run asked for from the Surge view reached ``fraction`` (0..1)."""
+
+        def __init__(self, fraction: float) -> None:
+            super().__init__()
+            self.fraction = fraction
+
+    class ElasticFinished(Message):
+        """An elastic run asked for from the Surge view ended."""
+
+        def __init__(self, results: dict, system: Any, line_id: str, cancelled: bool) -> None:
+            super().__init__()
+            self.results = results
+            self.system = system
+            self.line_id = line_id
+            self.cancelled = cancelled
 
     class SimulationFinished(Message):
         """A simulation ended (completed, stopped by an event, or cancelled)."""
@@ -143,6 +164,10 @@ class WorkbenchApp(App[int]):
         self.history: History[Any] | None = None
         self.disk_hash: str | None = None
         self.transient_system: Any = None
+        self.elastic_system: Any = None
+        """The system the results in :attr:`elastic` were computed for."""
+        self.elastic_line: str | None = None
+        """The line of the elastic run asked for from the Surge view (running or last)."""
         self._generation = 0
         self._steady_timer = None
 
@@ -207,6 +232,8 @@ class WorkbenchApp(App[int]):
         self.transient = None
         self.elastic = None
         self.transient_system = None
+        self.elastic_system = None
+        self.elastic_status = "idle"
         self.run_status = "idle"
         self.run_progress = 0.0
         self.steady = None
@@ -302,6 +329,7 @@ class WorkbenchApp(App[int]):
 
     def on_workbench_app_simulation_finished(self, message: SimulationFinished) -> None:
         self.transient_system = message.system
+        self.elastic_system = message.system
         self.elastic = message.elastic
         self.transient = message.result
         if message.cancelled:
@@ -321,6 +349,57 @@ class WorkbenchApp(App[int]):
             self.run_status = "cancelled"
             self.notify("simulation stopped")
             self.refresh_bindings()
+        if self.elastic_status == "running":
+            self.workers.cancel_group(self, "elastic")
+            self.elastic_status = "cancelled"
+            self.notify("elastic run stopped")
+            self.refresh_bindings()
+
+    # --- elastic run of one line, from the Surge view ----------------------------------
+    def action_elastic_run(self, line_id: str | None) -> None:
+        """Run the method of characteristics on a line's chain, as ``--elastic LINE`` does."""
+        if self.project is None or self.elastic_status == "running" or not line_id:
+            return
+        if line_id not in self.project.system.lines:
+            return
+        self.elastic_line = line_id
+        self.elastic_progress = 0.0
+        self.elastic_status = "running"
+        self.elastic_worker(self.project.system, line_id)
+        self.refresh_bindings()
+
+    @work(thread=True, exclusive=True, exit_on_error=False, group="elastic")
+    def elastic_worker(self, system: Any, line_id: str) -> None:
+        worker = get_current_worker()
+        last = [-1.0]
+
+        def progress(fraction: float) -> None:
+            if fraction - last[0] >= 0.01 or fraction >= 1.0:
+                last[0] = fraction
+                self.post_message(self.ElasticProgressed(float(fraction)))
+
+        results = jobs.elastic(system, line_id, progress, lambda: worker.is_cancelled)
+        self.post_message(self.ElasticFinished(results, system, line_id, worker.is_cancelled))
+
+    def on_workbench_app_elastic_progressed(self, message: ElasticProgressed) -> None:
+        if self.elastic_status == "running":
+            self.elastic_progress = message.fraction
+
+    def on_workbench_app_elastic_finished(self, message: ElasticFinished) -> None:
+        if message.cancelled or self.elastic_status != "running":
+            return
+        # keep the other lines' results only when they were computed for the same system
+        merged = dict(self.elastic or {}) if self.elastic_system is message.system else {}
+        merged.update(message.results)
+        self.elastic_system = message.system
+        self.elastic = merged
+        result = message.results.get(message.line_id)
+        ok = result is not None and result.success
+        self.elastic_status = "done" if ok else "failed"
+        if not ok:
+            text = getattr(result, "message", "no result")
+            self.notify(str(text), title="Elastic run", severity="error", timeout=10)
+        self.refresh_bindings()
 
     # --- the one place worker failures become words ------------------------------------
     def on_worker_state_changed(self, event: Worker.StateChanged) -> None:
@@ -334,10 +413,14 @@ class WorkbenchApp(App[int]):
         elif worker.group == "simulation":
             self.run_status = "failed"
             self.refresh_bindings()
+        elif worker.group == "elastic":
+            self.elastic_status = "failed"
+            self.refresh_bindings()
         elif worker.group == "load" and self.project is None:
             self._show_load_problems(text)
             return
-        title = {"steady": "Steady solve", "simulation": "Simulation", "load": "Open"}.get(
+        title = {"steady": "Steady solve", "simulation": "Simulation", "load": "Open",
+                 "elastic": "Elastic run"}.get(
             worker.group, "Background work")
         self.notify(text, title=title, severity="error", timeout=10)
 
@@ -372,7 +455,7 @@ class WorkbenchApp(App[int]):
         if action == "toggle_units":
             return has_project or None
         if action == "stop_run":
-            return self.run_status == "running" or None
+            return (self.run_status == "running" or self.elastic_status == "running") or None
         return True
 
     async def action_view(self, name: str) -> None:

@@ -71,6 +71,22 @@ def simulate(
     return result, elastic
 
 
+def elastic(
+    system: Any,
+    line_id: str,
+    progress: Callable[[float], None],
+    cancel: Callable[[], bool],
+) -> dict[str, Any]:
+    """The elastic surge run of one line's chain (``workbench simulate --elastic LINE``).
+
+    Returns line id -> ``ElasticResult`` for every line of the chain; a chain that cannot
+    be run gives a failed result whose message says why.
+    """
+    from workbench.core.elastic import run_elastic
+
+    return run_elastic(system, [line_id], progress=progress, cancel=cancel)
+
+
 def file_hash(path: Path) -> str | None:
     """sha256 of the file's bytes now, or ``None`` when it is gone."""
     try:

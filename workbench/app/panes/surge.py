@@ -8,6 +8,11 @@ Two pictures, switched with ``v``:
 * the pressure at the valve in time, with the rating and the vapour pressure (gauge).
 
 Points above the rating are marked ``!``, points at or below the vapour limit ``V``.
+
+The list on the left holds every line of the project; ``●`` marks those with an elastic
+result, ``✗`` those whose elastic run failed (the note says why). ``e`` runs the method of characteristics on the highlighted line and the lines in
+series with it (as ``workbench simulate --elastic LINE``); Ctrl+R runs the lines whose surge
+model is ``elastic`` together with the simulation.
 """
 
 from __future__ import annotations
@@ -53,6 +58,7 @@ class SurgePane(Horizontal):
 
     BINDINGS = [
         Binding("v", "switch_picture", "Envelope/valve", id="surge.picture"),
+        Binding("e", "elastic_run", "Elastic run", id="surge.run"),
     ]
 
     def compose(self) -> ComposeResult:
@@ -70,19 +76,40 @@ class SurgePane(Horizontal):
 
     def on_mount(self) -> None:
         self.watch(self.app, "elastic", self._list_lines)
+        self.watch(self.app, "project", self._list_lines, init=False)
+        self.watch(self.app, "elastic_status", self._redraw, init=False)
+        self.watch(self.app, "elastic_progress", self._redraw, init=False)
         self.watch(self.app, "unit_system", self._redraw, init=False)
 
-    def _list_lines(self, elastic) -> None:
+    def _list_lines(self, _value=None) -> None:
         box = self.query_one("#surge-lines", OptionList)
+        project = self.app.project
+        lines = list(project.system.lines) if project is not None else []
+        elastic = self.app.elastic or {}
+        for lid in elastic:  # results of a system the project no longer has lines of
+            if lid not in lines:
+                lines.append(lid)
         box.clear_options()
-        lines = list(elastic or {})
-        box.add_options([Option(line, id=line) for line in lines])
+        box.add_options([
+            Option(f"{self._mark(elastic.get(lid))} {lid}", id=lid) for lid in lines
+        ])
         if lines:
-            self._line = self._line if self._line in lines else lines[0]
+            if self._line not in lines:
+                self._line = next((lid for lid in lines if lid in elastic), lines[0])
             box.highlighted = lines.index(self._line)
         else:
             self._line = None
         self._redraw()
+
+    @staticmethod
+    def _mark(result) -> str:
+        """``●`` a line with an elastic result, ``✗`` one whose run failed, blank: none."""
+        if result is None:
+            return " "
+        return "●" if result.success else "✗"
+
+    def action_elastic_run(self) -> None:
+        self.app.action_elastic_run(self._line)
 
     def on_option_list_option_highlighted(self, event: OptionList.OptionHighlighted) -> None:
         event.stop()
@@ -115,11 +142,23 @@ class SurgePane(Horizontal):
         plt.clear_figure()
         app = self.app
         elastic = app.elastic or {}
-        system = app.transient_system
-        if not elastic or self._line is None or system is None:
-            title.update("Surge: no elastic run yet. Set a line's surge model to 'elastic' "
-                         "and press Ctrl+R")
+        system = app.elastic_system
+        if self._line is None:
+            title.update("Surge: the project has no lines")
             note.update("")
+            self._plot.refresh()
+            return
+        if app.elastic_status == "running" and app.elastic_line == self._line:
+            title.update(f"{self._line}: elastic run {100 * app.elastic_progress:.0f} % "
+                         "(Esc stops)")
+            note.update("method of characteristics on this line and the lines in series "
+                        "with it")
+            self._plot.refresh()
+            return
+        if self._line not in elastic or system is None:
+            title.update(f"{self._line}: no elastic run yet · e runs it")
+            note.update("e: method of characteristics on this line and the lines in series "
+                        "with it. Ctrl+R also runs lines whose surge model is 'elastic'.")
             self._plot.refresh()
             return
         result = elastic[self._line]
@@ -163,7 +202,7 @@ class SurgePane(Horizontal):
         head = display_unit("head", units)
         plt.xlabel(f"chainage [{head}]")
         plt.ylabel(f"head [{head}]")
-        title.update(f"Surge {self._line}: head envelope (v: valve trace)")
+        title.update(f"Surge {self._line}: head envelope (v: valve trace){self._stale()}")
         note.update(self._summary(result, s))
 
     def _draw_valve(self, plt, result, system, title, note) -> None:
@@ -188,8 +227,15 @@ class SurgePane(Horizontal):
             plt.plot([t[0], t[-1]], conv([p_vap_g, p_vap_g]), label="vapour", marker=".")
         plt.xlabel("time [s]")
         plt.ylabel(f"p [{display_unit('pressure', units)} g]")
-        title.update(f"Surge {result.valve_line}: pressure at the valve (v: envelope)")
+        title.update(f"Surge {result.valve_line}: pressure at the valve (v: envelope)"
+                     f"{self._stale()}")
         note.update(self._summary(result, None))
+
+    def _stale(self) -> str:
+        """A mark when the results were computed before the project's last edit."""
+        app = self.app
+        current = getattr(app.project, "system", None)
+        return "" if app.elastic_system is current else "  (STALE: e reruns)"
 
     def _summary(self, result, series) -> str:
         from workbench.project.units import format_quantity
