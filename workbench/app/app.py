@@ -191,7 +191,8 @@ class WorkbenchApp(App[int]):
             self.notify(f"loading {self._initial_path} …", timeout=2)
             self.call_after_refresh(self.load_worker, self._initial_path)
         elif self._offer_new:
-            self.call_after_refresh(self._ask_new)
+            # asked at once, so that a key pressed as soon as the screen shows answers it
+            self._ask_new()
 
     def _ask_new(self) -> None:
         from workbench.app.screens.dialogs import AskScreen
