@@ -187,3 +187,19 @@ roughness = "0.045 mm"
     assert "J1" in captured.err and "series" in captured.err
     assert data["surge"]["L2"]["elastic"]["success"] is False
     assert "surge.elastic_failed" in [w["code"] for w in data["warnings"]]
+
+
+def test_the_tables_read_whole_at_80_columns(tmp_path, capsys, monkeypatch):
+    # The test line reaches vapour pressure (the 0.1 s closure of a 60 m head line drops the
+    # valve side below vapour, Joukowsky ~370 m): the note saying so must read in full in an
+    # 80-column terminal, and no number may be cut short with an ellipsis.
+    monkeypatch.setenv("COLUMNS", "80")
+    code = main(["simulate", str(write(tmp_path)), "--elastic", "L1"])
+    out = capsys.readouterr().out
+    assert code == 0
+    assert "…" not in out
+    assert max(len(line) for line in out.splitlines()) <= 80
+    flat = " ".join(out.split())
+    assert "L1: VAPOUR PRESSURE reached on L1 at 1200 m" in flat
+    assert "results after that time are not trustworthy" in flat
+    assert "* capped at static plus Joukowsky" in flat

@@ -101,42 +101,51 @@ def elastic_findings(results: dict[str, ElasticResult]) -> list[dict]:
 
 
 def elastic_table(results: dict[str, ElasticResult], system: System, unit_system: str = "SI"):
-    """A rich table: per elastic line, wave speed, reaches, peak and lowest pressure."""
+    """A rich table: per elastic line, wave speed, reaches, peak and lowest pressure.
+
+    Notes (a line not run, an adjusted wave speed, vapour pressure reached) are listed in
+    full under the table, one per line, so that they read whole in an 80-column terminal.
+    """
     from rich.table import Table
 
     from workbench.project.units import format_quantity
 
     table = Table(title="Elastic surge (method of characteristics)", title_justify="left")
-    for col in ("line", "a", "reaches", "dt", "p max", "p min", "rating", "note"):
-        table.add_column(col, justify="left" if col in ("line", "note") else "right",
-                         no_wrap=col != "note")
-    table.caption = ("a: wave speed used; p: gauge pressure, highest and lowest anywhere "
-                     "on the line over the surge run")
-    table.caption_justify = "left"
+    for col in ("line", "a", "reaches", "dt", "p max", "p min", "rating"):
+        table.add_column(col, justify="left" if col == "line" else "right", no_wrap=True)
+    notes: list[str] = []
     for lid, res in results.items():
         env = res.envelopes.get(lid)
         if env is None:
-            table.add_row(lid, "", "", "", "", "", "", f"not run: {res.message}")
+            table.add_row(lid, "", "", "", "", "", "")
+            notes.append(f"{lid}: not run: {res.message}")
             continue
         speed = res.wave_speeds[lid]
         rating = system.lines[lid].pressure_rating
-        note = []
         if abs(speed.adjustment) > 1e-9:
-            note.append(f"wave speed adjusted {100 * speed.adjustment:+.2f} %")
+            notes.append(f"{lid}: wave speed adjusted {100 * speed.adjustment:+.2f} % to fit "
+                         "the common time step")
         if res.column_separation is not None:
             sep = res.column_separation
-            note.append(f"VAPOUR at {sep.line} {sep.distance:.0f} m, t {sep.time:.2f} s: "
-                        "not trustworthy after")
+            notes.append(f"{lid}: VAPOUR PRESSURE reached on {sep.line} at {sep.distance:.0f} m, "
+                         f"t = {sep.time:.2f} s: results after that time are not trustworthy")
         over = rating is not None and env.max_pressure.max() > rating
+        if over:
+            notes.append(f"{lid}: the peak is OVER THE RATING")
         table.add_row(
             lid,
             format_quantity(speed.used, "velocity", unit_system),
             str(res.reaches[lid]),
             f"{res.dt * 1e3:.3g} ms",
             format_quantity(float(env.max_pressure.max()), "pressure", unit_system)
-            + (" OVER RATING" if over else ""),
+            + (" !" if over else ""),
             format_quantity(float(env.min_pressure.min()), "pressure", unit_system),
             "" if rating is None else format_quantity(rating, "pressure", unit_system),
-            "; ".join(note),
         )
+    caption = ["a: wave speed used; p: gauge pressure, highest and lowest anywhere on the line "
+               "over the surge run" + ("; ! over the rating" if any("OVER" in n for n in notes)
+                                       else "")]
+    caption.extend(notes)
+    table.caption = "\n".join(caption)
+    table.caption_justify = "left"
     return table

@@ -187,20 +187,26 @@ def transient_tables(result: TransientResult, system: System, unit_system: str =
 
     lines = table("Lines")
     for col, just in (("line", "left"), ("peak flow", "right"), ("min flow", "right"),
-                      ("max pressure", "right"), ("at", "right"), ("min pressure", "right"),
-                      ("at", "right")):
+                      ("max pressure", "right"), ("min pressure", "right")):
         lines.add_column(col, justify=just, no_wrap=True)
+    any_capped = False
     for i, lid in enumerate(result.line_ids):
         f = result.flows[i] if result.flows.size else np.zeros(0)
         pmax = q(result.max_pressure.get(lid), "pressure")
         surge = result.surge.get(lid)
         if surge is not None and surge.capped:
-            pmax += " (capped)"
+            pmax += " *"
+            any_capped = True
+        # each extreme with its time under it, so that the table fits 80 columns
         lines.add_row(lid, q(np.max(f) if f.size else None, "flow"),
-                      q(np.min(f) if f.size else None, "flow"), pmax,
-                      when(result.max_pressure_time.get(lid)),
-                      q(result.min_pressure.get(lid), "pressure"),
-                      when(result.min_pressure_time.get(lid)))
+                      q(np.min(f) if f.size else None, "flow"),
+                      f"{pmax}\nat {when(result.max_pressure_time.get(lid))}",
+                      f"{q(result.min_pressure.get(lid), 'pressure')}\n"
+                      f"at {when(result.min_pressure_time.get(lid))}")
+    if any_capped:
+        lines.caption = ("* capped at static plus Joukowsky: the rigid column overstates a "
+                         "fast closure (see the surge screening)")
+        lines.caption_justify = "left"
     out.append(lines)
 
     closing = {lid: s for lid, s in result.surge.items() if s.effective_closure is not None}
