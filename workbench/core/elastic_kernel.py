@@ -33,15 +33,16 @@ import os
 
 import numpy as np
 
+from workbench.core import friction as _friction
+
 #: Kernel choices for :func:`workbench.core.elastic.simulate_elastic`.
 KERNELS = ("auto", "compiled", "numpy")
 
 #: Environment variable that overrides ``"auto"`` (``numpy`` or ``compiled``).
 KERNEL_ENV = "WORKBENCH_KERNEL"
 
-_LN10 = math.log(10.0)
-_RE_LAMINAR = 2000.0
-_RE_TURBULENT = 4000.0
+_RE_LAMINAR = _friction.RE_LAMINAR
+_RE_TURBULENT = _friction.RE_TURBULENT
 
 
 
@@ -64,27 +65,23 @@ def _compiled(func):
     return func if _JIT is None else _JIT(func)
 
 
+# Colebrook's 1/sqrt(f) by Clamond's iteration, the very function the array path uses
+# (plain arithmetic and np.log, which numba compiles for scalars as well as arrays)
+_clamond_inv_sqrt_f = _compiled(_friction._clamond_inv_sqrt_f)
+
+
 @_compiled
 def friction_re_product_scalar(re: float, rr: float) -> float:
     """``phi = f*Re`` of the default friction method for one Reynolds number.
 
     The scalar twin of :func:`workbench.core.friction.friction_re_product` (laminar 64,
-    a smooth blend over 2000-4000, Colebrook by Clamond's iteration above), written as
-    plain arithmetic so that numba can compile it into :func:`march`.
+    a smooth blend over 2000-4000, Colebrook by Clamond's iteration above), so that numba
+    can compile it into :func:`march`.
     """
     re = abs(re)
     rr = abs(rr)
     r = re if re > _RE_LAMINAR else _RE_LAMINAR
-    a = rr * r * (_LN10 / 18.574)
-    b = math.log(r * (_LN10 / 5.02))
-    f_ = b - 0.2
-    af = a + f_
-    e = (math.log(af) - 0.2) / (1.0 + af)
-    f_ -= (1.0 + af + 0.5 * e) * e * af / (1.0 + af + e * (1.0 + e / 3.0))
-    af = a + f_
-    e = (math.log(af) + f_ - b) / (1.0 + af)
-    f_ -= (1.0 + af + 0.5 * e) * e * af / (1.0 + af + e * (1.0 + e / 3.0))
-    y = f_ * (2.0 / _LN10)
+    y = _clamond_inv_sqrt_f(r, rr)
     fc = 1.0 / (y * y)
     s = (r - _RE_LAMINAR) / (_RE_TURBULENT - _RE_LAMINAR)
     s = 0.0 if s < 0.0 else (1.0 if s > 1.0 else s)
