@@ -9,9 +9,11 @@ import pytest
 from workbench.core.fittings import (
     ENTRANCES,
     EXIT_K,
+    EXIT_K_LAMINAR,
     FITTINGS,
     FittingError,
     entrance_k,
+    exit_k,
     fitting_constants,
     fitting_k,
 )
@@ -96,6 +98,57 @@ def test_exit_is_one_velocity_head():
     from fluids.fittings import exit_normal
 
     assert EXIT_K == exit_normal()
+
+
+def test_a_laminar_exit_loses_the_kinetic_energy_of_the_poiseuille_profile():
+    # Source: HYDRAULICS.md "Minor losses" (about 2 velocity heads for a fully developed
+    # laminar profile, alpha = 2). Checked here from its definition,
+    # alpha = int u^3 dA / (v^3 A), for the Hagen-Poiseuille profile u = 2 v (1 - r^2/R^2),
+    # integrated by scipy's quad (R = 1, v = 1).
+    from scipy.integrate import quad
+
+    alpha, _ = quad(lambda r: (2.0 * (1.0 - r * r)) ** 3 * 2.0 * np.pi * r, 0.0, 1.0)
+    alpha /= np.pi
+    assert alpha == pytest.approx(2.0, rel=1e-12)
+    assert EXIT_K_LAMINAR == pytest.approx(alpha, rel=1e-12)
+    k, dk = exit_k(np.array([0.0, 1e-3, 500.0, 1999.999]))
+    assert k.tolist() == [alpha] * 4 and dk.tolist() == [0.0] * 4
+
+
+def test_a_turbulent_exit_stays_one_velocity_head():
+    # Source: fluids.fittings.exit_normal() (turbulent exit, K = 1).
+    from fluids.fittings import exit_normal
+
+    k, dk = exit_k(np.array([4000.0, 1e5, 1e8]))
+    assert k.tolist() == [exit_normal()] * 3 and dk.tolist() == [0.0] * 3
+
+
+def test_the_exit_k_between_the_regimes_uses_the_friction_blend_weight():
+    # The same cubic weight as the friction blend, written out here: w = 3s^2 - 2s^3,
+    # s = (Re - 2000)/2000 (regime limits 2000/4000, common practice, no source), and
+    # K = 2 - w, so half way (Re 3000) K = 1.5.
+    re = np.linspace(2000.0, 4000.0, 41)
+    s = (re - 2000.0) / 2000.0
+    k, _ = exit_k(re)
+    np.testing.assert_allclose(k, 2.0 - (3 * s**2 - 2 * s**3), rtol=0, atol=1e-15)
+    assert float(exit_k(3000.0)[0]) == 1.5
+
+
+def test_the_exit_k_is_continuous_with_a_continuous_slope_that_matches_finite_differences():
+    # Independent check: central differences of exit_k itself (step 1e-3 in Re), and both
+    # K and dK/dRe continuous across the band edges 2000 and 4000 and the sign of Re.
+    re = np.concatenate((np.linspace(1500.0, 4500.0, 3001), [1999.9995, 2000.0005,
+                                                             3999.9995, 4000.0005]))
+    step = 1e-3
+    k, dk = exit_k(re)
+    fd = (exit_k(re + step)[0] - exit_k(re - step)[0]) / (2 * step)
+    np.testing.assert_allclose(dk, fd, rtol=0, atol=1e-9)
+    assert np.all(dk <= 0.0) and dk.min() == pytest.approx(-1.5 / 2000.0, rel=1e-6)
+    for edge in (2000.0, 4000.0):
+        lo, hi = exit_k(edge - 1e-7), exit_k(edge + 1e-7)
+        assert float(hi[0]) == pytest.approx(float(lo[0]), abs=1e-12)
+        assert float(hi[1]) == pytest.approx(float(lo[1]), abs=1e-9)
+    assert exit_k(-3000.0)[0] == exit_k(3000.0)[0]
 
 
 @pytest.mark.parametrize(("name", "r_over_d"), [

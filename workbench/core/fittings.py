@@ -17,9 +17,10 @@ inches; for the 3-K size term the nominal size is estimated from it by interpola
 ASME B36.10M Schedule 40 table (as fluids' ``Darby3K`` does when given ``Di``), or passed as
 ``nominal_in`` where known.
 
-Exit: one velocity head (``K = 1``) where the line discharges into a free surface, a vessel
-or the air, for turbulent flow (about 2 for a fully developed laminar profile; the model
-uses 1). Entrance shapes: :data:`ENTRANCES`.
+Exit: where the line discharges into a free surface, a vessel or the air the flow loses its
+kinetic energy, ``alpha`` velocity heads with ``alpha`` the kinetic-energy coefficient of the
+velocity profile: 1 for turbulent flow, 2 for a fully developed laminar profile, blended
+between (:func:`exit_k`). Entrance shapes: :data:`ENTRANCES`.
 """
 
 from __future__ import annotations
@@ -29,11 +30,56 @@ from functools import cache
 
 import numpy as np
 
+from workbench.core.friction import transition_weight
 from workbench.core.model import Fitting
 
 #: Loss coefficient of the exit into a free surface, a vessel or the air, turbulent flow [-]
 #: (common practice; equals fluids' ``exit_normal()``).
 EXIT_K = 1.0
+#: Loss coefficient of the same exit for a fully developed laminar profile [-]: the
+#: kinetic-energy coefficient of the Hagen-Poiseuille profile, alpha = 2 (HYDRAULICS.md,
+#: "Minor losses").
+EXIT_K_LAMINAR = 2.0
+
+
+def exit_k(re):
+    r"""Loss coefficient of an exit at Reynolds number ``re``, and its slope.
+
+    Flow leaving a line into a free surface, a vessel or the air loses its kinetic energy,
+    :math:`\alpha\,v^2/2g` with :math:`\alpha = \int u^3 dA/(\bar v^3 A)` the kinetic-energy
+    coefficient of the velocity profile. For the parabolic (Hagen-Poiseuille) profile
+    :math:`\alpha = 2`; for turbulent flow the model takes 1. Between Re 2000 and 4000
+    :math:`K = 2 - w(Re)` with the same weight as the friction blend
+    (:func:`workbench.core.friction.transition_weight`), so ``K`` and ``dK/dRe`` are
+    continuous everywhere.
+
+    Parameters
+    ----------
+    re : array_like
+        Reynolds number [-]; its absolute value is used; ``Re = 0`` gives 2.
+
+    Returns
+    -------
+    k, dk_dre : ndarray
+        Exit loss coefficient referred to the line velocity head [-] and its derivative
+        with respect to ``|Re|`` [-] (<= 0).
+
+    References
+    ----------
+    HYDRAULICS.md, "Minor losses": one velocity head for turbulent flow, about 2 for a fully
+    developed laminar profile (kinetic-energy coefficient alpha = 2). The value 2 follows by
+    integrating the parabolic profile ``u = 2 v (1 - r^2/R^2)``. The turbulent 1 equals
+    fluids' ``exit_normal()`` (common practice).
+
+    Examples
+    --------
+    >>> k, dk = exit_k([100.0, 3000.0, 1e5])
+    >>> k.tolist(), dk.tolist()
+    ([2.0, 1.5, 1.0], [0.0, -0.00075, 0.0])
+    """
+    w, dw = transition_weight(np.abs(np.asarray(re, dtype=float)))
+    span = EXIT_K_LAMINAR - EXIT_K
+    return EXIT_K_LAMINAR - span * w, 0.0 - span * dw
 
 _METHODS = ("darby_3k", "hooper_2k")
 

@@ -139,7 +139,31 @@ def colebrook_slope(re, rel_roughness, f=None):
         return -2.0 * f * c * b / (re * (rr / 3.7 + b * y + c * b))
 
 
-def _blend_weight(re):
+def transition_weight(re):
+    """Weight of the turbulent law across the transition band, and its slope.
+
+    ``w = 3s^2 - 2s^3`` with ``s = (Re - 2000)/2000`` clipped to 0..1: 0 when laminar, 1
+    when turbulent, continuous with a continuous slope at both band edges. The friction
+    blend (:func:`friction_re_product`) and the exit loss
+    (:func:`workbench.core.fittings.exit_k`) both use it, so the two move together. No
+    published law: it only keeps the head loss smooth for Newton's method.
+
+    Parameters
+    ----------
+    re : array_like
+        Reynolds number [-] (absolute value expected).
+
+    Returns
+    -------
+    w, dw_dre : ndarray
+        Weight [-] and its derivative with respect to Re [-].
+
+    Examples
+    --------
+    >>> [float(x) for x in transition_weight(3000.0)]
+    [0.5, 0.00075]
+    """
+    re = np.asarray(re, dtype=float)
     s = np.clip((re - RE_LAMINAR) / (RE_TURBULENT - RE_LAMINAR), 0.0, 1.0)
     w = s * s * (3.0 - 2.0 * s)
     dw = 6.0 * s * (1.0 - s) / (RE_TURBULENT - RE_LAMINAR)
@@ -173,7 +197,7 @@ def friction_re_product(re, rel_roughness):
     c = 2.0 / _LN10
     bb = 2.51 / r
     dfc = -2.0 * fc * c * bb / (r * (rr / 3.7 + bb * y + c * bb))
-    w, dw = _blend_weight(r)
+    w, dw = transition_weight(r)
     fcr = fc * r
     phi = 64.0 + w * (fcr - 64.0)
     dphi = dw * (fcr - 64.0) + w * (fc + r * dfc)
