@@ -44,18 +44,111 @@ def test_laminar_friction_loss_is_hagen_poiseuille_exactly():
 
 @pytest.mark.parametrize("entrance_k", [0.0, 0.5])
 def test_laminar_flow_between_two_levels_solves_hagen_poiseuille_with_end_losses(entrance_k):
-    # Source: Hagen-Poiseuille resistance 128 mu L/(pi rho g D^4) plus (K_entrance + 1 exit)
-    # velocity heads; the quadratic is solved in closed form here.
+    # Source: Hagen-Poiseuille resistance 128 mu L/(pi rho g D^4) plus (K_entrance + 2 exit)
+    # velocity heads, the exit of a fully developed laminar profile taking its kinetic-energy
+    # coefficient alpha = 2 (HYDRAULICS.md "Minor losses"); H = (64/Re L/D + K_ent + 2) v^2/2g
+    # is a quadratic in Q, solved in closed form here.
     result = solve_steady(_hp_system(entrance_k))
     assert result.success, result.message
+    assert result.lines["oil_line"].reynolds < 2000.0  # laminar, so alpha is 2 exactly
     area = math.pi * HP_D**2 / 4
     r_lin = 128 * OIL.viscosity * HP_L / (math.pi * OIL.density * G * HP_D**4)
-    a = (entrance_k + 1.0) / (2 * G * area**2)
+    a = (entrance_k + 2.0) / (2 * G * area**2)
     dh = HP_DP / (OIL.density * G)
     q = (-r_lin + math.sqrt(r_lin**2 + 4 * a * dh)) / (2 * a)
     assert result.lines["oil_line"].flow == pytest.approx(q, rel=1e-10)
     # With no end losses the answer would be HYDRAULICS.md's Q; ends take a little off it.
     assert q < HP_Q
+
+
+# Glycerol-like custom liquid of our own: density 1260 kg/m3, viscosity 1.41 Pa s (glycerol at
+# 20 degC is about 1261 kg/m3 and 1.41 Pa s, CRC Handbook, from memory; only "very viscous"
+# matters here).
+SYRUP = FluidProps(name="test syrup", density=1260.0, viscosity=1.41)
+
+
+def test_a_laminar_drain_to_air_takes_two_velocity_heads_at_the_exit():
+    # Source: Hagen-Poiseuille (64/Re) plus a sharp entrance 0.5 (common practice) and the
+    # exit of a fully developed laminar profile, alpha = 2 (HYDRAULICS.md "Minor losses"):
+    # H = (64/Re L/D + 0.5 + 2) v^2/2g = 32 nu L v/(g D^2) + 2.5 v^2/2g, solved in closed form.
+    d, length, head = 0.08, 12.0, 3.0
+    system = make_system(reservoirs=[tank("T", 0.0, 4.0)],
+                         receivers=[Receiver("OUT", "open_discharge", 1.0)],
+                         lines=[pipe("L", "T", "OUT", length, d, 4.5e-5, entrance_k=0.5)],
+                         fluid=SYRUP)
+    result = solve_steady(system)
+    assert result.success, result.message
+    nu = SYRUP.viscosity / SYRUP.density
+    b = 32 * nu * length / (G * d * d)
+    a = 2.5 / (2 * G)
+    v = (-b + math.sqrt(b * b + 4 * a * head)) / (2 * a)
+    line = result.lines["L"]
+    assert line.reynolds < 2000.0
+    assert line.flow == pytest.approx(v * math.pi * d * d / 4, rel=1e-9)
+    assert line.exit_loss == pytest.approx(2.0 * line.velocity_head, rel=1e-12)
+
+
+def test_a_turbulent_exit_still_takes_one_velocity_head():
+    # Source: fluids.fittings.exit_normal() (K = 1) with fluids' Colebrook, through the
+    # independent brentq below: water, 3 m of head, 30 m of 80 mm pipe to air.
+    system = make_system(reservoirs=[tank("R", 0.0, 5.0)],
+                         receivers=[Receiver("out", "open_discharge", 2.0)],
+                         lines=[pipe("L", "R", "out", 30.0, 0.08)])
+    result = solve_steady(system)
+    line = result.lines["L"]
+    assert line.reynolds > 4000.0
+    assert line.exit_loss == pytest.approx(line.velocity_head, rel=1e-12)
+    q = _independent_line_flow(3.0, 30.0, 0.08, 4.5e-5, 1.5, 1.5)
+    assert line.flow == pytest.approx(q, rel=1e-8)
+
+
+def _exit_test_lines():
+    """Two lines of a viscous liquid whose flows below span laminar, blend and turbulent Re:
+    a drain to air (exit at its to-end) and a line between two tanks (an exit either way)."""
+    oil = FluidProps(name="light oil", density=850.0, viscosity=0.02)
+    system = make_system(reservoirs=[tank("A", 0.0, 3.0), tank("B", 0.0, 1.0)],
+                         receivers=[Receiver("OUT", "open_discharge", -1.0)],
+                         lines=[pipe("D", "A", "OUT", 20.0, 0.05, entrance_k=0.5),
+                                pipe("M", "A", "B", 15.0, 0.05, entrance_k=0.78)],
+                         fluid=oil)
+    return LineSet(system), oil
+
+
+def test_the_head_loss_slope_matches_finite_differences_across_the_exit_blend():
+    # Independent check of dh/dq: central differences of head_loss itself, relative step
+    # 1e-6, at flows from laminar through the 2000-4000 blend to turbulent, both directions.
+    lines, oil = _exit_test_lines()
+    area = math.pi * 0.05**2 / 4
+    re = np.concatenate((np.linspace(50.0, 6000.0, 120), [1999.0, 2001.0, 3380.0, 3999.0]))
+    q_of_re = re * (oil.viscosity / oil.density) / 0.05 * area
+    for sign in (1.0, -1.0):
+        for q1 in sign * q_of_re:
+            q = np.array([q1, q1])
+            _, dh = lines.head_loss(q)
+            step = 1e-6 * abs(q1)
+            hp, _ = lines.head_loss(q + step)
+            hm, _ = lines.head_loss(q - step)
+            np.testing.assert_allclose(dh, (hp - hm) / (2 * step), rtol=2e-6)
+            assert np.all(dh > 0.0)
+
+
+def test_details_report_the_exit_coefficient_used_by_regime_and_direction():
+    # Laminar 2 (HYDRAULICS.md "Minor losses", alpha = 2); turbulent 1 (fluids'
+    # exit_normal()); the exit is met at whichever end the flow leaves by.
+    lines, oil = _exit_test_lines()
+    area = math.pi * 0.05**2 / 4
+    q_lam = 500.0 * (oil.viscosity / oil.density) / 0.05 * area
+    q_turb = 2e4 * (oil.viscosity / oil.density) / 0.05 * area
+    lam = lines.details(np.array([q_lam, -q_lam]))  # M reversed: from B into A
+    assert lam["exit_k"].tolist() == [2.0, 2.0] and lam["entrance_k"].tolist() == [0.5, 0.78]
+    np.testing.assert_allclose(lam["exit_loss"], [2.0, -2.0] * lam["velocity_head"], rtol=1e-12)
+    turb = lines.details(np.array([q_turb, -q_turb]))
+    assert turb["exit_k"].tolist() == [1.0, 1.0]
+    np.testing.assert_allclose(turb["exit_loss"], [1.0, -1.0] * turb["velocity_head"],
+                               rtol=1e-12)
+    # Half way through the blend (Re 3000): 1.5, the friction blend's weight 0.5.
+    mid = lines.details(np.array([1.5 * q_lam * 4, 0.0]))
+    assert mid["reynolds"][0] == pytest.approx(3000.0) and mid["exit_k"][0] == pytest.approx(1.5)
 
 
 def _independent_line_flow(dh: float, length: float, diameter: float, roughness: float,

@@ -194,7 +194,8 @@ def test_re_dependent_fitting_terms_are_included() -> None:
     assert float(solve_line_cases(cases).velocity) == pytest.approx(v, rel=1e-12)
 
 
-def _single_line_system(diameter: float, level: float, valve_opening: float | None = None):
+def _single_line_system(diameter: float, level: float, valve_opening: float | None = None,
+                        viscosity: float = 1.0016e-3):
     from workbench.core.model import (
         Fitting, FluidProps, Line, Receiver, Reservoir, System, Valve,
     )
@@ -203,7 +204,7 @@ def _single_line_system(diameter: float, level: float, valve_opening: float | No
     line = Line("L1", "T1", "OUT", length=85.0, diameter=diameter, roughness=4.5e-5,
                 fittings=(Fitting(type="elbow_90_standard", count=3), Fitting(k=0.9)), valve=valve)
     return System(
-        title="drain", fluid=FluidProps("water", 998.207, 1.0016e-3),
+        title="drain", fluid=FluidProps("water" if viscosity < 2e-3 else "oil", 998.207, viscosity),
         reservoirs={"T1": Reservoir("T1", "constant_level", 6.0, level)},
         junctions={}, receivers={"OUT": Receiver("OUT", "open_discharge", 0.5)},
         lines={"L1": line},
@@ -224,6 +225,48 @@ def test_cases_built_from_systems_balance_the_network_line_model_head_loss(valve
     result = solve_line_cases(cases)
     assert result.success
     for system, q, dh in zip(systems, result.flow, cases.head_from - cases.head_to):
+        h, _ = LineSet(system).head_loss(np.array([q]))
+        assert float(h[0]) == pytest.approx(dh, rel=1e-9)
+
+
+def test_a_laminar_case_with_an_exit_takes_two_velocity_heads() -> None:
+    # Source: Hagen-Poiseuille plus entrance 0.5 and the exit of a laminar profile, alpha = 2
+    # (HYDRAULICS.md "Minor losses"): H = 32 nu L v/(g D^2) + (0.5 + 2) v^2/2g, closed form.
+    rho, mu, d, length, h = 880.0, 0.25, 0.05, 30.0, 2.0
+    cases = LineCases.from_mapping(
+        dict(head_from=h, head_to=0.0, length=length, diameter=d, roughness=0.0,
+             density=rho, viscosity=mu, k_forward=0.5, exit_forward=1.0)
+    )
+    result = solve_line_cases(cases)
+    b = 32 * (mu / rho) * length / (G * d * d)
+    a = 2.5 / (2 * G)
+    assert float(result.reynolds) < 2000.0
+    assert float(result.velocity) == pytest.approx((-b + math.sqrt(b * b + 4 * a * h)) / (2 * a),
+                                                   rel=1e-10)
+
+
+@pytest.mark.parametrize("valve_opening", [None, 0.6])
+def test_viscous_cases_agree_with_the_network_solver_from_laminar_to_turbulent(valve_opening) -> None:
+    # Outside reference: the network solver (workbench.core.network.solve_steady) case by
+    # case, to the tolerance the quick sweep keeps against it (1e-8), for a viscous liquid
+    # whose cases run laminar, through the 2000-4000 band and turbulent, where the exit loss
+    # goes from two velocity heads to one.
+    from workbench.core.line import LineSet
+    from workbench.core.network import solve_steady
+    from workbench.core.sweep import line_cases_from_systems
+
+    systems = [_single_line_system(d, lv, valve_opening, viscosity=mu)
+               for d in (0.0525, 0.10226) for lv in (0.2, 1.0, 4.0) for mu in (0.004, 0.03, 0.3)]
+    cases = line_cases_from_systems(systems)
+    assert cases.exit_forward.tolist() == [1.0] * len(systems)
+    result = solve_line_cases(cases)
+    assert result.success
+    assert np.any(result.reynolds < 2000) and np.any(result.reynolds > 4000)
+    assert np.any((result.reynolds > 2000) & (result.reynolds < 4000))
+    for system, q, dh in zip(systems, result.flow, cases.head_from - cases.head_to):
+        steady = solve_steady(system)
+        assert steady.success
+        assert float(q) == pytest.approx(steady.lines["L1"].flow, rel=1e-8)
         h, _ = LineSet(system).head_loss(np.array([q]))
         assert float(h[0]) == pytest.approx(dh, rel=1e-9)
 

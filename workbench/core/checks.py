@@ -249,9 +249,10 @@ def steady_findings(system: System, line_ids, details: dict[str, np.ndarray], q:
             if re <= RE_LAMINAR:
                 out.append(Finding(
                     "regime.laminar", lid,
-                    f"laminar flow (Re {_fmt(re)}): f = 64/Re; the exit loss of a fully "
-                    "developed laminar profile is nearer 2 velocity heads than the 1 used",
-                    "info", "Hagen-Poiseuille; laminar below Re about 2000 (common practice)"))
+                    f"laminar flow (Re {_fmt(re)}): f = 64/Re; the exit loss is taken as 2 "
+                    "velocity heads, the kinetic energy of a fully developed laminar profile",
+                    "info", "Hagen-Poiseuille; laminar below Re about 2000 (common practice); "
+                    "exit: kinetic-energy coefficient 2 of the Hagen-Poiseuille profile"))
             elif re < RE_TURBULENT:
                 f_lam = 64.0 / re
                 f_turb = float(friction_colebrook(re, line.roughness / line.diameter))

@@ -7,18 +7,25 @@ between the two end nodes is
 
     h(q) = \\underbrace{\\phi(Re)\\,\\frac{\\nu L}{2 g D^2}\\,v}_{\\text{friction}}
          + \\underbrace{\\Sigma K_1\\,\\frac{\\nu}{2 g D}\\,v}_{\\text{fittings, }K_1/Re}
-         + (\\Sigma K_{\\infty} + K_{valve} + K_{ends}(\\operatorname{sign} q))
-           \\frac{v|v|}{2g}
+         + (\\Sigma K_{\\infty} + K_{valve} + K_{ent}(\\operatorname{sign} q)
+            + K_{exit}(\\operatorname{sign} q, Re))\\frac{v|v|}{2g}
 
 with ``v = q/A``, ``phi = f*Re`` (64 when laminar, so friction is linear in ``v`` at low
 flow and ``h`` is smooth through ``q = 0``; see :func:`workbench.core.friction.friction_re_product`),
-``K1/Re`` terms of the 2-K/3-K fittings written the same way, and ``K_ends`` the entrance
-loss where the flow leaves a free surface (reservoir or vessel) into the line plus
-the exit loss (one velocity head) where it enters a reservoir, a vessel or discharges to
-the air. ``K_ends`` follows the actual flow direction, so a reversing line swaps them; since
-``v|v|`` and its slope both vanish at ``q = 0`` the switch keeps ``h`` continuously
-differentiable. A fixed friction factor on a line replaces ``phi/Re``:
-``h_f = f (L/D) v|v|/2g``.
+``K1/Re`` terms of the 2-K/3-K fittings written the same way, ``K_ent`` the entrance
+loss where the flow leaves a free surface (reservoir or vessel) into the line, and
+``K_exit`` the exit loss where it enters a reservoir, a vessel or discharges to the air:
+the kinetic-energy coefficient of the profile, 2 velocity heads when laminar, 1 when
+turbulent, blended between like friction (:func:`workbench.core.fittings.exit_k`). Both
+follow the actual flow direction, so a reversing line swaps them; since ``v|v|`` and its
+slope both vanish at ``q = 0`` the switch keeps ``h`` continuously differentiable. The exit
+term ``K_exit(Re) v|v|/2g`` keeps rising with ``|q|`` across the blend although ``K_exit``
+falls: its slope is ``(2 K_exit + Re dK_exit/dRe) |v|/(2 g A)`` and the bracket never drops
+below 0.288 (at Re about 3380), so ``dh/dq >= 0`` still holds.
+
+A fixed friction factor on a line replaces ``phi/Re``: ``h_f = f (L/D) v|v|/2g``; the exit
+loss still follows the Reynolds number (the velocity profile does not depend on how the
+user chose ``f``).
 
 Sign convention: ``h > 0`` for ``q > 0``, and the energy equation of a line reads
 ``H_from - H_to = h(q)`` with ``H`` the node heads (junction velocity heads neglected, as
@@ -33,7 +40,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from workbench.core.fittings import EXIT_K, fitting_constants
+from workbench.core.fittings import exit_k, fitting_constants
 from workbench.core.friction import (
     friction_re_product,
     method_label,
@@ -46,7 +53,7 @@ from workbench.core.valve import opening_at, relative_flow_coefficient, valve_k
 _FREE_SURFACE = ("reservoir", "vessel")
 """Node kinds with a free surface that can feed a line (entrance loss applies)."""
 _EXIT_INTO = ("reservoir", "vessel", "open_discharge")
-"""Node kinds where flow leaving the line loses its velocity head (exit loss)."""
+"""Node kinds where flow leaving the line loses its kinetic energy (exit loss)."""
 
 
 class LineSet:
@@ -70,6 +77,12 @@ class LineSet:
     from_kind, to_kind : tuple of str
         ``"junction"``, ``"reservoir"``, ``"open_discharge"`` or ``"vessel"`` per end.
     has_valve : ndarray of bool
+    entrance_forward, entrance_reverse : ndarray
+        Entrance loss coefficient met by forward / reverse flow (0 where that flow does not
+        leave a free surface) [-].
+    exit_at_to, exit_at_from : ndarray of bool
+        Whether forward flow leaves through an exit at the to-end / reverse flow through one
+        at the from-end; the exit's coefficient depends on Re (:meth:`end_k`).
     """
 
     def __init__(self, system: System, topology: Topology | None = None):
@@ -104,9 +117,9 @@ class LineSet:
         from_feed = from_free | (np.array([k == "open_discharge" for k in self.from_kind]))
         to_feed = to_free | (np.array([k == "open_discharge" for k in self.to_kind]))
         self.entrance_forward = np.where(from_feed, entrance, 0.0)
-        self.exit_forward = np.where(to_exit, EXIT_K, 0.0)
         self.entrance_reverse = np.where(to_feed, entrance, 0.0)
-        self.exit_reverse = np.where(from_exit, EXIT_K, 0.0)
+        self.exit_at_to = to_exit
+        self.exit_at_from = from_exit
 
         k_re = np.zeros(len(lines))
         k_const = np.zeros(len(lines))
@@ -190,6 +203,35 @@ class LineSet:
         """Lines whose valve is shut at these openings (flow must be zero there) [bool]."""
         return np.isinf(self.valve_k(openings))
 
+    # ----------------------------------------------------------------- end losses
+    def end_k(self, q) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """Entrance and exit loss coefficients met by flows ``q``, by the actual direction.
+
+        Parameters
+        ----------
+        q : array_like
+            Flow per line, positive from-end to to-end [m^3/s].
+
+        Returns
+        -------
+        k_entrance, k_exit : ndarray
+            Loss coefficients referred to the line velocity head [-]; 0 at an end the flow
+            does not leave a free surface / does not discharge through. ``k_exit`` is the
+            profile's kinetic-energy coefficient (:func:`workbench.core.fittings.exit_k`).
+        dk_exit_dre : ndarray
+            ``d k_exit / d|Re|`` [-].
+        """
+        q = np.asarray(q, dtype=float)
+        re = np.abs(q / self.area) * (self.diameter / self.kinematic_viscosity)
+        return self._end_k(q, re)
+
+    def _end_k(self, q, re):
+        forward = q >= 0.0
+        k_ent = np.where(forward, self.entrance_forward, self.entrance_reverse)
+        has_exit = np.where(forward, self.exit_at_to, self.exit_at_from)
+        k_ex, dk_ex = exit_k(re)
+        return k_ent, np.where(has_exit, k_ex, 0.0), np.where(has_exit, dk_ex, 0.0)
+
     # ----------------------------------------------------------------- head loss
     def head_loss(self, q, openings=None) -> tuple[np.ndarray, np.ndarray]:
         """Head loss from the from-end to the to-end of every line, and its slope.
@@ -207,7 +249,8 @@ class LineSet:
         h : ndarray
             Head loss [m], same sign as ``q``; 0 on shut lines.
         dh_dq : ndarray
-            ``dh/dq`` [s/m^2], >= 0, continuous through ``q = 0``; 0 on shut lines.
+            ``dh/dq`` [s/m^2], >= 0, continuous through ``q = 0``; 0 on shut lines. The
+            exit term adds ``dK_exit/dRe (D/nu) v^2/(2 g A)`` to the quadratic term's slope.
         """
         q = np.asarray(q, dtype=float)
         kv = self.valve_k(openings) if self._valve_idx.size else np.zeros(self.n)
@@ -219,13 +262,14 @@ class LineSet:
         re = av * (self.diameter / self.kinematic_viscosity)
         phi, dphi = friction_re_product(re, self.rel_roughness)
         fixed = self._has_fixed_f
-        ends = np.where(q >= 0.0, self.entrance_forward + self.exit_forward,
-                        self.entrance_reverse + self.exit_reverse)
-        k_quad = self.fittings_k_const + kv + ends + self._fixed_fld
+        k_ent, k_exit, dk_exit = self._end_k(q, re)
+        k_quad = self.fittings_k_const + kv + k_ent + k_exit + self._fixed_fld
         h_lin_coef = np.where(fixed, 0.0, self._c_fric * phi) + self._c_kre
         h = h_lin_coef * v + k_quad * v * av / (2.0 * G)
         dh = (np.where(fixed, 0.0, self._c_fric * (phi + dphi * re)) + self._c_kre) / area
         dh = dh + k_quad * av / (G * area)
+        # d/dq of K_exit(Re) v|v|/2g beyond the K_exit 2|v|/2g above: dRe/dv = D/nu sign(v).
+        dh = dh + dk_exit * (self.diameter / self.kinematic_viscosity) * v * v / (2.0 * G * area)
         if shut.any():
             h = np.where(shut, 0.0, h)
             dh = np.where(shut, 0.0, dh)
@@ -242,7 +286,11 @@ class LineSet:
             (``inf`` at zero flow), ``method`` (str, the law that gave f), ``friction_loss``,
             ``fittings_loss``, ``valve_loss``, ``entrance_loss``, ``exit_loss``,
             ``minor_loss``, ``head_loss``, ``velocity_head`` [m] (losses signed like ``q``),
-            ``valve_k``, ``entrance_k``, ``exit_k`` [-], ``closed`` (bool).
+            ``valve_k``, ``entrance_k``, ``exit_k`` [-] (the coefficients used: ``exit_k``
+            is 2 for laminar flow, 1 for turbulent, blended between, 0 without an exit),
+            ``kinetic_energy_coefficient`` [-] (``alpha`` of the velocity profile, the
+            ``exit_k`` the line would have at an exit; the grade lines use it),
+            ``closed`` (bool).
         """
         q = np.asarray(q, dtype=float)
         kv = self.valve_k(openings)
@@ -258,9 +306,8 @@ class LineSet:
         vh = v * av / (2.0 * G)
         friction = np.where(fixed, self._fixed_fld * vh, self._c_fric * phi * v)
         fittings = self._c_kre * v + self.fittings_k_const * vh
-        forward = q >= 0.0
-        k_ent = np.where(forward, self.entrance_forward, self.entrance_reverse)
-        k_exit = np.where(forward, self.exit_forward, self.exit_reverse)
+        k_ent, k_exit, _ = self._end_k(q, re)
+        alpha, _ = exit_k(re)
         method = np.where(fixed, "fixed by the user", method_label(re))
         minor = fittings + kv * vh + (k_ent + k_exit) * vh
         zero = np.where(shut, 0.0, 1.0)
@@ -281,5 +328,6 @@ class LineSet:
             "valve_k": np.where(shut, np.inf, kv),
             "entrance_k": k_ent,
             "exit_k": k_exit,
+            "kinetic_energy_coefficient": alpha,
             "closed": shut,
         }

@@ -24,6 +24,7 @@ from dataclasses import dataclass, fields
 
 import numpy as np
 
+from workbench.core.fittings import exit_k
 from workbench.core.model import G, System, receiver_head, reservoir_head
 
 __all__ = [
@@ -213,15 +214,22 @@ class LineCases:
     viscosity: np.ndarray
     """Dynamic viscosity [Pa*s]."""
     k_forward: np.ndarray
-    """Sum of constant loss coefficients for forward flow: entrance, exit, fixed-K fittings,
+    """Sum of constant loss coefficients for forward flow: entrance, fixed-K fittings,
     the size-dependent part of 2-K/3-K fittings and the valve at its opening [-]
-    (``inf`` for a shut valve)."""
+    (``inf`` for a shut valve). The exit, whose coefficient depends on Re, is not in it:
+    see ``exit_forward``."""
     k_reverse: np.ndarray
-    """The same for reverse flow (entrance and exit swap ends) [-]."""
+    """The same for reverse flow (the entrance swaps ends) [-]."""
     k_re: np.ndarray
     """Sum of the ``K1`` coefficients of Re-dependent fittings: they add ``k_re/Re`` [-]."""
     friction_factor: np.ndarray
     """A fixed Darcy friction factor, or ``nan`` to use the correlation [-]."""
+    exit_forward: np.ndarray
+    """1 where forward flow leaves the line into a free surface or the air, else 0 [-]: the
+    solver then adds the exit loss ``K_exit(Re)`` velocity heads, 2 laminar, 1 turbulent,
+    blended between (:func:`workbench.core.fittings.exit_k`)."""
+    exit_reverse: np.ndarray
+    """The same for reverse flow, at the from-end [-]."""
 
     def __post_init__(self) -> None:
         arrays = [np.asarray(getattr(self, f.name), dtype=float) for f in fields(self)]
@@ -238,11 +246,15 @@ class LineCases:
 
     @classmethod
     def from_mapping(cls, values: Mapping[str, object]) -> LineCases:
-        """Build from a mapping with defaults: no fittings, no fixed f, ``k_reverse = k_forward``."""
+        """Build from a mapping with defaults: no fittings, no fixed f, no Re-dependent exit
+        (a constant exit loss may be put in ``k_forward``), ``k_reverse = k_forward`` and
+        ``exit_reverse = exit_forward``."""
         data = dict(values)
         data.setdefault("k_re", 0.0)
         data.setdefault("friction_factor", np.nan)
         data.setdefault("k_reverse", data.get("k_forward", 0.0))
+        data.setdefault("exit_forward", 0.0)
+        data.setdefault("exit_reverse", data["exit_forward"])
         return cls(**data)
 
 
@@ -271,8 +283,9 @@ class LineCasesResult:
     """Newton iterations taken by the slowest case."""
 
 
-def _resistance(v, cases: LineCases, k_const, friction: VectorisedFriction):
-    """Loss coefficient K_t(V) = f L/D + K_c + k_re/Re and dK_t/dV, for V > 0."""
+def _resistance(v, cases: LineCases, k_const, n_exit, friction: VectorisedFriction):
+    """Loss coefficient K_t(V) = f L/D + K_c + k_re/Re + n_exit K_exit(Re) and dK_t/dV,
+    for V > 0 (``n_exit`` 1 where the flow leaves through an exit, else 0)."""
     nu = cases.viscosity / cases.density
     re = v * cases.diameter / nu
     rr = cases.roughness / cases.diameter
@@ -282,9 +295,10 @@ def _resistance(v, cases: LineCases, k_const, friction: VectorisedFriction):
     df_dre = np.where(fixed, 0.0, df_dre)
     dre_dv = cases.diameter / nu
     ld = cases.length / cases.diameter
+    k_exit, dk_exit = exit_k(re)
     with np.errstate(divide="ignore", invalid="ignore"):
-        k_t = f * ld + k_const + cases.k_re / re
-        dk = (df_dre * ld - cases.k_re / (re * re)) * dre_dv
+        k_t = f * ld + k_const + cases.k_re / re + n_exit * k_exit
+        dk = (df_dre * ld - cases.k_re / (re * re) + n_exit * dk_exit) * dre_dv
     return k_t, dk, f, re
 
 
@@ -300,9 +314,11 @@ def solve_line_cases(
     For each case the velocity solves the energy equation between the end heads,
 
     .. math:: \Delta H = H_{from} - H_{to} = \left(f(Re)\frac{L}{D} + \Sigma K
-              + \frac{K_{Re}}{Re}\right)\frac{V|V|}{2g},
+              + \frac{K_{Re}}{Re} + n_{exit} K_{exit}(Re)\right)\frac{V|V|}{2g},
 
-    with the loss coefficients of the actual flow direction. The residual
+    with the loss coefficients of the actual flow direction; ``K_exit`` is 2 for laminar
+    flow, 1 for turbulent, blended between (:func:`workbench.core.fittings.exit_k`, the
+    same as the network solver's line model). The residual
     :math:`\phi(V) = K_t(V)V^2/2g - |\Delta H|` is increasing in V, negative at V = 0; the
     solver brackets the root, then takes Newton steps with the analytic derivative
     (including df/dRe from the friction method) and bisects whenever a step leaves the
@@ -327,10 +343,11 @@ def solve_line_cases(
     Examples
     --------
     Water from a reservoir 10 m above a free outlet through 100 m of 100 mm pipe, smooth,
-    entrance 0.5 plus exit 1:
+    entrance 0.5 plus the exit (1 velocity head, turbulent):
 
     >>> c = LineCases.from_mapping(dict(head_from=10.0, head_to=0.0, length=100.0,
-    ...     diameter=0.1, roughness=0.0, density=998.2, viscosity=1.0016e-3, k_forward=1.5))
+    ...     diameter=0.1, roughness=0.0, density=998.2, viscosity=1.0016e-3, k_forward=0.5,
+    ...     exit_forward=1.0))
     >>> r = solve_line_cases(c)
     >>> bool(r.success), round(float(r.velocity), 3)
     (True, 3.555)
@@ -344,6 +361,7 @@ def solve_line_cases(
     sign = np.where(dh < 0.0, -1.0, 1.0)
     target = np.abs(dh)
     k_const = np.where(sign > 0, cases.k_forward, cases.k_reverse)
+    n_exit = np.where(sign > 0, cases.exit_forward, cases.exit_reverse)
     two_g = 2.0 * G
     moving = (target > 0.0) & np.isfinite(k_const) & (cases.diameter > 0.0)
 
@@ -353,13 +371,14 @@ def solve_line_cases(
     if np.any(moving):
         sub = LineCases(**{f.name: getattr(cases, f.name)[moving] for f in fields(cases)})
         kc = k_const[moving]
+        ne = n_exit[moving]
         h = target[moving]
         # Start: turbulent guess f = 0.02; bracket [0, hi] with phi(hi) > 0.
-        v_k = np.sqrt(two_g * h / (0.02 * sub.length / sub.diameter + kc + 1e-9))
+        v_k = np.sqrt(two_g * h / (0.02 * sub.length / sub.diameter + kc + ne + 1e-9))
         lo = np.zeros_like(h)
-        hi = np.sqrt(two_g * h / np.maximum(kc, 1e-9))
+        hi = np.sqrt(two_g * h / np.maximum(kc + ne, 1e-9))
         for _ in range(80):
-            k_hi, _, _, _ = _resistance(hi, sub, kc, friction)
+            k_hi, _, _, _ = _resistance(hi, sub, kc, ne, friction)
             short = k_hi * hi * hi / two_g < h
             if not np.any(short):
                 break
@@ -368,7 +387,7 @@ def solve_line_cases(
         v_k = np.clip(v_k, lo, hi)
         done = np.zeros(h.shape, dtype=bool)
         for iterations in range(1, max_iter + 1):  # noqa: B007 - count is reported
-            k_t, dk, _, _ = _resistance(v_k, sub, kc, friction)
+            k_t, dk, _, _ = _resistance(v_k, sub, kc, ne, friction)
             phi = k_t * v_k * v_k / two_g - h
             dphi = (2.0 * k_t * v_k + dk * v_k * v_k) / two_g
             lo = np.where(phi < 0.0, v_k, lo)
@@ -445,7 +464,8 @@ def line_cases_from_systems(systems, line_id: str | None = None) -> LineCases:
 
     Each system must be one line between two fixed heads (:func:`single_line_ends`). The
     loss coefficients come from :class:`workbench.core.line.LineSet`, the same line model the
-    network solver uses: entrance and exit by flow direction, fittings split into
+    network solver uses: entrance and exit by flow direction (the exit as a flag, its
+    Re-dependent coefficient added by the solver), fittings split into
     ``k_re/Re + k_const`` at each case's size, the valve at its steady opening.
 
     Parameters
@@ -479,8 +499,10 @@ def line_cases_from_systems(systems, line_id: str | None = None) -> LineCases:
         columns["roughness"].append(line.roughness)
         columns["density"].append(rho)
         columns["viscosity"].append(system.fluid.viscosity)
-        columns["k_forward"].append(const + float(lines.entrance_forward[0] + lines.exit_forward[0]))
-        columns["k_reverse"].append(const + float(lines.entrance_reverse[0] + lines.exit_reverse[0]))
+        columns["k_forward"].append(const + float(lines.entrance_forward[0]))
+        columns["k_reverse"].append(const + float(lines.entrance_reverse[0]))
+        columns["exit_forward"].append(float(lines.exit_at_to[0]))
+        columns["exit_reverse"].append(float(lines.exit_at_from[0]))
         columns["k_re"].append(float(lines.fittings_k_re[0]))
         columns["friction_factor"].append(np.nan if line.friction_factor is None else line.friction_factor)
     return LineCases(**{k: np.asarray(v, dtype=float) for k, v in columns.items()})

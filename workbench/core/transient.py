@@ -338,9 +338,8 @@ def _line_end_heads(model: _Model, q, qdot, h_nodes_from, h_nodes_to):
     if model.valve_lines.size:
         x_open = np.where(lines.has_valve, 1.0, np.nan)
         h_open, _ = lines.head_loss(q, x_open)
-        k_ends = np.where(fwd, lines.entrance_forward + lines.exit_forward,
-                          lines.entrance_reverse + lines.exit_reverse)
-        h_pipe = h_open - (lines.valve_k_open + k_ends) * vh
+        k_ent, k_exit, _ = lines.end_k(q)
+        h_pipe = h_open - (lines.valve_k_open + k_ent + k_exit) * vh
         drive = h_pipe + lines.inertance_head * qdot
         h_b = np.where(model.valve_at_to, h_a - drive, h_b)
         h_a = np.where(model.valve_at_from, h_b + drive, h_a)
