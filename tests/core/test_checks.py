@@ -81,6 +81,33 @@ def test_a_fluid_without_vapour_pressure_gets_an_info_note_instead_of_the_check(
     assert laminar and laminar[0].severity == "info"
 
 
+def test_a_laminar_line_s_grade_line_carries_two_velocity_heads_and_meets_the_outlet():
+    # Source: energy equation with the kinetic-energy coefficient of a laminar profile,
+    # alpha = 2 (HYDRAULICS.md "Minor losses"), f = 64/Re (Hagen-Poiseuille) in proportion
+    # to length: p = rho g [(H_source - z) - (K_entrance + 2 + f s/D) v^2/2g]; at a free
+    # discharge the jet leaves at atmospheric pressure (common practice, no source).
+    oil = FluidProps(name="test oil", density=880.0, viscosity=0.25)
+    system = make_system(
+        reservoirs=[tank("source", 10.0, 2.0)],
+        receivers=[Receiver("out", "open_discharge", 0.0)],
+        lines=[pipe("L", "source", "out", 100.0, 0.08, entrance_k=0.5,
+                    profile=((0.0, 10.0), (20.0, 12.5), (60.0, 12.5), (100.0, 0.0)))],
+        fluid=oil)
+    result = solve_steady(system)
+    assert result.success, result.message
+    line = result.lines["L"]
+    assert line.reynolds < 2000.0
+    f = 64.0 / line.reynolds
+    vh = line.velocity**2 / (2 * G)
+    prof = result.profiles["L"]
+    expected = oil.density * G * ((12.0 - 12.5) - (0.5 + 2.0 + f * 60.0 / 0.08) * vh)
+    assert prof.pressure_gauge[prof.distance == 60.0][0] == pytest.approx(expected, rel=1e-9)
+    assert prof.pressure_gauge[-1] == pytest.approx(0.0, abs=1e-6)  # [Pa], round-off of 1e5
+    assert prof.egl[-1] - prof.hgl[-1] == pytest.approx(2.0 * vh, rel=1e-12)
+    (note,) = [w for w in result.warnings if w.code == "regime.laminar"]
+    assert "2 velocity heads" in note.message and "1 used" not in note.message
+
+
 def test_transitional_flow_shows_both_branches_friction_factors():
     # Branches: 64/Re (Hagen-Poiseuille) and Colebrook (fluids.Colebrook).
     import fluids

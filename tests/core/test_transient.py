@@ -140,6 +140,31 @@ def test_a_laminar_line_started_at_rest_settles_on_the_steady_flow(head):
         assert 2000.0 < steady.reynolds < 4000.0
 
 
+def test_a_steady_laminar_line_has_the_steady_grade_line_pressures():
+    """Started steady with nothing changing, the run's lowest and highest pressures on a
+    laminar line over a crest must be the steady grade line's: both take alpha = 2 velocity
+    heads of kinetic energy in the line (HYDRAULICS notes "Minor losses") and the receiving
+    head at the exit. The steady value is checked against the energy equation in
+    tests/core/test_checks.py."""
+    from workbench.core.network import solve_steady
+
+    oil = FluidProps("test oil", 880.0, 0.25, None, None, None)
+    system = _system(
+        [Reservoir("T", "constant_level", 10.0, 2.0)],
+        [Line("L1", "T", "OUT", 100.0, 0.08, entrance_k=0.5,
+              profile=((0.0, 10.0), (20.0, 12.5), (60.0, 12.5), (100.0, 0.0)))],
+        [Receiver("OUT", "open_discharge", 0.0)],
+        fluid=oil, duration=5.0, initial="steady",
+    )
+    res = simulate(system, rtol=1e-9)
+    assert res.success, res.message
+    steady = solve_steady(system)
+    assert steady.lines["L1"].reynolds < 2000.0
+    prof = steady.profiles["L1"]
+    assert res.min_pressure["L1"] == pytest.approx(prof.pressure_gauge.min(), rel=1e-7)
+    assert res.max_pressure["L1"] == pytest.approx(prof.pressure_gauge.max(), rel=1e-7)
+
+
 # ------------------------------------------------------------------ draining
 
 

@@ -4,7 +4,11 @@ Profile: the energy grade line (EGL) starts at the upstream node head less the e
 loss, falls with friction and fittings in proportion to length (the model does not know
 where along the line the fittings sit), loses the valve's loss at the valve's end, and ends
 at the downstream node head plus the exit loss. The hydraulic grade line is
-``HGL = EGL - v^2/2g``; gauge pressure ``p = rho g (HGL - z)``; absolute pressure adds the
+``HGL = EGL - alpha v^2/2g``, ``alpha`` the kinetic-energy coefficient of the velocity profile
+(2 for laminar flow, 1 for turbulent, blended between, :func:`workbench.core.fittings.exit_k`),
+so at an exit into a free surface or the air the HGL meets the head discharged into, and a
+laminar line's extra velocity head is taken where the profile develops, at its upstream end;
+gauge pressure ``p = rho g (HGL - z)``; absolute pressure adds the
 site's atmospheric pressure (:attr:`System.atmospheric_pressure`).
 
 Findings carry stable codes (``regime.laminar``, ``regime.transitional``,
@@ -123,6 +127,7 @@ def line_profiles(system: System, line_ids, q: np.ndarray, head_from: np.ndarray
     flowing = (stat == "flowing") & (q != 0.0)
     forward = q > 0.0
     vh = np.abs(details["velocity_head"])
+    alpha = np.asarray(details["kinetic_energy_coefficient"], dtype=float)
     distributed = np.abs(details["friction_loss"]) + np.abs(details["fittings_loss"])
     valve = np.abs(details["valve_loss"])
     valve_from = np.array([ln.valve is not None and ln.valve.position == "from" for ln in lines])
@@ -132,7 +137,7 @@ def line_profiles(system: System, line_ids, q: np.ndarray, head_from: np.ndarray
     s_flow = np.where(forward[idx], s, length[idx] - s)
     egl_flow = (e_up[idx] - distributed[idx] * np.clip(s_flow / length[idx], 0.0, 1.0)
                 - np.where(valve_up, valve, 0.0)[idx])
-    hgl_flow = egl_flow - vh[idx]
+    hgl_flow = egl_flow - (alpha * vh)[idx]
     # Static lines: each side of a shut valve stands at the head of its own end; a line
     # that drains back stands at the head of its far end from the discharge.
     to_receiver = np.array([ln.to_node in system.receivers for ln in lines])

@@ -65,6 +65,7 @@ from typing import Callable
 
 import numpy as np
 
+from workbench.core.fittings import exit_k
 from workbench.core.model import (
     G,
     Finding,
@@ -319,9 +320,11 @@ class _Model:
 def _line_end_heads(model: _Model, q, qdot, h_nodes_from, h_nodes_to):
     """Piezometric heads inside each line at its two ends, pipe side of any valve [m].
 
-    Without a valve both ends follow from the node heads (less the velocity head and
-    entrance loss where the flow leaves a free surface). With a valve, the valve's end is
-    found from the momentum balance of the pipe instead,
+    Without a valve both ends follow from the node heads (less the entrance loss and the
+    kinetic energy of the developed profile, ``alpha`` velocity heads, where the flow leaves
+    a free surface; a line discharging into a free surface or the air keeps the head of
+    what it discharges into, its exit loss being that ``alpha v^2/2g``). With a valve, the
+    valve's end is found from the momentum balance of the pipe instead,
     ``H_a - H_b = h_pipe(Q) + (L/gA) dQ/dt`` with ``dQ/dt`` taken from the integrated
     trajectory: near the end of a closure ``K_valve Q^2`` multiplies a tiny, inexact flow by
     a huge coefficient, while the column's deceleration stays well conditioned.
@@ -330,9 +333,12 @@ def _line_end_heads(model: _Model, q, qdot, h_nodes_from, h_nodes_to):
     v = q / lines.area
     vh = v * np.abs(v) / (2.0 * G)
     fwd = q >= 0.0
-    # Leaving a free surface into the line: piezometric head drops by (1 + K_entrance) v^2/2g.
-    drop_a = np.where(fwd & model.from_free, (1.0 + model.entrance_k) * np.abs(vh), 0.0)
-    drop_b = np.where(~fwd & model.to_free, (1.0 + model.entrance_k) * np.abs(vh), 0.0)
+    # Leaving a free surface into the line: piezometric head drops by (alpha + K_entrance)
+    # v^2/2g, alpha the kinetic-energy coefficient (2 laminar, 1 turbulent), as in the
+    # steady grade line (workbench.core.checks.line_profiles).
+    alpha, _ = exit_k(np.abs(v) * (lines.diameter / lines.kinematic_viscosity))
+    drop_a = np.where(fwd & model.from_free, (alpha + model.entrance_k) * np.abs(vh), 0.0)
+    drop_b = np.where(~fwd & model.to_free, (alpha + model.entrance_k) * np.abs(vh), 0.0)
     h_a = h_nodes_from - drop_a
     h_b = h_nodes_to - drop_b
     if model.valve_lines.size:
