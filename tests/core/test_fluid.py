@@ -344,7 +344,7 @@ def test_custom_liquid_rejects_nonsense(kwargs):
 def test_core_property_modules_import_without_loading_chemicals_or_fluids():
     code = (
         "import sys, workbench.core.fluid, workbench.core.pipes, workbench.core.atmosphere;"
-        "print(sorted(m for m in ('chemicals', 'fluids', 'scipy') if m in sys.modules))"
+        "print(sorted(m for m in ('chemicals', 'fluids', 'scipy', 'CoolProp') if m in sys.modules))"
     )
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "[]"

@@ -16,9 +16,19 @@ vapour pressure and the surge estimate its bulk modulus. This module gives them 
   Perry's Handbook; VDI Heat Atlas PPDS and Wagner equations), and aqueous sodium hydroxide and
   sodium chloride by the Laliberte (2009) electrolyte model. Each entry names its source
   and its valid temperature range; outside it the values are extrapolated with a note.
+  Where a reference equation of state exists for the pure liquid, its isentropic bulk
+  modulus ``K_s = rho * w**2`` comes from that equation as implemented in CoolProp (the
+  entry names the equation's publication); elsewhere it is ``None`` and surge wave speeds
+  need the user's value.
+* :data:`SOLUTIONS` and :func:`solution_properties` -- ethylene and propylene glycol in
+  water at a mass fraction (Melinder 2010) and seawater at a salinity (Sharqawy et al.
+  2010), from CoolProp's incompressible-liquid fits; outside a fit's range of temperature
+  or concentration the values are refused with the range.
 * :func:`custom_properties` -- numbers the user gives.
 
-``chemicals`` takes about 0.2 s to import, so it is imported on first use only.
+``chemicals`` takes about 0.2 s to import and CoolProp about 2.5 s (it loads its whole
+fluid library, holding the interpreter lock), so both are imported on first use only, and
+CoolProp only for the liquids that need it.
 """
 
 from __future__ import annotations
@@ -35,10 +45,13 @@ __all__ = [
     "CATALOGUE",
     "FluidPropertyError",
     "LiquidEntry",
+    "SOLUTIONS",
+    "SolutionEntry",
     "WATER_FORMULATION",
     "custom_properties",
     "liquid_names",
     "liquid_properties",
+    "solution_properties",
     "water_properties",
 ]
 
@@ -220,6 +233,11 @@ class LiquidEntry:
     coefficients: tuple[float, ...] = ()
     """Typed coefficients where the model is not in ``chemicals`` (see ``source``)."""
     description: str = ""
+    eos: str | None = None
+    """CoolProp's name of the pure liquid's reference equation of state, which gives the
+    isentropic bulk modulus; ``None`` where there is none (the user gives a bulk modulus)."""
+    eos_source: str = ""
+    """The published equation of state behind ``eos``."""
 
 
 # Laliberte (2009) coefficients, typed from the table distributed with the chemicals
@@ -238,27 +256,46 @@ _LALIBERTE_NACL = (
     30.7802007540575, 2.05826852322558,
 )
 
+# Reference equations of state whose speed of sound gives K_s = rho*w^2 (CoolProp's HEOS
+# backend implements them; tests/core/test_fluid_bulk_modulus.py checks that CoolProp
+# names the same publication for each fluid).
+_EOS_ETHANOL = "Schroeder, Penoncello & Schroeder (2014), J. Phys. Chem. Ref. Data 43, 043102"
+_EOS_METHANOL = ("de Reuck & Craven (1993), Methanol: International Thermodynamic Tables of "
+                 "the Fluid State 12, IUPAC, Blackwell")
+_EOS_SHORT = ("Lemmon & Span (2006), J. Chem. Eng. Data 51, 785 (short equations of state "
+              "for 20 industrial fluids)")
+_EOS_PROPYLENE_GLYCOL = ("Eisenbach, Scholz, Span, Cristancho, Lemmon & Thol (2021), "
+                         "J. Phys. Chem. Ref. Data 50")
+_EOS_DODECANE = "Lemmon & Huber (2004), Energy & Fuels 18, 960"
+
 #: Catalogue of plant liquids by key. Ranges are the common range of the entry's
 #: correlations as tabulated by their sources (checked against the chemicals package's
-#: tables in the tests). Bulk modulus is not given for catalogue liquids: no correlation
-#: in the sources above covers it, so surge estimates ask the user for one.
+#: tables in the tests). The bulk modulus comes from the liquid's reference equation of
+#: state where one exists (``eos``); for the others no source above covers it, so surge
+#: estimates ask the user for one.
 CATALOGUE: dict[str, LiquidEntry] = {
-    "ethanol": LiquidEntry("ethanol", "perry_dippr", "64-17-5", 200.0, 440.0, _PERRY),
-    "methanol": LiquidEntry("methanol", "perry_dippr", "67-56-1", 175.47, 337.85, _PERRY),
+    "ethanol": LiquidEntry("ethanol", "perry_dippr", "64-17-5", 200.0, 440.0, _PERRY,
+                           eos="Ethanol", eos_source=_EOS_ETHANOL),
+    "methanol": LiquidEntry("methanol", "perry_dippr", "67-56-1", 175.47, 337.85, _PERRY,
+                            eos="Methanol", eos_source=_EOS_METHANOL),
     "isopropanol": LiquidEntry("isopropanol (2-propanol)", "perry_dippr", "67-63-0",
                                185.26, 355.3, _PERRY),
-    "acetone": LiquidEntry("acetone", "perry_dippr", "67-64-1", 190.0, 329.44, _PERRY),
-    "toluene": LiquidEntry("toluene", "perry_dippr", "108-88-3", 178.18, 383.78, _PERRY),
+    "acetone": LiquidEntry("acetone", "perry_dippr", "67-64-1", 190.0, 329.44, _PERRY,
+                           eos="Acetone", eos_source=_EOS_SHORT),
+    "toluene": LiquidEntry("toluene", "perry_dippr", "108-88-3", 178.18, 383.78, _PERRY,
+                           eos="Toluene", eos_source=_EOS_SHORT),
     "acetic_acid": LiquidEntry("acetic acid (glacial)", "perry_dippr", "64-19-7",
                                289.81, 391.05, _PERRY),
     "ethylene_glycol": LiquidEntry("ethylene glycol (pure)", "perry_dippr", "107-21-1",
                                    260.15, 576.0, _PERRY),
     "propylene_glycol": LiquidEntry("propylene glycol (pure)", "perry_dippr", "57-55-6",
-                                    213.15, 500.8, _PERRY),
+                                    213.15, 500.8, _PERRY, eos="PropyleneGlycol",
+                                    eos_source=_EOS_PROPYLENE_GLYCOL),
     "n_dodecane": LiquidEntry(
         "n-dodecane", "perry_dippr", "112-40-3", 263.57, 526.4, _PERRY,
         description="pure n-dodecane; fuels such as diesel are mixtures: use the "
         "supplier's data with kind = \"custom\"",
+        eos="n-Dodecane", eos_source=_EOS_DODECANE,
     ),
     "glycerol": LiquidEntry(
         "glycerol (pure)", "vdi_ppds", "56-81-5", 291.45, 563.0, _VDI,
@@ -315,12 +352,18 @@ def _entry(name: str) -> LiquidEntry:
     key = _LIQUID_ALIASES.get(key, key)
     if key in CATALOGUE:
         return CATALOGUE[key]
+    if key in SOLUTIONS:
+        raise FluidPropertyError(
+            f"'{name}' needs its concentration: kind = \"{key}\" with "
+            f"{SOLUTIONS[key].parameter} ({SOLUTIONS[key].range_text()})"
+        )
     known = liquid_names()
     close = difflib.get_close_matches(key, known + list(_LIQUID_ALIASES), n=1, cutoff=0.6)
     hint = f" (did you mean '{_LIQUID_ALIASES.get(close[0], close[0])}'?)" if close else ""
     raise FluidPropertyError(
-        f"unknown liquid '{name}'{hint}; known liquids: {', '.join(known)}, "
-        "or kind = \"custom\" with density and viscosity"
+        f"unknown liquid '{name}'{hint}; known liquids: {', '.join(known)}; solutions "
+        f"with a concentration: {', '.join(SOLUTIONS)}; or kind = \"custom\" with density "
+        "and viscosity"
     )
 
 
@@ -438,16 +481,58 @@ def _liquid_cached(key: str, t: float, p: float) -> FluidProps:
     formulation = entry.source
     if entry.mass_fraction is not None:
         formulation = f"{entry.name}: {entry.source}"
+    bulk = None
+    if entry.eos is not None:
+        bulk, note = _eos_bulk_modulus(entry, t, p)
+        if note:
+            notes.append(note)
+        else:
+            formulation += f"; bulk modulus rho*w^2 from the equation of state of {entry.eos_source}"
     return FluidProps(
         name=entry.name,
         density=rho,
         viscosity=mu,
         vapor_pressure=psat,
-        bulk_modulus=None,
+        bulk_modulus=bulk,
         temperature=t,
         formulation=formulation,
         notes=tuple(notes),
     )
+
+
+def _eos_bulk_modulus(entry: LiquidEntry, t: float, p: float) -> tuple[float | None, str]:
+    """Isentropic bulk modulus of the liquid from its reference equation of state.
+
+    ``K_s = rho * w**2`` with density and speed of sound of the liquid at (t, p) from the
+    equation of state named by ``entry.eos_source`` (CoolProp's HEOS backend). Where p is
+    at or below the liquid's saturation pressure the value is that of liquid just above
+    it (the boiling note says so). Returns ``(K_s [Pa], "")``, or ``(None, note)`` outside
+    the equation's liquid range.
+    """
+    import CoolProp
+    from CoolProp.CoolProp import AbstractState
+
+    state = AbstractState("HEOS", entry.eos)  # one per call: AbstractState is not thread-safe
+    t_low, t_crit = state.Ttriple(), state.T_critical()
+    if not (t_low <= t < t_crit):
+        return None, (
+            f"no bulk modulus for {entry.name} at {_celsius(t)}: its equation of state covers "
+            f"liquid from the triple point {_celsius(t_low)} to the critical point "
+            f"{_celsius(t_crit)}; give [fluid] bulk_modulus for surge wave speeds"
+        )
+    try:
+        state.update(CoolProp.QT_INPUTS, 0.0, t)
+        p_eval = max(p, 1.0001 * state.p())
+        state.specify_phase(CoolProp.iphase_liquid)
+        state.update(CoolProp.PT_INPUTS, p_eval, t)
+        bulk = state.rhomass() * state.speed_sound() ** 2
+    except ValueError as exc:  # CoolProp reports a failed solution as ValueError
+        return None, (f"no bulk modulus for {entry.name} at {_celsius(t)} ({exc}); give "
+                      "[fluid] bulk_modulus for surge wave speeds")
+    if not (math.isfinite(bulk) and bulk > 0.0):
+        return None, (f"no bulk modulus for {entry.name} at {_celsius(t)}; give [fluid] "
+                      "bulk_modulus for surge wave speeds")
+    return bulk, ""
 
 
 def liquid_properties(name: str, temperature_k: float, pressure_pa: float = 101325.0) -> FluidProps:
@@ -467,8 +552,9 @@ def liquid_properties(name: str, temperature_k: float, pressure_pa: float = 1013
     -------
     FluidProps
         With ``notes`` when the temperature is outside the correlations' range (values
-        extrapolated) or at/above the boiling point. ``bulk_modulus`` is ``None`` for
-        catalogue liquids.
+        extrapolated) or at/above the boiling point. ``bulk_modulus`` is the isentropic
+        one of the liquid's reference equation of state where the entry has one
+        (``eos``), else ``None``.
 
     Raises
     ------
@@ -489,6 +575,220 @@ def liquid_properties(name: str, temperature_k: float, pressure_pa: float = 1013
     t = _check_temperature(temperature_k)
     key = next(k for k, e in CATALOGUE.items() if e is entry)
     return _liquid_cached(key, t, float(pressure_pa))
+
+
+# --------------------------------------------------------------------------------------
+# Aqueous solutions of a given concentration (CoolProp incompressible-liquid fits)
+
+_MELINDER = (
+    "Melinder, A. (2010), Properties of Secondary Working Fluids for Indirect Systems, "
+    "IIR: density and viscosity polynomials in temperature and mass fraction, and the "
+    "freezing point, as implemented in CoolProp's incompressible-liquid library "
+    "(fluid {incomp})"
+)
+_SHARQAWY = (
+    "Sharqawy, M. H., Lienhard, J. H. V, Zubair, S. M. (2010), Desalination and Water "
+    "Treatment 16, 354: seawater density, viscosity and vapour pressure, as fitted in "
+    "CoolProp's incompressible-liquid library (fluid {incomp})"
+)
+
+
+@dataclass(frozen=True)
+class SolutionEntry:
+    """An aqueous solution whose concentration the user gives, and where its fits hold."""
+
+    name: str
+    """Readable name, e.g. ``"ethylene glycol-water"``."""
+    incomp: str
+    """CoolProp's id of the incompressible-liquid fit (``"MEG"``, ``"MPG"``, ``"MITSW"``)."""
+    parameter: str
+    """The ``[fluid]`` key that gives the concentration: ``"mass_fraction"`` or ``"salinity"``."""
+    fraction_max: float
+    """Largest solute mass fraction of the fit [kg/kg] (the smallest is 0)."""
+    t_min: float
+    """Lowest temperature of the fit [K]; the freezing point, where the source gives one,
+    may be higher: below it the solution is refused."""
+    t_max: float
+    """Highest temperature of the fit [K]."""
+    source: str
+    """The published source of the fits."""
+    vapor_pressure_from_source: bool
+    """``True``: the fit gives the solution's vapour pressure; ``False``: pure water's
+    (IAPWS) is used, an upper bound for a solution of a less volatile solute."""
+    description: str = ""
+
+    def concentration_text(self, fraction: float) -> str:
+        """The concentration as a user reads it: ``"30 % glycol by mass"``, ``"35 g/kg"``."""
+        if self.parameter == "salinity":
+            return f"salinity {fraction * 1000:.4g} g/kg"
+        return f"{fraction * 100:.4g} % glycol by mass"
+
+    def range_text(self) -> str:
+        """The concentration range in the unit the user types."""
+        if self.parameter == "salinity":
+            return f"0 to {self.fraction_max * 1000:g} g/kg"
+        return f"0 to {self.fraction_max:g}"
+
+
+#: Solutions by ``[fluid] kind``. Ranges are those CoolProp reports for its fits (checked in
+#: tests/core/test_fluid_solutions.py); glycol fits hold from the freezing point up.
+SOLUTIONS: dict[str, SolutionEntry] = {
+    "ethylene_glycol_water": SolutionEntry(
+        "ethylene glycol-water", "MEG", "mass_fraction", 0.6, 173.15, 373.15,
+        _MELINDER.format(incomp="MEG"), vapor_pressure_from_source=False,
+        description="ethylene glycol (MEG) in water, e.g. chilled-water and cooling circuits; "
+        "uninhibited glycol: inhibited commercial fluids differ slightly",
+    ),
+    "propylene_glycol_water": SolutionEntry(
+        "propylene glycol-water", "MPG", "mass_fraction", 0.6, 173.15, 373.15,
+        _MELINDER.format(incomp="MPG"), vapor_pressure_from_source=False,
+        description="propylene glycol (MPG) in water, e.g. food-plant chilled circuits",
+    ),
+    "seawater": SolutionEntry(
+        "seawater", "MITSW", "salinity", 0.12, 273.15, 393.15,
+        _SHARQAWY.format(incomp="MITSW"), vapor_pressure_from_source=True,
+        description="seawater of a given absolute salinity (open ocean about 35 g/kg); "
+        "fit range 0-120 degC, 0-120 g/kg",
+    ),
+}
+
+
+def _water_vapour_pressure(t: float) -> float:
+    """Pure water's vapour pressure [Pa]: as :func:`water_properties` where it holds
+    (IF97 from 0 degC, IAPWS-95 for supercooled liquid to 235 K); IF97 extrapolated below."""
+    from chemicals.iapws import iapws95_Psat
+
+    if T_ZERO_CELSIUS <= t or t < WATER_T_MIN:
+        return _water_psat(t)
+    return iapws95_Psat(t)
+
+
+def solution_properties(
+    kind: str, temperature_k: float, fraction: float, pressure_pa: float = 101325.0
+) -> FluidProps:
+    """Properties of a glycol-water mixture or seawater at a temperature and concentration.
+
+    Density and viscosity from CoolProp's incompressible-liquid fits of the published
+    tables (:data:`SOLUTIONS` names each source). Vapour pressure: seawater's from its
+    fit; for glycol solutions pure water's (IAPWS), which is higher than the solution's
+    and so errs on the safe side in vapour checks. No bulk modulus: the sources give no
+    speed of sound, so surge wave speeds need ``[fluid] bulk_modulus``.
+
+    Parameters
+    ----------
+    kind : str
+        A :data:`SOLUTIONS` key: ``"ethylene_glycol_water"``, ``"propylene_glycol_water"``
+        or ``"seawater"``.
+    temperature_k : float
+        Temperature, [K].
+    fraction : float
+        Solute mass fraction, [kg/kg]: glycol mass fraction (0.3 for 30 % by mass), or
+        the absolute salinity of seawater (0.035 for 35 g/kg).
+    pressure_pa : float, optional
+        Absolute pressure, [Pa]; for the boiling note.
+
+    Returns
+    -------
+    FluidProps
+        ``bulk_modulus`` is ``None``.
+
+    Raises
+    ------
+    FluidPropertyError
+        For an unknown kind, a concentration outside the fit's range, or a temperature
+        below the freezing point or outside the fit's range (the message gives the range).
+
+    Examples
+    --------
+    >>> round(solution_properties("ethylene_glycol_water", 293.15, 0.3).density, 1)
+    1038.0
+    """
+    if kind not in SOLUTIONS:
+        raise FluidPropertyError(
+            f"unknown solution '{kind}'; known: {', '.join(SOLUTIONS)}"
+        )
+    entry = SOLUTIONS[kind]
+    try:
+        x = float(fraction)
+    except (TypeError, ValueError):
+        raise FluidPropertyError(f"{entry.name}: expected a mass fraction, got {fraction!r}") from None
+    if not (math.isfinite(x) and 0.0 <= x <= entry.fraction_max):
+        given = f"{x * 1000:g} g/kg" if entry.parameter == "salinity" else f"{x:g}"
+        raise FluidPropertyError(
+            f"{entry.name}: {entry.parameter.replace('_', ' ')} {given} is outside the range "
+            f"of its fits, {entry.range_text()} ({entry.source})"
+        )
+    t = _check_temperature(temperature_k)
+    p = float(pressure_pa)
+    if not (math.isfinite(p) and p > 0.0):
+        raise FluidPropertyError(f"expected a positive absolute pressure [Pa], got {pressure_pa!r}")
+    return _solution_cached(kind, t, x, p)
+
+
+@lru_cache(maxsize=1024)
+def _solution_cached(kind: str, t: float, x: float, p: float) -> FluidProps:
+    import CoolProp
+    from CoolProp.CoolProp import AbstractState
+
+    entry = SOLUTIONS[kind]
+    what = f"{entry.name}, {entry.concentration_text(x)}"
+    state = AbstractState("INCOMP", entry.incomp)  # one per call: not thread-safe
+    state.set_mass_fractions([x])
+    t_freeze = state.keyed_output(CoolProp.iT_freeze)
+    freezes = math.isfinite(t_freeze) and t_freeze > entry.t_min
+    if freezes and t < t_freeze:
+        raise FluidPropertyError(
+            f"{what} at {_celsius(t)} is below its freezing point {_celsius(t_freeze)}: ice "
+            f"forms; its fits hold from the freezing point to {_celsius(entry.t_max)} "
+            f"({entry.source})"
+        )
+    if not (entry.t_min <= t <= entry.t_max):
+        low = f"the freezing point {_celsius(t_freeze)}" if freezes else _celsius(entry.t_min)
+        raise FluidPropertyError(
+            f"{what} at {_celsius(t)} is outside the range of its fits, from {low} to "
+            f"{_celsius(entry.t_max)} ({entry.source})"
+        )
+    notes: list[str] = []
+    p_eval = p
+    if entry.vapor_pressure_from_source:
+        state.update(CoolProp.QT_INPUTS, 0.0, t)
+        psat = state.p()
+        formulation = f"{what}: {entry.source}"
+        if psat >= p:
+            notes.append(
+                f"{entry.name} at {_celsius(t)} is at or above its boiling point at "
+                f"{p / 1000:.3g} kPa abs (vapour pressure {psat / 1000:.4g} kPa): values are "
+                "for liquid just above its saturation pressure"
+            )
+            p_eval = 1.001 * psat  # the fit refuses pressures below saturation
+    else:
+        psat = _water_vapour_pressure(t)
+        formulation = (f"{what}: {entry.source}; vapour pressure: pure water's (IAPWS), an "
+                       "upper bound for the solution")
+        notes.append("vapour pressure is pure water's: an upper bound for the solution")
+        if psat >= p:
+            notes.append(
+                f"at {_celsius(t)} water's vapour pressure ({psat / 1000:.4g} kPa) reaches "
+                f"{p / 1000:.3g} kPa abs: the solution may boil (its boiling point is higher "
+                "than water's, by an amount not computed here)"
+            )
+    try:
+        state.update(CoolProp.PT_INPUTS, p_eval, t)
+        rho, mu = state.rhomass(), state.viscosity()
+    except ValueError as exc:  # CoolProp reports values outside its fits as ValueError
+        raise FluidPropertyError(f"{what} at {_celsius(t)}: {exc} ({entry.source})") from None
+    if not all(math.isfinite(v) and v > 0.0 for v in (rho, mu)):
+        raise FluidPropertyError(f"{what}: no physical values at {_celsius(t)} ({entry.source})")
+    return FluidProps(
+        name=what,
+        density=float(rho),
+        viscosity=float(mu),
+        vapor_pressure=float(psat),
+        bulk_modulus=None,
+        temperature=t,
+        formulation=formulation,
+        notes=tuple(notes),
+    )
 
 
 def custom_properties(
