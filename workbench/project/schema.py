@@ -78,10 +78,18 @@ SECTIONS: dict[str, tuple[FieldSpec, ...]] = {
     ),
     "fluid": (
         field("kind", "choice", True,
-              "'water' (IAPWS formulations from temperature), a catalogue liquid, or 'custom'",
+              "'water' (IAPWS formulations from temperature), a catalogue liquid, "
+              "'ethylene_glycol_water' or 'propylene_glycol_water' (with mass_fraction), "
+              "'seawater' (with salinity), or 'custom'",
               example="water"),
-        field("temperature", "temperature", help="liquid temperature; required for water and "
-              "catalogue liquids", example="20 degC"),
+        field("temperature", "temperature", help="liquid temperature; required for water, "
+              "catalogue liquids and solutions", example="20 degC"),
+        field("mass_fraction", "number", help="glycol-water: glycol mass fraction, 0 to 0.6 "
+              "(0.3 = 30 % by mass; Melinder 2010 fits, from the freezing point to 100 degC)",
+              minimum=0.0, maximum=0.6, example="0.3"),
+        field("salinity", "salinity", help="seawater: absolute salinity, 0 to 120 g/kg (open "
+              "ocean about 35 g/kg; Sharqawy et al. 2010 fits, 0 to 120 degC)",
+              example="35 g/kg"),
         field("name", "text", help="custom liquid: its name"),
         field("density", "density", help="custom liquid: density (required)", example="998 kg/m3"),
         field("viscosity", "viscosity", help="custom liquid: dynamic viscosity (required)",
@@ -91,7 +99,10 @@ SECTIONS: dict[str, tuple[FieldSpec, ...]] = {
               "checks are skipped with a note)", example="2.34 kPa"),
         field("bulk_modulus", "modulus",
               help="bulk modulus (optional; surge wave speeds need it; for water it comes "
-              "from IAPWS-95, catalogue liquids have none)", example="2.2 GPa"),
+              "from IAPWS-95, for ethanol, methanol, acetone, toluene, propylene glycol and "
+              "n-dodecane from their reference equations of state; other catalogue liquids, "
+              "glycol-water and seawater have none; a value here overrides)",
+              example="2.2 GPa"),
     ),
     "reservoirs": (
         field("kind", "choice", True, "'constant_level' (level held) or 'tank' (level changes "
@@ -250,9 +261,9 @@ def choices_for(section: str, name: str) -> tuple[str, ...]:
     (fluid kinds, pipe materials, fitting types, entrance shapes). Imports those tables."""
     key = f"{section}.{name}"
     if key == "fluid.kind":
-        from workbench.core.fluid import CATALOGUE
+        from workbench.core.fluid import CATALOGUE, SOLUTIONS
 
-        return ("water", *(k for k in CATALOGUE if k != "water"), "custom")
+        return ("water", *(k for k in CATALOGUE if k != "water"), *SOLUTIONS, "custom")
     if key == "lines.material":
         from workbench.core.pipes import ROUGHNESS
 

@@ -27,6 +27,8 @@ site_elevation = "0 m"  # sets the atmospheric pressure for vapour checks
 [fluid]
 kind = "water"  # "water", a catalogue liquid (e.g. "ethylene_glycol"), or "custom"
 temperature = "20 degC"
+# Solutions: kind = "ethylene_glycol_water" or "propylene_glycol_water" with
+# mass_fraction = 0.3 (30 % glycol by mass), or kind = "seawater" with salinity = "35 g/kg".
 # kind = "custom" takes: name, density, viscosity, vapor_pressure (absolute), bulk_modulus
 
 # A tank whose level falls as it drains. For a constant level use kind = "constant_level"

@@ -128,6 +128,9 @@ QUANTITY_KINDS: dict[str, QuantityKind] = {
     "volume": QuantityKind("volume", "m^3", "m^3", "gallon", "12 m3", "m3", "gal"),
     "area": QuantityKind("area", "m^2", "m^2", "ft^2", "3 m2", "m2", "ft2"),
     "angle": QuantityKind("angle", "radian", "degree", "degree", "60 deg", "deg", "deg"),
+    # Absolute salinity of seawater: mass of dissolved salt per mass of seawater, kept as a
+    # fraction [kg/kg] in the core and shown in g/kg as oceanographic tables give it.
+    "salinity": QuantityKind("salinity", "", "g/kg", "g/kg", "35 g/kg"),
 }
 
 #: Words for dimensions a user may type by mistake (for "expected X, got Y").
