@@ -515,4 +515,9 @@ class WorkbenchApp(App[int]):
     async def action_quit(self) -> None:
         from workbench.app import files
 
+        # a screen holding work not yet in the project (the list editor) asks about it first
+        guard = getattr(self.screen, "before_leaving", None)
+        if guard is not None:
+            guard(lambda: files.leave(self))
+            return
         files.leave(self)

@@ -28,6 +28,7 @@ class FieldInput(Input):
     BINDINGS = [
         Binding("enter", "submit", "Apply", id="field.apply"),
         Binding("escape", "revert", "Revert", id="field.revert"),
+        Binding("ctrl+t", "table", "Table", id="field.table"),
     ]
 
     def __init__(self, field: Field, value: str, choices: tuple[str, ...] | None = None) -> None:
@@ -46,6 +47,19 @@ class FieldInput(Input):
         row = self.parent
         if isinstance(row, FieldRow):
             row.revert()
+
+    def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
+        """The table editor is offered on list fields only (hidden elsewhere)."""
+        if action == "table":
+            return self.field.spec.kind == "list"
+        return True
+
+    def action_table(self) -> None:
+        """Edit a list field as a table (a line's fittings, its profile, a schedule)."""
+        row = self.parent
+        form = next((n for n in self.ancestors if isinstance(n, FieldForm)), None)
+        if isinstance(row, FieldRow) and form is not None:
+            form.open_table(row)
 
 
 def _placeholder(field: Field) -> str:
@@ -262,7 +276,25 @@ class FieldForm(VerticalScroll):
     def on_input_submitted(self, event: Input.Submitted) -> None:
         if isinstance(event.input, FieldInput):
             event.stop()
-            self._commit(event.input.parent, event.value)
+            row = event.input.parent
+            if row.field.spec.kind == "list" and event.value == value_text(row.stored):
+                self.open_table(row)  # Enter on an unchanged list opens the table
+                return
+            self._commit(row, event.value)
+
+    def open_table(self, row: FieldRow) -> None:
+        """Edit ``row``'s list as a table; text typed in the field is applied first
+        (when it is refused, the reason shows beside the field and no table opens)."""
+        if self.app.project is None or row.field.spec.kind != "list":
+            return
+        editor = row.editor
+        if isinstance(editor, Input) and editor.value != value_text(row.stored):
+            if not self._commit(row, editor.value):
+                return
+        from workbench.app.screens.list_editor import ListEditorScreen
+
+        self.app.push_screen(
+            ListEditorScreen(row.field, lookup(self.app.project.data, row.field.keypath)))
 
     def on_descendant_blur(self, event) -> None:
         widget = event.control if hasattr(event, "control") else None
@@ -278,17 +310,18 @@ class FieldForm(VerticalScroll):
             value = "" if event.value is Select.NULL else str(event.value)
             self._commit(row, value)
 
-    def _commit(self, row: FieldRow, text: str) -> None:
+    def _commit(self, row: FieldRow, text: str) -> bool:
+        """Apply ``text`` to ``row``'s key; False (with the reason shown) when refused."""
         if self.app.project is None:
-            return
+            return False
         try:
             value = typed_value(text, row.field.spec)
         except EntryError as error:
             row.show_problem(str(error))
-            return
+            return False
         if value == row.stored or (value is None and row.stored is None):
             row.show_problem("")
-            return
+            return True
         from workbench.project.document import set_value
         from workbench.project.problems import ProjectError
 
@@ -298,9 +331,10 @@ class FieldForm(VerticalScroll):
                                 label=f"{row.field.keypath} = {text.strip() or '(removed)'}")
         except ProjectError as error:
             row.show_problem(problem_text(error, row.field.keypath))
-            return
+            return False
         row.show_problem("")
         self.post_message(self.Committed(row.field.keypath))
+        return True
 
 
 def problem_text(error: Exception, keypath: str) -> str:

@@ -82,4 +82,6 @@ class SystemPane(Horizontal):
         row = message.row
         if row.choices:
             text += " · one of: " + ", ".join(row.choices)
+        if spec.kind == "list":
+            text += " · Enter or Ctrl+T edits it as a table"
         self.query_one("#field-help", Static).update(text)

@@ -33,7 +33,8 @@ def _key_label(key: str) -> str:
         if key.startswith(prefix):
             return shown + _key_label(key[len(prefix):])
     names = {"escape": "Esc", "enter": "Enter", "delete": "Del", "space": "Space",
-             "left_square_bracket": "[", "right_square_bracket": "]", "question_mark": "?"}
+             "left_square_bracket": "[", "right_square_bracket": "]", "question_mark": "?",
+             "up": "Up", "down": "Down"}
     if key in names:
         return names[key]
     if key.startswith("f") and key[1:].isdigit():
@@ -50,11 +51,14 @@ def key_contexts() -> list[tuple[str, type]]:
     from workbench.app.panes.run import RunPane
     from workbench.app.panes.surge import SurgePane
     from workbench.app.screens.dialogs import AskScreen
+    from workbench.app.screens.list_editor import CellInput, ListEditorScreen
 
     return [
         ("anywhere", WorkbenchApp),
         ("element list", ElementList),
         ("field", FieldInput),
+        ("list table", ListEditorScreen),
+        ("table cell", CellInput),
         ("grade line", GradePane),
         ("run", RunPane),
         ("surge", SurgePane),
