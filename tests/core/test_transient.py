@@ -295,8 +295,8 @@ def test_frictionless_u_tube_oscillates_with_the_small_oscillation_period():
     momentum (L/g) dv/dt = h1 - h2 = dh, and continuity d(dh)/dt = -a v (1/A1 + 1/A2), so
     d2v/dt2 = -(g a/L)(1/A1 + 1/A2) v: simple harmonic with
     T = 2 pi sqrt(L/(g a (1/A1 + 1/A2))) (HYDRAULICS notes; the issue's formula). The exit
-    loss (one velocity head) is quadratic and negligible at this 1 cm amplitude. Reversals
-    come half a period apart."""
+    loss (one to two velocity heads: Re peaks near 4000 here) is quadratic and negligible
+    at this 1 cm amplitude. Reversals come half a period apart."""
     length, d, a1, a2 = 50.0, 0.1, 1.0, 2.5
     expected = 2 * math.pi * math.sqrt(length / (G * _area(d) * (1 / a1 + 1 / a2)))
     system = _system(

@@ -56,6 +56,9 @@ Ends held fixed over the run: a tank's level is held at its initial value (a sur
 lasts seconds to minutes, during which a tank's level hardly moves), as are receivers'
 pressures. A free discharge is a fixed head at the outlet elevation (atmospheric pressure
 in the jet); flow reversing there would draw in air, which the model does not represent.
+Unlike the steady and rigid-column line model (:func:`workbench.core.fittings.exit_k`,
+2 velocity heads for a laminar profile), the initial steady state here takes one velocity
+head at an exit, and ``1 + K_entrance`` at an entrance, in every flow regime.
 
 These are screening calculations: surge protection is a matter for licensed practice and
 local codes.

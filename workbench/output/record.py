@@ -274,8 +274,11 @@ def _methods(project: Project, steady: SteadyResult | None, transient: Transient
             entrance = ENTRANCES.get(name)
             rows.append(["Entrance loss", f"{name} (K {entrance.k:g})" if entrance else name,
                          entrance.source if entrance else "the user's value", "turbulent flow"])
-    rows.append(["Exit loss", "one velocity head, K = 1", "common practice (fluids exit_normal)",
-                 "turbulent flow; about 2 for a laminar profile"])
+    rows.append(["Exit loss", "the kinetic energy of the profile: K = 2 laminar (Re up to 2000), "
+                 "1 turbulent (from Re 4000), blended between like friction",
+                 "kinetic-energy coefficient 2 of the Hagen-Poiseuille profile; turbulent K = 1 "
+                 "common practice (fluids exit_normal)",
+                 "the blend over Re 2000 to 4000 has no published law"])
     if any(ln.valve is not None for ln in system.lines.values()):
         chars = sorted({ln.valve.characteristic for ln in system.lines.values() if ln.valve})
         rows.append(["Valve", "K = K_open / c(x)^2, inherent " + ", ".join(chars),
