@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from workbench.app.listtable import (CellError, columns_for, items_from, list_key, new_row,
-                                     place_text, places, rows_from)
+                                     place_text, places, quantity_problem, rows_from)
 from workbench.project.problems import Problem
 
 PROFILE = [{"distance": "0 m", "elevation": "18 m"}, {"distance": "20 m", "elevation": "2.5 m"},
@@ -90,3 +90,10 @@ def test_keys_the_schema_does_not_describe_get_a_column_so_nothing_is_lost():
     columns = columns_for("lines.L1.profile", items)
     assert [c.name for c in columns] == ["distance", "elevation", "note"]
     assert items_from(rows_from(items, columns), columns)[0] == items
+
+
+def test_a_quantity_cell_without_a_unit_says_so_while_typing():
+    columns = columns_for("lines.L1.profile", PROFILE)
+    assert "a unit is needed" in quantity_problem("4", columns[1])
+    assert quantity_problem("4 ft", columns[1]) == ""
+    assert quantity_problem("", columns[1]) == ""

@@ -272,6 +272,22 @@ def display_text(text: str, column: Column, unit_system: str) -> str:
     return shown[: -len(unit)].rstrip() if shown.endswith(unit) else shown
 
 
+def quantity_problem(text: str, column: Column) -> str:
+    """Why a quantity cell cannot be read (the unit layer's words), or ``""``.
+
+    Only a hint while typing: applying the list is what validates it.
+    """
+    if not column.is_quantity or not text.strip():
+        return ""
+    from workbench.project.units import UnitError, parse_quantity
+
+    try:
+        parse_quantity(text, column.spec.kind)
+    except UnitError as error:
+        return str(error)
+    return ""
+
+
 @dataclass(frozen=True)
 class Place:
     """Where a problem of a refused list belongs: a row (0-based) and a column, if named."""

@@ -21,7 +21,8 @@ from textual.screen import ModalScreen
 from textual.widgets import DataTable, Input, Label, Static
 
 from workbench.app.listtable import (Column, Row, columns_for, display_text, items_from,
-                                     new_row, place_text, places, rows_from)
+                                     new_row, place_text, places, quantity_problem,
+                                     rows_from)
 from workbench.app.outline import NOUN, Field, edit_target
 from workbench.app.widgets.keyfooter import KeyFooter
 
@@ -253,8 +254,9 @@ class ListEditorScreen(ModalScreen[bool]):
             hint.update("✗ " + "; ".join([problem] * bool(problem) + row_problems))
             hint.add_class("-invalid")
         else:
-            hint.update(self._unit_hint(index, column))
-            hint.remove_class("-invalid")
+            text = self._unit_hint(index, column)
+            hint.update(text)
+            hint.set_class(text.startswith("✗"), "-invalid")
         words = column.spec.help
         if len(column.choices) > 6:
             words += (f" · one of {len(column.choices)} names: type the start of one, "
@@ -270,9 +272,12 @@ class ListEditorScreen(ModalScreen[bool]):
 
         unit_system = getattr(self.app, "unit_system", "SI")
         text = self.rows[index].cells.get(column.name, "")
+        unreadable = quantity_problem(text, column)
+        if unreadable:
+            return f"✗ {unreadable}"
         shown = display_text(text, column, unit_system)
         unit = display_unit(column.spec.kind, unit_system)
-        return f"[{unit}]" if shown in ("", "✗") else f"= {shown} {unit}"
+        return f"[{unit}]" if shown == "" else f"= {shown} {unit}"
 
     def on_data_table_cell_highlighted(self, _event: DataTable.CellHighlighted) -> None:
         self._show_cell()
