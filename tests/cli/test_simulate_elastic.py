@@ -203,3 +203,15 @@ def test_the_tables_read_whole_at_80_columns(tmp_path, capsys, monkeypatch):
     assert "L1: VAPOUR PRESSURE reached on L1 at 1200 m" in flat
     assert "results after that time are not trustworthy" in flat
     assert "* capped at static plus Joukowsky" in flat
+
+
+def test_a_refusal_quoting_a_file_key_prints_the_key(tmp_path, capsys, monkeypatch):
+    # The message asks for "[fluid] bulk_modulus": square brackets must reach the terminal
+    # as typed, not be taken for console markup.
+    monkeypatch.setenv("COLUMNS", "80")
+    path = write(tmp_path, PROJECT.replace('bulk_modulus = "2.19 GPa"\n', ""))
+    main(["simulate", str(path), "--elastic", "L1"])
+    flat = " ".join(capsys.readouterr().out.split())
+    note = flat[flat.index("L1: not run:"):]
+    note = note[:note.index("bulk_modulus") + len("bulk_modulus")]
+    assert note.endswith("give [fluid] bulk_modulus")

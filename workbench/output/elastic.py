@@ -107,6 +107,7 @@ def elastic_table(results: dict[str, ElasticResult], system: System, unit_system
     full under the table, one per line, so that they read whole in an 80-column terminal.
     """
     from rich.table import Table
+    from rich.text import Text
 
     from workbench.project.units import format_quantity
 
@@ -146,6 +147,7 @@ def elastic_table(results: dict[str, ElasticResult], system: System, unit_system
                "over the surge run" + ("; ! over the rating" if any("OVER" in n for n in notes)
                                        else "")]
     caption.extend(notes)
-    table.caption = "\n".join(caption)
+    # messages quote file keys such as [fluid]: plain text, never console markup
+    table.caption = Text("\n".join(caption))
     table.caption_justify = "left"
     return table

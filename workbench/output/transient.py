@@ -233,7 +233,7 @@ def transient_tables(result: TransientResult, system: System, unit_system: str =
         ev.add_column("message", overflow="fold", ratio=1)
         shown = result.events[:60]
         for e in shown:
-            ev.add_row(when(e.time), e.code, e.element, e.message)
+            ev.add_row(when(e.time), e.code, e.element, Text(e.message))
         out.append(ev)
         if len(result.events) > len(shown):
             out.append(Text(f"... {len(result.events) - len(shown)} more events in --json."))
