@@ -71,6 +71,16 @@ class TankShape:
 
 
 @dataclass(frozen=True)
+class FlowSchedule:
+    """Piecewise-linear flow in time, holding its first and last values outside its times."""
+
+    times: tuple[float, ...]
+    """[s], strictly increasing."""
+    flows: tuple[float, ...]
+    """Flow at each time [m^3/s], never negative."""
+
+
+@dataclass(frozen=True)
 class Reservoir:
     """A free liquid surface: a constant-level source/sink, or a tank whose level moves."""
 
@@ -88,6 +98,24 @@ class Reservoir:
     """Level at which the tank overflows [m above bottom]; ``None`` when not given."""
     min_level: float = 0.0
     """Level counted as drained [m above bottom]."""
+    inflow: float = 0.0
+    """Tank: constant feed into the tank from outside the modelled lines [m^3/s], >= 0."""
+    inflow_schedule: FlowSchedule | None = None
+    """Tank: the feed in time; replaces :attr:`inflow` when given."""
+    draw_off: float = 0.0
+    """Tank: constant flow taken out by something outside the model (a pump to process)
+    [m^3/s], >= 0. It stops while the tank is drained."""
+    draw_off_schedule: FlowSchedule | None = None
+    """Tank: the draw-off in time; replaces :attr:`draw_off` when given."""
+    restart_level: float | None = None
+    """Tank: level at which a drained tank's outlets and draw-off start again [m above
+    bottom], above :attr:`min_level`; ``None``: see :func:`restart_level`."""
+
+    @property
+    def has_external_flow(self) -> bool:
+        """True when the tank has a feed or a draw-off (constant or scheduled)."""
+        return bool(self.inflow or self.draw_off or self.inflow_schedule is not None
+                    or self.draw_off_schedule is not None)
 
 
 @dataclass(frozen=True)
@@ -249,6 +277,57 @@ def reservoir_head(res: Reservoir, density: float, level: float | None = None) -
     """
     h = res.level if level is None else level
     return res.bottom_elevation + h + res.surface_pressure / (density * G)
+
+
+def flow_at(constant: float, schedule: FlowSchedule | None, t: float) -> float:
+    """A feed or draw-off at time ``t`` [s]: the schedule (piecewise linear, holding its end
+    values) when given, else the constant [m^3/s]."""
+    if schedule is None or not schedule.times:
+        return constant
+    times, flows = schedule.times, schedule.flows
+    if t <= times[0]:
+        return flows[0]
+    if t >= times[-1]:
+        return flows[-1]
+    lo, hi = 0, len(times) - 1
+    while hi - lo > 1:
+        mid = (lo + hi) // 2
+        if times[mid] <= t:
+            lo = mid
+        else:
+            hi = mid
+    w = (t - times[lo]) / (times[hi] - times[lo])
+    return flows[lo] + w * (flows[hi] - flows[lo])
+
+
+def inflow_at(res: Reservoir, t: float) -> float:
+    """The tank's feed at time ``t`` [m^3/s] (zero for a constant-level reservoir)."""
+    return flow_at(res.inflow, res.inflow_schedule, t)
+
+
+def draw_off_at(res: Reservoir, t: float) -> float:
+    """The draw-off asked of the tank at time ``t`` [m^3/s], before any stop because the
+    tank is drained."""
+    return flow_at(res.draw_off, res.draw_off_schedule, t)
+
+
+#: Restart band of a drained tank when no ``restart_level`` is given, as a fraction of the
+#: depth from ``min_level`` to the overflow level (or to the initial level of a tank without
+#: one) [-]. A band keeps a level switch from chattering (common practice, no source).
+RESTART_BAND = 0.05
+
+
+def restart_level(res: Reservoir) -> float:
+    """Level at which a drained tank's outlets and draw-off start again [m above bottom].
+
+    ``res.restart_level`` when given; otherwise ``min_level`` plus :data:`RESTART_BAND` of
+    the depth from ``min_level`` to ``height`` (to the initial level without a height), at
+    least 1 mm above ``min_level``.
+    """
+    if res.restart_level is not None:
+        return res.restart_level
+    top = res.height if res.height is not None else res.level
+    return res.min_level + max(RESTART_BAND * (top - res.min_level), 1e-3)
 
 
 def receiver_head(rec: Receiver, density: float) -> float:

@@ -20,11 +20,11 @@ Transient (:func:`check_transient`)
     * every series finite; times increasing;
     * non-negative levels and volumes; level and volume of each tank agree through its
       geometry;
-    * volume conservation: tanks joined only to each other keep their total volume (to
-      round-off, on any output grid); each tank obeys
-      :math:`V(t) - V(0) = \int_0^t (\sum Q_{in} - \sum Q_{out})\,dt` (trapezoidal rule on
-      the output grid, which includes every event time) where the grid resolves the flows,
-      for tanks that did not spill;
+    * volume conservation: tanks joined only to each other, with no feed or draw-off, keep
+      their total volume (to round-off, on any output grid); each tank obeys
+      :math:`V(t) - V(0) = \int_0^t (\sum Q_{in} - \sum Q_{out} + Q_{feed} - Q_{draw})\,dt`
+      (trapezoidal rule on the output grid, which includes every event time and schedule
+      break point) where the grid resolves the flows, for tanks that did not spill;
     * continuity at every junction at every output time;
     * no flow through a shut valve at any output time after the shut instant.
 
@@ -247,7 +247,8 @@ def _closed_groups(system: System, result, volumes: np.ndarray, spilled: set) ->
     for line in system.lines.values():
         parent[find(line.from_node)] = find(line.to_node)
     open_ended = {find(n) for n in system.receivers} | {
-        find(rid) for rid, r in system.reservoirs.items() if r.kind != "tank"}
+        find(rid) for rid, r in system.reservoirs.items()
+        if r.kind != "tank" or r.has_external_flow}
     groups: dict[str, list[int]] = {}
     for k, rid in enumerate(result.tank_ids):
         root = find(rid)
@@ -290,7 +291,13 @@ def check_transient(system: System, result) -> list[Violation]:
     flows = np.asarray(result.flows, dtype=float).reshape(len(result.line_ids), t.size)
     levels = np.asarray(result.levels, dtype=float).reshape(len(result.tank_ids), t.size)
     volumes = np.asarray(result.volumes, dtype=float).reshape(len(result.tank_ids), t.size)
-    for name, arr in (("time", t), ("flows", flows), ("levels", levels), ("volumes", volumes)):
+    external = np.zeros_like(volumes)
+    feeds = np.asarray(getattr(result, "feeds", ()), dtype=float)
+    draws = np.asarray(getattr(result, "draw_offs", ()), dtype=float)
+    if feeds.shape == volumes.shape and draws.shape == volumes.shape:
+        external = feeds - draws
+    for name, arr in (("time", t), ("flows", flows), ("levels", levels), ("volumes", volumes),
+                      ("feed and draw-off", external)):
         if not np.all(np.isfinite(arr)):
             out.append(Violation("finite", "", f"the {name} series holds {np.sum(~np.isfinite(arr))} "
                                  "non-finite values"))
@@ -338,7 +345,7 @@ def check_transient(system: System, result) -> list[Violation]:
                     break
         if rid in spilled or not dense:
             continue
-        inflow = np.zeros(t.size)
+        inflow = external[k].copy()
         for lid, line in system.lines.items():
             if line.to_node == rid:
                 inflow += flows[row[lid]]
@@ -355,7 +362,8 @@ def check_transient(system: System, result) -> list[Violation]:
         tol = sampling + VOLUME_RTOL * throughput + 1e-9 * max(abs(vol[0]), 1.0)
         if abs(change - moved) > tol:
             out.append(Violation("volume", rid, f"volume changed by {change:.6g} m3 while the "
-                                 f"lines moved {moved:.6g} m3 in (net) over the run"))
+                                 f"lines, feed and draw-off moved {moved:.6g} m3 in (net) "
+                                 "over the run"))
 
     # Continuity at junctions at every output time.
     for j in system.junctions:

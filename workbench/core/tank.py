@@ -315,3 +315,61 @@ def tank_geometry(res: Reservoir) -> TankGeometry:
             + ", ".join(SHAPES)
         ) from None
     return builder(res)
+
+
+@dataclass(frozen=True)
+class TankBalance:
+    """The volume balance of one tank at an instant: what its lines, feed and draw-off move.
+
+    All flows [m^3/s]; ``level_rate`` [m/s], positive rising.
+    """
+
+    lines_net: float
+    """Net flow into the tank by its lines (inflows less outflows)."""
+    inflow: float
+    """Feed from outside the model."""
+    draw_off: float
+    """Draw-off asked by something outside the model."""
+    net: float
+    """``lines_net + inflow - draw_off``: the rate of change of volume."""
+    level_rate: float
+    """``net / A(h)``, the free-surface area at the level."""
+
+
+def tank_balances(system, flows: dict[str, float], levels: dict[str, float] | None = None,
+                  t: float = 0.0) -> dict[str, TankBalance]:
+    """The balance of every tank of ``system`` at given line flows, levels and time.
+
+    ``dV/dt = sum Q_in - sum Q_out + Q_feed(t) - Q_draw(t)`` and ``dh/dt = (dV/dt)/A(h)``
+    (mass balance of an incompressible liquid; the area from the tank's geometry, floored
+    at a millionth of its largest as in the transient solver).
+
+    Parameters
+    ----------
+    system : System
+    flows : dict
+        Line id -> flow [m^3/s], positive from -> to.
+    levels : dict, optional
+        Tank id -> level [m]; default each tank's stored level.
+    t : float
+        Time for scheduled feeds and draw-offs [s].
+    """
+    from workbench.core.model import draw_off_at, inflow_at
+
+    levels = levels or {}
+    out: dict[str, TankBalance] = {}
+    for rid, res in system.reservoirs.items():
+        if res.kind != "tank":
+            continue
+        lines_net = 0.0
+        for lid, line in system.lines.items():
+            q = flows.get(lid, 0.0)
+            if line.to_node == rid:
+                lines_net += q
+            if line.from_node == rid:
+                lines_net -= q
+        feed, draw = inflow_at(res, t), draw_off_at(res, t)
+        net = lines_net + feed - draw
+        area = tank_geometry(res).area_floor(levels.get(rid, res.level))
+        out[rid] = TankBalance(lines_net, feed, draw, net, net / area)
+    return out

@@ -12,10 +12,19 @@ node heads [m],
 
 where ``h`` is the head loss of :meth:`workbench.core.line.LineSet.head_loss` (friction in
 every regime, fittings, the valve at its current opening, entrance and exit by the actual
-flow direction). Tanks obey ``dV/dt = sum(inflows) - sum(outflows)`` with the level from the
-tank's geometry (:mod:`workbench.core.tank`); the state is the tank *volume*, so the mass
-balance is linear in the flows and conserved to round-off. Constant-level reservoirs and
-receivers keep their heads.
+flow direction). Tanks obey
+
+.. math::
+
+    \frac{dV}{dt} = \sum Q_{in} - \sum Q_{out} + Q_{feed}(t) - Q_{draw}(t)
+
+with the level from the tank's geometry (:mod:`workbench.core.tank`): the sums are over
+the tank's lines, ``Q_feed`` is a feed from outside the model and ``Q_draw`` a draw-off by
+something outside it (constants, or piecewise-linear schedules whose break points are
+segment ends, landed exactly like valve schedule points). The state is the tank *volume*,
+so the mass balance is linear in the flows and conserved to round-off; the feed and
+draw-off do not depend on the state, so the Jacobian is that of the lines alone.
+Constant-level reservoirs and receivers keep their heads.
 
 Junction heads are algebraic (an index-1 system): continuity ``sum dQ/dt = 0`` at every
 junction gives the linear system ``(M diag(a) M^T) H_J = -M diag(a) (F^T H_F + h)`` with
@@ -34,10 +43,17 @@ integrator is restarted after each event that changes the configuration:
 
 ``tank.drained``
     the volume falls to the one at ``min_level``; the tank's outlets then stop drawing
-    (their flow is set to zero and held there for the rest of the run);
+    (their flow is set to zero and held there) and its draw-off stops
+    (``tank.draw_off_stopped``); a feed or an inflowing line keeps filling it;
+``tank.refilled``
+    a drained tank's volume rises to the one at its restart level
+    (:func:`workbench.core.model.restart_level`, a band above ``min_level`` so that a
+    feed smaller than the outflow does not make the outlets chatter): its outlets open
+    again, starting from rest, and its draw-off resumes;
 ``tank.overflow``
     the volume reaches the one at the overflow level; the level is then held there and the
-    surplus inflow spills, until the net inflow turns negative;
+    surplus inflow (lines and feed, less the draw-off) spills, until it turns negative
+    (``tank.spill_end``);
 ``line.reversal``
     a line flow changes sign (recorded only after a swing of at least 0.1 % of the line's
     largest flow so far, so numerical chatter near a rest state is not reported);
@@ -70,8 +86,11 @@ from workbench.core.model import (
     G,
     Finding,
     System,
+    draw_off_at,
+    inflow_at,
     receiver_head,
     reservoir_head,
+    restart_level,
 )
 from workbench.core.surge import LineSurge, effective_closure_time, screen_line
 from workbench.core.tank import TankGeometry, tank_geometry
@@ -110,8 +129,9 @@ class Event:
     time: float
     """[s]"""
     code: str
-    """``tank.drained``, ``tank.overflow``, ``tank.spill_end``, ``line.reversal``,
-    ``valve.closed``, ``valve.opened``."""
+    """``tank.drained``, ``tank.draw_off_stopped``, ``tank.refilled``, ``tank.overflow``,
+    ``tank.spill_end``, ``line.reversal``, ``line.restart``, ``valve.closed``,
+    ``valve.opened``."""
     element: str
     """Id of the tank, line or valve's line."""
     message: str
@@ -150,7 +170,23 @@ class TransientResult:
     surge: dict[str, LineSurge]
     warnings: tuple[Finding, ...]
     drain_times: dict[str, float]
-    """Time each tank drained [s] (tanks that drained only)."""
+    """Time each tank first drained [s] (tanks that drained only)."""
+    feeds: np.ndarray = field(default_factory=lambda: np.zeros((0, 0)))
+    """Feed into each tank from outside the model, tanks x times [m^3/s] (zero without
+    one)."""
+    draw_offs: np.ndarray = field(default_factory=lambda: np.zeros((0, 0)))
+    """Draw-off delivered by each tank, tanks x times [m^3/s]: the asked value, zero while
+    the tank is drained."""
+    end_rates: dict[str, float] = field(default_factory=dict)
+    """Per tank, the rate of change of volume at the end of the run [m^3/s] (zero while it
+    spills or stands drained)."""
+    spills: np.ndarray = field(default_factory=lambda: np.zeros((0, 0)))
+    """Surplus spilling over each tank's overflow, tanks x times [m^3/s]: lines, feed and
+    draw-off's net inflow while the level is held at the overflow level, else zero."""
+    end_states: dict[str, str] = field(default_factory=dict)
+    """Per tank at the end of the run: ``"steady"`` (level no longer changing: inflows and
+    outflows balance), ``"rising"``, ``"falling"``, ``"spilling"``, ``"drained"`` or
+    ``"still"`` (nothing flowing in or out)."""
     method: str = "Radau"
     nfev: int = 0
     njev: int = 0
@@ -186,6 +222,7 @@ class _Config:
         t_rows = model.t_rows.copy()
         t_rows[spilling, :] = 0.0
         self.t_rows = t_rows
+        self.ext_on = (~spilling).astype(float)  # a spilling tank's surplus leaves it
 
     def project(self, q: np.ndarray) -> np.ndarray:
         """Flows made to satisfy continuity at every junction after lines were stopped.
@@ -252,6 +289,10 @@ class _Model:
         self.v_over = np.array(
             [g.capacity if g.overflow_level is not None else np.inf for g in self.geoms]
         )
+        self.v_restart = np.array([g.volume(min(restart_level(r), g.top))
+                                   for g, r in zip(self.geoms, self.tanks)])
+        self.ext_tanks = [k for k, r in enumerate(self.tanks) if r.has_external_flow]
+        self.has_ext = bool(self.ext_tanks)
         self.valve_lines = np.flatnonzero(self.lines.has_valve)
         # +1 where the line discharges to air at its to-end, -1 at its from-end, 0 otherwise
         rec_to = np.array([k == "open_discharge" for k in self.lines.to_kind])
@@ -259,6 +300,25 @@ class _Model:
         self.discharge_sign = np.where(rec_to, 1.0, np.where(rec_from, -1.0, 0.0))
         self.is_discharge = self.discharge_sign != 0.0
         self._stations()
+
+    # ------------------------------------------------------------------ feeds
+    def external(self, t: float) -> tuple[np.ndarray, np.ndarray]:
+        """Feed into each tank and the draw-off asked of it at time ``t`` [m^3/s]."""
+        feed = np.zeros(self.nt)
+        draw = np.zeros(self.nt)
+        for k in self.ext_tanks:
+            feed[k] = inflow_at(self.tanks[k], t)
+            draw[k] = draw_off_at(self.tanks[k], t)
+        return feed, draw
+
+    def schedule_times(self) -> set[float]:
+        """Break points of the feed and draw-off schedules [s]."""
+        times: set[float] = set()
+        for r in self.tanks:
+            for sched in (r.inflow_schedule, r.draw_off_schedule):
+                if sched is not None:
+                    times.update(sched.times)
+        return times
 
     # ------------------------------------------------------------------ heads
     def tank_levels(self, v: np.ndarray) -> np.ndarray:
@@ -476,6 +536,10 @@ class _Run:
         self.drained = np.zeros(nt, bool)
         self.spilling = np.zeros(nt, bool)
         self.blocked = np.zeros(nl, bool)  # outlets of drained tanks
+        self.blocked_by = np.zeros((nt, nl), bool)  # which tank holds each outlet shut
+        self.drain_count = np.zeros(nt, dtype=int)
+        self.drained_out: list[np.ndarray] = []  # drained tanks at each output time
+        self.spilling_out: list[np.ndarray] = []  # spilling tanks at each output time
         self.backstopped = np.zeros(nl, bool)  # would draw air back from an open discharge
         self.t_out: list[float] = []
         self.y_out: list[np.ndarray] = []
@@ -518,6 +582,12 @@ class _Run:
         self._cache = (t, y.copy(), out)
         return out
 
+    def external_net(self, t):
+        """Feed less the draw-off delivered, per tank, at time ``t`` [m^3/s]: a drained
+        tank supplies no draw-off."""
+        feed, draw = self.model.external(t)
+        return feed - np.where(self.drained, 0.0, draw)
+
     def rhs(self, t, y):
         model, cfg = self.model, self.cfg
         nl = model.nl
@@ -527,6 +597,8 @@ class _Run:
         out[:nl] = cfg.s @ g
         out[:nl] *= -1.0
         out[nl:] = cfg.t_rows @ y[:nl]
+        if model.has_ext:  # independent of the state: the Jacobian is unchanged
+            out[nl:] += cfg.ext_on * self.external_net(t)
         return out
 
     def jac(self, t, y):
@@ -589,7 +661,8 @@ class _Run:
 
     # ---------------------------------------------------------------- events
     # event components, in this order: (kind, size)
-    _KINDS = ("drain", "overflow", "spill_end", "reversal", "discharge_stop", "release")
+    _KINDS = ("drain", "overflow", "spill_end", "reversal", "discharge_stop", "release",
+              "refill")
 
     def event_values(self, t, y):
         model = self.model
@@ -602,13 +675,17 @@ class _Run:
             drive = sign * (h_nodes[model.topo.line_from] - h_nodes[model.topo.line_to])
         else:
             drive = np.zeros(nl)
+        net = model.t_rows @ q
+        if model.has_ext:
+            net = net + self.external_net(t)
         return np.concatenate([
             v - model.v_min,  # drained
             v - model.v_over,  # overflow
-            model.t_rows @ q,  # net inflow: spill end
+            net,  # net inflow: spill end
             q,  # reversal
             sign * q,  # flow turning back out of an open discharge
             drive,  # head returning above an open discharge
+            v - model.v_restart,  # a drained tank refilled to its restart level
         ])
 
     def _arm(self):
@@ -622,17 +699,20 @@ class _Run:
             is_open & ~model.is_discharge,
             is_open & model.is_discharge,
             self.backstopped & ~self.blocked,
+            self.drained & ~self.spilling,
         ])
         self.direction = np.concatenate([
             np.full(nt, -1), np.full(nt, 1), np.full(nt, -1),
-            np.zeros(nl, int), np.full(nl, -1), np.full(nl, 1),
+            np.zeros(nl, int), np.full(nl, -1), np.full(nl, 1), np.full(nt, 1),
         ])
         self.terminal = np.concatenate([
-            np.ones(3 * nt, bool), np.zeros(nl, bool), np.ones(2 * nl, bool),
+            np.ones(3 * nt, bool), np.zeros(nl, bool), np.ones(2 * nl + nt, bool),
         ])
         self.kind_of = np.concatenate([np.full(nt, 0), np.full(nt, 1), np.full(nt, 2),
-                                       np.full(nl, 3), np.full(nl, 4), np.full(nl, 5)])
-        self.index_of = np.concatenate([np.arange(nt)] * 3 + [np.arange(nl)] * 3)
+                                       np.full(nl, 3), np.full(nl, 4), np.full(nl, 5),
+                                       np.full(nt, 6)])
+        self.index_of = np.concatenate([np.arange(nt)] * 3 + [np.arange(nl)] * 3
+                                       + [np.arange(nt)])
 
     def find_events(self, sol, t_old, y_old, t_new, y_new):
         from scipy.optimize import brentq
@@ -658,7 +738,11 @@ class _Run:
     # ---------------------------------------------------------------- output
     def record(self, t, y):
         self.t_out.append(float(t))
-        self.y_out.append(np.array(y, dtype=float))
+        y = np.array(y, dtype=float)
+        y[: self.model.nl][~self.cfg.open] = 0.0  # a shut line's round-off is not a flow
+        self.y_out.append(y)
+        self.drained_out.append(self.drained.copy())
+        self.spilling_out.append(self.spilling.copy())
 
     def report_progress(self, t, force=False):
         if self.progress is None:
@@ -697,11 +781,13 @@ class _Run:
         return np.concatenate([q0, v0])
 
     def segment_breaks(self):
+        """Segment ends: valve, feed and draw-off schedule break points, then the end."""
         times = set()
         for i in self.model.valve_lines:
             valve = self.model.system.lines[self.model.topo.line_ids[i]].valve
             if valve.schedule is not None:
                 times.update(t for t in valve.schedule.times if 0.0 < t < self.duration)
+        times.update(t for t in self.model.schedule_times() if 0.0 < t < self.duration)
         return sorted(times) + [self.duration]
 
     def configure(self, t_a, t_b, y):
@@ -771,7 +857,10 @@ class _Run:
         # the initial flow draws from them
         leaves = (model.t_rows < 0).any(axis=1) if nt else np.zeros(0, bool)
         draws = (model.t_rows * y[:nl][None, :] < 0).any(axis=1) if nt else np.zeros(0, bool)
-        self.draining_capable = leaves | draws
+        asked = np.array([r.draw_off > 0.0 or (r.draw_off_schedule is not None
+                                               and max(r.draw_off_schedule.flows) > 0.0)
+                          for r in model.tanks], dtype=bool)
+        self.draining_capable = leaves | draws | asked
         t = 0.0
         # tanks already at or beyond their limits at the start
         for k, r in enumerate(model.tanks):
@@ -848,8 +937,11 @@ class _Run:
                         tg = tg[tg > t_old]
                         if tg.size:
                             yg = sol(tg)
+                            yg[:nl][~self.cfg.open] = 0.0
                             self.t_out.extend(tg.tolist())
                             self.y_out.extend(yg.T)
+                            self.drained_out.extend([self.drained.copy()] * tg.size)
+                            self.spilling_out.extend([self.spilling.copy()] * tg.size)
                         grid_i = g_end
                     for te, k in found:
                         if te <= t_stop and not self.terminal[k]:
@@ -923,19 +1015,60 @@ class _Run:
         nl = model.nl
         rid = model.tank_ids[k]
         self.drained[k] = True
-        self.drain_times[rid] = float(t)
+        self.drain_times.setdefault(rid, float(t))
+        self.drain_count[k] += 1
         row = model.t_rows[k]
         tiny = 1e-9 * max(float(np.max(self.q_peak, initial=0.0)), 1e-12)
         drawing = (row != 0) & (row * y[:nl] < -tiny)
         # lines at rest that would draw from it by their positive direction stop as well
         outlets = drawing | ((row < 0) & (np.abs(y[:nl]) <= tiny))
+        self.blocked_by[k] = outlets
         self.blocked |= outlets
+        if not self._cycle_listed(k, t, rid):
+            return
         names = ", ".join(model.topo.line_ids[i] for i in np.flatnonzero(drawing))
         res = model.tanks[k]
         what = "starts at or below" if started else "reaches"
         self._event(t, "tank.drained", rid,
                     f"tank {rid} {what} its drained level {res.min_level:g} m; "
                     f"outlet line(s) {names or 'none'} stop drawing")
+        asked = float(model.external(t)[1][k])
+        if asked > 0.0:
+            self._event(t, "tank.draw_off_stopped", rid,
+                        f"tank {rid} can no longer supply its draw-off of "
+                        f"{asked * 1000:.4g} L/s: the draw-off stops (the tank is drained)")
+
+    def _cycle_listed(self, k, t, rid):
+        """Whether this drain or refill of tank ``k`` is listed as an event: a tank that
+        keeps draining and refilling is listed 50 times, then once more in words."""
+        n = self.drain_count[k]
+        if n <= 50:
+            return True
+        if n == 51 and not self.drained[k]:
+            return False
+        if n == 51:
+            self._event(t, "tank.drained", rid,
+                        f"tank {rid} keeps draining and refilling; further cycles not listed")
+        return False
+
+    def _refill(self, k, t):
+        """A drained tank refilled to its restart level: its outlets and draw-off resume."""
+        model = self.model
+        rid = model.tank_ids[k]
+        self.drained[k] = False
+        released = self.blocked_by[k].copy()
+        self.blocked_by[k] = False
+        self.blocked = self.blocked_by.any(axis=0) if model.nt else self.blocked
+        if not self._cycle_listed(k, t, rid):
+            return
+        names = ", ".join(model.topo.line_ids[i] for i in np.flatnonzero(released))
+        asked = float(model.external(t)[1][k])
+        lvl = restart_level(model.tanks[k])
+        self._event(t, "tank.refilled", rid,
+                    f"tank {rid} refills to its restart level {lvl:.4g} m: "
+                    + (f"outlet line(s) {names} open again" if names else "it is back in use")
+                    + (f"; its draw-off of {asked * 1000:.4g} L/s resumes" if asked > 0.0
+                       else ""))
 
     def _terminal(self, hits, y):
         """Apply terminal events; return True when the run should stop."""
@@ -949,7 +1082,8 @@ class _Run:
                 self.spilling[idx] = True
                 lvl = model.geoms[idx].overflow_level
                 self._event(te, "tank.overflow", rid,
-                            f"tank {rid} reaches its overflow level {lvl:g} m and spills")
+                            f"tank {rid} reaches its overflow level {lvl:g} m and spills"
+                            + self._overflow_cause(idx, te, y))
             elif kind == 2:
                 rid = model.tank_ids[idx]
                 self.spilling[idx] = False
@@ -966,11 +1100,31 @@ class _Run:
                 self._event(te, "line.restart", lid,
                             f"the head upstream of the discharge of line {lid} rises above it "
                             "again: the line restarts (full-bore assumed)")
+            elif kind == 6:
+                self._refill(idx, te)
         if self.stop_when == "drained":
             must = self.draining_capable
             if must.any() and self.drained[must].all():
                 return True
         return False
+
+    def _overflow_cause(self, k, t, y):
+        """Words on what makes tank ``k`` overflow when it has a feed or draw-off."""
+        model = self.model
+        if k not in model.ext_tanks:
+            return ""
+        feed, draw = model.external(t)
+        draw_k = 0.0 if self.drained[k] else float(draw[k])
+        lines_net = float(model.t_rows[k] @ y[: model.nl])
+        if feed[k] <= 0.0:
+            return ""
+        out_total = draw_k - min(lines_net, 0.0)
+        if lines_net <= 0.0:
+            return (f": its feed of {feed[k] * 1000:.4g} L/s is the cause, more than its "
+                    f"outlets and draw-off take out ({out_total * 1000:.4g} L/s)")
+        return (f": its feed of {feed[k] * 1000:.4g} L/s and a net {lines_net * 1000:.4g} L/s "
+                f"from its lines are more than its draw-off takes out "
+                f"({draw_k * 1000:.4g} L/s)")
 
     def _valve_end(self, t):
         """A valve shutting exactly at the end of the run."""
@@ -998,6 +1152,9 @@ def _finish(model: _Model, run: _Run, outcome, wall: float) -> TransientResult:
     volumes = ys[nl:]
     levels = np.array([[g.level_extrapolated(v) for v in row]
                        for g, row in zip(model.geoms, volumes)]).reshape(model.nt, len(t))
+    feeds, draw_offs = _external_series(model, run, t)
+    end_rates, end_states = _end_states(model, run, ys, feeds, draw_offs, levels)
+    spills = _spill_series(model, run, ys, feeds, draw_offs)
     fluid = system.fluid
     warnings: list[Finding] = list(run.notes)
     surge: dict[str, LineSurge] = {}
@@ -1033,10 +1190,25 @@ def _finish(model: _Model, run: _Run, outcome, wall: float) -> TransientResult:
         min_p[lid] = screened.min_pressure
     for ev in run.events:
         if ev.code == "tank.overflow":
+            k = model.tank_ids.index(ev.element)
+            peak = float(np.max(spills[k], initial=0.0))
+            surplus = (f" (the surplus spilling reaches {peak * 1000:.4g} L/s in this run)"
+                       if peak > 0.0 else "")
             warnings.append(Finding(
                 "tank.overflow", ev.element,
                 f"{ev.message} at t = {ev.time:.6g} s: check the overflow capacity under the "
-                "worst-case inflow (defer to local codes)", "danger", "common practice"))
+                f"worst-case inflow{surplus} (defer to local codes)", "danger",
+                "common practice"))
+    for k, tid in enumerate(model.tank_ids):
+        if run.drain_count[k] >= 2:
+            warnings.append(Finding(
+                "tank.cycling", tid,
+                f"tank {tid} drained {int(run.drain_count[k])} times, refilling in between: "
+                "what flows in is less than its outlets and draw-off take at the drained "
+                "level. In the plant the outlets would run part-full and draw air (vortexing) "
+                "rather than stop and restart; the model stops them at min_level and restarts "
+                f"them at the restart level {restart_level(model.tanks[k]):.4g} m", "caution",
+                "common practice"))
     return TransientResult(
         success=status in (0, 1),
         status=status,
@@ -1055,6 +1227,11 @@ def _finish(model: _Model, run: _Run, outcome, wall: float) -> TransientResult:
         surge=surge,
         warnings=tuple(warnings),
         drain_times=dict(run.drain_times),
+        feeds=feeds,
+        draw_offs=draw_offs,
+        end_rates=end_rates,
+        end_states=end_states,
+        spills=spills,
         method=run.method,
         nfev=run.nfev,
         njev=run.njev,
@@ -1062,6 +1239,66 @@ def _finish(model: _Model, run: _Run, outcome, wall: float) -> TransientResult:
         nsteps=run.nsteps,
         wall_time=wall,
     )
+
+
+def _external_series(model: _Model, run: _Run, t: np.ndarray):
+    """Feed and delivered draw-off per tank at the output times [m^3/s]."""
+    feeds = np.zeros((model.nt, len(t)))
+    draws = np.zeros((model.nt, len(t)))
+    if not model.has_ext:
+        return feeds, draws
+    for j, tj in enumerate(t.tolist()):
+        feed, draw = model.external(tj)
+        drained = run.drained_out[j] if j < len(run.drained_out) else run.drained
+        feeds[:, j] = feed
+        draws[:, j] = np.where(drained, 0.0, draw)
+    return feeds, draws
+
+
+def _spill_series(model: _Model, run: _Run, ys, feeds, draws) -> np.ndarray:
+    """Surplus spilling over each tank's overflow at the output times [m^3/s]."""
+    n = ys.shape[1]
+    spills = np.zeros((model.nt, n))
+    if not model.nt or not n or not run.spilling_out:
+        return spills
+    held = np.array(run.spilling_out[:n]).T.reshape(model.nt, -1)
+    if held.shape[1] != n or not held.any():
+        return spills
+    net = model.t_rows @ ys[: model.nl] + feeds - draws
+    return np.where(held, np.maximum(net, 0.0), 0.0)
+
+
+#: A tank whose net inflow is below this fraction of the flow through it counts as steady
+#: at the end of a run (common practice, no source).
+STEADY_FRACTION = 1e-3
+
+
+def _end_states(model: _Model, run: _Run, ys, feeds, draws, levels):
+    """Per tank, the rate of change of volume at the end of the run [m^3/s] and a word for
+    its state (see :attr:`TransientResult.end_states`)."""
+    rates: dict[str, float] = {}
+    states: dict[str, str] = {}
+    if not model.nt or not ys.shape[1]:
+        return rates, states
+    q = ys[: model.nl, -1]
+    for k, tid in enumerate(model.tank_ids):
+        row = model.t_rows[k]
+        line_net = float(row @ q)
+        through = float(np.abs(row) @ np.abs(q)) + feeds[k, -1] + draws[k, -1]
+        net = line_net + feeds[k, -1] - draws[k, -1]
+        if run.spilling[k]:
+            rates[tid], states[tid] = 0.0, "spilling"
+            continue
+        rates[tid] = net
+        if through <= 1e-12:
+            states[tid] = "drained" if run.drained[k] else "still"
+        elif abs(net) <= STEADY_FRACTION * through:
+            states[tid] = "steady"
+        elif run.drained[k] and net <= 0.0:
+            states[tid] = "drained"
+        else:
+            states[tid] = "rising" if net > 0.0 else "falling"
+    return rates, states
 
 
 def _rest_of_line_k(model: _Model, i: int, run: _Run) -> float:
