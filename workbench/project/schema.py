@@ -127,6 +127,21 @@ SECTIONS: dict[str, tuple[FieldSpec, ...]] = {
         field("height", "length", help="tank: level at which it overflows, above the bottom"),
         field("min_level", "length", help="tank: the level counted as drained",
               default="0 m"),
+        field("inflow", "flow", help="tank: constant feed into the tank from outside the "
+              "modelled lines (e.g. from filters); not negative (a flow taken out is draw_off)",
+              default="0 L/s", example="40 L/s"),
+        field("inflow_schedule", "list", help="tank: the feed in time for simulations, "
+              "instead of inflow: { time = '...', flow = '...' } points with increasing time, "
+              "linear between them, holding the first and last values"),
+        field("draw_off", "flow", help="tank: constant flow taken out by something outside "
+              "the model (e.g. a pump to process); it stops while the tank is drained",
+              default="0 L/s", example="5 L/s"),
+        field("draw_off_schedule", "list", help="tank: the draw-off in time for simulations, "
+              "instead of draw_off: { time = '...', flow = '...' } points with increasing "
+              "time, linear between them, holding the first and last values"),
+        field("restart_level", "length", help="tank: level at which a drained tank's outlets "
+              "and draw-off start again (default: min_level plus 5 % of the depth up to "
+              "height)", example="0.5 m"),
         _DESCRIPTION,
     ),
     "junctions": (
@@ -225,6 +240,14 @@ LIST_ITEMS: dict[str, tuple[FieldSpec, ...]] = {
     "lines.profile": (
         field("distance", "length", True, "distance along the line from its from-end"),
         field("elevation", "elevation", True, "centreline elevation there"),
+    ),
+    "reservoirs.inflow_schedule": (
+        field("time", "time", True, "time from the start of the simulation"),
+        field("flow", "flow", True, "feed into the tank then, not negative"),
+    ),
+    "reservoirs.draw_off_schedule": (
+        field("time", "time", True, "time from the start of the simulation"),
+        field("flow", "flow", True, "draw-off asked of the tank then, not negative"),
     ),
     "lines.valve.schedule": (
         field("time", "time", True, "time from the start of the simulation"),

@@ -42,6 +42,13 @@ bottom_elevation = "10 m"  # outlet lines leave at this elevation
 level = "4 m"  # initial liquid depth above the bottom
 min_level = "0.1 m"  # the level counted as drained
 surface_pressure = "0 kPa"  # gauge gas pressure on the surface (vented tank: 0)
+# Flows from and to outside the modelled lines (simulations; never negative):
+# inflow = "40 L/s"    # a constant feed into the tank, e.g. from the filters
+# draw_off = "5 L/s"   # taken out by something outside the model, e.g. a pump to process;
+#                      # it stops while the tank is drained
+# inflow_schedule = [{ time = "0 s", flow = "0 L/s" }, { time = "10 min", flow = "40 L/s" }]
+#                      # the feed in time instead (linear between points; draw_off_schedule alike)
+# restart_level = "0.5 m"  # a drained tank's outlets and draw-off start again at this level
 
 # Where the line ends: free discharge to air, or kind = "vessel" with a gauge pressure.
 [receivers.OUT]

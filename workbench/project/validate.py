@@ -399,12 +399,17 @@ def _check_reservoir(c: _Checker, rid: str, t: dict) -> m.Reservoir | None:
     level = c.quantity(t, "level", "length", path, nonnegative=True)
     surface = c.quantity(t, "surface_pressure", "pressure", path)
     tank_keys = ("shape", "diameter", "length", "width", "cone_angle", "cone_height", "height",
-                 "min_level")
+                 "min_level", "restart_level")
     if kind == "constant_level":
         for key in tank_keys:
             if key in t:
                 c.add(f"{path}.{key}", f"'{key}' applies only to kind = \"tank\" (this reservoir "
                       "holds a constant level)")
+        for key in _FEED_KEYS:
+            if key in t:
+                c.add(f"{path}.{key}", f"'{key}' applies only to kind = \"tank\": a "
+                      "constant-level reservoir's level is held whatever flows in or out, so "
+                      "a feed or draw-off would change nothing (make it a tank to model one)")
         if len(c.problems) > n0 or bottom is None or level is None:
             return None
         return m.Reservoir(rid, "constant_level", bottom, level, surface or 0.0)
@@ -469,12 +474,81 @@ def _check_reservoir(c: _Checker, rid: str, t: dict) -> m.Reservoir | None:
               f"{t['level']!r}")
     if min_level is not None and height is not None and min_level >= height:
         c.add(f"{path}.min_level", f"min_level {t['min_level']!r} must be below height")
+    feeds = _check_feeds(c, t, path)
+    restart = c.quantity(t, "restart_level", "length", path, nonnegative=True)
+    if restart is not None:
+        low = min_level or 0.0
+        if restart <= low:
+            c.add(f"{path}.restart_level", f"restart_level {t['restart_level']!r} must be above "
+                  f"min_level {t.get('min_level', '0 m')!r}: the outlets start again above the "
+                  "drained level")
+        elif height is not None and restart >= height:
+            c.add(f"{path}.restart_level", f"restart_level {t['restart_level']!r} must be below "
+                  "the overflow level (height)")
     if len(c.problems) > n0 or None in (bottom, level, shape_kind):
         return None
     shape = m.TankShape(shape_kind, diameter=diameter, length=length, width=width,
                         cone_height=cone_height if shape_kind == "cone_bottom" else None)
     return m.Reservoir(rid, "tank", bottom, level, surface or 0.0, shape=shape, height=height,
-                       min_level=min_level or 0.0)
+                       min_level=min_level or 0.0, restart_level=restart, **feeds)
+
+
+#: A tank's keys for flows from and to outside the model (refused on constant levels).
+_FEED_KEYS = ("inflow", "inflow_schedule", "draw_off", "draw_off_schedule")
+
+
+def _check_feeds(c: _Checker, t: dict, path: str) -> dict:
+    """A tank's feed and draw-off, each a constant or a schedule (not both), as Reservoir
+    keyword arguments; problems are added with their key paths."""
+    out: dict = {}
+    for name, opposite in (("inflow", "draw_off"), ("draw_off", "inflow")):
+        sched_name = f"{name}_schedule"
+        if name in t and sched_name in t:
+            c.add(f"{path}.{sched_name}", f"give {name} or {sched_name}, not both")
+            continue
+        if name in t:
+            value = c.quantity(t, name, "flow", path)
+            if value is not None and value < 0.0:
+                what = ("a flow taken out of the tank is draw_off" if name == "inflow"
+                        else "a feed into the tank is inflow")
+                c.add(f"{path}.{name}", f"{t[name]!r}: the {name.replace('_', '-')} must not be "
+                      f"negative ({what}, e.g. {opposite} = \"{abs(value) * 1000:g} L/s\")")
+            elif value is not None:
+                out[name] = value
+        elif sched_name in t:
+            schedule = _check_flow_schedule(c, t, sched_name, path)
+            if schedule is not None:
+                out[sched_name] = schedule
+    return out
+
+
+def _check_flow_schedule(c: _Checker, t: dict, name: str, path: str) -> m.FlowSchedule | None:
+    """A list of ``{ time, flow }`` points with increasing times and flows not negative."""
+    key = f"{path}.{name}"
+    items = c.list_of_tables(t, name, path)
+    if isinstance(t[name], list) and not t[name]:
+        c.add(key, "the schedule is empty: give at least one { time = \"0 s\", flow = \"10 L/s\" }")
+        return None
+    n0 = len(c.problems)
+    times: list[float] = []
+    flows: list[float] = []
+    what = "draw-off" if name.startswith("draw_off") else "feed"
+    for item_key, item in items:
+        c.known_keys(item, LIST_ITEMS[f"reservoirs.{name}"], item_key)
+        time = c.quantity(item, "time", "time", item_key, nonnegative=True)
+        flow = c.quantity(item, "flow", "flow", item_key)
+        if flow is not None and flow < 0.0:
+            c.add(f"{item_key}.flow", f"{item['flow']!r}: the {what} must not be negative")
+            flow = None
+        if time is not None and flow is not None:
+            if times and time <= times[-1]:
+                c.add(f"{item_key}.time", f"{item['time']!r}: times must increase along the "
+                      "schedule")
+            times.append(time)
+            flows.append(flow)
+    if len(c.problems) > n0 or len(times) != len(items) or not items:
+        return None
+    return m.FlowSchedule(tuple(times), tuple(flows))
 
 
 def _check_junction(c: _Checker, jid: str, t: dict) -> m.Junction | None:
