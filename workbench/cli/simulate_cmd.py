@@ -117,7 +117,7 @@ def run(args: argparse.Namespace) -> ExitCode:
 
         try:
             with open(args.csv, "w", encoding="utf-8", newline="") as stream:
-                transient_csv(result, stream)
+                transient_csv(result, stream, system)
         except OSError as exc:
             print(f"{args.csv}: cannot write the CSV file: {exc.strerror or exc}",
                   file=sys.stderr)

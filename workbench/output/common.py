@@ -38,3 +38,17 @@ def quantity_text(value, kind: str, unit_system: str, digits: int = 4) -> str:
 
     v = json_float(value)
     return "—" if v is None else format_quantity(v, kind, unit_system, digits)
+
+
+def level_rate_text(rate, unit_system: str) -> str:
+    """A rate of change of level [m/s] in words: ``+12.5 mm/min`` (``in/min`` in US units),
+    ``steady`` when below 0.001 mm/min, an em dash when not finite."""
+    v = json_float(rate)
+    if v is None:
+        return "—"
+    per_min = v * 60.0
+    if abs(per_min) < 1e-6:
+        return "steady"
+    if unit_system == "US":
+        return f"{per_min / 0.0254:+.3g} in/min"
+    return f"{per_min * 1000.0:+.3g} mm/min"

@@ -190,6 +190,25 @@ def _derived(project: Project) -> list[str]:
         ])
     out += _table(["Line", "From -> to", "Length", "Inside diameter", "Roughness", "Wall",
                    "Entrance", "Friction factor"], rows, "llrrrrll")
+    fed = [r for r in system.reservoirs.values() if r.kind == "tank" and r.has_external_flow]
+    if fed:
+        from workbench.core.model import restart_level
+
+        def flow_text(constant, schedule):
+            if schedule is None:
+                return _q(constant, "flow", units)
+            points = ", ".join(f"{_time(t)}: {_q(q, 'flow', units)}"
+                               for t, q in zip(schedule.times, schedule.flows))
+            return f"schedule ({points}; linear between, end values held)"
+
+        rows = [[r.id, flow_text(r.inflow, r.inflow_schedule),
+                 flow_text(r.draw_off, r.draw_off_schedule),
+                 _q(restart_level(r), "length", units)
+                 + ("" if r.restart_level is not None else " (default)")] for r in fed]
+        out += ["", "Tank feeds and draw-offs from outside the modelled lines (the draw-off "
+                "stops while the tank is drained; its outlets and draw-off start again at the "
+                "restart level):", ""]
+        out += _table(["Tank", "Feed", "Draw-off", "Restart level"], rows, "llll")
     return out
 
 
@@ -293,6 +312,13 @@ def _methods(project: Project, steady: SteadyResult | None, transient: Transient
         rows.append(["Transient", f"rigid-column lines and tank balances, {transient.method} (scipy solve_ivp)",
                      "rigid water column theory (Streeter and Wylie, from memory)",
                      "valve moves slower than about five wave round trips 2L/a"])
+        if any(r.kind == "tank" and r.has_external_flow for r in system.reservoirs.values()):
+            rows.append(["Tank feed and draw-off",
+                         "dV/dt = sum Q_in - sum Q_out + Q_feed(t) - Q_draw(t); schedules "
+                         "piecewise linear, break points landed by the integrator",
+                         "mass balance of an incompressible liquid (common practice)",
+                         "a drained tank's outlets stop at min_level and restart at the restart "
+                         "level (in the plant they would run part-full)"])
         formulas = sorted({s.formula for s in transient.surge.values() if s.formula})
         for formula in formulas:
             rows.append(["Wave speed", formula, "Korteweg; Wylie and Streeter, Fluid Transients in Systems (1993)",
@@ -368,9 +394,10 @@ def _simulation(project: Project, transient: TransientResult | None) -> list[str
         for k, tid in enumerate(transient.tank_ids):
             levels = transient.levels[k]
             rows.append([tid, _q(float(levels[0]), "length", units), _q(float(levels[-1]), "length", units),
-                         _time(transient.drain_times[tid]) if tid in transient.drain_times else "not drained"])
+                         _time(transient.drain_times[tid]) if tid in transient.drain_times else "not drained",
+                         getattr(transient, "end_states", {}).get(tid, "-")])
         out += ["### Tanks", ""]
-        out += _table(["Tank", "Initial level", "Final level", "Drain time"], rows, "lrrr")
+        out += _table(["Tank", "Initial level", "Final level", "Drain time", "At end"], rows, "lrrrl")
     rows = []
     for k, lid in enumerate(transient.line_ids):
         q = transient.flows[k]

@@ -8,7 +8,7 @@ as a word and a colour, never colour alone.
 
 from __future__ import annotations
 
-from workbench.output.common import SEVERITY_STYLE, quantity_text, simple_table
+from workbench.output.common import SEVERITY_STYLE, level_rate_text, quantity_text, simple_table
 from workbench.output.common import json_float as _num, json_list as _list
 
 from typing import TYPE_CHECKING, Any
@@ -29,7 +29,13 @@ def steady_to_json(result: SteadyResult, system: System) -> dict:
     ``pressure_pa`` (gauge), ...}} for every junction, reservoir and receiver, and
     ``warnings`` [{``code``, ``element``, ``message``, ...}]. Values that do not exist (the
     friction factor of a line without flow, the head of an isolated junction) are ``null``.
+
+    Tank nodes add their volume balance at the solved flows: ``lines_net_inflow_m3_s``,
+    ``inflow_m3_s`` (feed, at time zero when scheduled), ``draw_off_m3_s``,
+    ``net_inflow_m3_s`` and ``level_rate_m_s`` (positive rising).
     """
+    from workbench.core.tank import tank_balances
+
     fluid = system.fluid
     out: dict[str, Any] = {
         "schema": 1,
@@ -93,6 +99,16 @@ def steady_to_json(result: SteadyResult, system: System) -> dict:
         }
         if nid in result.levels:
             out["nodes"][nid]["level_m"] = _num(result.levels[nid])
+    flows = {lid: r.flow for lid, r in result.lines.items()}
+    for tid, b in tank_balances(system, flows, dict(result.levels)).items():
+        if tid in out["nodes"]:
+            out["nodes"][tid].update({
+                "lines_net_inflow_m3_s": _num(b.lines_net),
+                "inflow_m3_s": _num(b.inflow),
+                "draw_off_m3_s": _num(b.draw_off),
+                "net_inflow_m3_s": _num(b.net),
+                "level_rate_m_s": _num(b.level_rate),
+            })
     out["warnings"] = [
         {"code": w.code, "element": w.element, "message": w.message, "severity": w.severity,
          "source": w.source}
@@ -159,6 +175,21 @@ def steady_tables(result: SteadyResult, system: System, unit_system: str = "SI")
         nodes.add_row(nid, n.kind.replace("_", " "), q(n.elevation, "elevation"),
                       q(n.head, "head"), q(n.pressure, "pressure"))
     out.append(nodes)
+
+    from workbench.core.tank import tank_balances
+
+    fed = [rid for rid, r in system.reservoirs.items() if r.kind == "tank" and r.has_external_flow]
+    if fed:
+        flows = {lid: r.flow for lid, r in result.lines.items()}
+        balances = tank_balances(system, flows, dict(result.levels))
+        bal = table("Tank balances (feed and draw-off at time zero)")
+        for col in ("tank", "lines, net in", "feed", "draw-off", "level moves"):
+            bal.add_column(col, justify="left" if col == "tank" else "right", no_wrap=True)
+        for rid in fed:
+            b = balances[rid]
+            bal.add_row(rid, q(b.lines_net, "flow"), q(b.inflow, "flow"), q(b.draw_off, "flow"),
+                        level_rate_text(b.level_rate, unit_system))
+        out.append(bal)
 
     warn = table("Warnings")
     warn.add_column("severity", no_wrap=True)

@@ -10,7 +10,7 @@ screening, events and warnings; a warning's severity is a word as well as a colo
 
 from __future__ import annotations
 
-from workbench.output.common import SEVERITY_STYLE, quantity_text, simple_table
+from workbench.output.common import SEVERITY_STYLE, level_rate_text, quantity_text, simple_table
 from workbench.output.common import json_float as _num, json_list as _list
 
 import csv
@@ -53,8 +53,17 @@ def transient_to_json(result: TransientResult, system: System, include_series: b
     ``message``}]. Values that do not exist (a wave speed without a bulk modulus, the
     closure time of a line without a closing valve) are ``null``.
 
-    With ``include_series=False`` the arrays (``time_s``, ``flow_m3_s``, ``level_m``) are
-    left out and only the summary values remain (for sweeps).
+    Each tank in ``levels`` also has its feed and draw-off: ``inflow_m3_s`` [...] and
+    ``draw_off_m3_s`` [...] (the draw-off delivered: zero while the tank is drained) over
+    ``time_s``, zeros for a tank without them; ``inflow_volume_m3`` and
+    ``draw_off_volume_m3`` (what they moved over the run), ``end_state`` (``"steady"``,
+    ``"rising"``, ``"falling"``, ``"spilling"``, ``"drained"`` or ``"still"``),
+    ``end_net_inflow_m3_s`` and ``end_level_rate_m_s`` (positive rising); and what spills
+    over its overflow, ``spill_m3_s`` [...] and ``peak_spill_m3_s``.
+
+    With ``include_series=False`` the arrays (``time_s``, ``flow_m3_s``, ``level_m``,
+    ``inflow_m3_s``, ``draw_off_m3_s``, ``spill_m3_s``) are left out and only the summary values remain
+    (for sweeps).
     """
     out: dict[str, Any] = {"schema": 1}
     if include_series:
@@ -88,6 +97,8 @@ def transient_to_json(result: TransientResult, system: System, include_series: b
             "min_flow_m3_s": _num(np.min(flows)) if flows.size else None,
         })
         out["lines"][lid] = entry
+    feeds, draws = _external(result)
+    spills = _spills(result)
     for k, tid in enumerate(result.tank_ids):
         levels = result.levels[k]
         entry = {}
@@ -98,6 +109,18 @@ def transient_to_json(result: TransientResult, system: System, include_series: b
             "final_level_m": _num(levels[-1]) if levels.size else None,
             "drain_time_s": _num(result.drain_times.get(tid)),
             "settle_99_s": _num(settle_time(result.t, levels)),
+        })
+        if include_series:
+            entry["inflow_m3_s"] = _list(feeds[k])
+            entry["draw_off_m3_s"] = _list(draws[k])
+            entry["spill_m3_s"] = _list(spills[k])
+        entry.update({
+            "inflow_volume_m3": _num(_moved(result.t, feeds[k])),
+            "draw_off_volume_m3": _num(_moved(result.t, draws[k])),
+            "end_state": result.end_states.get(tid),
+            "end_net_inflow_m3_s": _num(result.end_rates.get(tid)),
+            "end_level_rate_m_s": _num(_level_rate(result, system, k)),
+            "peak_spill_m3_s": _num(np.max(spills[k], initial=0.0)),
         })
         out["levels"][tid] = entry
     out["events"] = [
@@ -123,17 +146,84 @@ def transient_to_json(result: TransientResult, system: System, include_series: b
     return out
 
 
-def transient_csv(result: TransientResult, stream: TextIO) -> None:
+def _external(result: TransientResult) -> tuple[np.ndarray, np.ndarray]:
+    """Feed and delivered draw-off series, tanks x times (zeros when the result has none)."""
+    shape = (len(result.tank_ids), len(result.t))
+    feeds = np.asarray(result.feeds, dtype=float)
+    draws = np.asarray(result.draw_offs, dtype=float)
+    if feeds.shape != shape:
+        feeds = np.zeros(shape)
+    if draws.shape != shape:
+        draws = np.zeros(shape)
+    return feeds, draws
+
+
+def _spills(result: TransientResult) -> np.ndarray:
+    """Spill series, tanks x times (zeros when the result has none)."""
+    shape = (len(result.tank_ids), len(result.t))
+    spills = np.asarray(result.spills, dtype=float)
+    return spills if spills.shape == shape else np.zeros(shape)
+
+
+def _moved(t: np.ndarray, flow: np.ndarray) -> float | None:
+    """Volume a flow series moved over the run [m^3] (trapezoidal rule on the output grid,
+    which holds every schedule break point and event time)."""
+    if len(t) < 2:
+        return 0.0 if len(t) else None
+    return float(np.sum(0.5 * (flow[1:] + flow[:-1]) * np.diff(t)))
+
+
+def _level_rate(result: TransientResult, system: System, k: int) -> float | None:
+    """Rate of change of level of tank ``k`` at the end of the run [m/s]."""
+    from workbench.core.tank import tank_geometry
+
+    tid = result.tank_ids[k]
+    rate = result.end_rates.get(tid)
+    if rate is None or not result.levels[k].size:
+        return None
+    area = tank_geometry(system.reservoirs[tid]).area_floor(float(result.levels[k][-1]))
+    return rate / area
+
+
+def _fed(result: TransientResult, system: System) -> list[int]:
+    """Indices of the tanks with a feed or draw-off."""
+    return [k for k, tid in enumerate(result.tank_ids)
+            if system.reservoirs[tid].has_external_flow]
+
+
+def transient_csv(result: TransientResult, stream: TextIO, system: System | None = None) -> None:
     """Write the time series as CSV, SI units in the column names.
 
-    Columns: ``time_s``, then ``flow_<line>_m3_s`` per line and ``level_<tank>_m`` per tank.
+    Columns: ``time_s``, then ``flow_<line>_m3_s`` per line and ``level_<tank>_m`` per tank,
+    then (given ``system``) ``inflow_<tank>_m3_s`` and ``draw_off_<tank>_m3_s`` for each
+    tank with a feed or draw-off.
     """
     writer = csv.writer(stream, lineterminator="\n")
+    fed = _fed(result, system) if system is not None else []
+    feeds, draws = _external(result)
     writer.writerow(["time_s"] + [f"flow_{lid}_m3_s" for lid in result.line_ids]
-                    + [f"level_{tid}_m" for tid in result.tank_ids])
+                    + [f"level_{tid}_m" for tid in result.tank_ids]
+                    + [f"{what}_{result.tank_ids[k]}_m3_s" for k in fed
+                       for what in ("inflow", "draw_off")])
     columns = [result.t] + list(result.flows) + list(result.levels)
+    for k in fed:
+        columns += [feeds[k], draws[k]]
     for row in zip(*columns):
         writer.writerow([repr(float(v)) for v in row])
+
+
+def _span(series: np.ndarray, q) -> str:
+    """A flow series as one value when constant, else ``low to high``."""
+    if not series.size:
+        return "—"
+    low, high = float(np.min(series)), float(np.max(series))
+    if high - low <= 1e-12 * max(abs(high), 1e-12):
+        return q(high, "flow")
+    low_text, high_text = q(low, "flow"), q(high, "flow")
+    low_num, _, low_unit = low_text.partition(" ")
+    if high_text.endswith(" " + low_unit):
+        return f"{low_num}–{high_text}"
+    return f"{low_text}–{high_text}"
 
 
 def transient_tables(result: TransientResult, system: System, unit_system: str = "SI") -> list:
@@ -176,14 +266,34 @@ def transient_tables(result: TransientResult, system: System, unit_system: str =
     if result.tank_ids:
         tanks = table("Tanks")
         for col, just in (("tank", "left"), ("initial level", "right"), ("final level", "right"),
-                          ("drained at", "right"), ("99 % of change at", "right")):
+                          ("drained at", "right"), ("99 % of change at", "right"),
+                          ("at end", "left")):
             tanks.add_column(col, justify=just, no_wrap=True)
         for k, tid in enumerate(result.tank_ids):
             lv = result.levels[k]
             tanks.add_row(tid, q(lv[0] if lv.size else None, "elevation"),
                           q(lv[-1] if lv.size else None, "elevation"),
-                          when(result.drain_times.get(tid)), when(settle_time(result.t, lv)))
+                          when(result.drain_times.get(tid)), when(settle_time(result.t, lv)),
+                          result.end_states.get(tid, "—"))
         out.append(tanks)
+        fed = _fed(result, system)
+        if fed:
+            feeds, draws = _external(result)
+            ft = table("Feeds and draw-offs")
+            ft.caption = "draw-off as delivered: it stops while the tank is drained"
+            ft.caption_justify = "left"
+            for col in ("tank", "feed", "draw-off", "fed in", "drawn off", "at end"):
+                ft.add_column(col, justify="left" if col == "tank" else "right", no_wrap=True)
+            spills = _spills(result)
+            for k in fed:
+                tid = result.tank_ids[k]
+                at_end = level_rate_text(_level_rate(result, system, k), unit_system)
+                if result.end_states.get(tid) == "spilling":
+                    at_end = f"spills {q(spills[k][-1] if spills[k].size else None, 'flow')}"
+                ft.add_row(tid, _span(feeds[k], q), _span(draws[k], q),
+                           q(_moved(result.t, feeds[k]), "volume"),
+                           q(_moved(result.t, draws[k]), "volume"), at_end)
+            out.append(ft)
 
     lines = table("Lines")
     for col, just in (("line", "left"), ("peak flow", "right"), ("min flow", "right"),
