@@ -1,16 +1,22 @@
 """Glycol-water mixtures and seawater at a given concentration (CoolProp incompressible fits).
 
 Outside references: handbook tables of glycol solutions, the `iapws` package (IAPWS-08
-seawater) and values recalled from the seawater literature (marked "from memory").
+seawater), values recalled from the seawater literature (marked "from memory"), and
+CoolProp itself (registry package, test-only dependency): its fit coefficients and its
+evaluation of them, which ours must reproduce.
 """
 
 from __future__ import annotations
 
+import json
 import math
+from pathlib import Path
 
+import numpy as np
 import pytest
 
 from workbench.core.fluid import (
+    _INCOMP_FITS,
     SOLUTIONS,
     FluidPropertyError,
     liquid_properties,
@@ -200,10 +206,17 @@ def test_outside_a_fits_range_the_solution_is_refused_with_the_range(kind, t_k, 
         solution_properties(kind, t_k, fraction)
 
 
-@pytest.mark.parametrize("kind", sorted(SOLUTIONS))
-def test_solution_ranges_are_those_coolprop_reports_for_its_fits(kind):
-    import CoolProp.CoolProp as CP
+NO_COOLPROP = "CoolProp (the reference for these checks) is not installed: pip install -e '.[test]'"
 
+
+@pytest.fixture(scope="module")
+def CP():
+    """CoolProp's high-level interface; the test is skipped where CoolProp is missing."""
+    return pytest.importorskip("CoolProp.CoolProp", reason=NO_COOLPROP)
+
+
+@pytest.mark.parametrize("kind", sorted(SOLUTIONS))
+def test_solution_ranges_are_those_coolprop_reports_for_its_fits(CP, kind):
     entry = SOLUTIONS[kind]
     fluid = f"INCOMP::{entry.incomp}[0.01]"
     assert CP.PropsSI("fraction_max", fluid) == pytest.approx(entry.fraction_max, abs=1e-12)
@@ -215,3 +228,111 @@ def test_solution_ranges_are_those_coolprop_reports_for_its_fits(kind):
 def test_a_solution_asked_for_by_name_alone_asks_for_its_concentration():
     with pytest.raises(FluidPropertyError, match=r"needs its concentration.*salinity"):
         liquid_properties("seawater", 293.15)
+
+
+# --- our evaluation of the fits against CoolProp's ----------------------------------------
+
+
+def coolprop_fluid_data(name: str) -> dict:
+    """The JSON entry of an incompressible liquid as compiled into CoolProp's extension
+    module (CoolProp keeps its fluid library as JSON text inside the binary)."""
+    import CoolProp.CoolProp
+
+    binary = Path(CoolProp.CoolProp.__file__)
+    data = binary.read_bytes()
+    key = b'"name": "%s",' % name.encode()
+    at = data.find(key)
+    assert at > 0 and data.find(key, at + 1) < 0, f"{name} not found once in {binary.name}"
+    depth, start = 0, at
+    while True:  # back to the brace that opens this entry
+        start -= 1
+        if data[start] == ord("}"):
+            depth += 1
+        elif data[start] == ord("{"):
+            if depth == 0:
+                break
+            depth -= 1
+    entry, _ = json.JSONDecoder().raw_decode(data[start:start + 100_000].decode("latin-1"))
+    return entry
+
+
+@pytest.mark.parametrize("incomp", sorted(_INCOMP_FITS))
+def test_typed_fit_coefficients_equal_coolprops_data(CP, incomp):
+    data = coolprop_fluid_data(incomp)
+    fit = _INCOMP_FITS[incomp]
+    assert (fit.t_base, fit.x_base) == (data["Tbase"], data["xbase"])
+    assert data["density"]["type"] == "polynomial"
+    assert [list(r) for r in fit.density] == data["density"]["coeffs"]
+    assert data["viscosity"]["type"] == "exppolynomial"
+    assert [list(r) for r in fit.log_viscosity] == data["viscosity"]["coeffs"]
+    if fit.freezing is None:
+        assert data["T_freeze"]["type"] != "polynomial"
+    else:
+        assert data["T_freeze"]["type"] == "polynomial"
+        assert [list(fit.freezing)] == data["T_freeze"]["coeffs"]
+    if fit.log_vapor_pressure is None:
+        assert data["saturation_pressure"]["type"] == "notdefined"
+    else:
+        assert data["saturation_pressure"]["type"] == "exppolynomial"
+        assert [list(r) for r in fit.log_vapor_pressure] == data["saturation_pressure"]["coeffs"]
+
+
+def coolprop_solution(incomp: str, t: float, x: float) -> dict[str, float]:
+    """Density, viscosity, freezing point and vapour pressure straight from CoolProp."""
+    import CoolProp
+    from CoolProp.CoolProp import AbstractState
+
+    state = AbstractState("INCOMP", incomp)
+    state.set_mass_fractions([x])
+    out = {"freezing": state.keyed_output(CoolProp.iT_freeze)}
+    p = 101325.0
+    if _INCOMP_FITS[incomp].log_vapor_pressure is not None:
+        state.update(CoolProp.QT_INPUTS, 0.0, t)
+        out["vapor_pressure"] = state.p()
+        p = max(p, 1.001 * out["vapor_pressure"])  # the fit refuses p below saturation
+    state.update(CoolProp.PT_INPUTS, p, t)
+    out["density"], out["viscosity"] = state.rhomass(), state.viscosity()
+    return out
+
+
+@pytest.mark.parametrize("kind", sorted(SOLUTIONS))
+def test_our_fit_evaluation_matches_coolprop_to_1e_9_over_the_range(CP, kind):
+    # A 12 x 9 grid over temperature and concentration, the liquid part only (above the
+    # freezing point): density, viscosity, vapour pressure where the fit has one, and the
+    # freezing point, to 1e-9 relative.
+    entry = SOLUTIONS[kind]
+    compared = 0
+    # (CoolProp's seawater vapour pressure refuses exactly its own lowest temperature,
+    # 273.15 K, by a rounding: the grid starts 1 uK above.)
+    for x in np.linspace(0.0, entry.fraction_max, 9):
+        ref_x = coolprop_solution(entry.incomp, entry.t_max, x)
+        for t in np.linspace(entry.t_min + 1e-6, entry.t_max, 12):
+            if t < ref_x["freezing"]:
+                with pytest.raises(FluidPropertyError):
+                    solution_properties(kind, t, x)
+                continue
+            ref = coolprop_solution(entry.incomp, t, x)
+            props = solution_properties(kind, t, x, pressure_pa=1e6)
+            assert props.density == pytest.approx(ref["density"], rel=1e-9)
+            assert props.viscosity == pytest.approx(ref["viscosity"], rel=1e-9)
+            if "vapor_pressure" in ref:
+                assert props.vapor_pressure == pytest.approx(ref["vapor_pressure"], rel=1e-9)
+            compared += 1
+        if _INCOMP_FITS[entry.incomp].freezing is not None:
+            from workbench.core.fluid import _incomp_values
+
+            ours = _incomp_values(entry.incomp, entry.t_max, x)["freezing"]
+            assert ours == pytest.approx(ref_x["freezing"], rel=1e-9)
+    assert compared > 60
+
+
+def test_coolprops_seawater_fit_has_no_freezing_limit_above_its_range(CP):
+    # CoolProp's MITSW freezing "fit" is exp(700/(x - 60) - 10), about 4e-10 K: no limit
+    # inside the fit's 0-120 degC, which is why our seawater entry carries none.
+    import CoolProp
+    from CoolProp.CoolProp import AbstractState
+
+    for x in (0.0, 0.035, 0.12):
+        state = AbstractState("INCOMP", "MITSW")
+        state.set_mass_fractions([x])
+        assert state.keyed_output(CoolProp.iT_freeze) < SOLUTIONS["seawater"].t_min
