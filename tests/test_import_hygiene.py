@@ -48,3 +48,25 @@ def test_cli_help_starts_without_scipy_or_textual() -> None:
         [sys.executable, "-c", code], capture_output=True, text=True, check=True
     ).stdout.strip()
     assert out == "", f"building the CLI parser imported {out}"
+
+
+def test_no_catalogue_liquid_or_solution_loads_coolprop() -> None:
+    # CoolProp takes about 2.5 s to import and holds the interpreter lock meanwhile: it is
+    # a test-only reference. Every liquid the project file can name, water, the catalogue
+    # (bulk moduli included) and the solutions, is computed without it.
+    code = (
+        "import sys\n"
+        "from workbench.core.fluid import CATALOGUE, SOLUTIONS, liquid_properties, "
+        "solution_properties, water_properties\n"
+        "water_properties(293.15)\n"
+        "for key, e in CATALOGUE.items():\n"
+        "    props = liquid_properties(key, 0.5 * (e.t_min + e.t_max))\n"
+        "    assert (props.bulk_modulus is not None) == (e.eos is not None), key\n"
+        "for key, e in SOLUTIONS.items():\n"
+        "    solution_properties(key, 300.0, 0.5 * e.fraction_max)\n"
+        "print(','.join(sorted(m for m in sys.modules if m.split('.')[0] == 'CoolProp')))\n"
+    )
+    out = subprocess.run(
+        [sys.executable, "-c", code], capture_output=True, text=True, check=True
+    ).stdout.strip()
+    assert out == "", f"computing liquid properties imported {out}"

@@ -17,18 +17,20 @@ vapour pressure and the surge estimate its bulk modulus. This module gives them 
   sodium chloride by the Laliberte (2009) electrolyte model. Each entry names its source
   and its valid temperature range; outside it the values are extrapolated with a note.
   Where a reference equation of state exists for the pure liquid, its isentropic bulk
-  modulus ``K_s = rho * w**2`` comes from that equation as implemented in CoolProp (the
-  entry names the equation's publication); elsewhere it is ``None`` and surge wave speeds
-  need the user's value.
+  modulus ``K_s = rho * w**2`` comes from that equation (the entry names the equation's
+  publication), interpolated in a table generated from CoolProp's implementation
+  (:mod:`workbench.core.liquid_tables`, written by ``tools/make_liquid_tables.py``);
+  elsewhere it is ``None`` and surge wave speeds need the user's value.
 * :data:`SOLUTIONS` and :func:`solution_properties` -- ethylene and propylene glycol in
   water at a mass fraction (Melinder 2010) and seawater at a salinity (Sharqawy et al.
-  2010), from CoolProp's incompressible-liquid fits; outside a fit's range of temperature
-  or concentration the values are refused with the range.
+  2010), from CoolProp's incompressible-liquid fits, whose coefficients are typed here
+  and evaluated with numpy; outside a fit's range of temperature or concentration the
+  values are refused with the range.
 * :func:`custom_properties` -- numbers the user gives.
 
-``chemicals`` takes about 0.2 s to import and CoolProp about 2.5 s (it loads its whole
-fluid library, holding the interpreter lock), so both are imported on first use only, and
-CoolProp only for the liquids that need it.
+``chemicals`` takes about 0.2 s to import, so it is imported on first use only. CoolProp
+(about 2.5 s to import, holding the interpreter lock) is never imported at run time: it is
+the reference the tests and the table generator use.
 """
 
 from __future__ import annotations
@@ -235,7 +237,8 @@ class LiquidEntry:
     description: str = ""
     eos: str | None = None
     """CoolProp's name of the pure liquid's reference equation of state, which gives the
-    isentropic bulk modulus; ``None`` where there is none (the user gives a bulk modulus)."""
+    isentropic bulk modulus (tabulated in :mod:`workbench.core.liquid_tables` under this
+    name); ``None`` where there is none (the user gives a bulk modulus)."""
     eos_source: str = ""
     """The published equation of state behind ``eos``."""
 
@@ -503,35 +506,48 @@ def _liquid_cached(key: str, t: float, p: float) -> FluidProps:
 def _eos_bulk_modulus(entry: LiquidEntry, t: float, p: float) -> tuple[float | None, str]:
     """Isentropic bulk modulus of the liquid from its reference equation of state.
 
-    ``K_s = rho * w**2`` with density and speed of sound of the liquid at (t, p) from the
-    equation of state named by ``entry.eos_source`` (CoolProp's HEOS backend). Where p is
-    at or below the liquid's saturation pressure the value is that of liquid just above
-    it (the boiling note says so). Returns ``(K_s [Pa], "")``, or ``(None, note)`` outside
-    the equation's liquid range.
-    """
-    import CoolProp
-    from CoolProp.CoolProp import AbstractState
+    ``K_s = rho * w**2`` of the equation named by ``entry.eos_source``, interpolated in a
+    table generated from CoolProp's implementation of it (``core/liquid_tables.py``, made
+    by ``tools/make_liquid_tables.py``): liquid at 101.325 kPa, or just above saturation
+    pressure where the liquid boils at 101.325 kPa. A cubic Hermite evaluation of the
+    table's spline is within 1e-6 of the equation (tests/core/test_fluid_bulk_modulus.py
+    checks 1e-5 at random temperatures).
 
-    state = AbstractState("HEOS", entry.eos)  # one per call: AbstractState is not thread-safe
-    t_low, t_crit = state.Ttriple(), state.T_critical()
-    if not (t_low <= t < t_crit):
+    ``p`` does not enter: between 70 and 105 kPa (site elevations of about -300 to
+    3000 m) K_s of these liquids changes by at most 0.15 % from its 101.325 kPa value,
+    0.07 % in wave speed (n-dodecane just below its boiling point; 0.06 % or less for the
+    others, tested), well inside the equations' uncertainty in liquid sound speed.
+
+    Returns ``(K_s [Pa], "")``, or ``(None, note)`` outside the table: below the triple
+    point, at or above the critical point, or above the catalogue's range.
+    """
+    from bisect import bisect_right
+
+    from workbench.core.liquid_tables import TABLES
+
+    table = TABLES[entry.eos]
+    no_value = "give [fluid] bulk_modulus for surge wave speeds"
+    if not (table.t_triple <= t < table.t_critical):
         return None, (
             f"no bulk modulus for {entry.name} at {_celsius(t)}: its equation of state covers "
-            f"liquid from the triple point {_celsius(t_low)} to the critical point "
-            f"{_celsius(t_crit)}; give [fluid] bulk_modulus for surge wave speeds"
+            f"liquid from the triple point {_celsius(table.t_triple)} to the critical point "
+            f"{_celsius(table.t_critical)}; {no_value}"
         )
-    try:
-        state.update(CoolProp.QT_INPUTS, 0.0, t)
-        p_eval = max(p, 1.0001 * state.p())
-        state.specify_phase(CoolProp.iphase_liquid)
-        state.update(CoolProp.PT_INPUTS, p_eval, t)
-        bulk = state.rhomass() * state.speed_sound() ** 2
-    except ValueError as exc:  # CoolProp reports a failed solution as ValueError
-        return None, (f"no bulk modulus for {entry.name} at {_celsius(t)} ({exc}); give "
-                      "[fluid] bulk_modulus for surge wave speeds")
-    if not (math.isfinite(bulk) and bulk > 0.0):
-        return None, (f"no bulk modulus for {entry.name} at {_celsius(t)}; give [fluid] "
-                      "bulk_modulus for surge wave speeds")
+    for nodes, values, slopes in table.segments:
+        if nodes[0] <= t <= nodes[-1]:
+            break
+    else:
+        return None, (
+            f"no bulk modulus for {entry.name} at {_celsius(t)}: it is tabulated from its "
+            f"equation of state up to {_celsius(table.segments[-1][0][-1])}, the end of "
+            f"the correlations' range; {no_value}"
+        )
+    i = min(bisect_right(nodes, t), len(nodes) - 1) - 1
+    h = nodes[i + 1] - nodes[i]
+    s = (t - nodes[i]) / h
+    s2, s3 = s * s, s * s * s
+    bulk = ((2.0 * s3 - 3.0 * s2 + 1.0) * values[i] + (s3 - 2.0 * s2 + s) * h * slopes[i]
+            + (-2.0 * s3 + 3.0 * s2) * values[i + 1] + (s3 - s2) * h * slopes[i + 1])
     return bulk, ""
 
 
