@@ -266,7 +266,7 @@ def transient_tables(result: TransientResult, system: System, unit_system: str =
     if result.tank_ids:
         tanks = table("Tanks")
         for col, just in (("tank", "left"), ("initial level", "right"), ("final level", "right"),
-                          ("drained at", "right"), ("99 % of change at", "right"),
+                          ("drained at", "right"), ("99 % of\nchange at", "right"),
                           ("at end", "left")):
             tanks.add_column(col, justify=just, no_wrap=True)
         for k, tid in enumerate(result.tank_ids):
