@@ -178,3 +178,20 @@ async def test_open_without_a_file_offers_the_starter_template():
         assert app.project is not None
         assert app.path is None
         assert app.steady_status == "fresh"
+
+
+async def test_the_fluid_kind_suggests_every_liquid_the_project_layer_accepts(project_file):
+    # The app's suggestions and the validator read one list (project.schema.choices_for):
+    # the solutions by strength (glycol-water, seawater) included.
+    from workbench.app.panes.form import FieldRow
+    from workbench.project.schema import choices_for
+
+    app = make(project_file(TRANSFER))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await choose_entry(pilot, "fluid")
+        rows = [r for r in app.screen.query(FieldRow) if r.field.keypath == "fluid.kind"]
+        offered = rows[0].choices if rows else None
+    assert offered is not None
+    assert set(offered) == set(choices_for("fluid", "kind"))
+    assert {"water", "ethanol", "ethylene_glycol_water", "seawater", "custom"} <= set(offered)

@@ -359,20 +359,15 @@ def choices_for(field: Field, data: dict) -> tuple[str, ...] | None:
         return None  # a named shape or a number K: free text
     if spec.choices:
         return spec.choices
-    return _runtime_choices(spec.name)
+    return _runtime_choices(field.keypath.split(".", 1)[0], spec.name)
 
 
-def _runtime_choices(name: str) -> tuple[str, ...] | None:
-    """Words that come from a core table (fluids, materials, fittings), if it is there."""
+def _runtime_choices(section: str, name: str) -> tuple[str, ...] | None:
+    """Words that come from a core table (fluid kinds, materials): the schema's own list."""
+    from workbench.project.schema import choices_for as schema_choices
+
     try:
-        if name == "kind":
-            from workbench.core.fluid import CATALOGUE
-
-            return ("water", *sorted(k for k in CATALOGUE if k != "water"), "custom")
-        if name == "material":
-            from workbench.core.pipes import ROUGHNESS
-
-            return tuple(sorted(ROUGHNESS))
+        words = schema_choices(section, name)
     except ImportError:
         return None
-    return None
+    return tuple(words) or None
