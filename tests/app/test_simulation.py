@@ -185,3 +185,23 @@ async def test_e_on_a_branched_line_says_why_the_elastic_model_refuses_it(projec
     assert "failed" in title
     assert "series only" in note
     assert listed[1].startswith("✗")
+
+
+async def test_the_run_view_offers_a_fed_tanks_feed_draw_off_and_spill(project_file):
+    # The clearwell demo: fed by the filters, drawn by a pump, and it overflows late in the
+    # run. Its feed and spill are drawn from the first run; the series are the run's own.
+    app = make(project_file("fellgate_clearwell_filter_feed.toml"))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await run_to_end(pilot)
+        box = app.screen.query_one("#run-series")
+        offered = [box.get_option_at_index(i).value for i in range(box.option_count)]
+        chosen = set(box.selected)
+        pane = app.screen.query_one("#run-pane")
+        series = {key: values for key, _label, _kind, values in pane._series}
+    assert {"feeds:CW-501", "draw_offs:CW-501", "spills:CW-501"} <= set(offered)
+    assert {"level:CW-501", "feeds:CW-501", "spills:CW-501"} <= chosen
+    result = app.transient
+    k = list(result.tank_ids).index("CW-501")
+    assert list(series["feeds:CW-501"]) == list(result.feeds[k])
+    assert max(series["spills:CW-501"]) > 0.0  # it overflows in this run

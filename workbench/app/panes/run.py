@@ -25,10 +25,11 @@ RUN_WORDS = {
 
 
 def trend_series(result: Any) -> list[tuple[str, str, str, Any]]:
-    """``(key, label, kind, values SI)`` for every tank level and line flow of a run.
+    """``(key, label, kind, values SI)`` for every tank level and line flow of a run, and
+    every tank's feed, draw-off and spill that is not zero throughout.
 
     Levels and flows are arrays (tanks x times, lines x times) named by ``tank_ids`` and
-    ``line_ids``.
+    ``line_ids``; so are ``feeds``, ``draw_offs`` and ``spills``.
     """
     found: list[tuple[str, str, str, list[float]]] = []
     for tank, values in zip(_get(result, "tank_ids", default=()) or (),
@@ -37,6 +38,12 @@ def trend_series(result: Any) -> list[tuple[str, str, str, Any]]:
     for line, values in zip(_get(result, "line_ids", default=()) or (),
                             _get(result, "flows", default=()) if result is not None else ()):
         found.append((f"flow:{line}", f"flow {line}", "flow", values))
+    # a tank's feed, draw-off and overflow spill, where the run has any
+    for name, word in (("feeds", "feed"), ("draw_offs", "draw-off"), ("spills", "spill")):
+        table = _get(result, name, default=()) if result is not None else ()
+        for tank, values in zip(_get(result, "tank_ids", default=()) or (), table):
+            if any(v != 0.0 for v in values):
+                found.append((f"{name}:{tank}", f"{word} {tank}", "flow", values))
     return found
 
 
@@ -89,10 +96,13 @@ class RunPane(Vertical):
     def _show_result(self, result) -> None:
         box = self.query_one("#run-series", SelectionList)
         self._series = trend_series(result) if result is not None else []
-        if self._chosen is None and self._series:  # first run: every level and the first flow
-            flows = [k for k, _l, kind, _v in self._series if kind == "flow"]
+        if self._chosen is None and self._series:
+            # first run: every level, the first line flow, and any feed or spill
+            flows = [k for k, _l, kind, _v in self._series if k.startswith("flow:")]
             self._chosen = {k for k, _l, kind, _v in self._series if kind == "length"}
             self._chosen |= set(flows[:1])
+            self._chosen |= {k for k, _l, _kind, _v in self._series
+                             if k.startswith(("feeds:", "spills:"))}
         box.clear_options()
         box.add_options([(label, key, key in (self._chosen or set()))
                          for key, label, _kind, _values in self._series])
