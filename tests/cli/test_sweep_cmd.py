@@ -258,3 +258,58 @@ def test_table_output_names_the_first_passing_case(project_file, capsys) -> None
     out = capsys.readouterr().out
     assert code == 0
     assert "First passing case in sweep order: #0" in out
+
+
+CLEARWELL = Path(__file__).resolve().parents[2] / "projects" / "fellgate_clearwell_filter_feed.toml"
+
+
+def test_tank_level_criteria_find_the_opening_that_neither_spills_nor_runs_low(capsys,
+                                                                                monkeypatch):
+    # The clearwell demo: fed 40 L/s (24 L/s during a backwash), 5 L/s drawn off, the rest
+    # through FV-503. At a settled level the outflow balances the feed: check the sweep's
+    # final_level against the level where the steady line passes 40 - 5 = 35 L/s (brentq on
+    # the steady solver, itself checked against outside references in tests/core).
+    from scipy.optimize import brentq
+
+    from workbench.core.network import solve_steady
+    from workbench.project.document import load_project, set_value
+
+    monkeypatch.setenv("COLUMNS", "80")
+    code = main(["sweep", str(CLEARWELL), "--vary",
+                 "lines.501-TW-03.valve.opening=0.35,0.4,0.45,0.5,0.55",
+                 "--vary", "simulation.duration=24 h",  # long enough to settle
+                 "--require", "max_level(CW-501) < 3.4 m",
+                 "--require", "min_level(CW-501) > 1.5 m", "--json"])
+    data = json.loads(capsys.readouterr().out)
+    assert code == 0
+    assert data["first_passing"] == 2  # 0.45: the only opening that passes both
+    case = data["cases"][2]
+    levels = case["simulation"]["levels"]["CW-501"]
+    assert case["checks"][0]["value"] == levels["max_level_m"]
+    assert case["checks"][1]["value"] == levels["min_level_m"]
+    assert levels["min_level_m"] < 2.2 < 3.4  # the backwash dip, below the start
+    system = set_value(load_project(CLEARWELL), "lines.501-TW-03.valve.opening", 0.45).system
+
+    def surplus(h):
+        return solve_steady(system, levels={"CW-501": h}).lines["501-TW-03"].flow - 0.035
+
+    settled = brentq(surplus, 0.5, 3.5, xtol=1e-9)
+    assert levels["final_level_m"] == pytest.approx(settled, abs=1e-4)
+    # the overflowing cases spill: max level is the weir crest
+    assert data["cases"][0]["simulation"]["levels"]["CW-501"]["max_level_m"] == pytest.approx(3.6)
+
+
+def test_a_wide_sweep_prints_in_blocks_of_cases_that_fit_80_columns(capsys, monkeypatch):
+    monkeypatch.setenv("COLUMNS", "80")
+    code = main(["sweep", str(CLEARWELL), "--vary",
+                 "lines.501-TW-03.valve.opening=0.35,0.4,0.45,0.5,0.55",
+                 "--require", "max_level(CW-501) < 3.4 m"])
+    out = capsys.readouterr().out
+    assert code == 0
+    assert max(len(line) for line in out.splitlines()) <= 80
+    assert "…" not in out
+    for i in range(5):
+        assert f"case #{i}" in out
+    blocks = out.count("Sweep of ")
+    assert blocks >= 2 and out.count("max_level(CW-501)") == blocks  # one row in each block
+    assert "First passing case in sweep order: #2" in out

@@ -17,13 +17,16 @@ values:   a comma-separated list as the file would hold them ('80 mm,100 mm,150 
 require:  METRIC(ID) OP THRESHOLD, with OP one of < <= > >=, or 'no CODE' / 'no CODE(ID)'.
           Metrics: flow, velocity, head_loss, reynolds, lowest_pressure (lines, steady);
           pressure, head (nodes);
-          drain_time, overflow_time (tanks, from the simulation); max_pressure,
-          min_pressure (lines, from the simulation). Every --require must hold for a case
-          to pass; the first passing case in sweep order is named.
+          drain_time, overflow_time, max_level, min_level, final_level (tanks, from the
+          simulation); max_pressure, min_pressure (lines, from the simulation). Every
+          --require must hold for a case to pass; the first passing case in sweep order is
+          named, and what each criterion measured is shown in the table.
 examples:
   workbench sweep drain.toml --vary lines.L1.nominal_size='2 in,3 in,4 in' \\
       --require 'drain_time(T1) < 30 min' --require 'no profile.vapor'
   workbench sweep transfer.toml --vary reservoirs.T1.level='0.5 m..4 m/8' --json
+  workbench sweep clearwell.toml --vary lines.L1.valve.opening='0.3..0.6/7' \\
+      --require 'max_level(T1) < 3.4 m' --require 'min_level(T1) > 1.5 m'
 """
 
 
@@ -84,21 +87,35 @@ def _print_table(project, sweep: dict, keypaths) -> None:
     cells_by_row = display_rows(columns, rows, project.unit_system)
     widths = [max([len(t)] + [len(line) for r in cells_by_row for line in r[i].split(", ")])
               for i, t in enumerate(titles)]
-    if sum(w + 3 for w in widths) > console.width and len(rows) * 14 + 30 <= console.width:
+    tables = []
+    if sum(w + 3 for w in widths) > console.width:
         # Too many results for one row a case at this width: one column a case instead,
-        # so every value stays whole on an 80-column terminal.
-        table = Table(title=f"Sweep of {project.system.title}", title_justify="left")
-        table.add_column("result", no_wrap=True)
-        for cells in cells_by_row:
-            table.add_column(f"case #{cells[0]}", justify="right", overflow="fold")
+        # in blocks of as many cases as fit, so every value stays whole at 80 columns.
         from rich.text import Text
 
-        for i, title in enumerate(titles[1:], start=1):
-            # numbers line up on the right; words (values typed, warnings, errors) read left
-            justify = "right" if columns[i].kind else "left"
-            split = columns[i].key == "warnings"  # one warning code a line
-            table.add_row(title, *[Text(cells[i].replace(", ", "\n") if split else cells[i],
-                                        justify=justify) for cells in cells_by_row])
+        label_width = max(len(t) for t in titles[1:]) + 4
+        case_width = max([9] + [len(line) for cells in cells_by_row for c in cells[1:]
+                                for line in c.split(", ")]) + 3
+        per_block = max(1, (console.width - label_width) // case_width)
+        for start in range(0, len(cells_by_row), per_block):
+            block = cells_by_row[start:start + per_block]
+            title = f"Sweep of {project.system.title}"
+            if len(cells_by_row) > per_block:
+                which = (f"case {block[0][0]}" if len(block) == 1
+                         else f"cases {block[0][0]}-{block[-1][0]}")
+                title += f" ({which} of {len(cells_by_row)})"
+            table = Table(title=title, title_justify="left")
+            table.add_column("result", no_wrap=True)
+            for cells in block:
+                table.add_column(f"case #{cells[0]}", justify="right", overflow="fold")
+            for i, name in enumerate(titles[1:], start=1):
+                # numbers line up on the right; words (values typed, warnings, errors) read
+                # left
+                justify = "right" if columns[i].kind else "left"
+                split = columns[i].key == "warnings"  # one warning code a line
+                table.add_row(name, *[Text(cells[i].replace(", ", "\n") if split else cells[i],
+                                           justify=justify) for cells in block])
+            tables.append(table)
     else:
         table = Table(title=f"Sweep of {project.system.title}", title_justify="left")
         for col, title in zip(columns, titles):
@@ -110,7 +127,9 @@ def _print_table(project, sweep: dict, keypaths) -> None:
             for i in warn:
                 cells[i] = cells[i].replace(", ", "\n")
             table.add_row(*cells)
-    console.print(table)
+        tables.append(table)
+    for table in tables:
+        console.print(table)
     first = sweep.get("first_passing")
     if any(c.get("pass") is not None for c in sweep["cases"]) or sweep.get("criteria"):
         if first is None:

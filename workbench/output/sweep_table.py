@@ -69,6 +69,10 @@ def sweep_table(sweep: Mapping, keypaths: Sequence[str] | None = None) -> tuple[
         for lid in sim_lines:
             columns.append(SweepColumn(f"pmax:{lid}", f"max pressure {lid}", "pressure"))
             columns.append(SweepColumn(f"pmin:{lid}", f"min pressure {lid}", "pressure"))
+    # what each compared criterion measured, in its quantity's unit
+    compared = _compared_criteria(sweep.get("criteria") or ())
+    for j, (title, kind) in compared.items():
+        columns.append(SweepColumn(f"criterion:{j}", title, kind))
     columns.append(SweepColumn("warnings", "warnings"))
     if judged:
         columns.append(SweepColumn("pass", "pass"))
@@ -95,6 +99,10 @@ def sweep_table(sweep: Mapping, keypaths: Sequence[str] | None = None) -> tuple[
                 row[f"pmax:{lid}"] = res.get("max_pressure_pa")
                 row[f"pmin:{lid}"] = res.get("min_pressure_pa")
         codes = _ordered(w.get("code") for w in list(steady.get("warnings", ())) + list(sim.get("warnings", ())))
+        checks = c.get("checks") or ()
+        for j in compared:
+            value = checks[j].get("value") if j < len(checks) else None
+            row[f"criterion:{j}"] = value
         row["warnings"] = ", ".join(codes)
         row["pass"] = {True: "yes", False: "no", None: "-"}[c.get("pass")]
         row["error"] = c.get("error") or ""
@@ -104,6 +112,22 @@ def sweep_table(sweep: Mapping, keypaths: Sequence[str] | None = None) -> tuple[
 
 #: Magnitudes below which an SI value is rounding noise of the solvers, shown as 0.
 _NOISE = {"pressure": 1e-6, "pressure_abs": 1e-6, "head": 1e-9, "flow": 1e-12, "velocity": 1e-9}
+
+
+def _compared_criteria(criteria: Sequence[str]) -> dict[int, tuple[str, str]]:
+    """Index -> (title, quantity kind) of the criteria that compare a named result."""
+    from workbench.project.sweep_spec import METRICS, SweepSpecError, parse_criterion
+
+    out: dict[int, tuple[str, str]] = {}
+    for j, text in enumerate(criteria):
+        try:
+            crit = parse_criterion(text)
+        except SweepSpecError:
+            continue
+        if crit.metric is not None:
+            kind = METRICS[crit.metric].kind
+            out[j] = (f"{crit.metric}({crit.element})", None if kind == "number" else kind)
+    return out
 
 
 def tidy(value: float, kind: str | None) -> float:

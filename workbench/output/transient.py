@@ -53,7 +53,9 @@ def transient_to_json(result: TransientResult, system: System, include_series: b
     ``message``}]. Values that do not exist (a wave speed without a bulk modulus, the
     closure time of a line without a closing valve) are ``null``.
 
-    Each tank in ``levels`` also has its feed and draw-off: ``inflow_m3_s`` [...] and
+    Each tank in ``levels`` also has ``initial_level_m``, ``final_level_m``, and
+    ``max_level_m`` and ``min_level_m`` (the extremes at the recorded times, which include
+    every event), and its feed and draw-off: ``inflow_m3_s`` [...] and
     ``draw_off_m3_s`` [...] (the draw-off delivered: zero while the tank is drained) over
     ``time_s``, zeros for a tank without them; ``inflow_volume_m3`` and
     ``draw_off_volume_m3`` (what they moved over the run), ``end_state`` (``"steady"``,
@@ -107,6 +109,8 @@ def transient_to_json(result: TransientResult, system: System, include_series: b
         entry.update({
             "initial_level_m": _num(levels[0]) if levels.size else None,
             "final_level_m": _num(levels[-1]) if levels.size else None,
+            "max_level_m": _num(np.max(levels)) if levels.size else None,
+            "min_level_m": _num(np.min(levels)) if levels.size else None,
             "drain_time_s": _num(result.drain_times.get(tid)),
             "settle_99_s": _num(settle_time(result.t, levels)),
         })

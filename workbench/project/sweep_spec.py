@@ -390,6 +390,19 @@ def _event_time(code: str):
     return extract
 
 
+def _sim_level(key: str):
+    """A tank's level from the simulation's summary: ``max_level_m``, ``min_level_m`` or
+    ``final_level_m`` [m above its bottom]."""
+
+    def extract(steady, simulation, element):
+        try:
+            return float(simulation["levels"][element][key])
+        except (KeyError, TypeError, ValueError):
+            return None
+
+    return extract
+
+
 #: Named results for ``--require``: name -> Metric.
 METRICS: dict[str, Metric] = {
     m.name: m
@@ -406,6 +419,12 @@ METRICS: dict[str, Metric] = {
                "time for a tank to reach its min_level (infinite if it did not in the run)"),
         Metric("overflow_time", "time", "reservoirs", True, _event_time("tank.overflow"),
                "time for a tank to reach its height (infinite if it did not in the run)"),
+        Metric("max_level", "length", "reservoirs", True, _sim_level("max_level_m"),
+               "highest level of a tank during the simulation (above its bottom)"),
+        Metric("min_level", "length", "reservoirs", True, _sim_level("min_level_m"),
+               "lowest level of a tank during the simulation (above its bottom)"),
+        Metric("final_level", "length", "reservoirs", True, _sim_level("final_level_m"),
+               "level of a tank at the end of the simulation (above its bottom)"),
         Metric("max_pressure", "pressure", "lines", True, _sim_line("max_pressure_pa"),
                "highest gauge pressure on a line during the simulation"),
         Metric("min_pressure", "pressure", "lines", True, _sim_line("min_pressure_pa"),
