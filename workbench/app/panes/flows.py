@@ -1,4 +1,5 @@
-"""The Flows view: steady flows in every line, heads at every node, and the findings."""
+"""The Flows view: steady flows in every line, heads at every node, the balance of tanks
+with a feed or draw-off, and the findings."""
 
 from __future__ import annotations
 
@@ -25,6 +26,7 @@ class FlowsPane(Vertical):
         yield Static("", id="steady-banner", markup=False)
         yield DataTable(id="line-table", cursor_type="row", zebra_stripes=True)
         yield DataTable(id="node-table", cursor_type="row", zebra_stripes=True)
+        yield DataTable(id="tank-table", cursor_type="row", zebra_stripes=True)
         yield DataTable(id="finding-table", cursor_type="row")
         yield Static("", id="finding-detail", markup=False)
 
@@ -53,6 +55,11 @@ class FlowsPane(Vertical):
                    results.line_rows(result, units) if result is not None else [])
         self._fill("#node-table", results.node_columns(units),
                    results.node_rows(result, units) if result is not None else [])
+        # tanks with a feed or a draw-off: their balance and how fast the level moves
+        system = getattr(self.app.project, "system", None)
+        tanks = results.tank_rows(result, system, units) if result is not None else []
+        self._fill("#tank-table", results.tank_columns(units), tanks)
+        self.query_one("#tank-table", DataTable).display = bool(tanks)
         findings = getattr(result, "warnings", []) if result is not None else []
         self._findings = results.sorted_findings(findings)
         self._fill("#finding-table", results.FINDING_COLUMNS, results.finding_rows(findings))
