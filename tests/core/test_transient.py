@@ -514,3 +514,35 @@ def test_a_viscous_drain_with_a_millisecond_line_is_integrated_as_a_stiff_system
     big_t = 128 * mu * length * area / (math.pi * d**4 * rho * G)
     assert res.drain_times["T"] == pytest.approx(big_t * math.log((h0 + z) / z), rel=5e-4)
     assert res.nsteps < 300
+
+
+def test_a_drain_that_falls_below_atmospheric_at_its_outlet_is_flagged_with_when_and_where():
+    """Bernoulli from the tank's surface to just inside the outlet (entrance loss K_e):
+    p = rho g h - (1 + K_e) rho v^2/2 (common practice, no source). Near the end of the drain
+    the few centimetres of liquid cannot supply the velocity head: the outlet runs below
+    atmospheric (in the plant it would draw air). At the start (3 m) it does not."""
+    rho = WATER.density
+    system = _drain_system(TankShape("vertical_cylinder", diameter=2.0), 3.0, drop=1.0,
+                           min_level=0.05)
+    res = simulate(system)
+    assert res.success, res.message
+    v_end = res.flows[0][-1] / _area(0.05)
+    expected = rho * G * 0.05 - (1.0 + 0.5) * rho * v_end**2 / 2.0
+    assert expected < -5e3  # several kPa below atmospheric
+    assert res.min_pressure["L1"] == pytest.approx(expected, rel=0.01)
+    found = [w for w in res.warnings if w.code == "profile.subatmospheric"]
+    assert len(found) == 1 and found[0].element == "L1" and found[0].severity == "caution"
+    assert f"t = {res.min_pressure_time['L1']:.4g} s" in found[0].message
+    assert "0 m from 'T'" in found[0].message
+    v0 = res.flows[0][0] / _area(0.05)
+    assert rho * G * 3.0 - 1.5 * rho * v0**2 / 2.0 > 0.0  # the start is above atmospheric
+
+
+def test_a_run_that_stays_above_atmospheric_has_no_subatmospheric_caution():
+    # Same tank, stopped long before it empties: the outlet stays above atmospheric.
+    system = _drain_system(TankShape("vertical_cylinder", diameter=2.0), 3.0, drop=1.0,
+                           min_level=2.5)
+    res = simulate(system)
+    assert res.success, res.message
+    assert abs(res.min_pressure["L1"]) < 1e-6  # the lowest is the open outlet: atmospheric
+    assert not [w for w in res.warnings if w.code == "profile.subatmospheric"]

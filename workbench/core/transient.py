@@ -95,6 +95,10 @@ from workbench.core.model import (
 from workbench.core.surge import LineSurge, effective_closure_time, screen_line
 from workbench.core.tank import TankGeometry, tank_geometry
 
+#: Gauge pressure below which a run's minimum counts as sub-atmospheric [Pa]: below the
+#: solver's rounding at free outlets (about 1e-9 Pa), far above any pressure that matters.
+SUBATMOSPHERIC_NOISE_PA = -1.0
+
 #: Integration methods by name (all scipy OdeSolver classes); the first three are implicit.
 METHODS: dict[str, str] = {
     "Radau": "implicit Runge-Kutta of order 5 (Radau IIA), analytic Jacobian",
@@ -1188,6 +1192,21 @@ def _finish(model: _Model, run: _Run, outcome, wall: float) -> TransientResult:
         warnings.extend(findings)
         max_p[lid] = screened.max_pressure
         min_p[lid] = screened.min_pressure
+        separated = any(f.code == "surge.column_separation" for f in findings)
+        if not separated and screened.min_pressure < SUBATMOSPHERIC_NOISE_PA:
+            # below atmospheric at some time of the run, though not at vapour pressure: the
+            # steady check's caution, with when and where
+            j = int(np.argmin(pmin_st))
+            where = float(model.st_frac[sel][j]) * line.length
+            warnings.append(Finding(
+                "profile.subatmospheric", lid,
+                f"during the run the pressure on line {lid} falls to "
+                f"{screened.min_pressure / 1000.0:.4g} kPa gauge at t = {min_t[lid]:.4g} s, "
+                f"{where:.4g} m from {line.from_node!r} (elevation "
+                f"{float(model.st_elev[sel][j]):.4g} m): air can be drawn in at joints, and "
+                "thin-walled or plastic pipe can collapse; check the pipe's vacuum rating",
+                "caution", "rigid-column pressures at the line's profile points; common "
+                "practice"))
     for ev in run.events:
         if ev.code == "tank.overflow":
             k = model.tank_ids.index(ev.element)
