@@ -135,7 +135,7 @@ class Event:
     code: str
     """``tank.drained``, ``tank.draw_off_stopped``, ``tank.refilled``, ``tank.overflow``,
     ``tank.spill_end``, ``line.reversal``, ``line.restart``, ``valve.closed``,
-    ``valve.opened``."""
+    ``valve.opened``, ``outlet.submergence`` (placed between output times)."""
     element: str
     """Id of the tank, line or valve's line."""
     message: str
@@ -1218,6 +1218,8 @@ def _finish(model: _Model, run: _Run, outcome, wall: float) -> TransientResult:
                 f"{ev.message} at t = {ev.time:.6g} s: check the overflow capacity under the "
                 f"worst-case inflow{surplus} (defer to local codes)", "danger",
                 "common practice"))
+    vortex_events, vortex_findings = _submergence(model, t, flows, levels)
+    warnings.extend(vortex_findings)
     for k, tid in enumerate(model.tank_ids):
         if run.drain_count[k] >= 2:
             warnings.append(Finding(
@@ -1238,7 +1240,7 @@ def _finish(model: _Model, run: _Run, outcome, wall: float) -> TransientResult:
         tank_ids=model.tank_ids,
         levels=levels,
         volumes=volumes,
-        events=tuple(sorted(run.events, key=lambda e: e.time)),
+        events=tuple(sorted([*run.events, *vortex_events], key=lambda e: e.time)),
         max_pressure=max_p,
         min_pressure=min_p,
         max_pressure_time=max_t,
@@ -1258,6 +1260,57 @@ def _finish(model: _Model, run: _Run, outcome, wall: float) -> TransientResult:
         nsteps=run.nsteps,
         wall_time=wall,
     )
+
+
+def _submergence(model: _Model, t: np.ndarray, flows: np.ndarray, levels: np.ndarray):
+    """When a draining tank's depth over an outlet falls below the vortex-prevention
+    submergence ``S = D(1 + 2.3 Fr)`` (the steady check's rule, applied along the run).
+
+    The depth is the tank's level over its bottom, where the outlet is (as in the steady
+    check); ``Fr = v/sqrt(gD)`` with the line's velocity at that time. The crossing is
+    placed by linear interpolation between output times. Returns the ``outlet.submergence``
+    events and findings, one per outlet at most.
+    """
+    from workbench.core.checks import SUBMERGENCE_SOURCE
+
+    events: list[Event] = []
+    findings: list[Finding] = []
+    if not len(t):
+        return events, findings
+    system = model.system
+    for i, lid in enumerate(model.topo.line_ids):
+        line = system.lines[lid]
+        area = math.pi * line.diameter**2 / 4.0
+        for end, sign in ((line.from_node, 1.0), (line.to_node, -1.0)):
+            if end not in model.tank_ids:
+                continue
+            k = model.tank_ids.index(end)
+            out = sign * flows[i]  # flow leaving the tank into the line [m^3/s]
+            fr = np.abs(out) / area / math.sqrt(G * line.diameter)
+            margin = levels[k] - line.diameter * (1.0 + 2.3 * fr)
+            short = (out > 0.0) & (margin < 0.0)
+            if not short.any():
+                continue
+            j = int(np.argmax(short))
+            when = float(t[j])
+            if j > 0 and margin[j - 1] >= 0.0 and out[j - 1] > 0.0:
+                w = margin[j - 1] / (margin[j - 1] - margin[j])
+                when = float(t[j - 1] + w * (t[j] - t[j - 1]))
+            level = float(np.interp(when, t, levels[k]))
+            rule = (f"the submergence a vortex-prevention rule asks for (S = D(1 + 2.3 Fr), "
+                    f"Fr {fr[j]:.3g})")
+            events.append(Event(
+                when, "outlet.submergence", end,
+                f"the depth over the outlet into line {lid}, {level:.4g} m, falls below {rule}: "
+                "a vortex can draw air in"))
+            start = "from the start" if j == 0 else f"from about t = {when:.4g} s"
+            findings.append(Finding(
+                "outlet.submergence", lid,
+                f"during the run the depth over the outlet of {end!r} into line {lid} is below "
+                f"{rule} {start}, at a level of {level:.4g} m: air can be drawn in by a vortex "
+                "from then on, and the flows and drained time after it assume none is",
+                "caution", SUBMERGENCE_SOURCE))
+    return events, findings
 
 
 def _external_series(model: _Model, run: _Run, t: np.ndarray):
