@@ -37,3 +37,17 @@ async def test_without_a_feed_the_tank_balance_is_not_shown(project_file):
         shown = app.screen.query_one("#tank-table").display
         rows = table_cells(app, "#tank-table")
     assert not shown and rows == []
+
+
+async def test_the_grade_line_loses_its_stale_mark_once_the_solve_is_current(project_file):
+    # The Grade line view opened before the first steady solve has finished is marked
+    # STALE; when the solution arrives and is current, the mark must go.
+    app = make(project_file(TRANSFER))
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.press("f4")
+        await settle(pilot)
+        await pilot.pause()
+        title = str(app.screen.query_one("#grade-title").render())
+        status = app.steady_status
+    assert status == "fresh"
+    assert "Grade line 310-PW-12" in title and "STALE" not in title

@@ -75,6 +75,8 @@ class GradePane(Horizontal):
 
     def on_mount(self) -> None:
         self.watch(self.app, "steady", self._redraw, init=False)
+        # the status changes after the result arrives: redraw so the STALE mark goes
+        self.watch(self.app, "steady_status", self._redraw, init=False)
         self.watch(self.app, "unit_system", self._redraw, init=False)
         self.watch(self.app, "project", self._list_lines)
 
