@@ -209,3 +209,23 @@ def test_help_explains_the_lumped_laminar_start_up(capsys):
     assert main(["simulate", "--help"]) == 0
     out = capsys.readouterr().out
     assert "Szymanski" in out and "63-99 % " in out
+
+
+def test_the_settling_time_is_after_the_last_excursion_not_the_first_crossing():
+    # Settling time as control engineering defines it (common practice, no source): the time
+    # from which the response stays within a band (1 % of the change) around its final value.
+    import numpy as np
+
+    from workbench.output.transient import settle_time
+
+    t = np.linspace(0.0, 100.0, 10001)
+    monotone = 1.0 - np.exp(-t / 10.0)
+    # 99 % of the change of 1 - exp(-t/10) over 0..100 s: exp(-t/10) = 0.01 + 0.99 exp(-10)
+    expected = -10.0 * math.log(0.01 + 0.99 * math.exp(-10.0))
+    assert settle_time(t, monotone) == pytest.approx(expected, abs=0.011)
+    ringing = 1.0 - np.exp(-t / 10.0) * np.cos(t)  # overshoots the final value many times
+    first_crossing = float(t[np.argmax(ringing >= 0.99 * ringing[-1])])
+    settled = settle_time(t, ringing)
+    assert settled > 30.0 > first_crossing
+    after = t >= settled
+    assert np.all(np.abs(ringing[after] - ringing[-1]) <= 0.01 * abs(ringing[-1] - ringing[0]))

@@ -27,19 +27,25 @@ __all__ = ["transient_csv", "transient_tables", "transient_to_json", "settle_tim
 
 
 def settle_time(t: np.ndarray, series: np.ndarray, fraction: float = 0.99) -> float | None:
-    """First time a series has made ``fraction`` of its change from start to end [s].
+    """Time from which a series stays within ``1 - fraction`` of its whole change of its
+    final value [s] (the settling time of control engineering, a 1 % band by default).
 
-    ``None`` when the series does not change. Used as the "transfer time" of a tank whose
-    level moves without draining.
+    For a level that moves one way this is when it has made 99 % of its change; for one that
+    overshoots, oscillates or drains and refills it is after the last excursion, not the
+    first crossing. ``None`` when the series does not change. Used as the "transfer time" of
+    a tank whose level moves without draining.
     """
     if len(t) < 2:
         return None
+    series = np.asarray(series, dtype=float)
     change = float(series[-1] - series[0])
     if change == 0.0 or not math.isfinite(change):
         return None
-    progress = (series - series[0]) / change
-    idx = np.flatnonzero(progress >= fraction)
-    return float(t[idx[0]]) if idx.size else None
+    outside = np.flatnonzero(np.abs(series - series[-1]) > (1.0 - fraction) * abs(change))
+    if not outside.size:
+        return float(t[0])
+    last = int(outside[-1])
+    return float(t[last + 1]) if last + 1 < len(t) else None
 
 
 def transient_to_json(result: TransientResult, system: System, include_series: bool = True) -> dict:
@@ -270,7 +276,7 @@ def transient_tables(result: TransientResult, system: System, unit_system: str =
     if result.tank_ids:
         tanks = table("Tanks")
         for col, just in (("tank", "left"), ("initial level", "right"), ("final level", "right"),
-                          ("drained at", "right"), ("99 % of\nchange at", "right"),
+                          ("drained at", "right"), ("settled (1 %)\nfrom", "right"),
                           ("at end", "left")):
             tanks.add_column(col, justify=just, no_wrap=True)
         for k, tid in enumerate(result.tank_ids):
