@@ -6,10 +6,13 @@ Handbook DIPPR coefficients (``rho_data_Perry_8E_105_l``, ``mu_data_Perrys_8E_2_
 ``mu_data_VDI_PPDS_7``, ``Psat_data_VDI_PPDS_3``), its molar masses (``chemicals.MW``) and
 critical temperatures (``chemicals.critical.Tc``), and its own evaluation of each equation
 from those tables (the route the workbench took before the coefficients were typed in).
-Loading the tables imports pandas; that is fine here.
+Loading the tables imports pandas; that is fine here, never at run time (last test).
 """
 
 from __future__ import annotations
+
+import subprocess
+import sys
 
 import numpy as np
 import pytest
@@ -143,3 +146,46 @@ def test_liquid_is_refused_at_chemicals_critical_temperature(key):
 
     with pytest.raises(FluidPropertyError, match="critical temperature"):
         liquid_properties(key, Tc(CATALOGUE[key].cas))
+
+
+@pytest.mark.parametrize(
+    ("key", "t_k"),
+    [
+        # DIPPR 101 viscosity of n-dodecane (D T^E, E = -10) overflows at 10 K; the PPDS 9
+        # viscosity of glycerol has a pole at T = D = 73.885 K (chemicals' VDI table).
+        ("n_dodecane", 10.0),
+        ("glycerol", 73.885),
+    ],
+)
+def test_temperature_where_an_equation_overflows_is_refused_in_words(key, t_k):
+    with pytest.raises(FluidPropertyError, match="no physical values.*hold from"):
+        liquid_properties(key, t_k)
+
+
+# --- nothing loads the tables at run time ----------------------------------------------
+
+
+def test_no_liquid_loads_pandas_and_pure_liquids_do_not_import_chemicals():
+    # chemicals' data tables import pandas and read CSV files (about 0.5 s, holding the
+    # interpreter lock): every liquid a project can name is computed without them, and the
+    # pure catalogue liquids without chemicals at all (pattern: tests/test_import_hygiene.py).
+    code = (
+        "import sys\n"
+        "from workbench.core.fluid import CATALOGUE, SOLUTIONS, liquid_properties, "
+        "solution_properties, water_properties\n"
+        "for key, e in CATALOGUE.items():\n"
+        "    if e.mass_fraction is None:\n"
+        "        for t in (e.t_min, 0.5 * (e.t_min + e.t_max), e.t_max):\n"
+        "            liquid_properties(key, t)\n"
+        "pure = sorted(m for m in ('chemicals', 'pandas') if m in sys.modules)\n"
+        "water_properties(293.15)\n"
+        "for key, e in CATALOGUE.items():\n"
+        "    liquid_properties(key, 0.5 * (e.t_min + e.t_max))\n"
+        "for key, e in SOLUTIONS.items():\n"
+        "    solution_properties(key, 300.0, 0.5 * e.fraction_max)\n"
+        "print(f\"pure liquids: {pure}; all liquids: {'pandas' in sys.modules}\")\n"
+    )
+    out = subprocess.run(
+        [sys.executable, "-c", code], capture_output=True, text=True, check=True
+    ).stdout.strip()
+    assert out == "pure liquids: []; all liquids: False"

@@ -13,8 +13,10 @@ vapour pressure and the surge estimate its bulk modulus. This module gives them 
   and well under a microsecond afterwards.
 * :data:`CATALOGUE` and :func:`liquid_properties` -- common plant liquids from published
   correlations whose coefficients the ``chemicals`` package carries (DIPPR equations of
-  Perry's Handbook; VDI Heat Atlas PPDS and Wagner equations), and aqueous sodium hydroxide and
-  sodium chloride by the Laliberte (2009) electrolyte model. Each entry names its source
+  Perry's Handbook; VDI Heat Atlas PPDS and Wagner equations), typed from its tables into
+  :mod:`workbench.core.liquid_coefficients` and evaluated there, and aqueous sodium
+  hydroxide and sodium chloride by the Laliberte (2009) electrolyte model (coefficients
+  typed here, water by IAPWS). Each entry names its source
   and its valid temperature range; outside it the values are extrapolated with a note.
   Where a reference equation of state exists for the pure liquid, its isentropic bulk
   modulus ``K_s = rho * w**2`` comes from that equation (the entry names the equation's
@@ -28,9 +30,12 @@ vapour pressure and the surge estimate its bulk modulus. This module gives them 
   values are refused with the range.
 * :func:`custom_properties` -- numbers the user gives.
 
-``chemicals`` takes about 0.2 s to import, so it is imported on first use only. CoolProp
-(about 2.5 s to import, holding the interpreter lock) is never imported at run time: it is
-the reference the tests and the table generator use.
+``chemicals`` takes about 0.2 s to import, so it is imported on first use only, and only
+where water's IAPWS properties are needed (water and the aqueous liquids; those routines
+read no data tables); the pure catalogue liquids do not import it. Its data tables load
+pandas and CSV files (about 0.5 s, holding the interpreter lock), so no liquid reads them
+at run time. CoolProp (about 2.5 s to import, holding the interpreter lock) is never
+imported at run time: it is the reference the tests and the table generator use.
 """
 
 from __future__ import annotations
@@ -233,7 +238,8 @@ class LiquidEntry:
     mass_fraction: float | None = None
     """Solute mass fraction of an aqueous solution [-]; ``None`` for a pure liquid."""
     coefficients: tuple[float, ...] = ()
-    """Typed coefficients where the model is not in ``chemicals`` (see ``source``)."""
+    """Typed coefficients of the ``"laliberte"`` model (see ``source``); the DIPPR and PPDS
+    ones are in :mod:`workbench.core.liquid_coefficients` by CAS number."""
     description: str = ""
     eos: str | None = None
     """CoolProp's name of the pure liquid's reference equation of state, which gives the
@@ -370,49 +376,34 @@ def _entry(name: str) -> LiquidEntry:
     )
 
 
-def _refuse_supercritical(entry: LiquidEntry, t: float) -> None:
-    from chemicals.critical import Tc
-
-    t_c = Tc(entry.cas)
-    if t_c is not None and t >= t_c:
+def _refuse_supercritical(entry: LiquidEntry, t: float, t_critical: float) -> None:
+    if t >= t_critical:
         raise FluidPropertyError(
             f"{entry.name} at {_celsius(t)} is above its critical temperature "
-            f"({_celsius(t_c)}): there is no liquid; its correlations hold from "
+            f"({_celsius(t_critical)}): there is no liquid; its correlations hold from "
             f"{_celsius(entry.t_min)} to {_celsius(entry.t_max)}"
         )
 
 
 def _perry_dippr(entry: LiquidEntry, t: float) -> tuple[float, float, float | None]:
-    import chemicals
-    from chemicals.dippr import EQ101, EQ105
-    from chemicals.vapor_pressure import Psat_data_Perrys2_8
-    from chemicals.viscosity import mu_data_Perrys_8E_2_313
-    from chemicals.volume import rho_data_Perry_8E_105_l
+    """Perry's DIPPR equations 105 (density), 101 (viscosity, vapour pressure), typed
+    coefficients (:mod:`workbench.core.liquid_coefficients`)."""
+    from workbench.core.liquid_coefficients import PERRY_DIPPR
 
-    _refuse_supercritical(entry, t)
-    cas = entry.cas
-    r = rho_data_Perry_8E_105_l.loc[cas]
-    rho = EQ105(t, r["C1"], r["C2"], r["C3"], r["C4"]) * chemicals.MW(cas) / 1000.0
-    m = mu_data_Perrys_8E_2_313.loc[cas]
-    mu = EQ101(t, m["C1"], m["C2"], m["C3"], m["C4"], m["C5"])
-    s = Psat_data_Perrys2_8.loc[cas]
-    psat = EQ101(t, s["C1"], s["C2"], s["C3"], s["C4"], s["C5"])
-    return float(rho), float(mu), float(psat)
+    c = PERRY_DIPPR[entry.cas]
+    _refuse_supercritical(entry, t, c.t_critical)
+    rho = c.density.at(t) * c.molar_mass / 1000.0
+    return rho, c.viscosity.at(t), c.vapor_pressure.at(t)
 
 
 def _vdi_ppds(entry: LiquidEntry, t: float) -> tuple[float, float, float | None]:
-    from chemicals.vapor_pressure import Psat_data_VDI_PPDS_3, Wagner
-    from chemicals.viscosity import PPDS9, mu_data_VDI_PPDS_7
-    from chemicals.volume import rho_data_VDI_PPDS_2, volume_VDI_PPDS
+    """VDI Heat Atlas PPDS equations 10 (density), 9 (viscosity) and Wagner's vapour
+    pressure, typed coefficients (:mod:`workbench.core.liquid_coefficients`)."""
+    from workbench.core.liquid_coefficients import VDI_PPDS
 
-    _refuse_supercritical(entry, t)
-    r = rho_data_VDI_PPDS_2.loc[entry.cas]
-    rho = volume_VDI_PPDS(t, r["Tc"], r["rhoc"], r["A"], r["B"], r["C"], r["D"])
-    m = mu_data_VDI_PPDS_7.loc[entry.cas]
-    mu = PPDS9(t, m["A"], m["B"], m["C"], m["D"], m["E"])
-    s = Psat_data_VDI_PPDS_3.loc[entry.cas]
-    psat = Wagner(t, s["Tc"], s["Pc"], s["A"], s["B"], s["C"], s["D"])
-    return float(rho), float(mu), float(psat)
+    c = VDI_PPDS[entry.cas]
+    _refuse_supercritical(entry, t, c.t_critical)
+    return c.density.at(t), c.viscosity.at(t), c.vapor_pressure.at(t)
 
 
 def _laliberte(entry: LiquidEntry, t: float) -> tuple[float, float, float | None]:
@@ -454,7 +445,11 @@ _METHODS = {
 @lru_cache(maxsize=1024)
 def _liquid_cached(key: str, t: float, p: float) -> FluidProps:
     entry = CATALOGUE[key]
-    rho, mu, psat = _METHODS[entry.method](entry, t)
+    try:
+        rho, mu, psat = _METHODS[entry.method](entry, t)
+    except (OverflowError, ZeroDivisionError):
+        # Far outside their range the equations overflow (or meet a pole): no value.
+        rho = mu = math.nan
     if not all(math.isfinite(v) and v > 0.0 for v in (rho, mu)):
         raise FluidPropertyError(
             f"{entry.name}: no physical values at {_celsius(t)}; its correlations hold from "
