@@ -195,7 +195,7 @@ def test_the_key_list_names_the_table_keys():
     from workbench.app.screens.keys import binding_rows, key_contexts
 
     rows = binding_rows(key_contexts())
-    assert ("list table", "Ctrl+s", "Apply") in rows
+    assert ("list table", "Ctrl+S", "Apply") in rows
     assert ("list table", "a", "Add row") in rows
     assert ("list table", "[ / Ctrl+Up", "Row up") in rows
-    assert ("field", "Ctrl+t", "Table") in rows
+    assert ("field", "Ctrl+T", "Table") in rows

@@ -31,7 +31,9 @@ def _key_label(key: str) -> str:
     key = key.strip()
     for prefix, shown in (("ctrl+", "Ctrl+"), ("shift+", "Shift+")):
         if key.startswith(prefix):
-            return shown + _key_label(key[len(prefix):])
+            rest = key[len(prefix):]
+            # a letter with a modifier is written as on the key cap: Ctrl+S
+            return shown + (rest.upper() if len(rest) == 1 else _key_label(rest))
     names = {"escape": "Esc", "enter": "Enter", "delete": "Del", "space": "Space",
              "left_square_bracket": "[", "right_square_bracket": "]", "question_mark": "?",
              "up": "Up", "down": "Down"}
