@@ -169,3 +169,56 @@ async def test_the_unit_switch_changes_the_display_and_no_stored_value(project_f
     assert math.isclose(us_flow, si_flow * 60 / 3.785411784, rel_tol=2e-3)
     assert not app.modified
     assert app.project.data["project"]["units"] == "SI"
+
+
+async def test_a_fluid_kind_that_needs_its_strength_asks_for_it_and_applies_both(project_file):
+    # Glycol-water is valid only with its mass fraction, and a mass fraction only with a
+    # solution kind: the form asks for the missing key and applies both as one edit; going
+    # back to water drops the key that no longer applies.
+    from workbench.app.screens.dialogs import TextScreen
+    from tests.app.test_files import answer
+
+    path = project_file(TRANSFER)
+    app = make(path)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await choose_entry(pilot, "fluid")
+        await type_into(pilot, "fluid.kind", "ethylene_glycol_water")
+        assert isinstance(app.screen, TextScreen)
+        assert "mass_fraction" in app.screen.prompt and "0 to 0.6" in app.screen.prompt
+        await answer(pilot, "0.3")
+        await settle(pilot)
+        fluid = dict(app.project.data["fluid"])
+        props = app.project.system.fluid
+        await pilot.press("ctrl+z")  # one edit: one undo goes back to water
+        await settle(pilot)
+        after_undo = dict(app.project.data["fluid"])
+        await pilot.press("ctrl+y")
+        await settle(pilot)
+        await choose_entry(pilot, "fluid")
+        await type_into(pilot, "fluid.kind", "water")
+        await settle(pilot)
+        back = dict(app.project.data["fluid"])
+    assert fluid["kind"] == "ethylene_glycol_water" and float(fluid["mass_fraction"]) == 0.3
+    # 30 % ethylene glycol at 15 degC is denser than water, about 1040-1045 kg/m3 (ASHRAE
+    # Handbook Fundamentals ch. 31 table, from memory)
+    assert 1035.0 < props.density < 1050.0
+    assert after_undo["kind"] == "water" and "mass_fraction" not in after_undo
+    assert back["kind"] == "water" and "mass_fraction" not in back
+    assert 'kind = "water"' in path.read_text()  # nothing saved without Ctrl+S
+
+
+async def test_escaping_the_question_leaves_the_fluid_as_it_was(project_file):
+    from workbench.app.screens.dialogs import TextScreen
+
+    app = make(project_file(TRANSFER))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await choose_entry(pilot, "fluid")
+        await type_into(pilot, "fluid.kind", "seawater")
+        assert isinstance(app.screen, TextScreen) and "salinity" in app.screen.prompt
+        await pilot.press("escape")
+        await pilot.pause()
+        kind = app.project.data["fluid"]["kind"]
+        modified = app.modified
+    assert kind == "water" and not modified

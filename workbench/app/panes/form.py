@@ -326,15 +326,84 @@ class FieldForm(VerticalScroll):
         from workbench.project.problems import ProjectError
 
         keypath, target = edit_target(self.app.project.data, row.field, value)
+        label = f"{row.field.keypath} = {text.strip() or '(removed)'}"
         try:
-            self.app.apply_edit(set_value, keypath, target,
-                                label=f"{row.field.keypath} = {text.strip() or '(removed)'}")
+            self.app.apply_edit(set_value, keypath, target, label=label)
         except ProjectError as error:
-            row.show_problem(problem_text(error, row.field.keypath))
+            if self._complete({keypath: target}, error, row, label):
+                row.show_problem("answer the question to finish this change")
+            else:
+                row.show_problem(problem_text(error, row.field.keypath))
             return False
         row.show_problem("")
         self.post_message(self.Committed(row.field.keypath))
         return True
+
+    def _complete(self, changes: dict, error: Exception, row: FieldRow, label: str,
+                  rounds: int = 6) -> bool:
+        """A change that needs other keys of the same table to be valid (a fluid kind and its
+        strength, a tank and its shape): ask for each missing key in turn, drop keys that
+        no longer apply, and apply everything as one edit. False when the refusal is of
+        another sort (then the caller shows it beside the field)."""
+        table = row.field.keypath.rsplit(".", 1)[0] + "."
+        missing, stale = companion_keys(error, table)
+        if not (missing or stale) or rounds <= 0:
+            return False
+        changes = {**changes, **{key: None for key in stale}}
+        if not missing:
+            self._apply_together(changes, row, label, rounds)
+            return True
+        key, message = missing[0]
+
+        def answered(text: str | None) -> None:
+            if not text:
+                row.show_problem(f"not changed: {key} is needed too ({message})")
+                return
+            self._apply_together({**changes, key: text}, row, label, rounds)
+
+        from workbench.app.screens.dialogs import TextScreen
+
+        dropped = f" ({', '.join(stale)} will be removed: no longer used)" if stale else ""
+        why = message.split("' ", 1)[1] if message.startswith("missing required key '") else message
+        self.app.push_screen(
+            TextScreen(f"{label} needs {key} too: {why}{dropped}. Its value:", "",
+                       title="One more value"), answered)
+        return True
+
+    def _apply_together(self, changes: dict, row: FieldRow, label: str, rounds: int) -> None:
+        from workbench.project.document import set_values
+        from workbench.project.problems import ProjectError
+
+        try:
+            self.app.apply_edit(set_values, changes, label=label)
+        except ProjectError as error:
+            if not self._complete(changes, error, row, label, rounds - 1):
+                row.show_problem(problem_text(error, row.field.keypath))
+            return
+        row.show_problem("")
+        gone = [k for k, v in changes.items() if v is None]
+        if gone:
+            self.app.notify(f"removed {', '.join(gone)}: no longer used", timeout=4)
+        self.post_message(self.Committed(row.field.keypath))
+
+
+def companion_keys(error: Exception, table: str) -> tuple[list[tuple[str, str]], list[str]]:
+    """Of a refusal, the keys of ``table`` ("fluid.", "reservoirs.T1.") it says are missing
+    (with the message) and those it says no longer apply; empty lists when any problem is
+    of another sort."""
+    missing: list[tuple[str, str]] = []
+    stale: list[str] = []
+    for p in getattr(error, "problems", []) or []:
+        key = p.key
+        if not key.startswith(table) or "." in key[len(table):]:
+            return [], []
+        if p.message.startswith("missing required key"):
+            missing.append((key, p.message))
+        elif "applies only to" in p.message:
+            stale.append(key)
+        else:
+            return [], []
+    return missing, stale
 
 
 def problem_text(error: Exception, keypath: str) -> str:
