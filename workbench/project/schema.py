@@ -129,13 +129,13 @@ SECTIONS: dict[str, tuple[FieldSpec, ...]] = {
               default="0 m"),
         field("inflow", "flow", help="tank: constant feed into the tank from outside the "
               "modelled lines (e.g. from filters); not negative (a flow taken out is draw_off)",
-              default="0 L/s", example="40 L/s"),
+              example="40 L/s"),
         field("inflow_schedule", "list", help="tank: the feed in time for simulations, "
               "instead of inflow: { time = '...', flow = '...' } points with increasing time, "
               "linear between them, holding the first and last values"),
         field("draw_off", "flow", help="tank: constant flow taken out by something outside "
               "the model (e.g. a pump to process); it stops while the tank is drained",
-              default="0 L/s", example="5 L/s"),
+              example="5 L/s"),
         field("draw_off_schedule", "list", help="tank: the draw-off in time for simulations, "
               "instead of draw_off: { time = '...', flow = '...' } points with increasing "
               "time, linear between them, holding the first and last values"),
