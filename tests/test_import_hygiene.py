@@ -19,6 +19,13 @@ CORE_MODULES = sorted(
 FORBIDDEN = ("textual", "rich", "pint")
 
 
+def fresh_stdout(code: str) -> str:
+    """What ``code`` prints when run in a new interpreter (so its imports start from none)."""
+    return subprocess.run(
+        [sys.executable, "-c", code], capture_output=True, text=True, check=True
+    ).stdout.strip()
+
+
 @pytest.mark.parametrize("module", CORE_MODULES)
 def test_core_module_imports_no_ui_and_no_units_library(module: str) -> None:
     code = (
@@ -27,9 +34,7 @@ def test_core_module_imports_no_ui_and_no_units_library(module: str) -> None:
         f"bad = sorted(m for m in sys.modules if m.split('.')[0] in {FORBIDDEN!r})\n"
         "print(','.join(bad))\n"
     )
-    out = subprocess.run(
-        [sys.executable, "-c", code], capture_output=True, text=True, check=True
-    ).stdout.strip()
+    out = fresh_stdout(code)
     assert out == "", f"{module} pulled in {out}"
 
 
@@ -44,9 +49,7 @@ def test_cli_help_starts_without_scipy_or_textual() -> None:
         "build_parser()\n"
         "print(','.join(sorted(m for m in ('scipy', 'textual', 'pint', 'fluids') if m in sys.modules)))\n"
     )
-    out = subprocess.run(
-        [sys.executable, "-c", code], capture_output=True, text=True, check=True
-    ).stdout.strip()
+    out = fresh_stdout(code)
     assert out == "", f"building the CLI parser imported {out}"
 
 
@@ -66,7 +69,5 @@ def test_no_catalogue_liquid_or_solution_loads_coolprop() -> None:
         "    solution_properties(key, 300.0, 0.5 * e.fraction_max)\n"
         "print(','.join(sorted(m for m in sys.modules if m.split('.')[0] == 'CoolProp')))\n"
     )
-    out = subprocess.run(
-        [sys.executable, "-c", code], capture_output=True, text=True, check=True
-    ).stdout.strip()
+    out = fresh_stdout(code)
     assert out == "", f"computing liquid properties imported {out}"

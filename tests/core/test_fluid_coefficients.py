@@ -11,12 +11,10 @@ Loading the tables imports pandas; that is fine here, never at run time (last te
 
 from __future__ import annotations
 
-import subprocess
-import sys
-
 import numpy as np
 import pytest
 
+from tests.test_import_hygiene import fresh_stdout
 from workbench.core.fluid import CATALOGUE, FluidPropertyError, liquid_properties
 from workbench.core.liquid_coefficients import PERRY_DIPPR, VDI_PPDS
 
@@ -185,7 +183,5 @@ def test_no_liquid_loads_pandas_and_pure_liquids_do_not_import_chemicals():
         "    solution_properties(key, 300.0, 0.5 * e.fraction_max)\n"
         "print(f\"pure liquids: {pure}; all liquids: {'pandas' in sys.modules}\")\n"
     )
-    out = subprocess.run(
-        [sys.executable, "-c", code], capture_output=True, text=True, check=True
-    ).stdout.strip()
+    out = fresh_stdout(code)
     assert out == "pure liquids: []; all liquids: False"

@@ -113,21 +113,14 @@ def tank_columns(units: str) -> list[str]:
 def tank_rows(result: Any, system: Any, units: str) -> list[tuple[str, ...]]:
     """One row per tank with a feed or draw-off: the balance at the solved flows and levels
     (feed and draw-off at time zero) and how fast the level moves."""
-    from workbench.core.tank import tank_balances
     from workbench.output.common import level_rate_text
+    from workbench.output.steady import fed_tank_balances
 
     if result is None or system is None:
         return []
-    fed = [rid for rid, r in system.reservoirs.items()
-           if r.kind == "tank" and getattr(r, "has_external_flow", False)]
-    if not fed:
-        return []
-    flows = {lid: _get(line, "flow") for lid, line in (_get(result, "lines", default={}) or {}).items()}
-    balances = tank_balances(system, flows, dict(_get(result, "levels", default={}) or {}))
-    return [(rid, _num(balances[rid].lines_net, "flow", units),
-             _num(balances[rid].inflow, "flow", units), _num(balances[rid].draw_off, "flow", units),
-             level_rate_text(balances[rid].level_rate, units))
-            for rid in fed if rid in balances]
+    return [(rid, _num(b.lines_net, "flow", units), _num(b.inflow, "flow", units),
+             _num(b.draw_off, "flow", units), level_rate_text(b.level_rate, units))
+            for rid, b in fed_tank_balances(result, system).items()]
 
 
 FINDING_COLUMNS = ["severity", "code", "element", "message"]

@@ -20,6 +20,19 @@ if TYPE_CHECKING:  # pragma: no cover
 __all__ = ["SEVERITY_STYLE", "steady_tables", "steady_to_json"]
 
 
+def fed_tank_balances(result, system: System) -> dict:
+    """Tank id -> ``TankBalance`` at the solved flows and levels, for the tanks with a feed or
+    a draw-off only (in file order): what ``solve`` prints and the app's Flows view shows."""
+    from workbench.core.tank import tank_balances
+
+    fed = [rid for rid, r in system.reservoirs.items() if r.kind == "tank" and r.has_external_flow]
+    if not fed:
+        return {}
+    flows = {lid: r.flow for lid, r in result.lines.items()}
+    balances = tank_balances(system, flows, dict(result.levels))
+    return {rid: balances[rid] for rid in fed if rid in balances}
+
+
 def steady_to_json(result: SteadyResult, system: System) -> dict:
     """The ``workbench solve --json`` object of a steady result.
 
@@ -176,17 +189,12 @@ def steady_tables(result: SteadyResult, system: System, unit_system: str = "SI")
                       q(n.head, "head"), q(n.pressure, "pressure"))
     out.append(nodes)
 
-    from workbench.core.tank import tank_balances
-
-    fed = [rid for rid, r in system.reservoirs.items() if r.kind == "tank" and r.has_external_flow]
-    if fed:
-        flows = {lid: r.flow for lid, r in result.lines.items()}
-        balances = tank_balances(system, flows, dict(result.levels))
+    balances = fed_tank_balances(result, system)
+    if balances:
         bal = table("Tank balances (feed and draw-off at time zero)")
         for col in ("tank", "lines, net in", "feed", "draw-off", "level moves"):
             bal.add_column(col, justify="left" if col == "tank" else "right", no_wrap=True)
-        for rid in fed:
-            b = balances[rid]
+        for rid, b in balances.items():
             bal.add_row(rid, q(b.lines_net, "flow"), q(b.inflow, "flow"), q(b.draw_off, "flow"),
                         level_rate_text(b.level_rate, unit_system))
         out.append(bal)
