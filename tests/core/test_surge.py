@@ -208,3 +208,48 @@ def test_a_run_well_inside_the_limits_raises_nothing():
     screened, findings = _screen(_steel_line(rating=10e5), np.array([3e5, 2e5]),
                                  np.array([-5e4, 1e4]), 30.0)
     assert findings == [] and screened.min_pressure == -5e4 and screened.max_pressure == 3e5
+
+
+def _valved_line(position: str):
+    from dataclasses import replace
+
+    return replace(_steel_line(), valve=Valve(characteristic="linear", k_open=0.2,
+                                              position=position))
+
+
+@pytest.mark.parametrize(("position", "flow_sign", "upsurge"), [
+    ("to", 1.0, True), ("to", -1.0, False), ("from", 1.0, False), ("from", -1.0, True)])
+def test_rapid_closure_words_follow_the_side_of_the_valve_the_flow_comes_from(
+        position, flow_sign, upsurge):
+    # A valve cutting the flow raises the pressure on its upstream side and lowers it on its
+    # downstream side, each by up to Joukowsky's a dv/g (Joukowsky 1898; Wylie & Streeter
+    # 1993): the line lies upstream of a to-end valve only while the flow runs from -> to.
+    from workbench.core.surge import screen_line
+    import numpy as np
+
+    _, findings = screen_line(
+        "L1", _valved_line(position), _water(), atmospheric_pressure=101325.0,
+        station_max=np.array([2e5, 1e5]), station_min=np.array([1e5, 1e5]),
+        station_elevation=[0.0, 5.0], static_head=30.0, velocity_max=2.0,
+        effective_closure=1.0, flow_sign=flow_sign)
+    (rapid,) = [f for f in findings if f.code == "surge.rapid_closure"]
+    assert ("rise)" in rapid.message) == upsurge
+    assert ("downsurge" in rapid.message) == (not upsurge)
+
+
+def test_column_separation_gives_the_first_time_and_a_later_peak_is_marked_untrustworthy():
+    # Rule of the screening: after the column has separated at vapour pressure the rigid
+    # column no longer describes the liquid (Wylie & Streeter 1993, column separation).
+    from workbench.core.surge import screen_line
+    import numpy as np
+
+    _, findings = screen_line(
+        "L1", _steel_line(rating=4e5), _water(), atmospheric_pressure=101325.0,
+        station_max=np.array([5e5, 1e5]), station_min=np.array([-1.5e5, 1e4]),
+        station_elevation=[0.0, 5.0], static_head=30.0, velocity_max=2.0,
+        effective_closure=None, max_time=700.0, min_time=700.0, separation_time=610.0)
+    sep = [f for f in findings if f.code == "surge.column_separation"][0]
+    peak = [f for f in findings if f.code == "surge.pressure"][0]
+    assert "first at t = 610 s" in sep.message
+    assert "after the column separated at t = 610 s" in peak.message
+    assert "not trustworthy" in peak.message

@@ -344,7 +344,12 @@ class Finding:
 
     ``code`` is stable across versions (e.g. ``"profile.vapor"``) because files, scripts and
     tests match on it; ``message`` is words a user can act on; ``source`` names the published
-    reference or says ``"common practice"``.
+    reference or says ``"rule of thumb"``.
+
+    A finding made by :func:`workbench.core.finding_text.finding` also keeps its numbers:
+    ``template`` is the message with ``{name}`` slots and ``values`` the SI value and
+    quantity kind of each slot, so the output layer can write the same words in the
+    display unit system (``message`` is the SI text).
     """
 
     code: str
@@ -352,3 +357,7 @@ class Finding:
     message: str
     severity: Severity = "caution"
     source: str = ""
+    template: str = ""
+    """The message with ``{name}`` slots for :attr:`values` ("" when it has no numbers)."""
+    values: tuple[tuple[str, float, str, int], ...] = ()
+    """``(name, SI value, quantity kind, significant digits)`` per slot of :attr:`template`."""

@@ -29,6 +29,7 @@ from typing import Callable, Literal
 
 import numpy as np
 
+from workbench.core.finding_text import finding
 from workbench.core.model import G, Finding, FluidProps, Line, Valve
 
 Support = Literal["anchored_upstream", "anchored", "expansion_joints"]
@@ -375,6 +376,8 @@ def screen_line(
     effective_closure: float | None,
     max_time: float | None = None,
     min_time: float | None = None,
+    separation_time: float | None = None,
+    flow_sign: float = 1.0,
 ) -> tuple[LineSurge, list[Finding]]:
     r"""Apply the surge screening rules to one line's rigid-column pressure extremes.
 
@@ -410,6 +413,14 @@ def screen_line(
         Effective closure time of the line's valve [s].
     max_time, min_time : float, optional
         When the extremes occurred [s] (for the messages).
+    separation_time : float, optional
+        First time any point of the line reached vapour pressure [s]; the column-separation
+        finding gives this time (not the time of the lowest clamped pressure), and a peak
+        reached after it is quoted as untrustworthy.
+    flow_sign : float
+        Sign of the line's flow when the valve cuts it (``+1`` from-end to to-end). With a
+        valve at the ``to`` end and forward flow the line upstream of it sees an upsurge; with
+        the flow reversed the valve is upstream of the line, which sees a downsurge.
 
     Returns
     -------
@@ -437,35 +448,31 @@ def screen_line(
         capped = reported_max < raw_max - 1e-9 * max(1.0, abs(raw_max))
     reported_min = float(np.min(station_min)) if np.size(station_min) else math.inf
     at_max = f" at t = {max_time:.4g} s" if max_time is not None else ""
-    at_min = f" at t = {min_time:.4g} s" if min_time is not None else ""
     findings: list[Finding] = []
-    if rapid:
-        findings.append(Finding(
-            "surge.rapid_closure", line_id,
-            f"the valve on line {line_id} cuts the flow in an effective {effective_closure:.3g} s, "
-            f"{effective_closure / trip:.2g} wave round trips 2L/a ({trip:.3g} s at a = {a:.0f} m/s); "
-            f"below about {RAPID_CLOSURE_ROUND_TRIPS:g} round trips the rigid-column pressure is "
-            "not valid: an elastic (water-hammer) analysis is needed. The reported peak is "
-            f"capped at static plus Joukowsky ({jouk / 1e5:.3g} bar rise). Consider a slower "
-            "or two-stage closure and defer to licensed surge practice.",
-            "danger",
-            "Joukowsky (1898); Wylie & Streeter, Fluid Transients in Systems (1993); "
-            "5-round-trip limit from a method-of-characteristics comparison (common practice)",
-        ))
-    if line.pressure_rating is not None and reported_max > line.pressure_rating:
-        findings.append(Finding(
-            "surge.pressure", line_id,
-            f"the pressure on line {line_id} reaches {reported_max / 1e5:.3g} bar gauge{at_max}, "
-            f"above its rating of {line.pressure_rating / 1e5:.3g} bar: slow the valve closure "
-            "or add surge protection (defer to local codes and licensed practice)",
-            "danger", "pressure rating from the project file",
-        ))
     separation = bool(fluid.vapor_pressure is not None
                       and reported_min + atmospheric_pressure <= fluid.vapor_pressure)
+    if rapid:
+        findings.append(_rapid_closure_finding(line_id, line, effective_closure, trip, a, jouk,
+                                               flow_sign))
+    if line.pressure_rating is not None and reported_max > line.pressure_rating:
+        after = (separation and separation_time is not None and max_time is not None
+                 and max_time > separation_time)
+        caveat = (f" -- after the column separated at t = {separation_time:.4g} s, so this "
+                  "rigid-column peak is not trustworthy (the cavity's collapse can give more "
+                  "or less)" if after else "")
+        findings.append(finding(
+            "surge.pressure", line_id,
+            f"the pressure on line {line_id} reaches {{p}} gauge{at_max}{caveat}, above its "
+            "rating of {rating}: slow the valve closure or add surge protection (defer to "
+            "local codes and licensed practice)",
+            "danger", "pressure rating from the project file",
+            p=(reported_max, "pressure"), rating=(line.pressure_rating, "pressure")))
     if separation:
+        first = separation_time if separation_time is not None else min_time
+        at_first = f" first at t = {first:.4g} s" if first is not None else ""
         findings.append(Finding(
             "surge.column_separation", line_id,
-            f"the pressure on line {line_id} falls to vapour pressure{at_min}: the liquid "
+            f"the pressure on line {line_id} falls to vapour pressure{at_first}: the liquid "
             "column separates (a vapour cavity forms, and its collapse can give pressures above "
             "Joukowsky); the rigid-column result is not valid there and the reported minimum "
             "is limited to vapour pressure. Risk of collapse of thin-walled or plastic pipe.",
@@ -480,3 +487,34 @@ def screen_line(
         max_pressure_uncapped=raw_max, capped=capped, max_pressure=reported_max,
         min_pressure=reported_min, column_separation=separation,
     ), findings
+
+
+def _rapid_closure_finding(line_id: str, line: Line, effective_closure: float, trip: float,
+                           a: float, jouk: float, flow_sign: float) -> Finding:
+    """``surge.rapid_closure``, worded for the side of the valve the line is on.
+
+    With the valve at the line's downstream end (in the direction the liquid actually runs)
+    the line sees an upsurge, capped here at static plus Joukowsky; with the valve at its
+    upstream end the line sees a downsurge of up to Joukowsky, limited by vapour pressure.
+    """
+    valve_at_to = line.valve is None or line.valve.position == "to"
+    upsurge = (flow_sign >= 0.0) == valve_at_to
+    if upsurge:
+        what = ("The reported peak is capped at static plus Joukowsky ({jump} rise). "
+                "Consider a slower or two-stage closure and defer to licensed surge practice.")
+    else:
+        what = ("The flow runs away from the valve, so the line sees a downsurge of up to "
+                "Joukowsky ({jump} fall), limited by vapour pressure: column separation is "
+                "likely. Consider a slower closure or an air or vacuum valve, and defer to "
+                "licensed surge practice.")
+    return finding(
+        "surge.rapid_closure", line_id,
+        f"the valve on line {line_id} cuts the flow in an effective {{te}}, "
+        f"{effective_closure / trip:.2g} wave round trips 2L/a ({{trip}} at a = {{a}}); "
+        f"below about {RAPID_CLOSURE_ROUND_TRIPS:g} round trips the rigid-column pressure is "
+        "not valid: an elastic (water-hammer) analysis is needed. " + what,
+        "danger",
+        "Joukowsky (1898); Wylie & Streeter, Fluid Transients in Systems (1993); the "
+        "5-round-trip limit from a method-of-characteristics comparison of our own",
+        te=(effective_closure, "time"), trip=(trip, "time"), a=(a, "velocity", 4),
+        jump=(jouk, "pressure"))
