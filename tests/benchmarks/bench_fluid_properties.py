@@ -20,6 +20,7 @@ def main() -> None:
     print(f"python start + import fluid, pipes, atmosphere: {t * 1e3:8.1f} ms")
 
     from workbench.core import fluid
+    from workbench.core.fluid import catalogue, water
     from workbench.core.atmosphere import atmospheric_pressure
     from workbench.core.pipes import pipe_dimensions
 
@@ -28,14 +29,14 @@ def main() -> None:
           f"{per_call_us(lambda: fluid.water_properties(293.15), 100_000):8.2f} us")
 
     def uncached():
-        fluid._water_cached.cache_clear()
+        water._water_cached.cache_clear()
         fluid.water_properties(293.15)
 
     print(f"water_properties, uncached (IAPWS-95 solve): {per_call_us(uncached, 2_000):8.2f} us")
     fluid.liquid_properties("ethylene_glycol", 293.15)
 
     def liquid_uncached():
-        fluid._liquid_cached.cache_clear()
+        catalogue._liquid_cached.cache_clear()
         fluid.liquid_properties("ethylene_glycol", 293.15)
 
     print(f"liquid_properties (DIPPR), uncached:         {per_call_us(liquid_uncached, 2_000):8.2f} us")

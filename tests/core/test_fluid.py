@@ -14,7 +14,6 @@ from iapws import IAPWS95
 from iapws._iapws import _Viscosity
 from iapws.iapws97 import _PSat_T
 
-from workbench.core import fluid
 from workbench.core.fluid import (
     CATALOGUE,
     FluidPropertyError,
@@ -23,6 +22,7 @@ from workbench.core.fluid import (
     liquid_properties,
     water_properties,
 )
+from workbench.core.fluid.catalogue import METHODS
 
 P_ATM = 101325.0
 CELSIUS = [1.0, 5.0, 10.0, 20.0, 25.0, 40.0, 60.0, 80.0, 95.0]
@@ -231,7 +231,7 @@ def test_laliberte_model_reproduces_its_published_points(t_c, w_nacl, quantity, 
         "test brine", "laliberte", "7647-14-5", 273.15, 373.15, "test",
         mass_fraction=w_nacl, coefficients=CATALOGUE["sodium_chloride_3_5"].coefficients,
     )
-    rho, mu, _ = fluid._METHODS["laliberte"](entry, t_c + 273.15)
+    rho, mu, _ = METHODS["laliberte"](entry, t_c + 273.15)
     value = rho if quantity == "density" else mu
     assert value == pytest.approx(published, rel=1e-3)
 

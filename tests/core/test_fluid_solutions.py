@@ -16,13 +16,13 @@ import numpy as np
 import pytest
 
 from workbench.core.fluid import (
-    _INCOMP_FITS,
     SOLUTIONS,
     FluidPropertyError,
     liquid_properties,
     solution_properties,
     water_properties,
 )
+from workbench.core.fluid.incompressible_fits import INCOMP_FITS, incomp_values
 
 LB_FT3 = 16.018463  # kg/m^3 per lb/ft^3 (NIST SP 811)
 
@@ -256,10 +256,10 @@ def coolprop_fluid_data(name: str) -> dict:
     return entry
 
 
-@pytest.mark.parametrize("incomp", sorted(_INCOMP_FITS))
+@pytest.mark.parametrize("incomp", sorted(INCOMP_FITS))
 def test_typed_fit_coefficients_equal_coolprops_data(CP, incomp):
     data = coolprop_fluid_data(incomp)
-    fit = _INCOMP_FITS[incomp]
+    fit = INCOMP_FITS[incomp]
     assert (fit.t_base, fit.x_base) == (data["Tbase"], data["xbase"])
     assert data["density"]["type"] == "polynomial"
     assert [list(r) for r in fit.density] == data["density"]["coeffs"]
@@ -286,7 +286,7 @@ def coolprop_solution(incomp: str, t: float, x: float) -> dict[str, float]:
     state.set_mass_fractions([x])
     out = {"freezing": state.keyed_output(CoolProp.iT_freeze)}
     p = 101325.0
-    if _INCOMP_FITS[incomp].log_vapor_pressure is not None:
+    if INCOMP_FITS[incomp].log_vapor_pressure is not None:
         state.update(CoolProp.QT_INPUTS, 0.0, t)
         out["vapor_pressure"] = state.p()
         p = max(p, 1.001 * out["vapor_pressure"])  # the fit refuses p below saturation
@@ -318,10 +318,8 @@ def test_our_fit_evaluation_matches_coolprop_to_1e_9_over_the_range(CP, kind):
             if "vapor_pressure" in ref:
                 assert props.vapor_pressure == pytest.approx(ref["vapor_pressure"], rel=1e-9)
             compared += 1
-        if _INCOMP_FITS[entry.incomp].freezing is not None:
-            from workbench.core.fluid import _incomp_values
-
-            ours = _incomp_values(entry.incomp, entry.t_max, x)["freezing"]
+        if INCOMP_FITS[entry.incomp].freezing is not None:
+            ours = incomp_values(entry.incomp, entry.t_max, x)["freezing"]
             assert ours == pytest.approx(ref_x["freezing"], rel=1e-9)
     assert compared > 60
 
