@@ -236,6 +236,29 @@ def _span(series: np.ndarray, q) -> str:
     return f"{low_text}–{high_text}"
 
 
+class _Units:
+    """Numbers as text in one unit system: ``q`` a quantity, ``when`` a time."""
+
+    def __init__(self, unit_system: str):
+        self.unit_system = unit_system
+
+    def q(self, value, kind: str, digits: int = 4) -> str:
+        return quantity_text(value, kind, self.unit_system, digits)
+
+    def when(self, value) -> str:
+        """A time in one readable unit: seconds below 2 min, then minutes, then hours."""
+        from workbench.project.units import format_quantity
+
+        v = _num(value)
+        if v is None:
+            return "—"
+        if abs(v) >= 7200.0:
+            return f"{v / 3600.0:.4g} h"
+        if abs(v) >= 120.0:
+            return f"{v / 60.0:.4g} min"
+        return format_quantity(v, "time", self.unit_system, 4)
+
+
 def transient_tables(result: TransientResult, system: System, unit_system: str = "SI") -> list:
     """Rich renderables summarising a transient run.
 
@@ -248,64 +271,71 @@ def transient_tables(result: TransientResult, system: System, unit_system: str =
     """
     from rich.text import Text
 
-    from workbench.project.units import format_quantity
-
-    table = simple_table
-
-    def q(value, kind: str, digits: int = 4) -> str:
-        return quantity_text(value, kind, unit_system, digits)
-
-    def when(value) -> str:
-        """A time in one readable unit: seconds below 2 min, then minutes, then hours."""
-        v = _num(value)
-        if v is None:
-            return "—"
-        if abs(v) >= 7200.0:
-            return f"{v / 3600.0:.4g} h"
-        if abs(v) >= 120.0:
-            return f"{v / 60.0:.4g} min"
-        return format_quantity(v, "time", unit_system, 4)
-
-    out: list = []
+    u = _Units(unit_system)
     style = "" if result.success else "bold red"
     end = result.t[-1] if len(result.t) else 0.0
-    out.append(Text(
-        f"{system.title}: {result.message} (simulated {when(end)}, {result.nsteps} steps, "
-        f"{result.method}, {result.wall_time:.3g} s wall).", style=style))
-
+    out: list = [Text(
+        f"{system.title}: {result.message} (simulated {u.when(end)}, {result.nsteps} steps, "
+        f"{result.method}, {result.wall_time:.3g} s wall).", style=style)]
     if result.tank_ids:
-        tanks = table("Tanks")
-        for col, just in (("tank", "left"), ("initial level", "right"), ("final level", "right"),
-                          ("drained at", "right"), ("settled (1 %)\nfrom", "right"),
-                          ("at end", "left")):
-            tanks.add_column(col, justify=just, no_wrap=True)
-        for k, tid in enumerate(result.tank_ids):
-            lv = result.levels[k]
-            tanks.add_row(tid, q(lv[0] if lv.size else None, "elevation"),
-                          q(lv[-1] if lv.size else None, "elevation"),
-                          when(result.drain_times.get(tid)), when(settle_time(result.t, lv)),
-                          result.end_states.get(tid, "—"))
-        out.append(tanks)
-        fed = _fed(result, system)
-        if fed:
-            feeds, draws = _external(result)
-            ft = table("Feeds and draw-offs")
-            ft.caption = "draw-off as delivered: it stops while the tank is drained"
-            ft.caption_justify = "left"
-            for col in ("tank", "feed", "draw-off", "fed in", "drawn off", "at end"):
-                ft.add_column(col, justify="left" if col == "tank" else "right", no_wrap=True)
-            spills = _spills(result)
-            for k in fed:
-                tid = result.tank_ids[k]
-                at_end = level_rate_text(_level_rate(result, system, k), unit_system)
-                if result.end_states.get(tid) == "spilling":
-                    at_end = f"spills {q(spills[k][-1] if spills[k].size else None, 'flow')}"
-                ft.add_row(tid, _span(feeds[k], q), _span(draws[k], q),
-                           q(_moved(result.t, feeds[k]), "volume"),
-                           q(_moved(result.t, draws[k]), "volume"), at_end)
-            out.append(ft)
+        out.append(_tanks_table(result, u))
+        if _fed(result, system):
+            out.append(_feeds_table(result, system, u))
+    out.append(_lines_table(result, u))
+    closing = {lid: s for lid, s in result.surge.items() if s.effective_closure is not None}
+    if closing:
+        out.append(_surge_table(closing, u))
+    out += _events(result, u)
+    out.append(_warnings_table(result) if result.warnings else Text("No warnings."))
+    out.append(Text(
+        "Rigid-column model: each line's liquid moves as one incompressible column; valid for "
+        "slow valve moves only (see the surge screening). A computed drained time is never "
+        "proof that a tank is empty: check before entry (confined space)."))
+    return out
 
-    lines = table("Lines")
+
+def _tanks_table(result: TransientResult, u: _Units):
+    """Each tank's initial and final level, drained and settled times and end state."""
+    q, when = u.q, u.when
+    tanks = simple_table("Tanks")
+    for col, just in (("tank", "left"), ("initial level", "right"), ("final level", "right"),
+                      ("drained at", "right"), ("settled (1 %)\nfrom", "right"),
+                      ("at end", "left")):
+        tanks.add_column(col, justify=just, no_wrap=True)
+    for k, tid in enumerate(result.tank_ids):
+        lv = result.levels[k]
+        tanks.add_row(tid, q(lv[0] if lv.size else None, "elevation"),
+                      q(lv[-1] if lv.size else None, "elevation"),
+                      when(result.drain_times.get(tid)), when(settle_time(result.t, lv)),
+                      result.end_states.get(tid, "—"))
+    return tanks
+
+
+def _feeds_table(result: TransientResult, system: System, u: _Units):
+    """The fed tanks' feeds and draw-offs, the volumes moved, and how each ends."""
+    q = u.q
+    feeds, draws = _external(result)
+    ft = simple_table("Feeds and draw-offs")
+    ft.caption = "draw-off as delivered: it stops while the tank is drained"
+    ft.caption_justify = "left"
+    for col in ("tank", "feed", "draw-off", "fed in", "drawn off", "at end"):
+        ft.add_column(col, justify="left" if col == "tank" else "right", no_wrap=True)
+    spills = _spills(result)
+    for k in _fed(result, system):
+        tid = result.tank_ids[k]
+        at_end = level_rate_text(_level_rate(result, system, k), u.unit_system)
+        if result.end_states.get(tid) == "spilling":
+            at_end = f"spills {q(spills[k][-1] if spills[k].size else None, 'flow')}"
+        ft.add_row(tid, _span(feeds[k], q), _span(draws[k], q),
+                   q(_moved(result.t, feeds[k]), "volume"),
+                   q(_moved(result.t, draws[k]), "volume"), at_end)
+    return ft
+
+
+def _lines_table(result: TransientResult, u: _Units):
+    """Each line's flow range and pressure extremes with their times."""
+    q, when = u.q, u.when
+    lines = simple_table("Lines")
     for col, just in (("line", "left"), ("peak flow", "right"), ("min flow", "right"),
                       ("max pressure", "right"), ("min pressure", "right")):
         lines.add_column(col, justify=just, no_wrap=True)
@@ -327,55 +357,65 @@ def transient_tables(result: TransientResult, system: System, unit_system: str =
         lines.caption = ("* capped at static plus Joukowsky: the rigid column overstates a "
                          "fast closure (see the surge screening)")
         lines.caption_justify = "left"
-    out.append(lines)
+    return lines
 
-    closing = {lid: s for lid, s in result.surge.items() if s.effective_closure is not None}
-    if closing:
-        st = table("Surge screening of valve closures (a: wave speed; trips: closure / 2L/a)")
-        for col in ("line", "a", "2L/a", "eff. closure", "trips", "Joukowsky"):
-            st.add_column(col, justify="left" if col == "line" else "right", no_wrap=True)
-        st.add_column("verdict", overflow="fold", ratio=1)
-        for lid, s in closing.items():
-            trips = (s.effective_closure / s.round_trip) if s.round_trip else None
-            verdict = ("RAPID: elastic analysis needed" if s.rapid_closure
-                       else "slow: rigid column adequate" if trips is not None else "—")
-            st.add_row(lid, q(s.wave_speed, "velocity"), when(s.round_trip),
-                       when(s.effective_closure), "—" if trips is None else f"{trips:.3g}",
-                       q(s.joukowsky, "pressure"),
-                       Text(verdict, style="bold red" if s.rapid_closure else ""))
-        out.append(st)
 
-    if result.events:
-        ev = table("Events")
-        ev.add_column("time", justify="right", no_wrap=True)
-        ev.add_column("code", no_wrap=True)
-        ev.add_column("element", no_wrap=True)
-        ev.add_column("message", overflow="fold", ratio=1)
-        shown = result.events[:60]
-        for e in shown:
-            ev.add_row(when(e.time), e.code, e.element, Text(e.message))
-        out.append(ev)
-        if len(result.events) > len(shown):
-            out.append(Text(f"... {len(result.events) - len(shown)} more events in --json."))
-    else:
-        out.append(Text("No events."))
+def _surge_table(closing: dict, u: _Units):
+    """The surge screening of each closing valve: wave speed, round trip, closure, verdict."""
+    from rich.text import Text
 
-    if result.warnings:
-        warn = table("Warnings")
-        warn.add_column("severity", no_wrap=True)
-        warn.add_column("code / element", overflow="fold")
-        warn.add_column("message (source)", overflow="fold", ratio=1)
-        for w in result.warnings:
-            message = Text(w.message)
-            if w.source:
-                message.append(f" ({w.source})", style="dim")
-            warn.add_row(Text(w.severity.upper(), style=SEVERITY_STYLE.get(w.severity, "")),
-                          f"{w.code}\n{w.element}", message)
-        out.append(warn)
-    else:
-        out.append(Text("No warnings."))
-    out.append(Text(
-        "Rigid-column model: each line's liquid moves as one incompressible column; valid for "
-        "slow valve moves only (see the surge screening). A computed drained time is never "
-        "proof that a tank is empty: check before entry (confined space)."))
+    q, when = u.q, u.when
+    st = simple_table("Surge screening of valve closures (a: wave speed; trips: closure / 2L/a)")
+    for col in ("line", "a", "2L/a", "eff. closure", "trips", "Joukowsky"):
+        st.add_column(col, justify="left" if col == "line" else "right", no_wrap=True)
+    st.add_column("verdict", overflow="fold", ratio=1)
+    for lid, s in closing.items():
+        trips = (s.effective_closure / s.round_trip) if s.round_trip else None
+        verdict = ("RAPID: elastic analysis needed" if s.rapid_closure
+                   else "slow: rigid column adequate" if trips is not None else "—")
+        st.add_row(lid, q(s.wave_speed, "velocity"), when(s.round_trip),
+                   when(s.effective_closure), "—" if trips is None else f"{trips:.3g}",
+                   q(s.joukowsky, "pressure"),
+                   Text(verdict, style="bold red" if s.rapid_closure else ""))
+    return st
+
+
+#: Events shown in the tables; the rest are counted (all are in ``--json``).
+EVENTS_SHOWN = 60
+
+
+def _events(result: TransientResult, u: _Units) -> list:
+    """The events table (the first :data:`EVENTS_SHOWN`, then a count), or "No events."."""
+    from rich.text import Text
+
+    if not result.events:
+        return [Text("No events.")]
+    ev = simple_table("Events")
+    ev.add_column("time", justify="right", no_wrap=True)
+    ev.add_column("code", no_wrap=True)
+    ev.add_column("element", no_wrap=True)
+    ev.add_column("message", overflow="fold", ratio=1)
+    shown = result.events[:EVENTS_SHOWN]
+    for e in shown:
+        ev.add_row(u.when(e.time), e.code, e.element, Text(e.message))
+    out: list = [ev]
+    if len(result.events) > len(shown):
+        out.append(Text(f"... {len(result.events) - len(shown)} more events in --json."))
     return out
+
+
+def _warnings_table(result: TransientResult):
+    """The warnings, each severity as a word and a colour, with its published source."""
+    from rich.text import Text
+
+    warn = simple_table("Warnings")
+    warn.add_column("severity", no_wrap=True)
+    warn.add_column("code / element", overflow="fold")
+    warn.add_column("message (source)", overflow="fold", ratio=1)
+    for w in result.warnings:
+        message = Text(w.message)
+        if w.source:
+            message.append(f" ({w.source})", style="dim")
+        warn.add_row(Text(w.severity.upper(), style=SEVERITY_STYLE.get(w.severity, "")),
+                     f"{w.code}\n{w.element}", message)
+    return warn
