@@ -1,0 +1,211 @@
+"""The result of a run: series from what was recorded, pressure screening per line, findings.
+
+Per line the station envelopes go through :func:`workbench.core.surge.screen_line`
+(Joukowsky cap, effective closure time, column separation); a sub-atmospheric minimum that
+did not reach vapour pressure gets the steady check's caution with its time and place.
+Overflows, repeated drain-refill cycles and the outlets' vortex submergence
+(:mod:`.submergence`) add findings; :mod:`.end_states` says how each tank ends.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from workbench.core.model import G, Finding, restart_level
+from workbench.core.surge import LineSurge, effective_closure_time, screen_line
+from workbench.core.transient.end_states import end_states
+from workbench.core.transient.loop import Run
+from workbench.core.transient.model import TransientModel
+from workbench.core.transient.results import TransientResult
+from workbench.core.transient.submergence import submergence
+
+#: Gauge pressure below which a run's minimum counts as sub-atmospheric [Pa]: below the
+#: solver's rounding at free outlets (about 1e-9 Pa), far above any pressure that matters.
+SUBATMOSPHERIC_NOISE_PA = -1.0
+
+
+def finish(model: TransientModel, run: Run, outcome, wall: float) -> TransientResult:
+    """Assemble the :class:`TransientResult` of a run that ended with ``outcome`` =
+    ``(status, message)`` after ``wall`` seconds."""
+    status, message = outcome
+    state, rec = run.state, run.rec
+    nl = model.nl
+    t = np.array(rec.t_out)
+    ys = np.array(rec.y_out).T if rec.y_out else np.zeros((nl + model.nt, 0))
+    flows = ys[:nl]
+    volumes = ys[nl:]
+    levels = np.array([[g.level_extrapolated(v) for v in row]
+                       for g, row in zip(model.geoms, volumes)]).reshape(model.nt, len(t))
+    feeds, draw_offs = external_series(model, run, t)
+    end_rates, states = end_states(model, state, ys, feeds, draw_offs)
+    spills = spill_series(model, run, ys, feeds, draw_offs)
+    warnings: list[Finding] = list(state.notes)
+    pressures = line_pressures(model, run)
+    warnings.extend(pressures.pop("findings"))
+    warnings.extend(overflow_findings(model, run, spills))
+    vortex_events, vortex_findings = submergence(model, t, flows, levels)
+    warnings.extend(vortex_findings)
+    warnings.extend(cycling_findings(model, run))
+    return TransientResult(
+        success=status in (0, 1),
+        status=status,
+        message=message,
+        t=t,
+        line_ids=model.topo.line_ids,
+        flows=flows,
+        tank_ids=model.tank_ids,
+        levels=levels,
+        volumes=volumes,
+        events=tuple(sorted([*state.events, *vortex_events], key=lambda e: e.time)),
+        **pressures,
+        warnings=tuple(warnings),
+        drain_times=dict(state.drain_times),
+        feeds=feeds,
+        draw_offs=draw_offs,
+        end_rates=end_rates,
+        end_states=states,
+        spills=spills,
+        method=run.options.method,
+        nfev=run.nfev,
+        njev=run.njev,
+        nlu=run.nlu,
+        nsteps=run.nsteps,
+        wall_time=wall,
+    )
+
+
+def line_pressures(model: TransientModel, run: Run) -> dict:
+    """Per line the screened extremes (``max_pressure``, ``min_pressure`` [Pa], their times
+    [s], ``surge``) and the ``findings`` of the screening."""
+    from workbench.core.valve import relative_flow_coefficient
+
+    system, rec = model.system, run.rec
+    out = {"max_pressure": {}, "min_pressure": {}, "max_pressure_time": {},
+           "min_pressure_time": {}, "surge": {}, "findings": []}
+    for i, lid in enumerate(model.topo.line_ids):
+        line = system.lines[lid]
+        sel = slice(model.st_start[i],
+                    model.st_start[i + 1] if i + 1 < len(model.st_start) else None)
+        pmax_st, pmin_st = rec.p_max[sel], rec.p_min[sel]
+        max_t = float(rec.p_max_t[sel][int(np.argmax(pmax_st))])
+        min_t = float(rec.p_min_t[sel][int(np.argmin(pmin_st))])
+        eff = None
+        if line.valve is not None and line.valve.schedule is not None:
+            valve = line.valve
+            est = effective_closure_time(
+                valve, lambda x, v=valve: relative_flow_coefficient(v.characteristic, x,
+                                                                    v.rangeability),
+                rest_of_line_k(model, i, run))
+            if est is not None and est.fastest_cut_at <= run.t_final:
+                eff = est.effective_time
+        screened, findings = screen_line(
+            lid, line, system.fluid, atmospheric_pressure=system.atmospheric_pressure,
+            station_max=pmax_st, station_min=pmin_st, station_elevation=model.st_elev[sel],
+            static_head=float(rec.h_static_max[i]), velocity_max=float(rec.v_max[i]),
+            effective_closure=eff, max_time=max_t, min_time=min_t)
+        out["surge"][lid] = screened
+        out["findings"].extend(findings)
+        out["max_pressure"][lid] = screened.max_pressure
+        out["min_pressure"][lid] = screened.min_pressure
+        out["max_pressure_time"][lid] = max_t
+        out["min_pressure_time"][lid] = min_t
+        separated = any(f.code == "surge.column_separation" for f in findings)
+        if not separated and screened.min_pressure < SUBATMOSPHERIC_NOISE_PA:
+            out["findings"].append(_subatmospheric(model, i, screened, pmin_st, min_t))
+    return out
+
+
+def _subatmospheric(model: TransientModel, i: int, screened: LineSurge, pmin_st,
+                    min_t: float) -> Finding:
+    """Below atmospheric at some time of the run, though not at vapour pressure: the steady
+    check's caution, with when and where."""
+    lid = model.topo.line_ids[i]
+    line = model.system.lines[lid]
+    sel = slice(model.st_start[i], model.st_start[i + 1] if i + 1 < len(model.st_start) else None)
+    j = int(np.argmin(pmin_st))
+    where = float(model.st_frac[sel][j]) * line.length
+    return Finding(
+        "profile.subatmospheric", lid,
+        f"during the run the pressure on line {lid} falls to "
+        f"{screened.min_pressure / 1000.0:.4g} kPa gauge at t = {min_t:.4g} s, "
+        f"{where:.4g} m from {line.from_node!r} (elevation "
+        f"{float(model.st_elev[sel][j]):.4g} m): air can be drawn in at joints, and "
+        "thin-walled or plastic pipe can collapse; check the pipe's vacuum rating",
+        "caution", "rigid-column pressures at the line's profile points; common "
+        "practice")
+
+
+def overflow_findings(model: TransientModel, run: Run, spills: np.ndarray) -> list[Finding]:
+    """A ``tank.overflow`` danger for every overflow event, with the peak spill."""
+    out = []
+    for ev in run.state.events:
+        if ev.code == "tank.overflow":
+            k = model.tank_ids.index(ev.element)
+            peak = float(np.max(spills[k], initial=0.0))
+            surplus = (f" (the surplus spilling reaches {peak * 1000:.4g} L/s in this run)"
+                       if peak > 0.0 else "")
+            out.append(Finding(
+                "tank.overflow", ev.element,
+                f"{ev.message} at t = {ev.time:.6g} s: check the overflow capacity under the "
+                f"worst-case inflow{surplus} (defer to local codes)", "danger",
+                "common practice"))
+    return out
+
+
+def cycling_findings(model: TransientModel, run: Run) -> list[Finding]:
+    """A ``tank.cycling`` caution for every tank that drained more than once."""
+    out = []
+    for k, tid in enumerate(model.tank_ids):
+        n = int(run.state.drain_count[k])
+        if n >= 2:
+            out.append(Finding(
+                "tank.cycling", tid,
+                f"tank {tid} drained {n} times, refilling in between: "
+                "what flows in is less than its outlets and draw-off take at the drained "
+                "level. In the plant the outlets would run part-full and draw air (vortexing) "
+                "rather than stop and restart; the model stops them at min_level and restarts "
+                f"them at the restart level {restart_level(model.tanks[k]):.4g} m", "caution",
+                "common practice"))
+    return out
+
+
+def external_series(model: TransientModel, run: Run, t: np.ndarray):
+    """Feed and delivered draw-off per tank at the output times [m^3/s]."""
+    feeds = np.zeros((model.nt, len(t)))
+    draws = np.zeros((model.nt, len(t)))
+    if not model.has_ext:
+        return feeds, draws
+    drained_out = run.rec.drained_out
+    for j, tj in enumerate(t.tolist()):
+        feed, draw = model.external(tj)
+        drained = drained_out[j] if j < len(drained_out) else run.state.drained
+        feeds[:, j] = feed
+        draws[:, j] = np.where(drained, 0.0, draw)
+    return feeds, draws
+
+
+def spill_series(model: TransientModel, run: Run, ys, feeds, draws) -> np.ndarray:
+    """Surplus spilling over each tank's overflow at the output times [m^3/s]."""
+    n = ys.shape[1]
+    spills = np.zeros((model.nt, n))
+    spilling_out = run.rec.spilling_out
+    if not model.nt or not n or not spilling_out:
+        return spills
+    held = np.array(spilling_out[:n]).T.reshape(model.nt, -1)
+    if held.shape[1] != n or not held.any():
+        return spills
+    net = model.t_rows @ ys[: model.nl] + feeds - draws
+    return np.where(held, np.maximum(net, 0.0), 0.0)
+
+
+def rest_of_line_k(model: TransientModel, i: int, run: Run) -> float:
+    """Loss coefficient of line ``i`` without its valve, at its largest flow of the run."""
+    lines = model.lines
+    q = max(float(run.state.q_peak[i]), 1e-6 * lines.area[i])
+    qs = np.zeros(model.nl)
+    qs[i] = q
+    x = np.full(model.nl, np.nan)
+    x[i] = 1.0
+    h, _ = lines.head_loss(qs, x)
+    vh = (q / lines.area[i]) ** 2 / (2.0 * G)
+    return max(float(h[i]) / vh - float(lines.valve_k_open[i]), 0.0)

@@ -1,0 +1,159 @@
+r"""The right-hand side of the rigid-column equations, its Jacobian, and the heads at a state.
+
+With ``y = [Q, V]``, ``g = F^T H_F(V) + h(Q, t)`` on open lines,
+
+.. math::
+
+    \dot Q = -S\,g, \qquad \dot V = T\,Q + e(t)
+
+(``S`` the configuration's projection, ``T`` the tanks' rows of the fixed-node incidence with
+spilling tanks' rows cleared, ``e`` the feed less the delivered draw-off), and the
+Jacobian ``[[-S diag(dh/dQ), -S F_T^T diag(1/A(h))], [T, 0]]``. Heads are gauge-based
+piezometric heads [m] (see :mod:`workbench.core.model`).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from workbench.core.fittings import exit_k
+from workbench.core.model import G
+from workbench.core.transient.model import Configuration, TransientModel
+from workbench.core.transient.state import RunState
+
+_X_FLOOR = 1e-9
+"""Smallest valve travel used inside a segment in which the valve is open: it reaches zero
+only at the segment's end, where the line is then shut exactly."""
+
+
+class Equations:
+    """The equations of one run in its current configuration (see the module docstring).
+
+    Holds the configuration of open lines (:attr:`cfg`, replaced by the run loop at each
+    restart) and a one-state cache of the head losses: the solver asks for the Jacobian,
+    and the run for pressures, at points where the right-hand side was just evaluated.
+    """
+
+    def __init__(self, model: TransientModel, state: RunState):
+        self.model = model
+        self.state = state
+        self.cfg: Configuration | None = None
+        self.open_valve_floor = np.zeros(model.nl, bool)
+        """Valves open over the current segment: their travel is kept above ``_X_FLOOR``."""
+        self._cache = None
+
+    def reset(self, cfg: Configuration, open_valve_floor: np.ndarray) -> None:
+        """Take a new configuration (and forget the cached losses)."""
+        self.cfg = cfg
+        self.open_valve_floor = open_valve_floor
+        self._cache = None
+
+    def clear_cache(self) -> None:
+        self._cache = None
+
+    def _openings(self, t: float) -> np.ndarray | None:
+        if not self.model.valve_lines.size:
+            return None
+        x = self.model.lines.openings_at(t)
+        if self.open_valve_floor.any():
+            x = np.where(self.open_valve_floor, np.maximum(x, _X_FLOOR), x)
+        return x
+
+    def losses(self, t, y):
+        """Fixed heads [m], tank levels [m], head losses [m] and their slopes [s/m^2] at a
+        state, cached for the last state."""
+        c = self._cache
+        if c is not None and c[0] == t and np.array_equal(c[1], y):
+            return c[2]
+        nl = self.model.nl
+        hf, levels = self.model.fixed_heads(y[nl:])
+        h, dh = self.model.lines.head_loss(y[:nl], self._openings(t))
+        out = (hf, levels, h, dh)
+        self._cache = (t, y.copy(), out)
+        return out
+
+    def external_net(self, t):
+        """Feed less the draw-off delivered, per tank, at time ``t`` [m^3/s]: a drained
+        tank supplies no draw-off."""
+        feed, draw = self.model.external(t)
+        return feed - np.where(self.state.drained, 0.0, draw)
+
+    def rhs(self, t, y):
+        """``dy/dt`` at time ``t`` [s] and state ``y`` ([m^3/s], [m^3])."""
+        model, cfg = self.model, self.cfg
+        nl = model.nl
+        hf, _, h, _ = self.losses(t, y)
+        g = (model.ft @ hf + h) * cfg.open_f
+        out = np.empty(nl + model.nt)
+        out[:nl] = cfg.s @ g
+        out[:nl] *= -1.0
+        out[nl:] = cfg.t_rows @ y[:nl]
+        if model.has_ext:  # independent of the state: the Jacobian is unchanged
+            out[nl:] += cfg.ext_on * self.external_net(t)
+        return out
+
+    def jac(self, t, y):
+        """The analytic Jacobian ``d(dy/dt)/dy`` (see the module docstring)."""
+        model, cfg = self.model, self.cfg
+        nl, nt = model.nl, model.nt
+        _, _, _, dh = self.losses(t, y)
+        dh = dh * cfg.open_f
+        j = np.zeros((nl + nt, nl + nt))
+        j[:nl, :nl] = -cfg.s * dh[None, :]
+        if nt:
+            levels = model.tank_levels(y[nl:])
+            inv_a = np.array([1.0 / g.area_floor(lv, 1e-9) for g, lv in zip(model.geoms, levels)])
+            j[:nl, nl:] = -cfg.s_tank * inv_a[None, :]
+            j[nl:, :nl] = cfg.t_rows
+        return j
+
+    def heads(self, t, y):
+        """Junction heads then fixed-node heads at a state [m] (the topology's node order)."""
+        model, cfg = self.model, self.cfg
+        hf, levels, h, _ = self.losses(t, y)
+        g = model.ft @ hf + h * cfg.open_f
+        hj = -(cfg.w @ g) if cfg.w.shape[0] else np.zeros(0)
+        return np.concatenate([hj, hf])
+
+    def discharge_drive(self, t, y):
+        """Per line, the head difference driving flow out of its open discharge [m] (zero
+        on lines that do not discharge to air)."""
+        model = self.model
+        h_nodes = self.heads(t, y)
+        return model.discharge_sign * (h_nodes[model.topo.line_from]
+                                       - h_nodes[model.topo.line_to])
+
+
+def line_end_heads(model: TransientModel, q, qdot, h_nodes_from, h_nodes_to):
+    """Piezometric heads inside each line at its two ends, pipe side of any valve [m].
+
+    Without a valve both ends follow from the node heads (less the entrance loss and the
+    kinetic energy of the developed profile, ``alpha`` velocity heads, where the flow leaves
+    a free surface; a line discharging into a free surface or the air keeps the head of
+    what it discharges into, its exit loss being that ``alpha v^2/2g``). With a valve, the
+    valve's end is found from the momentum balance of the pipe instead,
+    ``H_a - H_b = h_pipe(Q) + (L/gA) dQ/dt`` with ``dQ/dt`` taken from the integrated
+    trajectory: near the end of a closure ``K_valve Q^2`` multiplies a tiny, inexact flow by
+    a huge coefficient, while the column's deceleration stays well conditioned.
+    """
+    lines = model.lines
+    v = q / lines.area
+    vh = v * np.abs(v) / (2.0 * G)
+    fwd = q >= 0.0
+    # Leaving a free surface into the line: piezometric head drops by (alpha + K_entrance)
+    # v^2/2g, alpha the kinetic-energy coefficient (2 laminar, 1 turbulent), as in the
+    # steady grade line (workbench.core.checks.line_profiles).
+    alpha, _ = exit_k(np.abs(v) * (lines.diameter / lines.kinematic_viscosity))
+    drop_a = np.where(fwd & model.from_free, (alpha + model.entrance_k) * np.abs(vh), 0.0)
+    drop_b = np.where(~fwd & model.to_free, (alpha + model.entrance_k) * np.abs(vh), 0.0)
+    h_a = h_nodes_from - drop_a
+    h_b = h_nodes_to - drop_b
+    if model.valve_lines.size:
+        x_open = np.where(lines.has_valve, 1.0, np.nan)
+        h_open, _ = lines.head_loss(q, x_open)
+        k_ent, k_exit, _ = lines.end_k(q)
+        h_pipe = h_open - (lines.valve_k_open + k_ent + k_exit) * vh
+        drive = h_pipe + lines.inertance_head * qdot
+        h_b = np.where(model.valve_at_to, h_a - drive, h_b)
+        h_a = np.where(model.valve_at_from, h_b + drive, h_a)
+    return h_a, h_b

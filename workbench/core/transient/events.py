@@ -1,0 +1,137 @@
+"""Event functions of a run and their location by root finding on the dense output.
+
+Every event is a component of one vector function of ``(t, y)`` whose sign change marks
+it, as in ``scipy.integrate.solve_ivp`` (``direction`` +1 rising, -1 falling, 0 both;
+``terminal`` events stop the step there and restart the integrator). The components, in
+this order, ``nt`` per tank or ``nl`` per line:
+
+==================  ====  =============================================================
+kind                size  function
+==================  ====  =============================================================
+``DRAIN``           nt    ``V - V_min`` falling: the tank drains
+``OVERFLOW``        nt    ``V - V_overflow`` rising: it starts to spill
+``SPILL_END``       nt    net inflow falling through zero: it stops spilling
+``REVERSAL``        nl    ``Q`` (either way, not terminal): the flow reverses
+``DISCHARGE_STOP``  nl    ``s Q`` falling: flow would turn back out of an open discharge
+``RELEASE``         nl    ``s (H_from - H_to)`` rising: head returns above the discharge
+``REFILL``          nt    ``V - V_restart`` rising: a drained tank refilled
+==================  ====  =============================================================
+
+(``s`` is +1 where a line discharges to air at its to-end, -1 at its from-end.)
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from workbench.core.transient.equations import Equations
+
+DRAIN, OVERFLOW, SPILL_END, REVERSAL, DISCHARGE_STOP, RELEASE, REFILL = range(7)
+
+
+@dataclass(frozen=True)
+class EventSet:
+    """Which event components are watched in the current configuration, and how."""
+
+    armed: np.ndarray
+    """Watched components [bool]."""
+    direction: np.ndarray
+    """+1 rising, -1 falling, 0 either way."""
+    terminal: np.ndarray
+    """Components that stop the step [bool]."""
+    kind_of: np.ndarray
+    """Kind of each component (``DRAIN`` ... ``REFILL``)."""
+    index_of: np.ndarray
+    """Tank or line index of each component."""
+
+
+def event_values(eq: Equations, t: float, y: np.ndarray) -> np.ndarray:
+    """All event components at a state (see the module docstring)."""
+    model, state = eq.model, eq.state
+    nl = model.nl
+    q = y[:nl]
+    v = y[nl:]
+    sign = model.discharge_sign
+    if state.backstopped.any():
+        drive = eq.discharge_drive(t, y)
+    else:
+        drive = np.zeros(nl)
+    net = model.t_rows @ q
+    if model.has_ext:
+        net = net + eq.external_net(t)
+    return np.concatenate([
+        v - model.v_min,  # drained
+        v - model.v_over,  # overflow
+        net,  # net inflow: spill end
+        q,  # reversal
+        sign * q,  # flow turning back out of an open discharge
+        drive,  # head returning above an open discharge
+        v - model.v_restart,  # a drained tank refilled to its restart level
+    ])
+
+
+def arm(eq: Equations) -> EventSet:
+    """The events to watch after a (re)configuration."""
+    model, state = eq.model, eq.state
+    nt, nl = model.nt, model.nl
+    is_open = eq.cfg.open
+    armed = np.concatenate([
+        ~state.drained,
+        ~state.spilling & np.isfinite(model.v_over),
+        state.spilling,
+        is_open & ~model.is_discharge,
+        is_open & model.is_discharge,
+        state.backstopped & ~state.blocked,
+        state.drained & ~state.spilling,
+    ])
+    direction = np.concatenate([
+        np.full(nt, -1), np.full(nt, 1), np.full(nt, -1),
+        np.zeros(nl, int), np.full(nl, -1), np.full(nl, 1), np.full(nt, 1),
+    ])
+    terminal = np.concatenate([
+        np.ones(3 * nt, bool), np.zeros(nl, bool), np.ones(2 * nl + nt, bool),
+    ])
+    sizes = (nt, nt, nt, nl, nl, nl, nt)
+    kind_of = np.concatenate([np.full(n, kind) for kind, n in enumerate(sizes)])
+    index_of = np.concatenate([np.arange(n) for n in sizes])
+    return EventSet(armed, direction, terminal, kind_of, index_of)
+
+
+def find_events(eq: Equations, events: EventSet, sol, t_old, y_old, t_new, y_new):
+    """Events in the step ``[t_old, t_new]``, as ``(time, component)`` sorted by time.
+
+    Each armed component that changes sign in its direction is located by ``brentq`` on the
+    step's dense output ``sol`` (to a few ulp of the time).
+    """
+    from scipy.optimize import brentq
+
+    e_old = event_values(eq, t_old, y_old)
+    e_new = event_values(eq, t_new, y_new)
+    up = (e_old < 0.0) & (e_new >= 0.0) & (events.direction >= 0)
+    down = (e_old > 0.0) & (e_new <= 0.0) & (events.direction <= 0)
+    hits = np.flatnonzero((up | down) & events.armed)
+    found = []
+    for k in hits:
+        def fun(t, k=k):
+            return event_values(eq, t, sol(t))[k]
+        try:
+            te = brentq(fun, t_old, t_new, xtol=4 * np.finfo(float).eps * max(1.0, abs(t_new)),
+                        rtol=4 * np.finfo(float).eps)
+        except ValueError:  # sign lost in the dense output: take the step end
+            te = t_new
+        found.append((te, int(k)))
+    found.sort()
+    return found
+
+
+def first_terminal(events: EventSet, found):
+    """The terminal events at the earliest terminal time of ``found`` (ties within 1e-12
+    relative are taken together)."""
+    hits = []
+    for te, k in found:
+        if events.terminal[k]:
+            if not hits or te <= hits[0][0] + 1e-12 * max(1.0, te):
+                hits.append((te, k))
+    return hits
