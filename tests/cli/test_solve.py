@@ -130,3 +130,57 @@ def test_a_missing_file_exits_1_without_a_traceback(tmp_path, capsys):
     assert main(["solve", str(tmp_path / "nope.toml")]) == 1
     err = capsys.readouterr().err
     assert "nope.toml" in err and "Traceback" not in err
+
+
+SIPHON_US = """\
+schema = 1
+
+[project]
+title = "Siphon over a pipe bridge (test plant)"
+units = "US"
+
+[fluid]
+kind = "water"
+temperature = "20 degC"
+
+[reservoirs.T1]
+kind = "constant_level"
+bottom_elevation = "10 m"
+level = "2 m"
+
+[receivers.OUT]
+kind = "open_discharge"
+elevation = "0 m"
+
+[lines.S1]
+from = "T1"
+to = "OUT"
+length = "60 m"
+nominal_size = "2 in"
+schedule = "40"
+material = "commercial_steel"
+profile = [
+    { distance = "0 m", elevation = "10 m" },
+    { distance = "10 m", elevation = "15 m" },
+    { distance = "60 m", elevation = "0 m" },
+]
+"""
+
+
+def test_a_us_units_project_s_warnings_give_psi_and_ft_and_its_json_stays_si(tmp_path, capsys):
+    # Display units follow [project] units = "US" (README); the --json contract stays SI and
+    # each warning's numbers are also given as SI values with their quantity kind.
+    path = tmp_path / "siphon.toml"
+    path.write_text(SIPHON_US)
+    assert main(["solve", str(path)]) == 0
+    text = capsys.readouterr().out
+    warnings = text[text.index("Warnings"):]
+    assert "psi gauge" in warnings and " ft " in warnings
+    assert "kPa" not in warnings
+    assert main(["solve", str(path), "--json"]) == 0
+    out = json.loads(capsys.readouterr().out)
+    (sub,) = [w for w in out["warnings"] if w["code"] == "profile.subatmospheric"]
+    assert "kPa gauge" in sub["message"]
+    assert sub["values"]["p"]["kind"] == "pressure"
+    p_min = min(out["lines"]["S1"]["profile"]["pressure_pa"])
+    assert sub["values"]["p"]["value"] == pytest.approx(p_min, rel=1e-12)

@@ -126,13 +126,22 @@ def tank_rows(result: Any, system: Any, units: str) -> list[tuple[str, ...]]:
 FINDING_COLUMNS = ["severity", "code", "element", "message"]
 
 
-def finding_rows(findings: Any) -> list[tuple[str, str, str, str]]:
-    """Findings with the most serious first (order otherwise kept)."""
+def finding_rows(findings: Any, units: str = "SI") -> list[tuple[str, str, str, str]]:
+    """Findings with the most serious first (order otherwise kept), numbers in ``units``."""
     rank = {"danger": 0, "caution": 1, "info": 2}
     items = sorted(list(findings or []), key=lambda f: rank.get(_get(f, "severity"), 3))
     return [(severity_label(_get(f, "severity", default="caution")), _get(f, "code", default=""),
-             _get(f, "element", default=""), _get(f, "message", default=""))
+             _get(f, "element", default=""), finding_text(f, units))
             for f in items]
+
+
+def finding_text(f: Any, units: str = "SI") -> str:
+    """A finding's message in the display unit system (a dict finding: its message as is)."""
+    if isinstance(f, dict):
+        return f.get("message", "")
+    from workbench.output.common import finding_message
+
+    return finding_message(f, units)
 
 
 def sorted_findings(findings: Any) -> list[Any]:

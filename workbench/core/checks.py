@@ -402,8 +402,7 @@ def vapour_finding(lid: str, p_abs: float, at: float, p_vap: float, tol: float,
     the message gives the shortfall in head instead (and names absolute zero when the
     computed grade line falls below even that).
     """
-    source = (f"vapour pressure of the liquid; a {VAPOR_MARGIN_PA / 1000:g} kPa margin for "
-              "dissolved air (rule of thumb)")
+    source = "vapour pressure of the liquid; the margin for dissolved air is a rule of thumb"
     vals = dict(s=(at, "length"), pv=(p_vap, "pressure_abs"))
     if p_abs > p_vap + VAPOR_MARGIN_PA:
         return None

@@ -52,3 +52,26 @@ def level_rate_text(rate, unit_system: str) -> str:
     if unit_system == "US":
         return f"{per_min / 0.0254:+.3g} in/min"
     return f"{per_min * 1000.0:+.3g} mm/min"
+
+
+def finding_message(finding, unit_system: str = "SI") -> str:
+    """A finding's message with its numbers in the display unit system.
+
+    A finding that kept its numbers (``template`` and ``values``, see
+    :mod:`workbench.core.finding_text`) is written again in ``unit_system``; any other is
+    returned as it is (its ``message``, SI).
+    """
+    template = getattr(finding, "template", "")
+    if not template or unit_system == "SI":
+        return finding.message
+    from workbench.core.finding_text import fill
+    from workbench.project.units import format_quantity
+
+    return fill(template, finding.values,
+                lambda v, kind, digits: format_quantity(v, kind, unit_system, digits))
+
+
+def finding_values(finding) -> dict[str, dict[str, Any]]:
+    """The ``values`` object of a finding in ``--json``: slot -> ``{"value": SI, "kind": ...}``."""
+    return {name: {"value": json_float(v), "kind": kind}
+            for name, v, kind, _digits in getattr(finding, "values", ())}

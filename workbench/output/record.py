@@ -427,9 +427,13 @@ def _simulation(project: Project, transient: TransientResult | None) -> list[str
     return out
 
 
-def _all_findings(steady, transient, elastic) -> list[tuple[str, str, str, str, str]]:
-    """(severity, code, element, message, source) of every warning: steady, simulation, elastic."""
-    rows = [(f.severity, f.code, f.element, f.message, f.source)
+def _all_findings(steady, transient, elastic,
+                  units: str = "SI") -> list[tuple[str, str, str, str, str]]:
+    """(severity, code, element, message, source) of every warning: steady, simulation, elastic;
+    messages in the ``units`` display system."""
+    from workbench.output.common import finding_message
+
+    rows = [(f.severity, f.code, f.element, finding_message(f, units), f.source)
             for f in list(steady.warnings if steady else ()) + list(transient.warnings if transient else ())]
     if elastic:
         from workbench.output.elastic import elastic_findings
@@ -441,7 +445,7 @@ def _all_findings(steady, transient, elastic) -> list[tuple[str, str, str, str, 
 
 def _warnings(project: Project, steady: SteadyResult | None, transient: TransientResult | None,
               elastic: Mapping[str, Any] | None = None) -> list[str]:
-    findings = _all_findings(steady, transient, elastic)
+    findings = _all_findings(steady, transient, elastic, project.unit_system)
     out = ["## 6. Warnings", ""]
     if not findings:
         return out + ["No warnings.", ""]

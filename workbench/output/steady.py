@@ -9,6 +9,7 @@ as a word and a colour, never colour alone.
 from __future__ import annotations
 
 from workbench.output.common import SEVERITY_STYLE, level_rate_text, quantity_text, simple_table
+from workbench.output.common import finding_message, finding_values
 from workbench.output.common import json_float as _num, json_list as _list
 
 from typing import TYPE_CHECKING, Any
@@ -124,7 +125,7 @@ def steady_to_json(result: SteadyResult, system: System) -> dict:
             })
     out["warnings"] = [
         {"code": w.code, "element": w.element, "message": w.message, "severity": w.severity,
-         "source": w.source}
+         "source": w.source, **({"values": finding_values(w)} if w.values else {})}
         for w in result.warnings
     ]
     return out
@@ -205,7 +206,7 @@ def steady_tables(result: SteadyResult, system: System, unit_system: str = "SI")
     warn.add_column("message (source)", overflow="fold", ratio=1)
     for w in result.warnings:
         style = SEVERITY_STYLE.get(w.severity, "")
-        message = Text(w.message)
+        message = Text(finding_message(w, unit_system))
         if w.source:
             message.append(f" ({w.source})", style="dim")
         warn.add_row(Text(w.severity.upper(), style=style), f"{w.code}\n{w.element}", message)

@@ -11,6 +11,7 @@ screening, events and warnings; a warning's severity is a word as well as a colo
 from __future__ import annotations
 
 from workbench.output.common import SEVERITY_STYLE, level_rate_text, quantity_text, simple_table
+from workbench.output.common import finding_message, finding_values
 from workbench.output.common import json_float as _num, json_list as _list
 
 import csv
@@ -150,7 +151,7 @@ def transient_to_json(result: TransientResult, system: System, include_series: b
         }
     out["warnings"] = [
         {"code": w.code, "element": w.element, "message": w.message, "severity": w.severity,
-         "source": w.source}
+         "source": w.source, **({"values": finding_values(w)} if w.values else {})}
         for w in result.warnings
     ]
     return out
@@ -286,7 +287,7 @@ def transient_tables(result: TransientResult, system: System, unit_system: str =
     if closing:
         out.append(_surge_table(closing, u))
     out += _events(result, u)
-    out.append(_warnings_table(result) if result.warnings else Text("No warnings."))
+    out.append(_warnings_table(result, u.unit_system) if result.warnings else Text("No warnings."))
     out.append(Text(
         "Rigid-column model: each line's liquid moves as one incompressible column; valid for "
         "slow valve moves only (see the surge screening). A computed drained time is never "
@@ -404,7 +405,7 @@ def _events(result: TransientResult, u: _Units) -> list:
     return out
 
 
-def _warnings_table(result: TransientResult):
+def _warnings_table(result: TransientResult, unit_system: str = "SI"):
     """The warnings, each severity as a word and a colour, with its published source."""
     from rich.text import Text
 
@@ -413,7 +414,7 @@ def _warnings_table(result: TransientResult):
     warn.add_column("code / element", overflow="fold")
     warn.add_column("message (source)", overflow="fold", ratio=1)
     for w in result.warnings:
-        message = Text(w.message)
+        message = Text(finding_message(w, unit_system))
         if w.source:
             message.append(f" ({w.source})", style="dim")
         warn.add_row(Text(w.severity.upper(), style=SEVERITY_STYLE.get(w.severity, "")),

@@ -111,7 +111,7 @@ class EventsPane(Vertical):
             if id(elastic) not in seen:
                 seen.add(id(elastic))
                 warnings += list(getattr(elastic, "findings", ()) or ())
-        self._fill("#run-finding-table", results.FINDING_COLUMNS, results.finding_rows(warnings))
+        self._fill("#run-finding-table", results.FINDING_COLUMNS, results.finding_rows(warnings, units))
 
     def _fill(self, selector: str, columns: list[str], rows: list[tuple]) -> None:
         table = self.query_one(selector, DataTable)

@@ -62,7 +62,7 @@ class FlowsPane(Vertical):
         self.query_one("#tank-table", DataTable).display = bool(tanks)
         findings = getattr(result, "warnings", []) if result is not None else []
         self._findings = results.sorted_findings(findings)
-        self._fill("#finding-table", results.FINDING_COLUMNS, results.finding_rows(findings))
+        self._fill("#finding-table", results.FINDING_COLUMNS, results.finding_rows(findings, units))
         self._detail(0)
         self._show_status()
 
@@ -83,7 +83,7 @@ class FlowsPane(Vertical):
         f = self._findings[min(index, len(self._findings) - 1)]
         source = getattr(f, "source", "")
         detail.update(f"{results.severity_label(f.severity)} {f.code} @ {f.element}: "
-                      f"{f.message}" + (f" [{source}]" if source else ""))
+                      f"{results.finding_text(f, self.app.unit_system)}" + (f" [{source}]" if source else ""))
 
     def on_data_table_row_highlighted(self, event: DataTable.RowHighlighted) -> None:
         if event.data_table.id == "finding-table":
