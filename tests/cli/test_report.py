@@ -128,8 +128,11 @@ def test_every_warning_and_event_of_the_run_is_in_the_record(project_path, recor
     from workbench.core.transient import simulate
     from workbench.project.document import load_project
 
+    from workbench.output.common import finding_message
+
     text = record
-    system = load_project(project_path).system
+    project = load_project(project_path)
+    system = project.system
     findings = list(solve_steady(system).warnings)
     events = []
     if system.simulation is not None:
@@ -144,7 +147,8 @@ def test_every_warning_and_event_of_the_run_is_in_the_record(project_path, recor
             findings += [SimpleNamespace(**w) for w in elastic_findings(run_elastic(system, ids))]
     for f in findings:
         assert f"`{f.code}`" in text
-        assert f.message.replace("|", "\\|") in text
+        # numbers in the record follow the project's display units (README)
+        assert finding_message(f, project.unit_system).replace("|", "\\|") in text
     for e in events:
         assert e.message.replace("|", "\\|") in text
 
