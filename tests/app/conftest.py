@@ -16,6 +16,12 @@ TRANSFER = "fellgate_process_water_transfer.toml"
 NETWORK = "fellgate_cooling_water_network.toml"
 
 
+@pytest.fixture(autouse=True)
+def private_state_folder(tmp_path: Path, monkeypatch):
+    """Recovery copies of new projects go to a folder of the test's own, never the user's."""
+    monkeypatch.setenv("WORKBENCH_STATE_DIR", str(tmp_path / "state"))
+
+
 @pytest.fixture
 def project_file(tmp_path: Path):
     """Copy a demo project into tmp_path (tests never touch the real demo files)."""

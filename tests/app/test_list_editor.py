@@ -192,9 +192,10 @@ async def test_quitting_from_the_table_with_changes_asks_about_them_first(projec
 
 
 def test_the_key_list_names_the_table_keys():
+    from workbench.app.app import WorkbenchApp
     from workbench.app.screens.keys import binding_rows, key_contexts
 
-    rows = binding_rows(key_contexts())
+    rows = binding_rows(key_contexts(WorkbenchApp))
     assert ("list table", "Ctrl+S", "Apply") in rows
     assert ("list table", "a", "Add row") in rows
     assert ("list table", "[ / Ctrl+Up", "Row up") in rows

@@ -1,3 +1,3 @@
 """Shared fixtures: the app tests' copy of a demo project (tests never touch the demos)."""
 
-from tests.app.conftest import project_file  # noqa: F401 - a fixture, used by name
+from tests.app.conftest import private_state_folder, project_file  # noqa: F401 - fixtures

@@ -9,9 +9,24 @@ copy is gone with the edit in the file. A clean quit leaves no copy behind.
 from __future__ import annotations
 
 from tests.app.conftest import SIZE, TRANSFER, choose_entry, make, settle, type_into
-from workbench.project.recovery import recovery_path
 
 LINE = "310-PW-12"
+
+
+class KeptCopies:
+    """The recovery copies beside a project (one per workbench that kept edits)."""
+
+    def __init__(self, project):
+        self.project = project
+
+    def files(self):
+        return sorted(self.project.parent.glob(f".{self.project.stem}.recovery.*toml"))
+
+    def exists(self) -> bool:
+        return bool(self.files())
+
+    def read_text(self) -> str:
+        return "".join(p.read_text() for p in self.files())
 
 
 async def test_edits_survive_a_session_that_dies_and_come_back_on_the_next_open(project_file):
@@ -19,17 +34,17 @@ async def test_edits_survive_a_session_that_dies_and_come_back_on_the_next_open(
 
     path = project_file(TRANSFER)
     original = path.read_text()
-    copy = recovery_path(path)
+    copy_ = KeptCopies(path)
     app = make(path)
     async with app.run_test(size=SIZE) as pilot:
         await settle(pilot)
-        assert not copy.exists()
+        assert not copy_.exists()
         await choose_entry(pilot, f"lines:{LINE}")
         await type_into(pilot, f"lines.{LINE}.length", "265 m")
         assert app.modified
-        assert copy.exists() and 'length = "265 m"' in copy.read_text()
+        assert copy_.exists() and 'length = "265 m"' in copy_.read_text()
         app.exit()  # the session ends with no save and no quit prompt: a crash
-    assert path.read_text() == original and copy.exists()
+    assert path.read_text() == original and copy_.exists()
 
     again = make(path)
     async with again.run_test(size=SIZE) as pilot:
@@ -48,35 +63,35 @@ async def test_edits_survive_a_session_that_dies_and_come_back_on_the_next_open(
         await pilot.pause()
         assert not again.modified
     assert 'length = "265 m"' in path.read_text()
-    assert not copy.exists()
+    assert not copy_.exists()
 
 
 async def test_a_clean_quit_after_discarding_leaves_no_copy(project_file):
     path = project_file(TRANSFER)
-    copy = recovery_path(path)
+    copy_ = KeptCopies(path)
     app = make(path)
     async with app.run_test(size=SIZE) as pilot:
         await settle(pilot)
         await choose_entry(pilot, f"lines:{LINE}")
         await type_into(pilot, f"lines.{LINE}.length", "270 m")
-        assert copy.exists()
+        assert copy_.exists()
         await pilot.press("ctrl+q")
         await pilot.pause()
         await pilot.press("d")  # discard the edits and quit
         await pilot.pause()
-    assert not copy.exists()
+    assert not copy_.exists()
 
 
 async def test_undo_back_to_the_saved_state_removes_the_copy(project_file):
     path = project_file(TRANSFER)
-    copy = recovery_path(path)
+    copy_ = KeptCopies(path)
     app = make(path)
     async with app.run_test(size=SIZE) as pilot:
         await settle(pilot)
         await choose_entry(pilot, f"lines:{LINE}")
         await type_into(pilot, f"lines.{LINE}.length", "275 m")
-        assert copy.exists()
+        assert copy_.exists()
         await pilot.press("ctrl+z")
         await pilot.pause()
         assert not app.modified
-        assert not copy.exists()
+        assert not copy_.exists()

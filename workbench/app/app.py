@@ -18,8 +18,9 @@ from textual.message import Message
 from textual.reactive import var
 from textual.worker import Worker, WorkerState, get_current_worker
 
-from workbench.app import jobs, recovery_copy
+from workbench.app import jobs
 from workbench.app.history import History
+from workbench.app.recovery_copy import RecoveryKeeper
 
 #: Seconds between the last edit and the start of a steady solve.
 DEBOUNCE = 0.3
@@ -170,6 +171,9 @@ class WorkbenchApp(App[int]):
         """The line of the elastic run asked for from the Surge view (running or last)."""
         self._generation = 0
         self._steady_timer = None
+        self.recovery = RecoveryKeeper()
+        """This workbench's copy of unsaved edits, and the offers of others' copies."""
+        self._loading_path: Path | None = None
 
     def notify(self, message: str, *, title: str = "", severity="information",
                timeout: float | None = None, markup: bool = False) -> None:
@@ -184,7 +188,7 @@ class WorkbenchApp(App[int]):
 
     def on_mount(self) -> None:
         if self._initial_project is not None:
-            self._adopt(self._initial_project, self._initial_path or self._initial_project.path)
+            self.adopt(self._initial_project, self._initial_path or self._initial_project.path)
         elif self._initial_path is not None:
             # Start reading after the first frame is on screen, so the import of the
             # units and property libraries in the worker does not delay it.
@@ -192,7 +196,10 @@ class WorkbenchApp(App[int]):
             self.call_after_refresh(self.load_worker, self._initial_path)
         elif self._offer_new:
             # asked at once, so that a key pressed as soon as the screen shows answers it
-            self._ask_new()
+            self.recovery.offer_new(self, then=self._ask_new)
+
+    def on_unmount(self) -> None:
+        self.recovery.close()
 
     def _ask_new(self) -> None:
         from workbench.app.screens.dialogs import AskScreen
@@ -215,16 +222,18 @@ class WorkbenchApp(App[int]):
 
     @work(thread=True, exclusive=True, exit_on_error=False, group="load")
     def load_worker(self, path: Path | None) -> None:
+        self._loading_path = path
         project = jobs.load_starter() if path is None else jobs.load(path)
         self.post_message(self.ProjectLoaded(project, path))
 
     def on_workbench_app_project_loaded(self, message: ProjectLoaded) -> None:
-        self._adopt(message.project, message.path)
+        self.adopt(message.project, message.path)
         self.notify(f"opened {message.path}" if message.path else "new project from the starter")
 
-    def _adopt(self, project: Any, path: Path | None) -> None:
-        """Make ``project`` the open document with a fresh history."""
-        self.history = History.start(project, saved=path is not None)
+    def adopt(self, project: Any, path: Path | None, *, saved: bool = True,
+              offer_recovery: bool = True) -> None:
+        """Make ``project`` the open document with a fresh history (``saved``: as on disk)."""
+        self.history = History.start(project, saved=saved and path is not None)
         self.path = Path(path) if path is not None else None
         self.disk_hash = getattr(project, "loaded_hash", None) if path is not None else None
         if self.path is not None and self.disk_hash is None:
@@ -239,7 +248,8 @@ class WorkbenchApp(App[int]):
         self.run_progress = 0.0
         self.steady = None
         self._set_project(project)
-        recovery_copy.offer(self, self.path)  # unsaved edits of a session that died
+        if offer_recovery:
+            self.recovery.offer(self, self.path)  # unsaved edits of a session that died
 
     # --- edits -------------------------------------------------------------------------
     def apply_edit(self, change, *args: Any, label: str = "edit") -> Any:
@@ -262,7 +272,7 @@ class WorkbenchApp(App[int]):
     def _set_project(self, project: Any) -> None:
         self.project = project
         self.modified = self.history.modified if self.history else False
-        recovery_copy.keep(self)  # unsaved edits kept beside the project until saved
+        self.recovery.keep(self)  # unsaved edits kept beside the project until saved
         self.schedule_steady()
         self.refresh_bindings()
 
@@ -418,7 +428,9 @@ class WorkbenchApp(App[int]):
             self.elastic_status = "failed"
             self.refresh_bindings()
         elif worker.group == "load" and self.project is None:
-            self._show_load_problems(text)
+            if not self.recovery.offer_after_failed_load(
+                    self, self._loading_path, text, lambda: self._show_load_problems(text)):
+                self._show_load_problems(text)
             return
         title = {"steady": "Steady solve", "simulation": "Simulation", "load": "Open",
                  "elastic": "Elastic run"}.get(
@@ -468,7 +480,9 @@ class WorkbenchApp(App[int]):
     def action_keys(self) -> None:
         from workbench.app.screens.keys import KeysScreen
 
-        self.push_screen(KeysScreen())
+        from workbench.app.screens.keys import key_contexts
+
+        self.push_screen(KeysScreen(key_contexts(type(self))))
 
     def action_cautions(self) -> None:
         from workbench.app.screens.cautions import CautionsScreen

@@ -3,8 +3,9 @@
 Plain functions over the app, so the rules read in one place:
 
 * a save writes atomically through the project layer and keeps the user's comments;
-* if the file changed on disk since it was loaded (or last saved), say so before
-  overwriting it;
+  through a symbolic link it writes the file the link points to, and says so;
+* if the file changed on disk since it was loaded (or last saved), or is read-only, say so
+  before overwriting it;
 * quitting or opening another file with unsaved edits asks first.
 """
 
@@ -12,18 +13,15 @@ from __future__ import annotations
 
 from collections.abc import Callable
 from pathlib import Path
-from typing import TYPE_CHECKING
 
-from workbench.app import jobs, recovery_copy
+from workbench.app import jobs
+from workbench.app.host import DocumentHost
 from workbench.app.screens.dialogs import AskScreen, TextScreen
-
-if TYPE_CHECKING:
-    from workbench.app.app import WorkbenchApp
 
 DEFAULT_NEW_NAME = "new-system.toml"
 
 
-def save(app: "WorkbenchApp", ask_name: bool = False, then: Callable[[], None] | None = None) -> None:
+def save(app: DocumentHost, ask_name: bool = False, then: Callable[[], None] | None = None) -> None:
     """Save the project, asking for a file name when it has none (or when asked to)."""
     if app.project is None:
         return
@@ -48,7 +46,7 @@ def _check_new_path(text: str) -> str:
     return ""
 
 
-def _save_checked(app: "WorkbenchApp", path: Path, then: Callable[[], None] | None) -> None:
+def _save_checked(app: DocumentHost, path: Path, then: Callable[[], None] | None) -> None:
     """Save to ``path``, first asking if someone else changed the file since we read it."""
     now = jobs.file_hash(path)
     expected = app.disk_hash if path == app.path else None
@@ -58,17 +56,38 @@ def _save_checked(app: "WorkbenchApp", path: Path, then: Callable[[], None] | No
         app.push_screen(
             AskScreen(f"{path} {why}. Overwrite it with the version open here?",
                       [("o", "overwrite"), ("c", "cancel")], title="File changed"),
-            lambda key: _write(app, path, then) if key == "o" else None,
+            lambda key: _write_unless_read_only(app, path, then) if key == "o" else None,
         )
         return
-    _write(app, path, then)
+    _write_unless_read_only(app, path, then)
 
 
-def _write(app: "WorkbenchApp", path: Path, then: Callable[[], None] | None) -> None:
+def _write_unless_read_only(app: DocumentHost, path: Path,
+                            then: Callable[[], None] | None) -> None:
+    """Save, first asking before replacing a read-only file."""
+    from workbench.project.save import is_read_only, written_path
+
+    if not is_read_only(path):
+        _write(app, path, then)
+        return
+    real = written_path(path)
+    app.push_screen(
+        AskScreen(f"{real} is read-only (someone may have protected it on purpose). Replace "
+                  "it anyway with the version open here? It stays read-only.",
+                  [("r", "replace the read-only file"), ("a", "save under another name…"),
+                   ("c", "cancel")], title="Read-only file"),
+        lambda key: (_write(app, path, then, replace_read_only=True) if key == "r"
+                     else save(app, ask_name=True, then=then) if key == "a" else None),
+    )
+
+
+def _write(app: DocumentHost, path: Path, then: Callable[[], None] | None, *,
+           replace_read_only: bool = False) -> None:
     from workbench.project.document import save_project
+    from workbench.project.save import link_note
 
     try:
-        saved = save_project(app.project, path)
+        saved = save_project(app.project, path, replace_read_only=replace_read_only)
     except Exception as error:  # noqa: BLE001 - shown to the user in words
         app.notify(jobs.explain(error), title="Save failed", severity="error", timeout=10)
         return
@@ -81,14 +100,14 @@ def _write(app: "WorkbenchApp", path: Path, then: Callable[[], None] | None) -> 
     app.path = Path(path)
     app.disk_hash = jobs.file_hash(path)
     app.modified = False
-    recovery_copy.saved(app, old_path)
+    app.recovery.saved(app, old_path)
     app.project_saved(saved)
-    app.notify(f"saved {path}", timeout=3)
+    app.notify(f"saved {path}{link_note(path)}", timeout=3 if not link_note(path) else 6)
     if then is not None:
         then()
 
 
-def guard_unsaved(app: "WorkbenchApp", doing: str, proceed: Callable[[], None]) -> None:
+def guard_unsaved(app: DocumentHost, doing: str, proceed: Callable[[], None]) -> None:
     """Run ``proceed`` now, or after asking what to do with unsaved edits."""
     if not app.modified:
         proceed()
@@ -109,16 +128,16 @@ def guard_unsaved(app: "WorkbenchApp", doing: str, proceed: Callable[[], None]) 
     )
 
 
-def leave(app: "WorkbenchApp") -> None:
+def leave(app: DocumentHost) -> None:
     """Quit, asking first about unsaved edits."""
     def quit_cleanly() -> None:
-        recovery_copy.quitting(app)
+        app.recovery.quitting(app)
         app.exit(0)
 
     guard_unsaved(app, "quit", quit_cleanly)
 
 
-def open_other(app: "WorkbenchApp") -> None:
+def open_other(app: DocumentHost) -> None:
     """Open another project file, asking first about unsaved edits."""
 
     def ask_path() -> None:

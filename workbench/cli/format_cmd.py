@@ -2,7 +2,8 @@
 
 The canonical form keeps every value and comment; it only normalises spelling and spacing
 (see :func:`workbench.project.save.format_text`). With ``--check`` nothing is written and
-the exit status is 1 when a file is not canonical.
+the exit status is 1 when a file is not canonical. Through a symbolic link the file the link
+points to is written (and named); a read-only file is refused, never replaced.
 """
 
 from __future__ import annotations
@@ -26,18 +27,18 @@ def add_parser(subparsers, name: str, help_text: str) -> argparse.ArgumentParser
 
 def run(args: argparse.Namespace) -> ExitCode:
     from workbench.project.document import ProjectError, format_text
+    from workbench.project.load import read_project_bytes
     from workbench.project.problems import Problem
-    from workbench.project.save import atomic_write
+    from workbench.project.save import atomic_write, is_read_only, link_note, read_only_message
 
     status = ExitCode.OK
     for name in args.projects:
         path = Path(name)
         try:
             try:
-                text = path.read_bytes().decode("utf-8")
-            except (OSError, UnicodeDecodeError) as exc:
-                reason = getattr(exc, "strerror", None) or "not UTF-8 text"
-                raise ProjectError(Problem(name, "", f"cannot read: {reason}")) from None
+                text = read_project_bytes(path, name).decode("utf-8")
+            except UnicodeDecodeError:
+                raise ProjectError(Problem(name, "", "cannot read: not UTF-8 text")) from None
             try:
                 formatted = format_text(text)
             except ProjectError as exc:
@@ -49,12 +50,14 @@ def run(args: argparse.Namespace) -> ExitCode:
                 print(f"{name}: not in canonical form (run: workbench format {name})",
                       file=sys.stderr)
                 status = ExitCode.INVALID
+            elif is_read_only(path):
+                raise ProjectError(Problem(name, "", read_only_message()))
             else:
                 try:
                     atomic_write(path, formatted)
                 except OSError as exc:
                     raise ProjectError(Problem(name, "", f"cannot write: {exc.strerror or exc}")) from None
-                print(f"{name}: formatted")
+                print(f"{name}: formatted{link_note(path)}")
         except ProjectError as exc:
             for problem in exc.problems:
                 print(problem, file=sys.stderr)

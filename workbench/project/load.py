@@ -9,7 +9,9 @@ Version-control conflict markers are recognised and named as such.
 from __future__ import annotations
 
 import hashlib
+import os
 import re
+import stat
 import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -22,8 +24,11 @@ if TYPE_CHECKING:  # pragma: no cover
 
     from workbench.core.model import System
 
-__all__ = ["Project", "load_project", "load_project_text", "locate_key", "parse_data", "parse_doc",
+__all__ = ["MAX_FILE_BYTES", "Project", "load_project", "read_project_bytes", "load_project_text", "locate_key", "parse_data", "parse_doc",
            "parse_toml", "project_from_doc"]
+
+#: Largest project file read [bytes]: far beyond any plant's (the demos are a few kB).
+MAX_FILE_BYTES = 64 * 1024 * 1024
 
 _CONFLICT = re.compile(r"^(<{7}|={7}|>{7}|\|{7})(\s|$)")
 _TOML_POSITION = re.compile(r"\s*\(at line (\d+), column (\d+)\)\s*$")
@@ -195,19 +200,50 @@ def load_project_text(text: str, name: str = "<text>") -> Project:
     return project_from_doc(text, path=None, name=name, loaded_hash=digest)
 
 
-def load_project(path) -> Project:
-    """Load a project file; raises :class:`ProjectError` with every problem (never another
-    exception for bad input)."""
-    path = Path(path)
-    name = str(path)
+def read_project_bytes(path: Path, name: str) -> bytes:
+    """The bytes of a project file, refusing anything that is not a regular file.
+
+    A pipe would block the read forever and a device such as ``/dev/zero`` never ends, so
+    the path must name a regular file (through links) of at most :data:`MAX_FILE_BYTES`.
+
+    Raises
+    ------
+    ProjectError
+        For a missing, unreadable, non-regular or oversized file.
+    """
     try:
-        raw = path.read_bytes()
+        fd = os.open(path, os.O_RDONLY | getattr(os, "O_NONBLOCK", 0))
     except FileNotFoundError:
         raise ProjectError(Problem(name, "", "no such file")) from None
     except IsADirectoryError:
         raise ProjectError(Problem(name, "", "is a folder, not a project file")) from None
     except OSError as exc:
         raise ProjectError(Problem(name, "", f"cannot read: {exc.strerror or exc}")) from None
+    try:
+        info = os.fstat(fd)
+        if stat.S_ISDIR(info.st_mode):
+            raise ProjectError(Problem(name, "", "is a folder, not a project file"))
+        if not stat.S_ISREG(info.st_mode):
+            raise ProjectError(Problem(name, "", "is not a regular file (a pipe, device or "
+                                       "socket): give the path of a project file"))
+        if info.st_size > MAX_FILE_BYTES:
+            raise ProjectError(Problem(name, "", f"is {info.st_size / 1e6:,.0f} MB: far larger "
+                                       "than any project file (at most "
+                                       f"{MAX_FILE_BYTES // 2**20} MiB)"))
+        with os.fdopen(fd, "rb", closefd=False) as handle:
+            return handle.read(MAX_FILE_BYTES + 1)
+    except OSError as exc:
+        raise ProjectError(Problem(name, "", f"cannot read: {exc.strerror or exc}")) from None
+    finally:
+        os.close(fd)
+
+
+def load_project(path) -> Project:
+    """Load a project file; raises :class:`ProjectError` with every problem (never another
+    exception for bad input)."""
+    path = Path(path)
+    name = str(path)
+    raw = read_project_bytes(path, name)
     try:
         text = raw.decode("utf-8")
     except UnicodeDecodeError as exc:

@@ -4,7 +4,9 @@ A save writes the comment-preserving document (``tomlkit``) kept with the projec
 comments, key order and untouched lines stay as the user wrote them and a version-control
 diff shows only what changed. The write is atomic: a temporary file in the same folder is
 written, flushed and fsynced, then put in place with :func:`os.replace`, so a crash leaves
-either the old file or the complete new one.
+either the old file or the complete new one. A save through a symbolic link writes the
+file the link points to (the link stays); a file with other hard links is written in place
+so that every link keeps naming it; a read-only file is replaced only when asked to.
 
 :func:`format_text` gives a file's canonical form (what ``workbench format`` writes):
 ``key = value`` with single spaces, double-quoted strings, inline tables as
@@ -26,7 +28,8 @@ from typing import Any
 
 from workbench.project.problems import Problem, ProjectError
 
-__all__ = ["atomic_write", "format_text", "render_key", "render_value", "save_project"]
+__all__ = ["ReadOnlyFile", "atomic_write", "format_text", "is_read_only", "link_note",
+           "render_key", "render_value", "save_project", "written_path"]
 
 #: Longest one-line list before it is written one entry per line.
 LINE_WIDTH = 88
@@ -34,31 +37,89 @@ LINE_WIDTH = 88
 _BARE_KEY = re.compile(r"[A-Za-z0-9_-]+\Z")
 
 
-def atomic_write(path: str | os.PathLike, text: str) -> None:
-    """Write ``text`` (UTF-8) to ``path`` atomically: temp file, flush, fsync, replace."""
-    path = Path(path)
-    folder = path.parent if str(path.parent) else Path(".")
-    mode = None
+def written_path(path: str | os.PathLike) -> Path:
+    """The file a save to ``path`` writes: the end of its chain of symbolic links.
+
+    A project opened through a link is saved to the file the link points to, and the link
+    stays a link (replacing the link with a plain file would leave the real file unchanged
+    while saying "saved").
+    """
+    return Path(os.path.realpath(path))
+
+
+def is_read_only(path: str | os.PathLike) -> bool:
+    """True when the file exists and nobody may write it (no write bit in its mode).
+
+    Read from the mode rather than :func:`os.access`, which answers yes to root whatever
+    the mode says.
+    """
     try:
-        mode = path.stat().st_mode & 0o777
+        mode = Path(path).stat().st_mode
+    except OSError:
+        return False
+    return mode & 0o222 == 0
+
+
+def atomic_write(path: str | os.PathLike, text: str, *, follow_links: bool = True) -> Path:
+    """Write ``text`` (UTF-8) to ``path`` so that a crash never leaves it half-written.
+
+    The text goes to a temporary file in the same folder, flushed and fsynced, which then
+    replaces the file (:func:`os.replace`). Through a symbolic link (``follow_links``) the
+    file the link points to is written and the link kept. A file with other hard links is
+    written in place instead, so every name keeps showing the same file: the temporary
+    copy of the new text is kept until the file is complete, so even then a crash leaves
+    the complete new text beside the project.
+
+    Returns
+    -------
+    Path
+        The file written (the link's target when ``path`` is a link).
+    """
+    target = written_path(path) if follow_links else Path(path)
+    folder = target.parent if str(target.parent) else Path(".")
+    mode = None
+    links = 1
+    try:
+        info = target.stat() if follow_links else target.lstat()
+        mode, links = info.st_mode & 0o777, info.st_nlink
     except FileNotFoundError:
         pass
-    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=folder)
+    fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=folder)
+    data = text.encode("utf-8")
     try:
         with os.fdopen(fd, "wb") as handle:
-            handle.write(text.encode("utf-8"))
+            handle.write(data)
             handle.flush()
             os.fsync(handle.fileno())
         if mode is not None:
             os.chmod(tmp, mode)
-        os.replace(tmp, path)
+        if links > 1:
+            _write_in_place(target, data)
+            os.unlink(tmp)
+        else:
+            os.replace(tmp, target)
     except BaseException:
         try:
             os.unlink(tmp)
         except FileNotFoundError:
             pass
         raise
-    try:  # make the rename itself durable (POSIX); not possible everywhere
+    _sync_folder(folder)
+    return target
+
+
+def _write_in_place(target: Path, data: bytes) -> None:
+    """Overwrite a hard-linked file's contents (the inode, and so every link, kept)."""
+    with open(target, "r+b") as handle:
+        handle.write(data)
+        handle.truncate()
+        handle.flush()
+        os.fsync(handle.fileno())
+
+
+def _sync_folder(folder: Path) -> None:
+    """Make a rename durable (POSIX); not possible everywhere."""
+    try:
         dir_fd = os.open(folder, os.O_RDONLY)
     except OSError:
         return
@@ -70,7 +131,8 @@ def atomic_write(path: str | os.PathLike, text: str) -> None:
         os.close(dir_fd)
 
 
-def save_project(project, path: str | os.PathLike | None = None, *, check_unchanged: bool = False):
+def save_project(project, path: str | os.PathLike | None = None, *, check_unchanged: bool = False,
+                 replace_read_only: bool = False):
     """Save a project atomically, keeping comments and layout.
 
     Parameters
@@ -81,6 +143,8 @@ def save_project(project, path: str | os.PathLike | None = None, *, check_unchan
         Where to write; the path the project was loaded from by default.
     check_unchanged : bool
         Refuse to overwrite when the file on disk changed since the project was loaded.
+    replace_read_only : bool
+        Replace a read-only file (keeping it read-only); refused otherwise.
 
     Returns
     -------
@@ -91,7 +155,8 @@ def save_project(project, path: str | os.PathLike | None = None, *, check_unchan
     Raises
     ------
     ProjectError
-        When there is no path, the file changed on disk (with ``check_unchanged``), or the
+        When there is no path, the file changed on disk (with ``check_unchanged``), the
+        file is read-only (:class:`ReadOnlyFile`, unless ``replace_read_only``), or the
         write fails.
     """
     import dataclasses
@@ -109,6 +174,8 @@ def save_project(project, path: str | os.PathLike | None = None, *, check_unchan
         if on_disk is not None and on_disk != project.loaded_hash:
             raise ProjectError(Problem(name, "", "the file changed on disk since it was loaded; "
                                        "reload it or save under another name"))
+    if not replace_read_only and is_read_only(target):
+        raise ReadOnlyFile(Problem(name, "", read_only_message()))
     text = project.doc.as_string()
     try:
         atomic_write(target, text)
@@ -117,6 +184,24 @@ def save_project(project, path: str | os.PathLike | None = None, *, check_unchan
     digest = hashlib.sha256(text.encode("utf-8")).hexdigest()
     return dataclasses.replace(project, path=Path(target), text=text, loaded_hash=digest,
                                name=name)
+
+
+class ReadOnlyFile(ProjectError):
+    """The save would replace a read-only file: refused unless the user says so."""
+
+
+def read_only_message() -> str:
+    """Why a save stopped at a read-only file, and what to do."""
+    return ("the file is read-only: not overwritten; make it writable (chmod u+w) or save "
+            "under another name")
+
+
+def link_note(path: str | os.PathLike) -> str:
+    """`` (through the link to REAL)`` when a save to ``path`` wrote another file, else ``""``."""
+    real = written_path(path)
+    if real == Path(os.path.abspath(path)):
+        return ""
+    return f" (through the link to {real})"
 
 
 # ---------------------------------------------------------------------------------------

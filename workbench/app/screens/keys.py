@@ -44,9 +44,11 @@ def _key_label(key: str) -> str:
     return key
 
 
-def key_contexts() -> list[tuple[str, type]]:
-    """Where keys work, and the class that defines them."""
-    from workbench.app.app import WorkbenchApp
+def key_contexts(app_class: type) -> list[tuple[str, type]]:
+    """Where keys work, and the class that defines them.
+
+    ``app_class`` is the app's own class (given by the app, so this screen never imports it).
+    """
     from workbench.app.panes.elements import ElementList
     from workbench.app.panes.form import FieldInput
     from workbench.app.panes.grade import GradePane
@@ -56,7 +58,7 @@ def key_contexts() -> list[tuple[str, type]]:
     from workbench.app.screens.list_editor import CellInput, ListEditorScreen
 
     return [
-        ("anywhere", WorkbenchApp),
+        ("anywhere", app_class),
         ("element list", ElementList),
         ("field", FieldInput),
         ("list table", ListEditorScreen),
@@ -73,6 +75,10 @@ class KeysScreen(ModalScreen[None]):
 
     BINDINGS = [Binding("escape,q,f1", "close", "Close", id="keys.close")]
 
+    def __init__(self, contexts: list[tuple[str, type]]) -> None:
+        super().__init__()
+        self.contexts = contexts
+
     def compose(self) -> ComposeResult:
         with Vertical(classes="sheet") as box:
             box.border_title = "Keys"
@@ -82,7 +88,7 @@ class KeysScreen(ModalScreen[None]):
     def on_mount(self) -> None:
         table = self.query_one(DataTable)
         table.add_columns("where", "key", "does")
-        for where, keys, what in binding_rows(key_contexts()):
+        for where, keys, what in binding_rows(self.contexts):
             table.add_row(where, keys, what)
         table.add_row("anywhere", "Ctrl+P", "command palette")
         table.add_row("anywhere", "Tab / Shift+Tab", "next / previous field or table")
