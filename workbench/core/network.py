@@ -97,9 +97,13 @@ class NodeResult:
     """One node of a steady solution."""
 
     head: float
-    """Piezometric head [m] (``nan`` for an isolated junction)."""
+    """Head [m] (``nan`` for an isolated junction): at a reservoir or receiver its free
+    surface or pressure head; at a junction the energy head ``z + p/(rho g) + alpha
+    v^2/2g`` the lines meeting there share (no loss at the junction itself)."""
     pressure: float
-    """Gauge pressure at the node elevation [Pa]."""
+    """Gauge pressure at the node elevation [Pa]: at a reservoir at its bottom, at a junction
+    the lowest static pressure of the flowing lines meeting there (the energy head less the
+    largest ``alpha v^2/2g`` among them), never above the pressure in any of them."""
     elevation: float
     """[m]"""
     kind: str
@@ -416,6 +420,27 @@ def solve_steady(system: System, *, levels: dict[str, float] | None = None,
                      total_it, residuals, t0, cut & ~shut & ~back)
 
 
+def node_static_heads(topo: Topology, node_h: np.ndarray, details: dict[str, np.ndarray],
+                      status: list[str]) -> np.ndarray:
+    """Head for each node's reported pressure [m]: a junction's energy head less the largest
+    kinetic energy ``alpha v^2/2g`` of the flowing lines meeting there, so its pressure is
+    the lowest static pressure in those lines (never above any of them); a fixed node's head.
+
+    The network equations join lines at a junction by one energy head (no loss at the
+    junction itself), which is what ``head`` reports; each line's static pressure there is
+    its own velocity head below it (:func:`workbench.core.checks.line_profiles`).
+    """
+    nj = topo.n_junctions
+    flowing = np.array([st in ("flowing", "siphon_break") for st in status], dtype=bool)
+    ke = np.where(flowing, np.abs(details["velocity_head"])
+                  * np.asarray(details["kinetic_energy_coefficient"], dtype=float), 0.0)
+    largest = np.zeros(len(node_h))
+    np.maximum.at(largest, topo.line_from, ke)
+    np.maximum.at(largest, topo.line_to, ke)
+    largest[nj:] = 0.0
+    return node_h - largest
+
+
 def _assemble(system, topo, lines, newton, x, h_fixed, x_open, shut, back, levels,
               iterations, residuals, t0, cut=None) -> SteadyResult:
     nj = topo.n_junctions
@@ -456,10 +481,13 @@ def _assemble(system, topo, lines, newton, x, h_fixed, x_open, shut, back, level
                              node_h[topo.line_to], det, status)
     nodes: dict[str, NodeResult] = {}
     kinds = ("junction",) * nj + tuple(topo.fixed_kind)
+    static = node_static_heads(topo, node_h, det, status)
     for k, nid in enumerate(topo.node_ids):
         z = system.node_elevation(nid)
         hk = float(node_h[k])
-        p = rho * G * (hk - z)  # at a reservoir: at the bottom, where the lines connect
+        # at a reservoir: at the bottom, where the lines connect; at a junction: the lowest
+        # static pressure of the lines meeting there
+        p = rho * G * (float(static[k]) - z)
         nodes[nid] = NodeResult(head=hk, pressure=float(p), elevation=z, kind=kinds[k])
     lv = {rid: levels.get(rid, r.level) for rid, r in system.reservoirs.items()}
     isolated = tuple(j for j, iso in zip(topo.junction_ids, newton.isolated, strict=True) if iso)

@@ -44,6 +44,12 @@ def steady_to_json(result: SteadyResult, system: System) -> dict:
     ``warnings`` [{``code``, ``element``, ``message``, ...}]. Values that do not exist (the
     friction factor of a line without flow, the head of an isolated junction) are ``null``.
 
+    Grade lines: a junction's ``head_m`` is the energy head the lines meeting there share,
+    its ``pressure_pa`` the lowest static pressure among those lines; a line's profile
+    ``hgl_m``, ``pressure_pa`` and ``pressure_abs_pa`` are static (piezometric, the energy
+    head ``egl_m`` less the line's own ``alpha v^2/2g``). A warning with numbers adds
+    ``values`` {slot: {``value`` (SI), ``kind``}}.
+
     Tank nodes add their volume balance at the solved flows: ``lines_net_inflow_m3_s``,
     ``inflow_m3_s`` (feed, at time zero when scheduled), ``draw_off_m3_s``,
     ``net_inflow_m3_s`` and ``level_rate_m_s`` (positive rising).

@@ -130,7 +130,9 @@ def line_end_heads(model: TransientModel, q, qdot, h_nodes_from, h_nodes_to):
     Without a valve both ends follow from the node heads (less the entrance loss and the
     kinetic energy of the developed profile, ``alpha`` velocity heads, where the flow leaves
     a free surface; a line discharging into a free surface or the air keeps the head of
-    what it discharges into, its exit loss being that ``alpha v^2/2g``). With a valve, the
+    what it discharges into, its exit loss being that ``alpha v^2/2g``; at a junction, whose
+    head is an energy head, less the line's own ``alpha v^2/2g`` in either direction, as
+    :func:`workbench.core.checks.line_profiles` does). With a valve, the
     valve's end is found from the momentum balance of the pipe instead,
     ``H_a - H_b = h_pipe(Q) + (L/gA) dQ/dt`` with ``dQ/dt`` taken from the integrated
     trajectory: near the end of a closure ``K_valve Q^2`` multiplies a tiny, inexact flow by
@@ -143,9 +145,15 @@ def line_end_heads(model: TransientModel, q, qdot, h_nodes_from, h_nodes_to):
     # Leaving a free surface into the line: piezometric head drops by (alpha + K_entrance)
     # v^2/2g, alpha the kinetic-energy coefficient (2 laminar, 1 turbulent), as in the
     # steady grade line (workbench.core.checks.line_profiles).
+    # At a junction the node head is the energy head shared by the lines meeting there (no
+    # entrance or exit loss): each line's static head there is alpha velocity heads below it,
+    # its own, in either direction (one grade line with solve's).
     alpha, _ = exit_k(np.abs(v) * (lines.diameter / lines.kinematic_viscosity))
-    drop_a = np.where(fwd & model.from_free, (alpha + model.entrance_k) * np.abs(vh), 0.0)
-    drop_b = np.where(~fwd & model.to_free, (alpha + model.entrance_k) * np.abs(vh), 0.0)
+    ke = alpha * np.abs(vh)
+    drop_a = np.where(fwd & model.from_free, (alpha + model.entrance_k) * np.abs(vh),
+                      np.where(model.from_junction, ke, 0.0))
+    drop_b = np.where(~fwd & model.to_free, (alpha + model.entrance_k) * np.abs(vh),
+                      np.where(model.to_junction, ke, 0.0))
     h_a = h_nodes_from - drop_a
     h_b = h_nodes_to - drop_b
     if model.valve_lines.size:

@@ -192,6 +192,8 @@ class TransientModel:
         lines = self.lines
         self.from_free = np.array([k in ("reservoir", "vessel") for k in lines.from_kind])
         self.to_free = np.array([k in ("reservoir", "vessel") for k in lines.to_kind])
+        self.from_junction = np.array([k == "junction" for k in lines.from_kind])
+        self.to_junction = np.array([k == "junction" for k in lines.to_kind])
         valve_at_to = np.zeros(self.nl, bool)
         valve_at_from = np.zeros(self.nl, bool)
         for i, lid in enumerate(self.topo.line_ids):
