@@ -1,4 +1,4 @@
-"""The compiled time-stepping kernel of the elastic surge model (workbench.core.elastic_kernel).
+"""The time-stepping kernels of the elastic surge model (workbench.core.elastic.kernel).
 
 The numbers themselves are checked against outside references in test_elastic_surge.py,
 which runs every case on both kernels. Here: the compiled kernel's scalar friction against
@@ -13,7 +13,7 @@ import math
 import numpy as np
 import pytest
 
-from workbench.core import elastic_kernel
+from workbench.core.elastic import kernel as elastic_kernel
 from workbench.core.elastic import simulate_elastic
 from workbench.core.friction import friction_re_product
 from workbench.core.model import (
@@ -36,13 +36,15 @@ needs_compiled = pytest.mark.skipif(
 WATER = FluidProps("water", 998.207, 1.0016e-3, 2339.2, 2.19e9, 293.15)
 
 
+@needs_compiled
 @pytest.mark.parametrize("re", [1e3, 2.5e3, 3.9e3, 1e4, 1e5, 1e6, 1e8])
 @pytest.mark.parametrize("rr", [0.0, 1e-5, 1e-3, 0.05])
 def test_scalar_friction_equals_the_array_form_and_colebrook(re, rr):
     # The scalar twin against the array function used by the numpy kernel (same formula),
     # and above Re = 4000 against Colebrook's equation solved by the `fluids` package
     # (fluids.friction.Colebrook, Colebrook 1939).
-    phi = elastic_kernel.friction_re_product_scalar(re, rr)
+    compiled = pytest.importorskip("workbench.core.elastic.compiled")
+    phi = compiled.friction_re_product_scalar(re, rr)
     ref, _ = friction_re_product(np.array([re]), np.array([rr]))
     assert phi == pytest.approx(float(ref[0]), rel=1e-13)
     if re >= 4000.0:
@@ -195,7 +197,7 @@ def test_the_environment_variable_overrides_auto_but_not_an_explicit_choice(monk
 
 
 def test_without_numba_every_choice_is_numpy(monkeypatch):
-    monkeypatch.setattr(elastic_kernel, "_JIT", None)
+    monkeypatch.setattr(elastic_kernel, "_numba_found", False)
     assert elastic_kernel.choose_kernel("compiled") == "numpy"
     assert elastic_kernel.choose_kernel("auto", updates=math.inf) == "numpy"
     res = simulate_elastic(single(closing(1.0)), "L1", duration=2.0, kernel="compiled")
@@ -210,10 +212,32 @@ def test_an_unknown_kernel_is_refused_in_words():
 @needs_compiled
 def test_a_run_whose_heads_stop_being_numbers_fails_in_words(monkeypatch):
     # Guard: a kernel that returned NaN heads must never reach the engineer as a result.
-    def poisoned(h_init, b_node, q0, r_node, quasi, bounds, kappa_t, n_steps, h_max, *rest):
-        h_max[3] = math.nan
-        return n_steps, False, None
+    def poisoned(plan, out, progress=None, cancel=None):
+        out.h_max[3] = math.nan
+        return plan.n_steps, False
 
     monkeypatch.setattr(elastic_kernel, "run_compiled", poisoned)
     res = simulate_elastic(single(closing(1.0)), "L1", duration=1.0, kernel="compiled")
     assert not res.success and "stopped being finite numbers" in res.message
+
+
+def test_numba_is_not_imported_for_the_package_or_a_short_default_run():
+    # numba is an optional extra (issue 17): importing the elastic package and a short run
+    # with kernel="auto" in a fresh process must leave it unloaded (its start-up costs a
+    # large part of a second).
+    import subprocess
+    import sys
+
+    code = (
+        "import sys\n"
+        "from tests.core.test_elastic_kernel import single, closing\n"
+        "from workbench.core.elastic import simulate_elastic\n"
+        "res = simulate_elastic(single(closing(1.0)), 'L1', duration=2.0)\n"
+        "assert res.success, res.message\n"
+        "print(res.kernel, 'numba' in sys.modules)\n"
+    )
+    env = {k: v for k, v in __import__("os").environ.items()
+           if k != elastic_kernel.KERNEL_ENV}
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                         check=True, env=env).stdout.split()
+    assert out == ["numpy", "False"]

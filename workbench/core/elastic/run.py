@@ -1,0 +1,160 @@
+"""The entry points of the elastic model: :func:`simulate_elastic` and :func:`run_elastic`."""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+
+from workbench.core.elastic.grid import SPEED_TOLERANCE
+from workbench.core.elastic.kernel import run_march
+from workbench.core.elastic.post import assemble
+from workbench.core.elastic.results import (
+    STATUS_MESSAGES,
+    ElasticResult,
+    ElasticSetupError,
+    failed,
+)
+from workbench.core.elastic.setup import prepare
+from workbench.core.elastic.topology import series_chain
+from workbench.core.model import System
+
+
+def simulate_elastic(
+    system: System,
+    line_id: str,
+    *,
+    duration: float | None = None,
+    max_duration: float | None = None,
+    reaches: int | dict[str, int] | None = None,
+    friction: str = "initial",
+    speed_tolerance: float = SPEED_TOLERANCE,
+    wave_speeds: dict[str, float] | None = None,
+    progress: Callable[[float], None] | None = None,
+    cancel: Callable[[], bool] | None = None,
+    kernel: str = "auto",
+) -> ElasticResult:
+    r"""Run the method of characteristics on the lines run together with a line.
+
+    Parameters
+    ----------
+    system : System
+        The validated system (SI).
+    line_id : str
+        A line of the chain; the whole chain (see :func:`series_chain`) is run.
+    duration : float, optional
+        Simulated time [s]. Default: the last valve movement plus
+        :data:`DEFAULT_ROUND_TRIPS` round trips ``2*sum(L/a)`` of the lines, but no longer
+        than the project's simulation duration when that is shorter.
+    max_duration : float, optional
+        Upper limit on the default duration [s] (e.g. a shorter ``--duration`` given for
+        the whole run); ignored when ``duration`` is given.
+    reaches : int or dict, optional
+        Reach count for ``line_id`` (an int) or per line (a dict); default each line's
+        ``surge.reaches``, else automatic (:data:`AUTO_REACHES` on the line with the
+        shortest travel time ``L/a``, finer when a valve movement needs it, see
+        :func:`workbench.core.elastic.grid.choose_grid`).
+    friction : str
+        A key of :data:`FRICTION_MODELS`.
+    speed_tolerance : float
+        Largest relative wave-speed adjustment accepted before the time step is refined [-].
+    wave_speeds : dict, optional
+        Wave speeds [m/s] per line that replace the Korteweg value (e.g. measured ones).
+    progress : callable, optional
+        Called with the fraction of simulated time done, 0..1.
+    cancel : callable, optional
+        Polled between blocks of steps; returning true stops the run (status -2).
+    kernel : str
+        ``"compiled"`` (numba), ``"numpy"`` or ``"auto"`` (the compiled kernel for a long
+        run or once it is loaded, see :func:`workbench.core.elastic.kernel.choose_kernel`).
+        Both give the same numbers to round-off. Without numba, numpy is always used.
+
+    Returns
+    -------
+    ElasticResult
+        Never raises for a physical set-up problem: ``success`` is false and ``message``
+        says what is missing.
+
+    Notes
+    -----
+    The initial state is the steady flow at the valve openings at ``t = 0``
+    (:mod:`workbench.core.elastic.steady`), an equilibrium of the discrete equations, even
+    when the project asks a rigid-column run to start at rest.
+
+    References
+    ----------
+    Wylie, E. B. and Streeter, V. L. (1993). *Fluid Transients in Systems*. Prentice Hall,
+    ch. 3 (characteristics, boundary conditions, series pipes, Courant number).
+
+    Examples
+    --------
+    Instantaneous closure at the end of a frictionless 600 m line: the valve head rises by
+    Joukowsky's ``a*v0/g``.
+
+    >>> from workbench.core.model import (FluidProps, Line, Receiver, Reservoir, System,
+    ...                                   Valve, ValveSchedule)
+    >>> water = FluidProps("water", 998.2, 1.0e-3, 2339.2, 2.19e9)
+    >>> shut = Valve("linear", 62.0, schedule=ValveSchedule((0.0, 1e-6), (1.0, 0.0)))
+    >>> line = Line("L1", "R1", "OUT", 600.0, 0.3, friction_factor=0.0, entrance_k=0.0,
+    ...             valve=shut)
+    >>> system = System("doc", water, {"R1": Reservoir("R1", "constant_level", 0.0, 20.0)},
+    ...                 {}, {"OUT": Receiver("OUT", "open_discharge", 0.0)}, {"L1": line})
+    >>> res = simulate_elastic(system, "L1", wave_speeds={"L1": 1300.0}, duration=0.5)
+    >>> round(float(res.valve_head[1] - res.valve_head[0]), 2)
+    330.78
+    """
+    try:
+        lines = [system.lines[lid] for lid in series_chain(system, line_id)]
+        setup = prepare(system, line_id, lines, duration=duration, max_duration=max_duration,
+                        reaches=reaches, friction=friction, tolerance=speed_tolerance,
+                        speeds=wave_speeds)
+        notes = setup.notes
+        out, steps, cancelled, used = run_march(setup.plan, kernel, notes, progress, cancel)
+    except (ElasticSetupError, ValueError, KeyError) as exc:
+        # set-up problems (missing data, unknown fitting or characteristic names, bad wave
+        # speed inputs) come back as a failed result whose message says what was wrong
+        text = exc.args[0] if isinstance(exc, KeyError) and exc.args else exc
+        return failed(f"{STATUS_MESSAGES[-1]} {text}")
+    return assemble(setup, out, steps, cancelled, system, used)
+
+
+def run_elastic(
+    system: System,
+    line_ids: tuple[str, ...] | list[str],
+    *,
+    duration: float | None = None,
+    max_duration: float | None = None,
+    progress: Callable[[float], None] | None = None,
+    cancel: Callable[[], bool] | None = None,
+) -> dict[str, ElasticResult]:
+    """Run every group of lines that contains one of ``line_ids`` once; map each line to it.
+
+    This is the entry point of ``workbench simulate``: pass
+    ``elastic_line_ids(system, extra)``. A group that cannot be run gives a failed result
+    (``success`` false) under each of its requested lines.
+
+    Returns
+    -------
+    dict
+        Line id -> the :class:`ElasticResult` of its group, for every line of every group
+        run (requested lines first).
+    """
+    out: dict[str, ElasticResult] = {}
+    n = max(len(line_ids), 1)
+    for done, lid in enumerate(line_ids):
+        if lid in out:
+            continue
+        try:
+            chain = series_chain(system, lid)
+        except ElasticSetupError as exc:
+            out[lid] = failed(f"{STATUS_MESSAGES[-1]} {exc}", line_ids=(lid,))
+            continue
+        sub = None
+        if progress is not None:
+            base = done / n
+            sub = lambda frac, base=base: progress(base + frac / n)  # noqa: E731
+        res = simulate_elastic(system, lid, duration=duration, max_duration=max_duration,
+                               progress=sub, cancel=cancel)
+        for member in chain:
+            out.setdefault(member, res)
+        if res.status == -2:
+            break
+    return out
