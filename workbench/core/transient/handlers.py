@@ -117,7 +117,11 @@ def overflow_cause(model: TransientModel, state: RunState, k: int, t: float,
         return ""
     feed, draw = model.external(t)
     draw_k = 0.0 if state.drained[k] else float(draw[k])
-    lines_net = float(model.t_rows[k] @ y[: model.nl])
+    # flows of shut lines are the integrator's round-off (about 1e-45), not a flow
+    shut = state.blocked | state.backstopped
+    if state.valve_shut is not None:
+        shut = shut | state.valve_shut
+    lines_net = float(model.t_rows[k] @ np.where(shut, 0.0, y[: model.nl]))
     if feed[k] <= 0.0:
         return ""
     out_total = draw_k - min(lines_net, 0.0)
