@@ -81,6 +81,31 @@ class FlowSchedule:
 
 
 @dataclass(frozen=True)
+class Vent:
+    """A tank's opening to the atmosphere for its gas space (see :mod:`workbench.core.vent`).
+
+    Every form the project file allows reduces to one effective area ``C_d A = A/sqrt(K)``:
+    a bore ``A`` with loss coefficient ``K`` (``dp = K rho v^2/2``), or a stated flow of air
+    at a stated pressure drop (air at 20 degC and 1 atm). A sealed tank has none (0).
+    """
+
+    effective_area: float
+    """``C_d A`` [m^2]; 0 for a sealed tank (``vent = "none"``)."""
+    diameter: float | None = None
+    """Bore of a vent given by size [m]."""
+    k: float | None = None
+    """Loss coefficient of a vent given by size, referred to its bore's velocity [-]."""
+    rated_flow: float | None = None
+    """Stated air flow [m^3/s] at :attr:`rated_pressure_drop` (air at 20 degC, 1 atm)."""
+    rated_pressure_drop: float | None = None
+    """[Pa]"""
+
+    @property
+    def sealed(self) -> bool:
+        return self.effective_area <= 0.0
+
+
+@dataclass(frozen=True)
 class Reservoir:
     """A free liquid surface: a constant-level source/sink, or a tank whose level moves."""
 
@@ -110,6 +135,20 @@ class Reservoir:
     restart_level: float | None = None
     """Tank: level at which a drained tank's outlets and draw-off start again [m above
     bottom], above :attr:`min_level`; ``None``: see :func:`restart_level`."""
+    vent: Vent | None = None
+    """Tank: its vent; ``None`` for a tank open to the atmosphere (the gas space is not
+    modelled and the surface stands at :attr:`surface_pressure`)."""
+    gas_pressure: float = 0.0
+    """Tank with a vent: gauge pressure of the gas space at the start [Pa]."""
+    design_vacuum: float | None = None
+    """The vacuum the tank is built for, a positive gauge figure [Pa]."""
+    design_pressure: float | None = None
+    """The gas-space pressure the tank is built for, gauge [Pa]."""
+    gas_process: Literal["isothermal", "adiabatic"] = "isothermal"
+    """How the gas space's pressure follows its density (see :mod:`workbench.core.vent`)."""
+    shell_height: float | None = None
+    """Tank with a vent: height of the gas space's top above the bottom [m]; ``None``: the
+    overflow level :attr:`height` (or the top of a closed shape)."""
 
     @property
     def has_external_flow(self) -> bool:

@@ -18,6 +18,7 @@ from workbench.core.transient.loop import Run
 from workbench.core.transient.model import TransientModel
 from workbench.core.transient.results import TransientResult
 from workbench.core.transient.submergence import submergence
+from workbench.core.transient import venting
 
 #: Gauge pressure below which a run's minimum counts as sub-atmospheric [Pa]: below the
 #: solver's rounding at free outlets (about 1e-9 Pa), far above any pressure that matters.
@@ -31,9 +32,9 @@ def finish(model: TransientModel, run: Run, outcome, wall: float) -> TransientRe
     state, rec = run.state, run.rec
     nl = model.nl
     t = np.array(rec.t_out)
-    ys = np.array(rec.y_out).T if rec.y_out else np.zeros((nl + model.nt, 0))
+    ys = np.array(rec.y_out).T if rec.y_out else np.zeros((nl + model.nt + model.ng, 0))
     flows = ys[:nl]
-    volumes = ys[nl:]
+    volumes = ys[nl:nl + model.nt]
     levels = np.array([[g.level_extrapolated(v) for v in row]
                        for g, row in zip(model.geoms, volumes)]).reshape(model.nt, len(t))
     feeds, draw_offs = external_series(model, run, t)
@@ -46,6 +47,11 @@ def finish(model: TransientModel, run: Run, outcome, wall: float) -> TransientRe
     vortex_events, vortex_findings = submergence(model, t, flows, levels)
     warnings.extend(vortex_findings)
     warnings.extend(cycling_findings(model, run))
+    gas_p, gas_m = venting.gas_series(model, ys)
+    inb, outb = venting.required_venting(model, ys, feeds, draw_offs, spills)
+    warnings.extend(venting.vent_findings(model, t, gas_p, inb, outb))
+    stop_events, stop_findings = venting.stopped_drains(model, state, t, ys, gas_p)
+    warnings.extend(stop_findings)
     return TransientResult(
         success=status in (0, 1),
         status=status,
@@ -56,7 +62,8 @@ def finish(model: TransientModel, run: Run, outcome, wall: float) -> TransientRe
         tank_ids=model.tank_ids,
         levels=levels,
         volumes=volumes,
-        events=tuple(sorted([*state.events, *vortex_events], key=lambda e: e.time)),
+        events=tuple(sorted([*state.events, *vortex_events, *stop_events],
+                            key=lambda e: e.time)),
         **pressures,
         warnings=tuple(warnings),
         drain_times=dict(state.drain_times),
@@ -65,6 +72,11 @@ def finish(model: TransientModel, run: Run, outcome, wall: float) -> TransientRe
         end_rates=end_rates,
         end_states=states,
         spills=spills,
+        gas_tank_ids=model.gas.ids,
+        gas_pressures=gas_p,
+        gas_masses=gas_m,
+        required_inbreathing=inb,
+        required_outbreathing=outb,
         method=run.options.method,
         nfev=run.nfev,
         njev=run.njev,

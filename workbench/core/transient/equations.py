@@ -66,7 +66,7 @@ class Equations:
         if c is not None and c[0] == t and np.array_equal(c[1], y):
             return c[2]
         nl = self.model.nl
-        hf, levels = self.model.fixed_heads(y[nl:])
+        hf, levels = self.model.fixed_heads(y[nl:])  # [V, X]
         h, dh = self.model.lines.head_loss(y[:nl], self._openings(t))
         out = (hf, levels, h, dh)
         self._cache = (t, y.copy(), out)
@@ -84,12 +84,17 @@ class Equations:
         nl = model.nl
         hf, _, h, _ = self.losses(t, y)
         g = (model.ft @ hf + h) * cfg.open_f
-        out = np.empty(nl + model.nt)
+        nv = nl + model.nt
+        out = np.empty(nv + model.ng)
         out[:nl] = cfg.s @ g
         out[:nl] *= -1.0
-        out[nl:] = cfg.t_rows @ y[:nl]
+        out[nl:nv] = cfg.t_rows @ y[:nl]
         if model.has_ext:  # independent of the state: the Jacobian is unchanged
-            out[nl:] += cfg.ext_on * self.external_net(t)
+            out[nl:nv] += cfg.ext_on * self.external_net(t)
+        if model.ng:  # dX/dt = mdot(p) + rho_atm dV/dt (see workbench.core.transient.gas)
+            gas = model.gas
+            p, rho, _ = gas.state(y[nl:nv], y[nv:])
+            out[nv:] = gas.inflow(p, rho) + gas.rho_atm * out[nl + gas.tank]
         return out
 
     def jac(self, t, y):
@@ -98,13 +103,37 @@ class Equations:
         nl, nt = model.nl, model.nt
         _, _, _, dh = self.losses(t, y)
         dh = dh * cfg.open_f
-        j = np.zeros((nl + nt, nl + nt))
+        nv = nl + nt
+        j = np.zeros((nv + model.ng, nv + model.ng))
         j[:nl, :nl] = -cfg.s * dh[None, :]
         if nt:
-            levels = model.tank_levels(y[nl:])
+            levels = model.tank_levels(y[nl:nv])
             inv_a = np.array([1.0 / g.area_floor(lv, 1e-9) for g, lv in zip(model.geoms, levels)])
+            if model.ng:
+                return self._jac_gas(y, j, inv_a)
             j[:nl, nl:] = -cfg.s_tank * inv_a[None, :]
             j[nl:, :nl] = cfg.t_rows
+        return j
+
+    def _jac_gas(self, y, j, inv_a):
+        """The Jacobian's tank and gas-space blocks when tanks have gas spaces: a tank's
+        head moves with its level and its gauge pressure over ``rho g``, and
+        ``dX/dt = mdot(p) + rho_atm dV/dt``."""
+        model, cfg = self.model, self.cfg
+        nl, nt = model.nl, model.nt
+        nv = nl + nt
+        gas = model.gas
+        dp_dv, dp_dx, dm_dp = gas.derivatives(y[nl:nv], y[nv:])
+        rg = model.rho * G
+        dh_dv = inv_a.copy()
+        dh_dv[gas.tank] += dp_dv / rg
+        j[:nl, nl:nv] = -cfg.s_tank * dh_dv[None, :]
+        j[:nl, nv:] = -cfg.s_tank[:, gas.tank] * (dp_dx / rg)[None, :]
+        j[nl:nv, :nl] = cfg.t_rows
+        rows = np.arange(nv, nv + model.ng)
+        j[rows, :] = gas.rho_atm * j[nl + gas.tank, :]
+        j[rows, nl + gas.tank] += dm_dp * dp_dv
+        j[rows, rows] += dm_dp * dp_dx
         return j
 
     def heads(self, t, y):

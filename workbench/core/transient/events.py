@@ -52,7 +52,7 @@ def event_values(eq: Equations, t: float, y: np.ndarray) -> np.ndarray:
     model, state = eq.model, eq.state
     nl = model.nl
     q = y[:nl]
-    v = y[nl:]
+    v = y[nl:nl + model.nt]
     sign = model.discharge_sign
     if state.backstopped.any():
         drive = eq.discharge_drive(t, y)

@@ -155,6 +155,27 @@ def _release(model: TransientModel, state: RunState, i: int, t: float) -> None:
                 "again: the line restarts (full-bore assumed)")
 
 
+def sealed_stop(model: TransientModel, state: RunState, i: int, t: float,
+                y: np.ndarray) -> None:
+    """Line ``i`` stopped or reversed at ``t``: a tank it connects to whose gas space is
+    under vacuum has had its drain stopped by that vacuum (``tank.sealed_stop``, once)."""
+    if not model.ng:
+        return
+    gas, nl, nt = model.gas, model.nl, model.nt
+    p = gas.gauge(y[nl:nl + nt], y[nl + nt:])
+    for g, k in enumerate(gas.tank.tolist()):
+        tid = gas.ids[g]
+        if model.t_rows[k, i] == 0.0 or p[g] >= -1.0 or tid in state.sealed_stops:
+            continue
+        state.sealed_stops[tid] = float(t)
+        level = model.geoms[k].level_extrapolated(float(y[nl + k]))
+        lid = model.topo.line_ids[i]
+        state.event(t, "tank.sealed_stop", tid,
+                    f"the drain of tank {tid} through line {lid} stops at a level of "
+                    f"{level:.4g} m: the vacuum in its gas space, {-p[g] / 1000:.3g} kPa, "
+                    "balances the head over the outlet")
+
+
 def apply_terminal(model: TransientModel, state: RunState, events: ev.EventSet, hits,
                    y: np.ndarray, stop_when: str | None) -> bool:
     """Apply the terminal events ``hits`` (``(time, component)``); return True when the
@@ -169,6 +190,7 @@ def apply_terminal(model: TransientModel, state: RunState, events: ev.EventSet, 
             _spill_end(model, state, idx, te)
         elif kind == ev.DISCHARGE_STOP:
             _discharge_stop(model, state, idx, te)
+            sealed_stop(model, state, idx, te, y)
         elif kind == ev.RELEASE:
             _release(model, state, idx, te)
         elif kind == ev.REFILL:

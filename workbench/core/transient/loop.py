@@ -62,23 +62,47 @@ class Run:
             bad = [r.id for r, v in zip(model.tanks, v0) if np.isnan(v)]
             raise ValueError(f"tank(s) {', '.join(bad)}: initial level above the top of the shape")
         q0 = np.zeros(model.nl)
+        p0 = model.gas.p0.copy()
         if self.options.initial_state == "steady":
-            from workbench.core.network import solve_steady
+            q0, p0 = self._steady_start(p0)
+        if not model.ng:
+            return np.concatenate([q0, v0])
+        return np.concatenate([q0, v0, model.gas.excess(v0, p0)])
 
-            levels = {r.id: r.level for r in model.tanks}
-            openings = {}
-            for i in model.valve_lines:
-                lid = model.topo.line_ids[i]
-                openings[lid] = float(model.lines.openings_at(0.0)[i])
-            res = solve_steady(model.system, levels=levels, openings=openings)
+    def _steady_start(self, p0: np.ndarray):
+        """Steady flows at the initial levels and openings [m^3/s], and the gas spaces'
+        gauge pressures [Pa]: a vented tank's is the one at which its vent passes the air
+        its steady outflow makes room for (:func:`steady_gas_pressures`); a sealed tank
+        keeps its initial pressure."""
+        from workbench.core.network import solve_steady
+        from workbench.core.transient.gas import steady_gas_pressures
+
+        model = self.model
+        levels = {r.id: r.level for r in model.tanks}
+        openings = {}
+        for i in model.valve_lines:
+            lid = model.topo.line_ids[i]
+            openings[lid] = float(model.lines.openings_at(0.0)[i])
+
+        def solve(system):
+            res = solve_steady(system, levels=levels, openings=openings)
             if not res.success:
                 raise InitialStateError(
                     "the steady state at the initial levels and openings was not found: "
                     f"{res.message} (set the initial state to at_rest to start from rest)"
                 )
-            for i, lid in enumerate(model.topo.line_ids):
-                q0[i] = res.lines[lid].flow
-        return np.concatenate([q0, v0])
+            return res
+
+        if model.ng:
+            try:
+                res, p0 = steady_gas_pressures(model, solve, p0)
+            except ValueError as exc:
+                raise InitialStateError(f"{exc} (set the initial state to at_rest to start "
+                                        "from rest)") from None
+        else:
+            res = solve(model.system)
+        q0 = np.array([res.lines[lid].flow for lid in model.topo.line_ids], dtype=float)
+        return q0, p0
 
     def _start(self, y: np.ndarray) -> None:
         """Which tanks can drain, and the tanks already at or beyond their limits."""
@@ -108,12 +132,18 @@ class Run:
         model = self.model
         nl = model.nl
         if model.nt:
-            scale_v = np.maximum(np.abs(y[nl:]), np.where(np.isfinite(model.v_over),
+            scale_v = np.maximum(np.abs(y[nl:nl + model.nt]), np.where(np.isfinite(model.v_over),
                                                              model.v_over, 0.0))
         else:
             scale_v = np.zeros(0)
         q_scale = max(float(np.max(np.abs(y[:nl]), initial=0.0)), 1e-4)
-        return np.concatenate([np.full(nl, 1e-6 * q_scale), np.maximum(1e-9 * scale_v, 1e-9)])
+        atol = np.concatenate([np.full(nl, 1e-6 * q_scale), np.maximum(1e-9 * scale_v, 1e-9)])
+        if not model.ng:
+            return atol
+        gas = model.gas
+        # gas state X to a thousandth of a pascal of gauge pressure: X ~ V_g p_gauge/(R T)
+        x_tol = 1e-3 * gas.v_shell * gas.rho_atm / gas.p_atm
+        return np.concatenate([atol, x_tol])
 
     def segment_breaks(self) -> list[float]:
         """Segment ends: valve, feed and draw-off schedule break points, then the end."""
@@ -292,6 +322,9 @@ class Run:
         for te, k in found:
             if te <= t_stop and not self.events.terminal[k]:
                 handlers.reversal(self.model, self.state, int(self.events.index_of[k]), te)
+                if self.model.ng:
+                    handlers.sealed_stop(self.model, self.state, int(self.events.index_of[k]),
+                                         te, sol(te))
         y_stop = y_new.copy() if t_stop == t_new else sol(t_stop)
         self.state.note_peaks(y_stop[:nl])
         delta = 1e-3 * (t_stop - t_old)

@@ -22,6 +22,7 @@ from workbench.core.model import (
     restart_level,
 )
 from workbench.core.tank import TankGeometry, tank_geometry
+from workbench.core.transient.gas import GasSpaces
 
 
 class Configuration:
@@ -118,6 +119,8 @@ class TransientModel:
         )
         self.v_restart = np.array([g.volume(min(restart_level(r), g.top))
                                    for g, r in zip(self.geoms, self.tanks)])
+        self.gas = GasSpaces(system, self.tanks, self.geoms)
+        self.ng = self.gas.ng
         self.ext_tanks = [k for k, r in enumerate(self.tanks) if r.has_external_flow]
         self.has_ext = bool(self.ext_tanks)
         self.valve_lines = np.flatnonzero(self.lines.has_valve)
@@ -149,14 +152,22 @@ class TransientModel:
 
     # ------------------------------------------------------------------ heads
     def tank_levels(self, v: np.ndarray) -> np.ndarray:
+        """Levels [m] from the tanks' liquid volumes [m^3]."""
         return np.array([f(x) for f, x in zip(self._level_fns, v.tolist())])
 
-    def fixed_heads(self, v: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    def fixed_heads(self, tail: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """Heads of the fixed nodes [m] and the tanks' levels [m] from the state's tail
+        ``[V (tanks), X (gas spaces)]``: a tank's head is its bottom elevation, level and
+        surface (or gas-space) gauge pressure over ``rho g``."""
         h = self.h_fixed0.copy()
         if not self.nt:
             return h, np.zeros(0)
+        v = tail[: self.nt]
         levels = self.tank_levels(v)
-        h[self.tank_fixed] = self.tank_head_offset + levels
+        head = self.tank_head_offset + levels
+        if self.ng:
+            head[self.gas.tank] += self.gas.gauge(v, tail[self.nt:]) / (self.rho * G)
+        h[self.tank_fixed] = head
         return h, levels
 
     # ------------------------------------------------------------------ stations

@@ -87,6 +87,17 @@ class TransientResult:
     """Per tank at the end of the run: ``"steady"`` (level no longer changing: inflows and
     outflows balance), ``"rising"``, ``"falling"``, ``"spilling"``, ``"drained"`` or
     ``"still"`` (nothing flowing in or out)."""
+    gas_tank_ids: tuple[str, ...] = ()
+    """Tanks with a vent (sealed included): the rows of :attr:`gas_pressures`."""
+    gas_pressures: np.ndarray = field(default_factory=lambda: np.zeros((0, 0)))
+    """Gauge pressure of each gas space, gas tanks x times [Pa]."""
+    gas_masses: np.ndarray = field(default_factory=lambda: np.zeros((0, 0)))
+    """Gas held in each gas space, gas tanks x times [kg]."""
+    required_inbreathing: dict[str, float] = field(default_factory=dict)
+    """Per gas tank, the largest liquid outflow of the run: the inbreathing a vent must
+    pass for liquid movement (API 2000 / ISO 28300) [m^3/s]."""
+    required_outbreathing: dict[str, float] = field(default_factory=dict)
+    """Per gas tank, the largest liquid inflow less any spill [m^3/s]."""
     method: str = "Radau"
     nfev: int = 0
     njev: int = 0

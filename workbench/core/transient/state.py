@@ -48,6 +48,8 @@ class RunState:
     """Time each tank first drained [s]."""
     notes: list[Finding] = field(default_factory=list)
     """Findings about the run itself (an output interval widened, ...)."""
+    sealed_stops: dict[str, float] = field(default_factory=dict)
+    """Tanks whose drain stopped against their gas space's vacuum, with the time [s]."""
 
     @classmethod
     def empty(cls, n_lines: int, n_tanks: int) -> "RunState":

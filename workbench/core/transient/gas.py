@@ -1,0 +1,157 @@
+r"""The gas spaces of tanks with a vent, as a part of the rigid-column state.
+
+For each tank with a ``vent`` (sealed ones included) the state carries
+
+.. math::
+
+    X = m - \rho_{atm} V_g, \qquad V_g = V_{shell} - V,
+
+the gas mass less the mass the gas space would hold at atmospheric pressure and the gas
+temperature. ``X`` is the gas mass on a moving reference: the solver's relative tolerance
+then applies to the gauge pressure (``X`` is about ``V_g p_gauge/(R T)``) rather than to
+the absolute one, a hundred thousand times larger. With ``dV/dt`` the tank's volume
+balance and ``mdot`` the vent's inflow (:func:`workbench.core.vent.vent_inflow`),
+
+.. math::
+
+    \frac{dX}{dt} = \dot m(p) + \rho_{atm} \frac{dV}{dt}
+
+so a sealed tank keeps ``X - rho_atm V`` (its gas mass, up to a constant) to round-off: it
+is a linear invariant of the equations, which Runge-Kutta and multistep methods keep. The
+gauge pressure ``p - p_atm`` is added to the tank's surface head, ``p_gauge/(rho_l g)``,
+in every line's driving head.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from workbench.core.atmosphere import R_AIR
+from workbench.core.model import Reservoir, System
+from workbench.core.tank import TankGeometry
+from workbench.core.vent import GAMMA_AIR, gas_density, vent_inflow
+
+#: Smallest gas-space volume, as a fraction of the shell's (a tank filled to its top).
+V_GAS_FLOOR = 1e-6
+
+
+def shell_volume(res: Reservoir, geom: TankGeometry) -> float:
+    """Volume up to the top of the gas space [m^3]: the shell height, else the overflow
+    level, else the top of a closed shape."""
+    top = res.shell_height if res.shell_height is not None else res.height
+    if top is None:
+        top = geom.top
+    return geom.volume(min(top, geom.top))
+
+
+class GasSpaces:
+    """Constant data of the gas spaces of one run (``ng`` tanks with a vent)."""
+
+    def __init__(self, system: System, tanks: list[Reservoir], geoms: list[TankGeometry]):
+        self.p_atm = system.atmospheric_pressure
+        self.temperature = system.fluid.temperature or 293.15
+        """Gas temperature: the liquid's [K]."""
+        self.rho_atm = self.p_atm / (R_AIR * self.temperature)
+        """Density of the outside air, and of the gas space at atmospheric pressure [kg/m^3]."""
+        self.tank = np.array([k for k, r in enumerate(tanks) if r.vent is not None], np.intp)
+        """Tank index of each gas space."""
+        self.ng = len(self.tank)
+        sel = [tanks[k] for k in self.tank]
+        self.ids = tuple(r.id for r in sel)
+        self.area = np.array([r.vent.effective_area for r in sel])
+        """``C_d A`` of each vent [m^2] (0 sealed)."""
+        self.v_shell = np.array([shell_volume(r, geoms[k]) for k, r in zip(self.tank, sel)])
+        self.exponent = np.array([GAMMA_AIR if r.gas_process == "adiabatic" else 1.0
+                                  for r in sel])
+        self.p0 = np.array([r.gas_pressure for r in sel])
+        """Initial gauge pressures [Pa]."""
+
+    def v_gas(self, v_tanks: np.ndarray) -> np.ndarray:
+        """Gas volumes from the tanks' liquid volumes [m^3]."""
+        vg = self.v_shell - v_tanks[self.tank]
+        return np.maximum(vg, V_GAS_FLOOR * self.v_shell)
+
+    def state(self, v_tanks: np.ndarray, x: np.ndarray):
+        """Absolute pressure [Pa], density [kg/m^3] and volume [m^3] of each gas space."""
+        vg = self.v_gas(v_tanks)
+        rho = np.maximum((x + self.rho_atm * vg) / vg, 1e-12 * self.rho_atm)
+        p = self.p_atm * (rho / self.rho_atm) ** self.exponent
+        return p, rho, vg
+
+    def gauge(self, v_tanks: np.ndarray, x: np.ndarray) -> np.ndarray:
+        """Gauge pressures of the gas spaces [Pa]."""
+        return self.state(v_tanks, x)[0] - self.p_atm
+
+    def excess(self, v_tanks: np.ndarray, p_gauge: np.ndarray) -> np.ndarray:
+        """The state ``X`` at gauge pressures ``p_gauge`` [Pa] and liquid volumes [kg]."""
+        vg = self.v_gas(v_tanks)
+        rho = np.array([gas_density(self.p_atm + p, self.p_atm, self.rho_atm, n)
+                        for p, n in zip(p_gauge.tolist(), self.exponent.tolist())])
+        return (rho - self.rho_atm) * vg
+
+    def inflow(self, p: np.ndarray, rho: np.ndarray) -> np.ndarray:
+        """Mass flow of air into each gas space through its vent [kg/s]."""
+        return np.array([vent_inflow(a, pk, self.p_atm, rk, self.rho_atm)
+                         for a, pk, rk in zip(self.area.tolist(), p.tolist(), rho.tolist())])
+
+    def derivatives(self, v_tanks: np.ndarray, x: np.ndarray):
+        """``dp/dV``, ``dp/dX`` (analytic) and ``dmdot/dp`` (central difference) per gas
+        space: ``p = p_atm (rho/rho_atm)^n`` with ``rho = X/V_g + rho_atm``."""
+        p, rho, vg = self.state(v_tanks, x)
+        n = self.exponent
+        dp_drho = n * p / rho
+        dp_dv = dp_drho * (x / vg) / vg  # d rho/dV = X/V_g^2 at fixed X
+        dp_dx = dp_drho / vg
+        h = np.maximum(1e-7 * np.abs(p - self.p_atm), 1e-6)
+        dm_dp = (self.inflow(p + h, rho) - self.inflow(p - h, rho)) / (2.0 * h)
+        return dp_dv, dp_dx, dm_dp
+
+
+def _with_gas_pressures(system: System, gas: GasSpaces, p_gauge: np.ndarray) -> System:
+    """``system`` with each gas space's gauge pressure as its tank's surface pressure."""
+    from dataclasses import replace
+
+    reservoirs = dict(system.reservoirs)
+    for tid, p in zip(gas.ids, p_gauge.tolist()):
+        reservoirs[tid] = replace(reservoirs[tid], surface_pressure=p)
+    return replace(system, reservoirs=reservoirs)
+
+
+def steady_gas_pressures(model, solve, p0: np.ndarray, max_iterations: int = 100):
+    """The steady state with each vented tank's gas space at the pressure its vent needs to
+    pass the air its steady outflow makes room for; sealed tanks keep ``p0``.
+
+    A fixed point of ``Q = steady(p)`` and ``p = quasi_steady_pressure(Q)``
+    (:func:`workbench.core.vent.quasi_steady_pressure`), damped after ten sweeps. The
+    vacuum changes the head by ``p/(rho g)``, usually a small part of it, so a few sweeps
+    suffice. ``solve(system)`` returns a steady result with ``lines[id].flow``.
+
+    Returns the steady result and the gauge pressures [Pa]; raises ``ValueError`` when a
+    vent cannot pass the flow or the iteration does not settle.
+    """
+    from workbench.core.vent import quasi_steady_pressure
+
+    gas = model.gas
+    p = p0.astype(float).copy()
+    vented = gas.area > 0.0
+    feed, draw = model.external(0.0)
+    for sweep in range(max_iterations):
+        res = solve(_with_gas_pressures(model.system, gas, p))
+        if not vented.any():
+            return res, p
+        q = np.array([res.lines[lid].flow for lid in model.topo.line_ids], dtype=float)
+        out = -(model.t_rows @ q) - feed + draw if model.nt else np.zeros(0)
+        p_new = p.copy()
+        for i, k in enumerate(gas.tank.tolist()):
+            if vented[i]:
+                pa = quasi_steady_pressure(float(gas.area[i]), float(out[k]), gas.p_atm,
+                                           gas.rho_atm, float(gas.exponent[i]))
+                if not np.isfinite(pa):
+                    raise ValueError(f"tank {gas.ids[i]}: its vent cannot pass the air for "
+                                     f"its steady outflow of {out[k] * 1000:.4g} L/s")
+                p_new[i] = pa - gas.p_atm
+        if np.all(np.abs(p_new - p) <= 1e-7 * (1.0 + np.abs(p_new))):
+            return res, p
+        weight = 1.0 if sweep < 10 else 0.5
+        p = p + weight * (p_new - p)
+    raise ValueError("the gas-space pressures at the steady outflow did not settle")
