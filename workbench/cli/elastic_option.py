@@ -4,7 +4,8 @@ Lines run by the method of characteristics are those with ``[lines.ID.surge] mod
 "elastic"`` in the project plus those named with ``--elastic`` (repeatable). Each chain of
 lines in series is run once. Their results are added to the simulate output: under
 ``surge.ID.elastic`` in the JSON (the transient keys are left as they are) and as one more
-table in the summary. Heavy modules are imported only when a run is asked for.
+table in the summary (the JSON additions are :mod:`workbench.output.simulate_json`, shared
+with the sweep runner). Heavy modules are imported only when a run is asked for.
 """
 
 from __future__ import annotations
@@ -59,19 +60,6 @@ def run_elastic_lines(args: argparse.Namespace, system, max_duration: float | No
     failed = [f"{args.project}: elastic surge, line {lid}: {res.message}"
               for lid, res in results.items() if res.status == -1]
     return results, ("\n".join(failed) or None)
-
-
-def add_elastic_json(out: dict, results: dict) -> dict:
-    """Add ``surge.ID.elastic`` objects and the elastic findings to a simulate JSON object."""
-    if not results:
-        return out
-    from workbench.output.elastic import elastic_findings, elastic_to_json
-
-    surge = out.setdefault("surge", {})
-    for lid, obj in elastic_to_json(results).items():
-        surge.setdefault(lid, {})["elastic"] = obj
-    out.setdefault("warnings", []).extend(elastic_findings(results))
-    return out
 
 
 def print_elastic_tables(console, results: dict, system, unit_system: str) -> None:

@@ -127,7 +127,7 @@ def run(args: argparse.Namespace) -> ExitCode:
     if args.json:
         from workbench.output.transient import transient_to_json
 
-        from workbench.cli.elastic_option import add_elastic_json
+        from workbench.output.simulate_json import add_elastic_json
 
         json.dump(add_elastic_json(transient_to_json(result, system), elastic), sys.stdout,
                   indent=1, allow_nan=False)

@@ -52,6 +52,9 @@ def add_parser(subparsers, name: str, help_text: str) -> None:
                         "solve (for dense sweeps; no profiles, warnings or simulation)")
     parser.add_argument("--workers", type=int, default=None, metavar="N",
                         help="processes for simulated cases (default: the machine's cores)")
+    parser.add_argument("--scheduler", metavar="ADDRESS", default=None,
+                        help="run the cases on the Dask cluster whose scheduler is at ADDRESS "
+                        "(e.g. tcp://10.0.0.5:8786; needs the 'cluster' extra)")
 
 
 def _progress_bar():
@@ -148,7 +151,7 @@ def run(args: argparse.Namespace) -> ExitCode:
         return ExitCode.USAGE
     from workbench.cli.common import load_or_report
     from workbench.project.sweep_spec import SweepSpecError
-    from workbench.sweep_runner import plan_sweep, quick_sweep_json, run_quick_sweep, run_sweep
+    from workbench.sweep_runner import plan_sweep, quick_sweep_json, run_quick_sweep
 
     project = load_or_report(args.project)
     if project is None:
@@ -167,18 +170,11 @@ def run(args: argparse.Namespace) -> ExitCode:
             print(f"{args.project}: {exc}", file=sys.stderr)
             return ExitCode.USAGE
     else:
-        bar = _progress_bar()
-        if bar is None:
-            outcome = run_sweep(project, plan, workers=args.workers)
-        else:
-            with bar:
-                task = bar.add_task("sweep", total=len(plan.cases))
-                def advance(done: int, total: int) -> None:
-                    bar.update(task, completed=done)
-                    bar.refresh()
-
-                outcome = run_sweep(project, plan, workers=args.workers, progress=advance)
-        sweep = outcome.to_json()
+        try:
+            sweep = _run_cases(args, project, plan).to_json()
+        except _ClusterUnusable as exc:
+            print(f"workbench sweep: --scheduler: {exc}", file=sys.stderr)
+            return ExitCode.USAGE
     if plan.criteria:
         sweep["criteria"] = [c.text for c in plan.criteria]
 
@@ -207,6 +203,38 @@ def run(args: argparse.Namespace) -> ExitCode:
     if sweep["cases"] and len(failed) == len(sweep["cases"]):
         return ExitCode.INVALID
     return ExitCode.OK
+
+
+class _ClusterUnusable(Exception):
+    """The ``--scheduler`` cluster cannot be used (the message says why)."""
+
+
+def _run_cases(args: argparse.Namespace, project, plan):
+    """Every case, on the Dask cluster of ``--scheduler`` or the local pool, with a progress
+    bar on a terminal."""
+    from contextlib import ExitStack
+
+    from workbench.sweep_runner import ClusterError, cluster_executor, run_sweep
+
+    with ExitStack() as stack:
+        executor = None
+        if args.scheduler:
+            try:
+                executor = stack.enter_context(cluster_executor(args.scheduler))
+            except ClusterError as exc:
+                raise _ClusterUnusable(str(exc)) from None
+        bar = _progress_bar()
+        if bar is None:
+            return run_sweep(project, plan, workers=args.workers, executor=executor)
+        with bar:
+            task = bar.add_task("sweep", total=len(plan.cases))
+
+            def advance(done: int, total: int) -> None:
+                bar.update(task, completed=done)
+                bar.refresh()
+
+            return run_sweep(project, plan, workers=args.workers, progress=advance,
+                             executor=executor)
 
 
 def _finite(obj):
