@@ -11,6 +11,8 @@ from __future__ import annotations
 
 import numpy as np
 
+from workbench.core.checks import SUBATMOSPHERIC_TOLERANCE_M, reverse_cause
+from workbench.core.finding_text import finding
 from workbench.core.model import G, Finding, restart_level
 from workbench.core.surge import LineSurge, effective_closure_time, screen_line
 from workbench.core.transient.end_states import end_states
@@ -20,8 +22,8 @@ from workbench.core.transient.results import TransientResult
 from workbench.core.transient.submergence import submergence
 from workbench.core.transient import venting
 
-#: Gauge pressure below which a run's minimum counts as sub-atmospheric [Pa]: below the
-#: solver's rounding at free outlets (about 1e-9 Pa), far above any pressure that matters.
+#: Kept for importers: a run's minimum now counts as sub-atmospheric only below
+#: ``-rho g SUBATMOSPHERIC_TOLERANCE_M`` (1 cm of liquid, see :mod:`workbench.core.checks`).
 SUBATMOSPHERIC_NOISE_PA = -1.0
 
 
@@ -52,6 +54,7 @@ def finish(model: TransientModel, run: Run, outcome, wall: float) -> TransientRe
     warnings.extend(venting.vent_findings(model, t, gas_p, inb, outb))
     stop_events, stop_findings = venting.stopped_drains(model, state, t, ys, gas_p)
     warnings.extend(stop_findings)
+    warnings.extend(reverse_findings(model, t, flows))
     return TransientResult(
         success=status in (0, 1),
         status=status,
@@ -102,6 +105,7 @@ def line_pressures(model: TransientModel, run: Run) -> dict:
         max_t = float(rec.p_max_t[sel][int(np.argmax(pmax_st))])
         min_t = float(rec.p_min_t[sel][int(np.argmin(pmin_st))])
         eff = None
+        cut_sign = 1.0
         if line.valve is not None and line.valve.schedule is not None:
             valve = line.valve
             est = effective_closure_time(
@@ -110,11 +114,15 @@ def line_pressures(model: TransientModel, run: Run) -> dict:
                 rest_of_line_k(model, i, run))
             if est is not None and est.fastest_cut_at <= run.t_final:
                 eff = est.effective_time
+                cut_sign = _flow_sign_at(run, i, est.fastest_cut_at)
+        first_vap = rec.first_vapour_t[sel]
+        sep_t = float(np.nanmin(first_vap)) if np.isfinite(first_vap).any() else None
         screened, findings = screen_line(
             lid, line, system.fluid, atmospheric_pressure=system.atmospheric_pressure,
             station_max=pmax_st, station_min=pmin_st, station_elevation=model.st_elev[sel],
             static_head=float(rec.h_static_max[i]), velocity_max=float(rec.v_max[i]),
-            effective_closure=eff, max_time=max_t, min_time=min_t)
+            effective_closure=eff, max_time=max_t, min_time=min_t, separation_time=sep_t,
+            flow_sign=cut_sign)
         out["surge"][lid] = screened
         out["findings"].extend(findings)
         out["max_pressure"][lid] = screened.max_pressure
@@ -122,7 +130,7 @@ def line_pressures(model: TransientModel, run: Run) -> dict:
         out["max_pressure_time"][lid] = max_t
         out["min_pressure_time"][lid] = min_t
         separated = any(f.code == "surge.column_separation" for f in findings)
-        if not separated and screened.min_pressure < SUBATMOSPHERIC_NOISE_PA:
+        if not separated and screened.min_pressure < -model.rho * G * SUBATMOSPHERIC_TOLERANCE_M:
             out["findings"].append(_subatmospheric(model, i, screened, pmin_st, min_t))
     return out
 
@@ -136,15 +144,48 @@ def _subatmospheric(model: TransientModel, i: int, screened: LineSurge, pmin_st,
     sel = slice(model.st_start[i], model.st_start[i + 1] if i + 1 < len(model.st_start) else None)
     j = int(np.argmin(pmin_st))
     where = float(model.st_frac[sel][j]) * line.length
-    return Finding(
+    return finding(
         "profile.subatmospheric", lid,
-        f"during the run the pressure on line {lid} falls to "
-        f"{screened.min_pressure / 1000.0:.4g} kPa gauge at t = {min_t:.4g} s, "
-        f"{where:.4g} m from {line.from_node!r} (elevation "
-        f"{float(model.st_elev[sel][j]):.4g} m): air can be drawn in at joints, and "
-        "thin-walled or plastic pipe can collapse; check the pipe's vacuum rating",
-        "caution", "rigid-column pressures at the line's profile points; common "
-        "practice")
+        f"during the run the pressure on line {lid} falls to {{p}} gauge at t = {min_t:.4g} "
+        f"s, {{s}} from {line.from_node!r} (elevation {{z}}): air can be drawn in at joints, "
+        "and thin-walled or plastic pipe can collapse; check the pipe's vacuum rating",
+        "caution", "rigid-column pressures at the line's profile points", digits=4,
+        p=(screened.min_pressure, "pressure"), s=(where, "length"),
+        z=(float(model.st_elev[sel][j]), "elevation"))
+
+
+def _flow_sign_at(run: Run, i: int, t: float) -> float:
+    """Sign of line ``i``'s flow at time ``t`` from the recorded series (+1 without one)."""
+    rec = run.rec
+    if not rec.t_out:
+        return 1.0
+    q = np.interp(t, np.array(rec.t_out), np.array([y[i] for y in rec.y_out]))
+    return -1.0 if q < 0.0 else 1.0
+
+
+def reverse_findings(model: TransientModel, t: np.ndarray, flows: np.ndarray) -> list[Finding]:
+    """``flow.reverse``: a line that runs from its ``to`` end to its ``from`` end during the
+    run (by more than 0.1 % of its largest flow, the reversal events' threshold), with the
+    first time and the cause named."""
+    out = []
+    system = model.system
+    for i, lid in enumerate(model.topo.line_ids):
+        q = flows[i]
+        if not q.size:
+            continue
+        peak = float(np.max(np.abs(q)))
+        back = np.flatnonzero(q < -1e-3 * peak) if peak > 0.0 else np.zeros(0, int)
+        if not back.size:
+            continue
+        line = system.lines[lid]
+        k = int(back[0])
+        out.append(finding(
+            "flow.reverse", lid,
+            f"from t = {t[k]:.4g} s the line runs backwards, from {line.to_node!r} to "
+            f"{line.from_node!r} (up to {{q}}): {reverse_cause(system, line.from_node, line.to_node)}"
+            "; check that this is meant (a check valve, a level or a vessel pressure)",
+            "caution", "rigid-column flows of the run", q=(float(-np.min(q)), "flow")))
+    return out
 
 
 def overflow_findings(model: TransientModel, run: Run, spills: np.ndarray) -> list[Finding]:

@@ -21,7 +21,10 @@ def end_states(model: TransientModel, state: RunState, ys, feeds, draws):
     states: dict[str, str] = {}
     if not model.nt or not ys.shape[1]:
         return rates, states
-    q = ys[: model.nl, -1]
+    # Outlets held shut (a drained tank's, a stopped discharge) carry no flow at the end,
+    # even where the last recorded point is the moment they stopped: the end rate is the
+    # rate the tank goes on with, so it agrees with the end state.
+    q = np.where(state.blocked | state.backstopped, 0.0, ys[: model.nl, -1])
     for k, tid in enumerate(model.tank_ids):
         row = model.t_rows[k]
         line_net = float(row @ q)

@@ -38,6 +38,8 @@ class Recording:
         """Smallest gauge pressure per station [Pa]."""
         self.p_max_t = np.zeros(ns)
         self.p_min_t = np.zeros(ns)
+        self.first_vapour_t = np.full(ns, np.nan)
+        """First time each station reached the vapour pressure [s] (nan: never)."""
         self.h_static_max = np.full(nl, -np.inf)
         """Highest end-node head seen per line [m]."""
         self.v_max = np.zeros(nl)
@@ -91,6 +93,11 @@ class Recording:
         up = p > self.p_max
         self.p_max = np.where(up, p, self.p_max)
         self.p_max_t = np.where(up, t, self.p_max_t)
+        p_vap = model.system.fluid.vapor_pressure
+        if p_vap is not None:
+            at_vapour = (p + model.system.atmospheric_pressure <= p_vap) & np.isnan(
+                self.first_vapour_t)
+            self.first_vapour_t = np.where(at_vapour, t, self.first_vapour_t)
         dn = p < self.p_min
         self.p_min = np.where(dn, p, self.p_min)
         self.p_min_t = np.where(dn, t, self.p_min_t)
