@@ -225,6 +225,36 @@ SECTIONS: dict[str, tuple[FieldSpec, ...]] = {
         field("output_interval", "time", help="spacing of the reported time series "
               "(automatic when absent)", example="10 s"),
     ),
+    # [measurements.NAME]: what was read on the plant in a site test (one table per test).
+    "measurements": (
+        field("element", "text", True, "id of the tank or reservoir (level above its bottom), "
+              "line (flow, positive from -> to) or junction (gauge pressure) that was measured",
+              example="TK-7"),
+        field("quantity", "choice", True, "what was read: level, flow or pressure",
+              choices=("level", "flow", "pressure")),
+        field("points", "list", help="the readings typed in: { time = '...', value = '...' } "
+              "points with increasing time (one point without time: a steady reading); or "
+              "give file"),
+        field("file", "text", help="a CSV file of readings beside the project (instead of "
+              "points); its first row names the columns", example="drain_test.csv"),
+        field("time_column", "text", help="CSV: the column of reading times", example="t"),
+        field("time_unit", "text", help="CSV: unit of the time column (s, min, h) or "
+              "'iso' for ISO 8601 timestamps, counted from the first row; absent: each cell "
+              "has its unit", example="min"),
+        field("value_column", "text", help="CSV: the column of readings", example="level"),
+        field("value_unit", "text", help="CSV: unit of the readings (m, L/s, kPa ...); "
+              "absent: each cell has its unit", example="m"),
+        field("initial_level", "length", help="test condition: the measured tank's level at "
+              "the start of the test (for a line, the tank it draws from), if not the "
+              "project's; or a table { TANK = '...' } for several tanks", example="3.2 m"),
+        field("valve_opening", "number", help="test condition: the measured line's valve "
+              "opening held through the test, 0..1, if not the project's; or a table "
+              "{ LINE = x } for several valves", minimum=0.0, maximum=1.0),
+        field("initial_state", "choice", help="test condition: 'at_rest' (the outlet was "
+              "opened at time zero) or 'steady' (already flowing); default the project's "
+              "[simulation] initial_state", choices=("steady", "at_rest")),
+        field("description", "text", help="free text: who measured what, with what, when"),
+    ),
 }
 
 #: Entries of list-valued keys: "section.key" -> FieldSpecs of one entry (an inline table).
@@ -253,6 +283,13 @@ LIST_ITEMS: dict[str, tuple[FieldSpec, ...]] = {
         field("time", "time", True, "time from the start of the simulation"),
         field("opening", "number", True, "relative travel 0..1", minimum=0.0, maximum=1.0),
     ),
+    "measurements.points": (
+        field("time", "time", help="time from the start of the test (optional for one steady "
+              "reading)"),
+        field("value", "text", True, "the reading with its unit, e.g. '3.20 m', '12 L/s', "
+              "'85 kPa' (gauge); the quantity's name (level, flow, pressure) may stand for "
+              "'value'"),
+    ),
 }
 
 #: Keys of the top level of the file.
@@ -265,6 +302,8 @@ ROOT_KEYS: tuple[FieldSpec, ...] = (
     field("receivers", "table", help="open discharges and closed vessels"),
     field("lines", "table", True, "pipe runs between nodes"),
     field("simulation", "table", help="settings for simulations in time"),
+    field("measurements", "table", help="site tests: readings taken on the plant, to compare "
+          "with the model and calibrate it ([measurements.NAME])"),
 )
 
 #: Sections whose tables are keyed by element id, in the order files list them.
@@ -326,7 +365,7 @@ def reference_markdown() -> str:
         "project": "[project]", "fluid": "[fluid]", "reservoirs": "[reservoirs.ID]",
         "junctions": "[junctions.ID]", "receivers": "[receivers.ID]", "lines": "[lines.ID]",
         "lines.valve": "[lines.ID.valve]", "lines.surge": "[lines.ID.surge]",
-        "simulation": "[simulation]",
+        "simulation": "[simulation]", "measurements": "[measurements.NAME]",
     }
     for section, specs in SECTIONS.items():
         lines += ["", f"## {headings.get(section, section)}", ""] + rows(specs)

@@ -1,0 +1,516 @@
+r"""Calibration: fit a few uncertain model parameters to what was measured on the plant.
+
+A site test gives readings of a tank level, a line flow or a junction pressure, in time (a
+drain timed with a dipstick, a level trend from the plant's historian) or as one steady
+reading per test condition (the flow a meter showed at a valve opening). Pipes age and
+valves wear, so a handbook roughness or loss coefficient can be well off; this module fits
+one to three of them to the readings and says how well the data pin them down.
+
+Model
+-----
+Each :class:`Observation` carries the system under its test conditions. The prediction is
+
+* a reading in time: the rigid-column transient (:func:`workbench.core.transient.simulate`,
+  run from zero to the last reading with no early stop) linearly interpolated at the
+  reading times from an output grid of 2000 intervals;
+* a steady reading: the steady network (:func:`workbench.core.network.solve_steady`).
+
+The fit minimises the sum of squared weighted residuals
+:math:`r_i = (y_{model}(t_i; x) - y_i)/w` (``w`` the largest magnitude among the
+observation's readings, so observations of different quantities weigh alike) by bounded
+nonlinear least squares (``scipy.optimize.least_squares``, trust-region reflective) over
+the parameters scaled by their ranges. The Jacobian is a forward difference during the
+search and a central difference at the end.
+
+Confidence intervals follow the linearised theory of nonlinear regression (Bates & Watts,
+*Nonlinear Regression Analysis and Its Applications*, Wiley 1988, ch. 2):
+
+.. math::
+
+    C = (J^T J)^{-1} s^2,\qquad s^2 = \frac{\sum r_i^2}{n - p},\qquad
+    x_j \pm t_{0.975,\,n-p}\sqrt{C_{jj}}
+
+and the correlation of two parameters is :math:`C_{jk}/\sqrt{C_{jj}C_{kk}}`; above about
+0.95 in magnitude the data cannot tell them apart (only a combination of them is fitted).
+
+A fitted value that ends on a bound of its range is a fit that did not converge: the
+optimum lies outside the range, or the parameter does not act on the readings.
+
+Nothing here imports pint or does file I/O: the project layer turns key paths, units and
+files into :class:`FitParameter` and :class:`Observation`.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from workbench.core.model import Finding, System
+
+__all__ = [
+    "CORRELATION_LIMIT",
+    "CalibrationError",
+    "FitParameter",
+    "FitResult",
+    "Observation",
+    "TARGETS",
+    "fit",
+    "predict",
+    "with_conditions",
+    "with_parameters",
+]
+
+#: Correlation between two fitted parameters above which (in magnitude) the data are said
+#: not to tell them apart (common practice in regression diagnostics, no single source).
+CORRELATION_LIMIT = 0.95
+
+#: What a parameter can be: a line's ``roughness`` [m], ``diameter`` (bore) [m], fixed
+#: ``friction_factor`` [-], a fixed-K fitting's ``fitting_k`` [-], its valve's
+#: ``valve_k_open`` [-] or ``valve_kv_open`` [m^3/s].
+TARGETS = ("roughness", "diameter", "friction_factor", "fitting_k", "valve_k_open",
+           "valve_kv_open")
+
+#: Output intervals per simulated span when predicting readings in time.
+_GRID = 2000
+
+#: Integration tolerance of the runs inside a fit: tight, so that the difference quotients
+#: of the Jacobian see the parameters and not the integrator's error control.
+_RTOL = 1e-8
+
+
+class CalibrationError(ValueError):
+    """A fit that cannot be made or did not succeed; the message says why in words."""
+
+
+class _Cancelled(Exception):
+    pass
+
+
+@dataclass(frozen=True)
+class FitParameter:
+    """One parameter to fit, already resolved to the model (SI units)."""
+
+    key: str
+    """Key path as the user wrote it, for messages (``lines.L1.roughness``)."""
+    target: str
+    """One of :data:`TARGETS`."""
+    line: str
+    """Id of the line the parameter belongs to."""
+    lower: float
+    """Lower bound [SI unit of the target]."""
+    upper: float
+    """Upper bound [SI unit of the target]."""
+    start: float
+    """Value in the project now [SI unit of the target]; the fit starts here (clipped into
+    the bounds)."""
+    index: int | None = None
+    """For ``fitting_k``: position of the fitting in the line's list (0-based)."""
+
+
+@dataclass(frozen=True, eq=False)
+class Observation:
+    """Readings of one quantity of one element under one set of test conditions."""
+
+    name: str
+    """Name of the measurement."""
+    element: str
+    """Tank or reservoir id (``level``), line id (``flow``) or junction id (``pressure``)."""
+    quantity: str
+    """``"level"`` [m above the tank bottom], ``"flow"`` [m^3/s, positive from -> to] or
+    ``"pressure"`` [Pa, gauge]."""
+    times: np.ndarray | None
+    """Reading times from the start of the test [s]; ``None`` for a steady reading."""
+    values: np.ndarray
+    """The readings [SI]."""
+    system: System
+    """The system under the test's conditions (levels, valve openings, initial state)."""
+
+
+@dataclass(frozen=True, eq=False)
+class FitResult:
+    """Outcome of :func:`fit`, shaped like scipy's results."""
+
+    success: bool
+    status: int
+    """1 converged, 0 stopped at the evaluation limit, -1 a parameter ran to its bound,
+    -2 cancelled, -3 the model failed at a trial point."""
+    message: str
+    parameters: tuple[FitParameter, ...]
+    values: np.ndarray
+    """Fitted values [SI]."""
+    ci95: np.ndarray
+    """Parameters x 2: the 95 % confidence interval [SI]; ``nan`` where none exists."""
+    std_error: np.ndarray
+    correlation: np.ndarray
+    """Parameters x parameters."""
+    rms_before: dict[str, float]
+    """Per observation, RMS of (model - reading) with the starting values [SI]."""
+    rms_after: dict[str, float]
+    max_before: dict[str, float]
+    """Per observation, the largest |model - reading| with the starting values [SI]."""
+    max_after: dict[str, float]
+    predicted_before: dict[str, np.ndarray]
+    predicted_after: dict[str, np.ndarray]
+    warnings: tuple[Finding, ...] = ()
+    evaluations: int = 0
+    """Model runs made (each runs every observation once)."""
+    at_bound: tuple[str, ...] = field(default_factory=tuple)
+    """Key paths of the parameters that ended on a bound."""
+
+
+# ------------------------------------------------------------------------------------------
+# Applying parameters and test conditions
+
+
+def _replace_line(system: System, line_id: str, **changes) -> System:
+    lines = dict(system.lines)
+    lines[line_id] = dataclasses.replace(lines[line_id], **changes)
+    return dataclasses.replace(system, lines=lines)
+
+
+def _apply_one(system: System, p: FitParameter, value: float) -> System:
+    line = system.lines[p.line]
+    if p.target == "roughness":
+        return _replace_line(system, p.line, roughness=value)
+    if p.target == "diameter":
+        return _replace_line(system, p.line, diameter=value)
+    if p.target == "friction_factor":
+        return _replace_line(system, p.line, friction_factor=value)
+    if p.target == "fitting_k":
+        fittings = list(line.fittings)
+        fittings[p.index] = dataclasses.replace(fittings[p.index], k=value)
+        return _replace_line(system, p.line, fittings=tuple(fittings))
+    if p.target == "valve_k_open":
+        return _replace_line(system, p.line, valve=dataclasses.replace(line.valve, k_open=value))
+    if p.target == "valve_kv_open":
+        from workbench.core.valve import k_from_kv
+
+        k_open = k_from_kv(value * 3600.0, line.diameter, system.fluid.density)
+        return _replace_line(system, p.line, valve=dataclasses.replace(line.valve, k_open=k_open))
+    raise ValueError(f"unknown parameter target {p.target!r}; expected one of {TARGETS}")
+
+
+def with_parameters(system: System, parameters: Sequence[FitParameter],
+                    values: Sequence[float]) -> System:
+    """The system with each parameter set to its value [SI].
+
+    Examples
+    --------
+    >>> from workbench.core.model import FluidProps, Line, Receiver, Reservoir, System
+    >>> s = System("t", FluidProps("water", 998.2, 1e-3),
+    ...     {"R": Reservoir("R", "constant_level", 0.0, 5.0)}, {},
+    ...     {"O": Receiver("O", "open_discharge", 0.0)},
+    ...     {"L": Line("L", "R", "O", 50.0, 0.1, roughness=4.5e-5)})
+    >>> p = FitParameter("lines.L.roughness", "roughness", "L", 0.0, 1e-3, 4.5e-5)
+    >>> with_parameters(s, [p], [6e-4]).lines["L"].roughness
+    0.0006
+    """
+    for p, value in zip(parameters, values):
+        system = _apply_one(system, p, float(value))
+    return system
+
+
+def with_conditions(system: System, *, levels: dict[str, float] | None = None,
+                    openings: dict[str, float] | None = None,
+                    initial_state: str | None = None) -> System:
+    """The system under a test's conditions.
+
+    Parameters
+    ----------
+    levels : dict, optional
+        Reservoir id -> level at the start of the test [m above its bottom].
+    openings : dict, optional
+        Line id -> valve opening held through the test [-] (any opening schedule of that
+        valve is dropped).
+    initial_state : {"steady", "at_rest"}, optional
+        How the run starts (``at_rest``: the outlet opened at time zero).
+    """
+    reservoirs = dict(system.reservoirs)
+    for rid, level in (levels or {}).items():
+        reservoirs[rid] = dataclasses.replace(reservoirs[rid], level=float(level))
+    lines = dict(system.lines)
+    for lid, opening in (openings or {}).items():
+        valve = dataclasses.replace(lines[lid].valve, opening=float(opening), schedule=None)
+        lines[lid] = dataclasses.replace(lines[lid], valve=valve)
+    simulation = system.simulation
+    if initial_state is not None and simulation is not None:
+        simulation = dataclasses.replace(simulation, initial_state=initial_state)
+    return dataclasses.replace(system, reservoirs=reservoirs, lines=lines, simulation=simulation)
+
+
+# ------------------------------------------------------------------------------------------
+# Predictions
+
+
+def predict(obs: Observation, system: System | None = None, *,
+            cancel: Callable[[], bool] | None = None, rtol: float = _RTOL) -> np.ndarray:
+    """The model's values at the observation's readings [SI].
+
+    ``system`` defaults to the observation's own; a fit passes it with trial parameters.
+
+    Raises
+    ------
+    CalibrationError
+        When the model cannot be run (no steady solution, a failed integration).
+    """
+    system = obs.system if system is None else system
+    if obs.times is None:
+        return _predict_steady(obs, system)
+    from workbench.core.transient import simulate
+
+    span = float(np.max(obs.times))
+    if not span > 0.0:
+        raise CalibrationError(f"measurement {obs.name}: the readings span no time; give a "
+                               "steady reading (one point) or readings at different times")
+    result = simulate(system, duration=span, stop_when=None, output_interval=span / _GRID,
+                      rtol=rtol, cancel=cancel)
+    if result.status == 2:
+        raise _Cancelled()
+    if not result.success:
+        raise CalibrationError(f"measurement {obs.name}: {result.message}")
+    if obs.quantity == "level":
+        series = result.levels[result.tank_ids.index(obs.element)]
+    elif obs.quantity == "flow":
+        series = result.flows[result.line_ids.index(obs.element)]
+    else:
+        raise CalibrationError(f"measurement {obs.name}: a pressure trace in time is not "
+                               "compared yet; give one steady reading per test condition")
+    return np.interp(obs.times, result.t, series)
+
+
+def _predict_steady(obs: Observation, system: System) -> np.ndarray:
+    from workbench.core.network import solve_steady
+
+    result = solve_steady(system)
+    if not result.success:
+        raise CalibrationError(f"measurement {obs.name}: {result.message}")
+    if obs.quantity == "flow":
+        value = result.lines[obs.element].flow
+    elif obs.quantity == "pressure":
+        value = result.nodes[obs.element].pressure
+    else:
+        value = system.reservoirs[obs.element].level
+    return np.full(len(obs.values), float(value))
+
+
+def _rms(x: np.ndarray) -> float:
+    return float(np.sqrt(np.mean(np.square(x)))) if x.size else 0.0
+
+
+# ------------------------------------------------------------------------------------------
+# The fit
+
+
+class _Problem:
+    """Residuals of every observation as a function of the scaled parameters."""
+
+    def __init__(self, observations, parameters, progress, cancel):
+        self.obs = list(observations)
+        self.params = list(parameters)
+        self.lower = np.array([p.lower for p in self.params], dtype=float)
+        self.upper = np.array([p.upper for p in self.params], dtype=float)
+        self.scale = self.upper - self.lower
+        self.weights = [max(float(np.max(np.abs(o.values))), 1e-300) for o in self.obs]
+        self.progress = progress
+        self.cancel = cancel
+        self.evaluations = 0
+        self._cache: dict[bytes, tuple[np.ndarray, list[np.ndarray]]] = {}
+
+    def to_x(self, u: np.ndarray) -> np.ndarray:
+        return self.lower + u * self.scale
+
+    def run(self, u: np.ndarray) -> tuple[np.ndarray, list[np.ndarray]]:
+        key = np.asarray(u, dtype=float).tobytes()
+        if key in self._cache:
+            return self._cache[key]
+        if self.cancel is not None and self.cancel():
+            raise _Cancelled()
+        x = self.to_x(u)
+        preds = []
+        for o in self.obs:
+            system = with_parameters(o.system, self.params, x)
+            try:
+                preds.append(predict(o, system, cancel=self.cancel))
+            except CalibrationError as exc:
+                values = ", ".join(f"{p.key} = {v:.4g}" for p, v in zip(self.params, x))
+                raise CalibrationError(f"the model could not be run at {values} (SI): {exc}") \
+                    from None
+        r = np.concatenate([(pred - o.values) / w for pred, o, w in
+                            zip(preds, self.obs, self.weights)])
+        self.evaluations += 1
+        if self.progress is not None:
+            self.progress(self.evaluations, float(np.sqrt(np.mean(r * r))))
+        if len(self._cache) > 64:
+            self._cache.clear()
+        self._cache[key] = (r, preds)
+        return r, preds
+
+    def residuals(self, u: np.ndarray) -> np.ndarray:
+        return self.run(u)[0]
+
+    def jacobian(self, u: np.ndarray, central: bool = False) -> np.ndarray:
+        r0 = self.residuals(u)
+        jac = np.empty((r0.size, u.size))
+        for j in range(u.size):
+            h = 1e-3 * max(abs(u[j]), 0.05)
+            up, down = u.copy(), u.copy()
+            if central and u[j] - h >= 0.0 and u[j] + h <= 1.0:
+                up[j] += h
+                down[j] -= h
+                jac[:, j] = (self.residuals(up) - self.residuals(down)) / (2.0 * h)
+                continue
+            step = h if u[j] + h <= 1.0 else -h
+            up[j] += step
+            jac[:, j] = (self.residuals(up) - r0) / step
+        return jac
+
+
+def fit(observations: Sequence[Observation], parameters: Sequence[FitParameter], *,
+        progress: Callable[[int, float], None] | None = None,
+        cancel: Callable[[], bool] | None = None, max_evaluations: int = 60) -> FitResult:
+    """Fit parameters to observations by bounded nonlinear least squares.
+
+    Parameters
+    ----------
+    observations : sequence of Observation
+        At least one, with at least one reading each.
+    parameters : sequence of FitParameter
+        One to three, with ``lower < upper``.
+    progress : callable, optional
+        Called as ``progress(evaluations, rms)`` after each model evaluation (``rms`` of
+        the weighted residuals [-]).
+    cancel : callable, optional
+        Polled during the runs; when it returns ``True`` the fit stops (status -2).
+    max_evaluations : int
+        Limit on the optimiser's function evaluations.
+
+    Returns
+    -------
+    FitResult
+
+    Raises
+    ------
+    CalibrationError
+        When the model cannot be run at the starting values (the "before" state).
+
+    Notes
+    -----
+    See the module docstring for the weights, the scaling and the confidence intervals
+    (Bates & Watts 1988, ch. 2).
+    """
+    from scipy.optimize import least_squares
+
+    if not observations or not parameters:
+        raise CalibrationError("a fit needs at least one measurement and one parameter")
+    prob = _Problem(observations, parameters, progress, cancel)
+    if np.any(prob.scale <= 0.0):
+        bad = next(p.key for p, s in zip(prob.params, prob.scale) if s <= 0.0)
+        raise CalibrationError(f"{bad}: the lower bound must be below the upper bound")
+    start = np.array([p.start for p in prob.params], dtype=float)
+    u0 = np.clip((start - prob.lower) / prob.scale, 0.0, 1.0)
+    try:
+        _r0, before = prob.run(u0)
+    except _Cancelled:
+        return _stopped(prob, u0, None, -2, "cancelled before the first model run ended")
+    try:
+        sol = least_squares(prob.residuals, u0, jac=prob.jacobian, bounds=(0.0, 1.0),
+                            method="trf", x_scale="jac", max_nfev=max_evaluations,
+                            xtol=1e-6, ftol=1e-8, gtol=1e-8)
+    except _Cancelled:
+        return _stopped(prob, u0, before, -2, "cancelled by the user")
+    except CalibrationError as exc:
+        return _stopped(prob, u0, before, -3, str(exc))
+    try:
+        jac = prob.jacobian(sol.x, central=True)
+        _r, after = prob.run(sol.x)
+    except _Cancelled:
+        return _stopped(prob, u0, before, -2, "cancelled by the user")
+    except CalibrationError as exc:
+        return _stopped(prob, u0, before, -3, str(exc))
+    return _summarise(prob, sol, jac, before, after)
+
+
+def _stopped(prob: _Problem, u0, before, status: int, message: str) -> FitResult:
+    k = len(prob.params)
+    nan = np.full(k, np.nan)
+    rms = {o.name: math.nan for o in prob.obs}
+    if before is not None:
+        rms = {o.name: _rms(p - o.values) for o, p in zip(prob.obs, before)}
+    return FitResult(False, status, message, tuple(prob.params), prob.to_x(u0),
+                     np.full((k, 2), np.nan), nan, np.full((k, k), np.nan), rms,
+                     {o.name: math.nan for o in prob.obs}, {}, {},
+                     {} if before is None else dict(zip((o.name for o in prob.obs), before)),
+                     {}, evaluations=prob.evaluations)
+
+
+def _statistics(jac_u: np.ndarray, r: np.ndarray, scale: np.ndarray, k: int):
+    """Standard errors, 95 % half-widths and correlation [SI] from the Jacobian."""
+    from scipy import stats
+
+    n = r.size
+    dof = n - k
+    jac = jac_u / scale  # d r / d x
+    nan = np.full(k, np.nan)
+    if dof <= 0:
+        return nan, nan, np.full((k, k), np.nan), dof, False
+    s2 = float(r @ r) / dof
+    jtj = jac.T @ jac
+    singular = np.linalg.matrix_rank(jtj, tol=1e-12 * max(np.max(np.abs(jtj)), 1e-300)) < k
+    cov = np.linalg.pinv(jtj) * s2
+    std = np.sqrt(np.clip(np.diag(cov), 0.0, None))
+    half = float(stats.t.ppf(0.975, dof)) * std
+    with np.errstate(invalid="ignore", divide="ignore"):
+        corr = cov / np.outer(std, std)
+    if singular:
+        corr = np.where(np.eye(k, dtype=bool), 1.0, np.where(np.isfinite(corr), corr, 1.0))
+    return std, half, corr, dof, singular
+
+
+def _summarise(prob: _Problem, sol, jac_u, before, after) -> FitResult:
+    k = len(prob.params)
+    x = prob.to_x(sol.x)
+    r = np.concatenate([(p - o.values) / w for p, o, w in zip(after, prob.obs, prob.weights)])
+    std, half, corr, dof, singular = _statistics(jac_u, r, prob.scale, k)
+    warnings: list[Finding] = []
+    at_bound = tuple(p.key for p, u in zip(prob.params, sol.x) if u <= 1e-6 or u >= 1 - 1e-6)
+    status, success = (1, True) if sol.status > 0 else (0, False)
+    message = "converged" if success else "stopped at the evaluation limit before converging"
+    if at_bound:
+        status, success = -1, False
+        words = "; ".join(_bound_words(prob, key, x) for key in at_bound)
+        message = (f"the fit did not converge: {words}. Widen the range, or check that the "
+                   "parameter acts on these readings and that the test conditions are right")
+    if dof <= 0:
+        warnings.append(Finding("calibration.no_interval", "calibration",
+                                f"{r.size} reading(s) for {k} parameter(s): no confidence "
+                                "interval can be given; add readings", "caution"))
+    for i in range(k):
+        for j in range(i + 1, k):
+            if abs(corr[i, j]) > CORRELATION_LIMIT or (singular and dof > 0):
+                warnings.append(Finding(
+                    "calibration.correlated", prob.params[i].key,
+                    f"{prob.params[i].key} and {prob.params[j].key} are correlated "
+                    f"(r = {corr[i, j]:+.3f}): these readings cannot tell them apart, only a "
+                    "combination of them is fitted; fit one of them, or add a test at other "
+                    "conditions", "caution", "linearised regression statistics"))
+    ci = np.column_stack([x - half, x + half])
+    names = [o.name for o in prob.obs]
+    return FitResult(
+        success, status, message, tuple(prob.params), x, ci, std, corr,
+        {o.name: _rms(p - o.values) for o, p in zip(prob.obs, before)},
+        {o.name: _rms(p - o.values) for o, p in zip(prob.obs, after)},
+        {o.name: float(np.max(np.abs(p - o.values))) for o, p in zip(prob.obs, before)},
+        {o.name: float(np.max(np.abs(p - o.values))) for o, p in zip(prob.obs, after)},
+        dict(zip(names, before)), dict(zip(names, after)), tuple(warnings),
+        prob.evaluations, at_bound)
+
+
+def _bound_words(prob: _Problem, key: str, x: np.ndarray) -> str:
+    i = [p.key for p in prob.params].index(key)
+    u = (x[i] - prob.lower[i]) / prob.scale[i]
+    side = "lower" if u < 0.5 else "upper"
+    return f"{key} ran to its {side} bound ({x[i]:.4g} SI)"
