@@ -26,6 +26,7 @@ COMMANDS: dict[str, tuple[str, str]] = {
     "simulate": ("workbench.cli.simulate_cmd", "simulate a project in time: levels, flows, events, surge screening"),
     "open": ("workbench.cli.open_cmd", "open a project in the keyboard-driven terminal workbench"),
     "sweep": ("workbench.cli.sweep_cmd", "what-if sweeps: vary inputs, judge each case, name the first that passes"),
+    "calibrate": ("workbench.cli.calibrate_cmd", "fit roughness, bore or losses to what was measured on the plant"),
     "report": ("workbench.cli.report_cmd", "write the Markdown calculation record (and CSV exports) of a project"),
     "cautions": ("workbench.cli.cautions_cmd", "print the safety cautions that go with every result"),
 }

@@ -55,6 +55,10 @@ def run(args: argparse.Namespace) -> ExitCode:
     for path in args.projects:
         try:
             project = load_project(path)
+            if "measurements" in project.data:  # site tests: their CSV files are read here
+                from workbench.project.measurements import measurements_of
+
+                measurements_of(project)
         except ProjectError as exc:
             for problem in exc.problems:
                 print(problem, file=sys.stderr)

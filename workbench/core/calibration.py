@@ -237,8 +237,11 @@ def with_conditions(system: System, *, levels: dict[str, float] | None = None,
         valve = dataclasses.replace(lines[lid].valve, opening=float(opening), schedule=None)
         lines[lid] = dataclasses.replace(lines[lid], valve=valve)
     simulation = system.simulation
-    if initial_state is not None and simulation is not None:
-        simulation = dataclasses.replace(simulation, initial_state=initial_state)
+    if initial_state is not None:
+        from workbench.core.model import SimulationSettings
+
+        simulation = (SimulationSettings(1.0, initial_state) if simulation is None
+                      else dataclasses.replace(simulation, initial_state=initial_state))
     return dataclasses.replace(system, reservoirs=reservoirs, lines=lines, simulation=simulation)
 
 

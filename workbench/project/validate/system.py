@@ -56,8 +56,17 @@ class Parts:
         return {eid: section for section, ts in self.tables.items() for eid in ts}
 
 
+def _check_measurements(c: Checker, parts: Parts) -> None:
+    """The ``[measurements]`` tables (site tests): :mod:`workbench.project.measurements`."""
+    if "measurements" in parts.data:
+        from workbench.project.measurements import check_measurements
+
+        c.problems.extend(check_measurements(parts.data, c.file, atmosphere=c.atmosphere,
+                                             read_files=False)[1])
+
+
 #: Checks run after the built-in sections, in order, each as ``check(c, parts)``.
-FURTHER_CHECKS: list[Callable[[Checker, Parts], None]] = []
+FURTHER_CHECKS: list[Callable[[Checker, Parts], None]] = [_check_measurements]
 
 
 def check_data(data: Any, file: str | None = None) -> tuple[m.System | None, list[Problem]]:
