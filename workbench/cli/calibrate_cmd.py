@@ -131,9 +131,13 @@ def _failure(calibration) -> str:
     units = calibration.project.unit_system
     words = []
     for p, value in zip(result.parameters, result.values):
-        if p.key in result.at_bound:
+        span = p.upper - p.lower
+        at_edge = min(abs(value - p.lower), abs(value - p.upper)) <= 1e-6 * span
+        if p.key in result.at_bound and at_edge:
             side = "lower" if abs(value - p.lower) <= abs(value - p.upper) else "upper"
             words.append(f"{p.key} ran to its {side} bound {value_text(p, float(value), units)}")
+    if not words:
+        return result.message
     return ("the fit did not converge: " + "; ".join(words) + ". Widen the range, or check "
             "that the parameter acts on these readings and that the test conditions are right")
 

@@ -482,6 +482,13 @@ def _summarise(prob: _Problem, sol, jac_u, before, after) -> FitResult:
     at_bound = tuple(p.key for p, u in zip(prob.params, sol.x) if u <= 1e-6 or u >= 1 - 1e-6)
     status, success = (1, True) if sol.status > 0 else (0, False)
     message = "converged" if success else "stopped at the evaluation limit before converging"
+    inert = tuple(p.key for j, p in enumerate(prob.params)
+                  if not np.any(np.abs(jac_u[:, j]) > 1e-9 * max(np.max(np.abs(r)), 1e-12)))
+    if inert:
+        return dataclasses.replace(_stopped(prob, sol.x, before, -1, (
+            f"the fit did not converge: {', '.join(inert)} does not change the model's values "
+            "at these readings (it does not act on them: e.g. a roughness in laminar flow)")),
+            at_bound=inert)
     if at_bound:
         status, success = -1, False
         words = "; ".join(_bound_words(prob, key, x) for key in at_bound)

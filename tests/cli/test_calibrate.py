@@ -1,0 +1,203 @@
+"""``workbench calibrate``: the JSON contract of the site-test issue, --write, refusals.
+
+The demo drain test is checked against the generator that invented its readings
+(``tools/make_drain_test_data.py``): the fit must give back the roughness the generator
+used and the project does not state, within the fit's 95 % interval.
+"""
+
+from __future__ import annotations
+
+import importlib.util
+import json
+import shutil
+import tomllib
+from pathlib import Path
+
+import pytest
+
+from workbench.cli import main
+
+ROOT = Path(__file__).resolve().parents[2]
+DEMO = ROOT / "projects" / "fellgate_wash_tank_drain_test.toml"
+DEMO_CSV = DEMO.with_name("fellgate_wash_tank_drain_test_levels.csv")
+DEMO_LINE = "lines.420-DR-07.roughness"
+
+SMALL = """\
+schema = 1
+
+[project]
+title = "Rinse tank drain test"
+units = "SI"
+
+[fluid]
+kind = "water"
+temperature = "20 degC"
+
+[reservoirs.RT1]
+kind = "tank"
+shape = "vertical_cylinder"
+diameter = "1.2 m"
+bottom_elevation = "6 m"
+level = "2 m"
+
+[receivers.DR]
+kind = "open_discharge"
+elevation = "0 m"
+
+[lines.L1]
+from = "RT1"
+to = "DR"
+length = "25 m"
+inner_diameter = "52.5 mm"
+roughness = "0.045 mm"  # new steel, from the handbook
+fittings = [ { k = 0.8, label = "strainer" } ]
+
+[simulation]
+duration = "10 min"
+
+# the site test
+[measurements.drop]
+element = "RT1"
+quantity = "level"
+points = [
+    { time = "0 s", value = "2.00 m" },
+    { time = "60 s", value = "1.62 m" },
+    { time = "120 s", value = "1.26 m" },
+    { time = "180 s", value = "0.93 m" },
+    { time = "240 s", value = "0.62 m" },
+]
+"""
+
+
+def _generator():
+    spec = importlib.util.spec_from_file_location("make_drain_test_data",
+                                                  ROOT / "tools" / "make_drain_test_data.py")
+    module = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(module)
+    return module
+
+
+@pytest.fixture(scope="module")
+def demo_json():
+    import io
+    import sys
+
+    out, saved = io.StringIO(), sys.stdout
+    sys.stdout = out
+    try:
+        code = main(["calibrate", str(DEMO), "--fit", f"{DEMO_LINE}=0.01..3 mm", "--json"])
+    finally:
+        sys.stdout = saved
+    return code, json.loads(out.getvalue())
+
+
+def test_the_json_has_the_contract_shape(demo_json):
+    code, out = demo_json
+    assert code == 0
+    assert {"parameters", "residual_rms_before", "residual_rms_after", "measurements",
+            "warnings"} <= set(out)
+    p = out["parameters"][DEMO_LINE]
+    assert isinstance(p["value"], str) and p["value"].endswith(" mm")
+    assert isinstance(p["value_si"], float)
+    lo, hi = p["ci95_si"]
+    assert lo < p["value_si"] < hi
+    m = out["measurements"]["drain_test_nov"]
+    assert m["quantity"] == "level" and m["unit_si"] == "m"
+    assert m["rms_after"] < m["rms_before"]
+    assert isinstance(out["warnings"], list)
+    assert out["residual_rms_after"] == pytest.approx(m["rms_after"])
+
+
+def test_the_demo_gives_back_the_roughness_its_readings_were_invented_with(demo_json):
+    _code, out = demo_json
+    aged = _generator().AGED_ROUGHNESS
+    lo, hi = out["parameters"][DEMO_LINE]["ci95_si"]
+    assert lo <= aged <= hi
+    # the project's own (handbook) roughness is far from it: the test is worth calibrating
+    assert out["parameters"][DEMO_LINE]["start_si"] < aged / 10
+
+
+def test_the_handbook_roughness_misses_the_demo_drain_by_about_thirty_percent(demo_json):
+    _code, out = demo_json
+    times = out["measurements"]["drain_test_nov"]["time_to_mark_level_s"]
+    assert times["measured"] / times["before"] == pytest.approx(1.3, abs=0.05)
+    assert times["after"] == pytest.approx(times["measured"], rel=0.02)
+
+
+def test_the_result_states_the_range_it_was_tested_over(demo_json):
+    _code, out = demo_json
+    caution = [w for w in out["warnings"] if w["code"] == "calibration.tested_range"]
+    assert caution and "0.29 m to 3.6 m over 38 min" in caution[0]["message"]
+
+
+def _small(tmp_path: Path) -> Path:
+    path = tmp_path / "rinse.toml"
+    path.write_text(SMALL, encoding="utf-8")
+    return path
+
+
+def test_write_applies_the_fit_as_one_edit_keeping_comments(tmp_path, capsys):
+    path = _small(tmp_path)
+    code = main(["calibrate", str(path), "--fit", "lines.L1.roughness=0.001..2 mm", "--json",
+                 "--write"])
+    assert code == 0
+    fitted = json.loads(capsys.readouterr().out)["parameters"]["lines.L1.roughness"]
+    text = path.read_text(encoding="utf-8")
+    assert "# the site test" in text
+    line = next(x for x in text.splitlines() if x.startswith("roughness"))
+    assert line.startswith(f'roughness = "{fitted["value"]}"')
+    assert "calibrated to drop on" in line and "(was 0.045 mm)" in line
+    assert "new steel, from the handbook" in line
+    # only that line changed
+    before, after = SMALL.splitlines(), text.splitlines()
+    assert len(before) == len(after)
+    assert [a for a, b in zip(before, after) if a != b] == [
+        'roughness = "0.045 mm"  # new steel, from the handbook']
+    data = tomllib.loads(text)
+    assert data["lines"]["L1"]["roughness"] == fitted["value"]
+
+
+def test_without_write_the_file_is_untouched(tmp_path, capsys):
+    path = _small(tmp_path)
+    assert main(["calibrate", str(path), "--fit", "lines.L1.fittings[1].k=0.1..20"]) == 0
+    assert path.read_text(encoding="utf-8") == SMALL
+    out = capsys.readouterr().out
+    assert "lines.L1.fittings[1].k" in out and "95 % interval" in out
+
+
+@pytest.mark.parametrize(("fit", "words"), [
+    ("lines.L9.roughness", "there is no line 'L9'"),
+    ("lines.L1.material", "material is not a number"),
+    ("lines.L1.length=1..2 m", "length is not a number the fit can change"),
+    ("lines.L1.roughness=2..1 mm", "the lower bound must be below the upper bound"),
+    ("lines.L1.roughness=0.01..30 mm", "below the pipe radius"),
+])
+def test_a_fit_that_cannot_work_is_refused_with_exit_1(tmp_path, capsys, fit, words):
+    assert main(["calibrate", str(_small(tmp_path)), "--fit", fit]) == 1
+    assert words in capsys.readouterr().err
+
+
+def test_an_unknown_measurement_is_refused(tmp_path, capsys):
+    code = main(["calibrate", str(_small(tmp_path)), "--fit", "lines.L1.roughness",
+                 "--measurement", "dorp"])
+    assert code == 1
+    assert "--measurement dorp: no such measurement in the project — did you mean 'drop'?" \
+        in capsys.readouterr().err
+
+
+def test_a_fit_that_runs_to_its_bound_says_which_parameter(tmp_path, capsys):
+    code = main(["calibrate", str(_small(tmp_path)), "--fit", "lines.L1.roughness=0.001..0.01 mm"])
+    assert code == 1
+    assert "lines.L1.roughness ran to its" in capsys.readouterr().err
+
+
+def test_no_fit_is_a_usage_error(tmp_path, capsys):
+    assert main(["calibrate", str(_small(tmp_path))]) == 2
+
+
+def test_the_demo_reads_its_csv_from_beside_the_project(tmp_path, capsys):
+    shutil.copy(DEMO, tmp_path / DEMO.name)
+    assert main(["check", str(tmp_path / DEMO.name)]) == 1
+    assert "fellgate_wash_tank_drain_test_levels.csv: no such file" in capsys.readouterr().err
+    shutil.copy(DEMO_CSV, tmp_path / DEMO_CSV.name)
+    assert main(["check", str(tmp_path / DEMO.name)]) == 0
