@@ -327,13 +327,13 @@ def _with_comments(project: "Project", notes: dict[str, str]) -> "Project":
     doc = project.doc
     for key, note in notes.items():
         container = doc
-        *path, name = key.split(".")
-        path = _split_path(path)
+        *path, name = key.split(".")  # element ids hold no dots (validate.ID_PATTERN)
         for part in path:
             container = container[part]
         item = container.item(name) if hasattr(container, "item") else container[name]
         old = (item.trivia.comment or "").lstrip("#").strip()
         item.comment(f"{note}; {old}" if old and "calibrated to" not in old else note)
+        item.trivia.comment_ws = "  "
     text = doc.as_string()
     try:
         return project_from_doc(text, path=project.path, name=project.name,
@@ -341,7 +341,3 @@ def _with_comments(project: "Project", notes: dict[str, str]) -> "Project":
     except ProjectError:  # a comment cannot make a file invalid; keep the values at least
         raise ProjectError(Problem(project.name, "", "the calibration note could not be written"))
 
-
-def _split_path(parts: list[str]) -> list[str]:
-    """Key path parts up to the changed key: ``["lines", "L-1", "valve"]`` (ids keep dots out)."""
-    return parts
