@@ -338,6 +338,6 @@ def _with_comments(project: "Project", notes: dict[str, str]) -> "Project":
     try:
         return project_from_doc(text, path=project.path, name=project.name,
                                 loaded_hash=project.loaded_hash, data=parse_data(text, project.name))
-    except ProjectError:  # a comment cannot make a file invalid; keep the values at least
+    except ProjectError:  # a comment cannot make a file invalid: a bug if it ever does
         raise ProjectError(Problem(project.name, "", "the calibration note could not be written"))
 
