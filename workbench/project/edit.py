@@ -24,6 +24,7 @@ __all__ = ["add_element", "add_elements", "delete_element", "dependents", "renam
 
 _SIMPLE_SECTIONS = ("project", "fluid", "simulation")
 _SUB_TABLES = ("valve", "surge")
+_SUB_TABLES_OF = {"lines": _SUB_TABLES, "reservoirs": ("vent",)}
 
 
 def _fail(project: Project, key: str, message: str) -> ProjectError:
@@ -148,8 +149,8 @@ def _apply(project: Project, doc, keypath: str, value: Any) -> bool:
         spec_section, container_path, key = section, [section], parts[1]
     elif section in ELEMENT_SECTIONS and len(parts) == 3:
         spec_section, container_path, key = section, parts[:2], parts[2]
-    elif section == "lines" and len(parts) == 4 and parts[2] in _SUB_TABLES:
-        spec_section, container_path, key = f"lines.{parts[2]}", parts[:3], parts[3]
+    elif len(parts) == 4 and parts[2] in _SUB_TABLES_OF.get(section, ()):
+        spec_section, container_path, key = f"{section}.{parts[2]}", parts[:3], parts[3]
     else:
         raise _fail(project, str(keypath), "not a key path this editor can set: expected "
                     "'section.key', 'section.ID.key' or 'lines.ID.valve.key'")

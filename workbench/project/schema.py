@@ -142,7 +142,39 @@ SECTIONS: dict[str, tuple[FieldSpec, ...]] = {
         field("restart_level", "length", help="tank: level at which a drained tank's outlets "
               "and draw-off start again (default: min_level plus 5 % of the depth up to "
               "height)", example="0.5 m"),
+        field("vent", "table", help="tank: its vent to the atmosphere, { inner_diameter = "
+              "'50 mm', k = 1.5 }, { nominal_size = '2 in', schedule = '40', k = 1.5 } or "
+              "{ rated_flow = '300 m3/h', rated_pressure_drop = '0.5 kPa' } (air at 20 degC "
+              "and 1 atm), or \"none\" for a sealed tank; without it the tank is open and its "
+              "gas space is not modelled"),
+        field("gas_pressure", "pressure", help="tank with a vent: gauge pressure of the gas "
+              "space at the start (with initial_state = 'steady', the steady vacuum instead)",
+              default="0 kPa", example="0 kPa"),
+        field("design_vacuum", "pressure", help="tank with a vent: the vacuum the tank is "
+              "built for, as a positive gauge figure from its nameplate or design",
+              example="0.5 kPa"),
+        field("design_pressure", "pressure", help="tank with a vent: the gas-space pressure "
+              "the tank is built for, gauge", example="2 kPa"),
+        field("gas_process", "choice", help="tank with a vent: the gas space as 'isothermal' "
+              "(slow moves, heat from shell and liquid) or 'adiabatic' (quick moves)",
+              choices=("isothermal", "adiabatic"), default="isothermal"),
+        field("shell_height", "length", help="tank with a vent: height of the top of the gas "
+              "space above the bottom (default: height, the overflow level)", example="6 m"),
         _DESCRIPTION,
+    ),
+    "reservoirs.vent": (
+        field("inner_diameter", "diameter", help="bore of the vent (or nominal_size, or "
+              "rated_flow)", example="50 mm"),
+        field("nominal_size", "text", help="nominal size of the vent pipe, e.g. '2 in' (with "
+              "schedule)", example="2 in"),
+        field("schedule", "text", help="pipe schedule for nominal_size", default="40",
+              example="40"),
+        field("k", "number", help="loss coefficient of the vent on its bore's velocity head "
+              "(entry, pipe, fittings, cowl and exit together)", minimum=0.0, example="1.5"),
+        field("rated_flow", "flow", help="the vent's stated air flow (air at 20 degC and "
+              "1 atm), with rated_pressure_drop", example="300 m3/h"),
+        field("rated_pressure_drop", "pressure", help="the pressure drop at the stated flow",
+              example="0.5 kPa"),
     ),
     "junctions": (
         field("elevation", "elevation", True, "elevation of the junction", example="10 m"),
@@ -365,6 +397,7 @@ def reference_markdown() -> str:
         "project": "[project]", "fluid": "[fluid]", "reservoirs": "[reservoirs.ID]",
         "junctions": "[junctions.ID]", "receivers": "[receivers.ID]", "lines": "[lines.ID]",
         "lines.valve": "[lines.ID.valve]", "lines.surge": "[lines.ID.surge]",
+        "reservoirs.vent": "[reservoirs.ID.vent]",
         "simulation": "[simulation]", "measurements": "[measurements.NAME]",
     }
     for section, specs in SECTIONS.items():

@@ -49,6 +49,12 @@ surface_pressure = "0 kPa"  # gauge gas pressure on the surface (vented tank: 0)
 # inflow_schedule = [{ time = "0 s", flow = "0 L/s" }, { time = "10 min", flow = "40 L/s" }]
 #                      # the feed in time instead (linear between points; draw_off_schedule alike)
 # restart_level = "0.5 m"  # a drained tank's outlets and draw-off start again at this level
+# Its gas space (without vent the tank is open to the atmosphere and this is not modelled):
+# vent = { inner_diameter = "50 mm", k = 1.5 }  # or { nominal_size = "2 in", schedule = "40",
+#                      # k = 1.5 }, { rated_flow = "300 m3/h", rated_pressure_drop = "0.5 kPa" }
+#                      # (air at 20 degC, 1 atm), or "none" for a sealed (or blanked) tank
+# design_vacuum = "0.5 kPa"   # the vacuum the tank is built for, a positive gauge figure
+# design_pressure = "2 kPa"   # the gas-space pressure it is built for
 
 # Where the line ends: free discharge to air, or kind = "vessel" with a gauge pressure.
 [receivers.OUT]

@@ -13,12 +13,13 @@ import math
 from workbench.core import model as m
 from workbench.project.schema import LIST_ITEMS, SECTIONS
 from workbench.project.validate.checker import Checker, field_spec, words
+from workbench.project.validate.vent import VENT_KEYS, check_vent
 
 __all__ = ["FEED_KEYS", "TANK_KEYS", "check_feeds", "check_flow_schedule", "check_reservoir"]
 
 #: A tank's keys for its shape and levels (refused on constant levels).
 TANK_KEYS = ("shape", "diameter", "length", "width", "cone_angle", "cone_height", "height",
-             "min_level", "restart_level")
+             "min_level", "restart_level", *VENT_KEYS)
 
 
 def check_reservoir(c: Checker, rid: str, t: dict) -> m.Reservoir | None:
@@ -43,6 +44,7 @@ def check_reservoir(c: Checker, rid: str, t: dict) -> m.Reservoir | None:
     _check_heights(c, t, path, dims, level)
     feeds = check_feeds(c, t, path)
     restart = _restart_level(c, t, path, dims)
+    gas = check_vent(c, t, path, dims, surface)
     shape_kind = dims["shape"]
     if len(c.problems) > n0 or None in (bottom, level, shape_kind):
         return None
@@ -51,7 +53,7 @@ def check_reservoir(c: Checker, rid: str, t: dict) -> m.Reservoir | None:
                         cone_height=dims["cone_height"] if shape_kind == "cone_bottom" else None)
     return m.Reservoir(rid, "tank", bottom, level, surface or 0.0, shape=shape,
                        height=dims["height"], min_level=dims["min_level"] or 0.0,
-                       restart_level=restart, **feeds)
+                       restart_level=restart, **feeds, **gas)
 
 
 def _refuse_tank_keys(c: Checker, t: dict, path: str) -> None:
