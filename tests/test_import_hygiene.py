@@ -1,7 +1,13 @@
-"""The numeric core must stay importable without the UI libraries or pint.
+"""The numeric core must stay importable without the UI libraries or pint, and the package's
+imports point one way.
 
-Each core module is imported in a fresh interpreter; the test fails if textual, rich or pint
-was loaded as a side effect (layering rule of STYLE.md, item 1).
+Each core module (sub-packages included) is imported in a fresh interpreter; the test fails
+if textual, rich or pint was loaded as a side effect (layering rule of STYLE.md, item 1).
+
+The import graph is read from the source files by ``tools/import_graph.py`` (its docstring
+says what counts as an edge: imports inside functions do, ``TYPE_CHECKING`` ones do not),
+and must have no circle and no edge pointing up the layers core <- project <- output <-
+sweep_runner <- cli/app.
 """
 
 from __future__ import annotations
@@ -12,10 +18,21 @@ from pathlib import Path
 
 import pytest
 
-CORE = Path(__file__).resolve().parents[1] / "workbench" / "core"
-CORE_MODULES = sorted(
-    f"workbench.core.{p.stem}" for p in CORE.glob("*.py") if p.stem != "__init__"
-)
+ROOT = Path(__file__).resolve().parents[1]
+CORE = ROOT / "workbench" / "core"
+
+
+def _dotted(path: Path) -> str:
+    parts = list(path.relative_to(ROOT).with_suffix("").parts)
+    return ".".join(parts[:-1] if parts[-1] == "__init__" else parts)
+
+
+#: Every core module, those of sub-packages (core/elastic/, core/fluid/, ...) included.
+CORE_MODULES = sorted(_dotted(p) for p in CORE.rglob("*.py") if p.parent != CORE
+                      or p.stem != "__init__")
+#: The core's top-level modules and sub-packages; each is checked in one interpreter with
+#: all the modules under it.
+CORE_UNITS = sorted({".".join(m.split(".")[:3]) for m in CORE_MODULES})
 FORBIDDEN = ("textual", "rich", "pint")
 
 
@@ -26,20 +43,28 @@ def fresh_stdout(code: str) -> str:
     ).stdout.strip()
 
 
-@pytest.mark.parametrize("module", CORE_MODULES)
-def test_core_module_imports_no_ui_and_no_units_library(module: str) -> None:
+@pytest.mark.parametrize("unit", CORE_UNITS)
+def test_core_module_imports_no_ui_and_no_units_library(unit: str) -> None:
+    modules = [m for m in CORE_MODULES if m == unit or m.startswith(unit + ".")]
+    # Imports only add modules: the first module after which a forbidden one is loaded is
+    # the one that pulls it in.
     code = (
         "import sys, importlib\n"
-        f"importlib.import_module({module!r})\n"
-        f"bad = sorted(m for m in sys.modules if m.split('.')[0] in {FORBIDDEN!r})\n"
-        "print(','.join(bad))\n"
+        f"for name in {modules!r}:\n"
+        "    importlib.import_module(name)\n"
+        f"    bad = sorted(m for m in sys.modules if m.split('.')[0] in {FORBIDDEN!r})\n"
+        "    if bad:\n"
+        "        print(name, 'pulled in', ','.join(bad))\n"
+        "        break\n"
     )
     out = fresh_stdout(code)
-    assert out == "", f"{module} pulled in {out}"
+    assert out == "", out
 
 
-def test_the_core_has_modules_to_check() -> None:
+def test_the_core_has_modules_to_check_in_sub_packages_too() -> None:
     assert "workbench.core.model" in CORE_MODULES
+    assert "workbench.core.fluid.water" in CORE_MODULES
+    assert "workbench.core.fluid" in CORE_UNITS and "workbench.core.fluid.water" not in CORE_UNITS
 
 
 def test_cli_help_starts_without_scipy_or_textual() -> None:
@@ -71,3 +96,72 @@ def test_no_catalogue_liquid_or_solution_loads_coolprop() -> None:
     )
     out = fresh_stdout(code)
     assert out == "", f"computing liquid properties imported {out}"
+
+
+def _graph_tool():
+    import importlib.util
+
+    spec = importlib.util.spec_from_file_location("import_graph", ROOT / "tools" / "import_graph.py")
+    module = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(module)
+    return module
+
+
+def test_no_workbench_modules_import_each_other_in_a_circle() -> None:
+    tool = _graph_tool()
+    graph = tool.import_graph()
+    assert "workbench.app.app" in graph and "workbench.core.fluid.water" in graph
+    found = tool.cycles(graph)
+    assert found == [], "import circles: " + "; ".join(" <-> ".join(c) for c in found)
+
+
+def test_every_import_points_down_the_layers() -> None:
+    """core <- project <- output <- sweep_runner <- cli/app (and the app never imports the
+    CLI): no lower layer imports a higher one or a front end."""
+    tool = _graph_tool()
+    wrong = tool.bad_edges(tool.import_graph())
+    assert wrong == [], "\n".join(f"{s} -> {t}: {why}" for s, t, why in wrong)
+
+
+def test_the_sweep_runner_imports_no_front_end() -> None:
+    tool = _graph_tool()
+    graph = tool.import_graph()
+    runner = {m: t for m, t in graph.items() if m.startswith("workbench.sweep_runner")}
+    assert len(runner) > 1
+    assert not any(t.startswith(("workbench.cli", "workbench.app")) for ts in runner.values()
+                   for t in ts)
+
+
+SYNTHETIC = {
+    "__init__.py": "",
+    "core/__init__.py": "",
+    "core/a.py": "from typing import TYPE_CHECKING\n"
+                 "if TYPE_CHECKING:\n    from pkg.project import doc\n"
+                 "def f():\n    from pkg.core import b\n",
+    "core/b.py": "from . import a\n",
+    "project/__init__.py": "",
+    "project/doc.py": "import pkg.core.a\n",
+    "output/__init__.py": "",
+    "output/table.py": "def g():\n    from pkg.cli import main\n",
+    "cli/__init__.py": "",
+    "cli/main.py": "def g():\n    return 1\n",
+    "app/__init__.py": "",
+    "app/pane.py": "from pkg.cli.main import g\n",
+}
+
+
+def test_the_graph_tool_finds_a_circle_through_a_lazy_import_and_an_upward_edge(tmp_path) -> None:
+    """A made-up package: core.a imports core.b inside a function and core.b imports core.a
+    (a circle); output imports the CLI (upward); the app imports the CLI (refused sideways);
+    a TYPE_CHECKING import from core to project is no edge."""
+    tool = _graph_tool()
+    root = tmp_path / "pkg"
+    for rel, text in SYNTHETIC.items():
+        (root / rel).parent.mkdir(parents=True, exist_ok=True)
+        (root / rel).write_text(text)
+    graph = tool.import_graph(root)
+    assert graph["pkg.core.a"] == {"pkg.core.b"}
+    assert graph["pkg.core.b"] == {"pkg.core.a"}
+    assert tool.cycles(graph) == [["pkg.core.a", "pkg.core.b"]]
+    wrong = {(s, t) for s, t, _ in tool.bad_edges(graph)}
+    assert wrong == {("pkg.output.table", "pkg.cli.main"), ("pkg.app.pane", "pkg.cli.main")}
