@@ -124,13 +124,23 @@ def run(args: argparse.Namespace) -> ExitCode:
             return ExitCode.INVALID
 
     elastic, elastic_problem = run_elastic_lines(args, system, max_duration=duration)
+    from workbench.output.measurements import compare_or_problems  # site tests, if any
+
+    measured, unreadable = compare_or_problems(project, result)
+    if unreadable:
+        print(unreadable, file=sys.stderr)
+        return ExitCode.INVALID
     if args.json:
         from workbench.output.transient import transient_to_json
 
         from workbench.output.simulate_json import add_elastic_json
 
-        json.dump(add_elastic_json(transient_to_json(result, system), elastic), sys.stdout,
-                  indent=1, allow_nan=False)
+        out = add_elastic_json(transient_to_json(result, system), elastic)
+        if measured:
+            from workbench.output.measurements import comparisons_to_json
+
+            out["measurements"] = comparisons_to_json(measured)
+        json.dump(out, sys.stdout, indent=1, allow_nan=False)
         sys.stdout.write("\n")
     else:
         from rich.console import Console
@@ -144,6 +154,10 @@ def run(args: argparse.Namespace) -> ExitCode:
         from workbench.cli.elastic_option import print_elastic_tables
 
         print_elastic_tables(console, elastic, system, project.unit_system)
+        from workbench.output.measurements import comparison_tables
+
+        for renderable in comparison_tables(measured, project.unit_system):
+            console.print(renderable)
         console.print(f"\n{PREAMBLE} See 'workbench cautions'.")
     if args.plot:
         # plots go with the tables on stdout, or to stderr when stdout carries JSON

@@ -60,7 +60,7 @@ def tested_range_text(m: "Measurement", unit_system: str = "SI") -> str:
                  f"{format_quantity(high, kind, unit_system, 3)}")
     words = f"{m.name}: {m.quantity} of {m.element} {span}"
     if m.times is not None:
-        words += f" over {_duration(float(m.times[-1] - m.times[0]))}"
+        words += f" over {duration_text(float(m.times[-1] - m.times[0]))}"
     else:
         words += " (steady)"
     for tank, level in m.levels.items():
@@ -72,7 +72,8 @@ def tested_range_text(m: "Measurement", unit_system: str = "SI") -> str:
     return words
 
 
-def _duration(seconds: float) -> str:
+def duration_text(seconds: float) -> str:
+    """A time span in one readable unit: seconds, minutes below 2 h, then hours."""
     if seconds >= 7200.0:
         return f"{seconds / 3600.0:.3g} h"
     if seconds >= 120.0:
@@ -235,7 +236,7 @@ def calibration_tables(run: "CalibrationRun") -> list:
 
 
 def _time(seconds) -> str:
-    return "not within the test" if seconds is None else _duration(float(seconds))
+    return "not within the test" if seconds is None else duration_text(float(seconds))
 
 
 def calibration_plot(run: "CalibrationRun", colour: bool = True, width: int = 80) -> str:

@@ -537,7 +537,8 @@ def calculation_record(
     parts = (
         _identification(project, date) + _inputs(project) + _derived(project) + _fluid(project)
         + _methods(project, steady, transient, elastic) + _steady(project, steady)
-        + _simulation(project, transient) + _elastic(project, elastic)
+        + _simulation(project, transient) + _measured(project, transient)
+        + _elastic(project, elastic)
         + _warnings(project, steady, transient, elastic)
         + _cautions() + _signoff()
     )
@@ -545,6 +546,13 @@ def calculation_record(
     while "\n\n\n" in text:
         text = text.replace("\n\n\n", "\n\n")
     return text.rstrip() + "\n"
+
+
+def _measured(project: Project, transient: TransientResult | None) -> list[str]:
+    """Site tests against the model (:mod:`workbench.output.measurements`)."""
+    from workbench.output.measurements import record_lines
+
+    return record_lines(project, transient)
 
 
 # --- CSV exports ----------------------------------------------------------------------------

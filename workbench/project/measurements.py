@@ -75,6 +75,20 @@ class Measurement:
         """True when the test ran under conditions of its own (not the project's)."""
         return bool(self.levels or self.openings or self.initial_state)
 
+    def differs_from(self, system: "System") -> bool:
+        """True when the test's conditions are not the project's own (another start level,
+        a valve held at another opening or instead of its schedule, another start)."""
+        for tank, level in self.levels.items():
+            if abs(system.reservoirs[tank].level - level) > 1e-9:
+                return True
+        for line, opening in self.openings.items():
+            valve = system.lines[line].valve
+            if valve.schedule is not None or abs(valve.opening - opening) > 1e-12:
+                return True
+        settings = system.simulation
+        own = settings.initial_state if settings is not None else "steady"
+        return self.initial_state is not None and self.initial_state != own
+
     @property
     def steady(self) -> bool:
         """True for one steady reading (compared with the steady solution)."""
