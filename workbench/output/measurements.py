@@ -194,7 +194,7 @@ def record_lines(project: "Project", result=None) -> list[str]:
     except ProjectError as exc:
         return lines + [f"The readings could not be read: {exc}", ""]
     lines += ["| measurement | of | readings compared | RMS (model − reading) | largest | "
-              "compared on |", "|---|---|---|---|---|---|"]
+              "compared on |", "| --- | --- | ---: | ---: | ---: | --- |"]
     for c in comparisons:
         m = c.measurement
         kind = _KIND[m.quantity]
