@@ -129,6 +129,11 @@ def steady_to_json(result: SteadyResult, system: System) -> dict:
                 "net_inflow_m3_s": _num(b.net),
                 "level_rate_m_s": _num(b.level_rate),
             })
+    if result.success:  # tanks with a vent: the gas-space pressure at the steady outflow
+        from workbench.output.vent import steady_gas_pressures
+
+        for tid, p in steady_gas_pressures(system, result).items():
+            out["nodes"][tid]["gas_pressure_pa"] = _num(p)
     out["warnings"] = [
         {"code": w.code, "element": w.element, "message": w.message, "severity": w.severity,
          "source": w.source, **({"values": finding_values(w)} if w.values else {})}
@@ -195,6 +200,9 @@ def steady_tables(result: SteadyResult, system: System, unit_system: str = "SI")
         nodes.add_row(nid, n.kind.replace("_", " "), q(n.elevation, "elevation"),
                       q(n.head, "head"), q(n.pressure, "pressure"))
     out.append(nodes)
+    from workbench.output.vent import steady_gas_texts
+
+    out += steady_gas_texts(system, result, unit_system)
 
     balances = fed_tank_balances(result, system)
     if balances:

@@ -13,6 +13,7 @@ from __future__ import annotations
 from workbench.output.common import SEVERITY_STYLE, level_rate_text, quantity_text, simple_table
 from workbench.output.common import finding_message, finding_values
 from workbench.output.common import json_float as _num, json_list as _list
+from workbench.output.vent import gas_csv_columns, gas_json, gas_table
 
 import csv
 import math
@@ -133,6 +134,7 @@ def transient_to_json(result: TransientResult, system: System, include_series: b
             "end_level_rate_m_s": _num(_level_rate(result, system, k)),
             "peak_spill_m3_s": _num(np.max(spills[k], initial=0.0)),
         })
+        entry.update(gas_json(result, tid, include_series))  # tanks with a vent only
         out["levels"][tid] = entry
     out["events"] = [
         {"time_s": _num(e.time), "code": e.code, "element": e.element, "message": e.message}
@@ -212,13 +214,17 @@ def transient_csv(result: TransientResult, stream: TextIO, system: System | None
     writer = csv.writer(stream, lineterminator="\n")
     fed = _fed(result, system) if system is not None else []
     feeds, draws = _external(result)
-    writer.writerow(["time_s"] + [f"flow_{lid}_m3_s" for lid in result.line_ids]
-                    + [f"level_{tid}_m" for tid in result.tank_ids]
-                    + [f"{what}_{result.tank_ids[k]}_m3_s" for k in fed
-                       for what in ("inflow", "draw_off")])
+    header = (["time_s"] + [f"flow_{lid}_m3_s" for lid in result.line_ids]
+              + [f"level_{tid}_m" for tid in result.tank_ids]
+              + [f"{what}_{result.tank_ids[k]}_m3_s" for k in fed
+                 for what in ("inflow", "draw_off")])
     columns = [result.t] + list(result.flows) + list(result.levels)
     for k in fed:
         columns += [feeds[k], draws[k]]
+    gas_names, gas_columns = gas_csv_columns(result)  # then gas_pressure_<tank>_pa
+    header += gas_names
+    columns += gas_columns
+    writer.writerow(header)
     for row in zip(*columns):
         writer.writerow([repr(float(v)) for v in row])
 
@@ -282,6 +288,8 @@ def transient_tables(result: TransientResult, system: System, unit_system: str =
         out.append(_tanks_table(result, u))
         if _fed(result, system):
             out.append(_feeds_table(result, system, u))
+        if result.gas_tank_ids:
+            out.append(gas_table(result, system, unit_system))
     out.append(_lines_table(result, u))
     closing = {lid: s for lid, s in result.surge.items() if s.effective_closure is not None}
     if closing:

@@ -1,0 +1,106 @@
+"""The vent contract at the command line: ``simulate --json`` keys per tank in
+``levels.{id}``, the CSV column, the table, and ``solve``'s steady gas pressure.
+
+Checks: one gas pressure per ``time_s`` (the contract); the steady vacuum
+``rho_air (Q/(C_d A))^2/2`` at the solved outflow (incompressible orifice equation, ISO
+5167-1 with epsilon = 1; air density p/(R T), R = 287.05 J/(kg K), US Standard Atmosphere
+1976, from memory).
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+import math
+
+import pytest
+
+from workbench.cli import main
+
+TEXT = """\
+schema = 1
+
+[project]
+title = "Vent CLI"
+
+[fluid]
+kind = "water"
+temperature = "20 degC"
+
+[reservoirs.TK]
+kind = "tank"
+bottom_elevation = "0 m"
+level = "3 m"
+shape = "vertical_cylinder"
+diameter = "2 m"
+height = "4 m"
+{vent}
+
+[receivers.OUT]
+kind = "open_discharge"
+elevation = "-1 m"
+
+[lines.L1]
+from = "TK"
+to = "OUT"
+length = "5 m"
+inner_diameter = "50 mm"
+roughness = "0.05 mm"
+
+[simulation]
+duration = "10 min"
+output_interval = "10 s"
+"""
+
+VENT = 'vent = { inner_diameter = "50 mm", k = 1.5 }\ndesign_vacuum = "0.5 kPa"'
+KEYS = ("gas_pressure_pa", "min_gas_pressure_pa", "max_gas_pressure_pa",
+        "required_inbreathing_m3_s", "required_outbreathing_m3_s")
+
+
+def _write(tmp_path, vent):
+    path = tmp_path / "tk.toml"
+    path.write_text(TEXT.format(vent=vent), encoding="utf-8")
+    return path
+
+
+def test_simulate_json_gives_the_gas_keys_per_vented_tank(tmp_path, capsys):
+    assert main(["simulate", str(_write(tmp_path, VENT)), "--json"]) == 0
+    out = json.loads(capsys.readouterr().out)
+    tk = out["levels"]["TK"]
+    assert all(k in tk for k in KEYS)
+    assert len(tk["gas_pressure_pa"]) == len(out["time_s"])
+    assert tk["min_gas_pressure_pa"] == min(tk["gas_pressure_pa"]) < 0.0
+    assert tk["required_inbreathing_m3_s"] == pytest.approx(
+        max(out["lines"]["L1"]["flow_m3_s"]), rel=1e-9)
+
+
+def test_an_open_tank_has_no_gas_keys(tmp_path, capsys):
+    assert main(["simulate", str(_write(tmp_path, "")), "--json"]) == 0
+    tk = json.loads(capsys.readouterr().out)["levels"]["TK"]
+    assert not any(k in tk for k in KEYS)
+
+
+def test_the_csv_has_a_gas_pressure_column(tmp_path, capsys):
+    target = tmp_path / "series.csv"
+    assert main(["simulate", str(_write(tmp_path, VENT)), "--csv", str(target)]) == 0
+    rows = list(csv.reader(io.StringIO(target.read_text(encoding="utf-8"))))
+    assert rows[0][-1] == "gas_pressure_TK_pa"
+    assert all(float(r[-1]) <= 0.0 for r in rows[1:])
+
+
+def test_solve_reports_the_vacuum_at_the_steady_outflow(tmp_path, capsys):
+    assert main(["solve", str(_write(tmp_path, VENT)), "--json"]) == 0
+    out = json.loads(capsys.readouterr().out)
+    q = out["lines"]["L1"]["flow_m3_s"]
+    rho_air = 101_325.0 / (287.05 * 293.15)
+    area = math.pi * 0.05**2 / 4 / math.sqrt(1.5)
+    assert -out["nodes"]["TK"]["gas_pressure_pa"] == pytest.approx(
+        rho_air * (q / area) ** 2 / 2, rel=2e-3)
+    assert "gas_pressure_pa" not in out["nodes"]["OUT"]
+
+
+def test_solve_says_the_vacuum_in_words(tmp_path, capsys):
+    assert main(["solve", str(_write(tmp_path, VENT))]) == 0
+    text = " ".join(capsys.readouterr().out.split())
+    assert "gas space at" in text and "design vacuum" in text

@@ -1,0 +1,143 @@
+"""Tank gas spaces in the outputs: the ``simulate --json`` keys, CSV columns, a summary
+table, and the steady vacuum that ``solve`` reports.
+
+JSON keys (per tank with a vent, in ``levels.{id}``; none for an open tank):
+``gas_pressure_pa`` [...] (gauge, one per ``time_s``), ``min_gas_pressure_pa``,
+``max_gas_pressure_pa``, ``required_inbreathing_m3_s`` and ``required_outbreathing_m3_s``
+(API 2000 / ISO 28300: the largest liquid outflow and inflow of the run).
+"""
+
+from __future__ import annotations
+
+from typing import TYPE_CHECKING, Any
+
+import numpy as np
+
+from workbench.output.common import json_float as _num, json_list as _list
+from workbench.output.common import quantity_text, simple_table
+
+if TYPE_CHECKING:  # pragma: no cover
+    from workbench.core.model import System
+    from workbench.core.transient import TransientResult
+
+__all__ = ["gas_csv_columns", "gas_json", "gas_table", "steady_gas_pressures"]
+
+
+def gas_json(result: "TransientResult", tid: str, include_series: bool = True) -> dict[str, Any]:
+    """The gas-space keys of tank ``tid`` in ``levels.{id}`` (empty for an open tank)."""
+    if tid not in result.gas_tank_ids:
+        return {}
+    p = result.gas_pressures[result.gas_tank_ids.index(tid)]
+    out: dict[str, Any] = {}
+    if include_series:
+        out["gas_pressure_pa"] = _list(p)
+    out.update({
+        "min_gas_pressure_pa": _num(np.min(p)) if p.size else None,
+        "max_gas_pressure_pa": _num(np.max(p)) if p.size else None,
+        "required_inbreathing_m3_s": _num(result.required_inbreathing.get(tid)),
+        "required_outbreathing_m3_s": _num(result.required_outbreathing.get(tid)),
+    })
+    return out
+
+
+def gas_csv_columns(result: "TransientResult") -> tuple[list[str], list[np.ndarray]]:
+    """``gas_pressure_<tank>_pa`` (gauge) per tank with a vent: names and series."""
+    names = [f"gas_pressure_{tid}_pa" for tid in result.gas_tank_ids]
+    return names, list(result.gas_pressures)
+
+
+def gas_table(result: "TransientResult", system: "System", unit_system: str):
+    """Each gas space's pressure range against the tank's design range, and its venting."""
+    def q(value, kind):
+        return quantity_text(value, kind, unit_system, 3)
+
+    def span(low, high):
+        if low is None and high is None:
+            return "—"
+        low_text = q(low, "pressure") if low is not None else "—"
+        high_text = q(high, "pressure") if high is not None else "—"
+        return f"{low_text} to {high_text}"
+
+    table = simple_table("Tank gas spaces (gauge)")
+    table.caption = ("venting for liquid movement, API 2000 / ISO 28300 (thermal breathing "
+                     "not included)")
+    for col in ("tank", "gas pressure", "design", "inbreathing", "outbreathing"):
+        table.add_column(col, justify="left" if col == "tank" else "right", no_wrap=True)
+    for g, tid in enumerate(result.gas_tank_ids):
+        res = system.reservoirs[tid]
+        p = result.gas_pressures[g]
+        design_vac = -res.design_vacuum if res.design_vacuum is not None else None
+        table.add_row(
+            tid, span(float(np.min(p)), float(np.max(p))) if p.size else "—",
+            span(design_vac, res.design_pressure),
+            q(result.required_inbreathing.get(tid), "flow"),
+            q(result.required_outbreathing.get(tid), "flow"))
+    return table
+
+
+def vent_words(vent, unit_system: str) -> str:
+    """A vent as a reader would name it: ``sealed``, ``50 mm, K 1.5`` or its rating."""
+    if vent is None:
+        return "open"
+    if vent.sealed:
+        return "sealed"
+    if vent.diameter is not None:
+        return f"{quantity_text(vent.diameter, 'diameter', unit_system, 3)}, K {vent.k:g}"
+    return (f"{quantity_text(vent.rated_flow, 'flow', unit_system, 3)} at "
+            f"{quantity_text(vent.rated_pressure_drop, 'pressure', unit_system, 3)}")
+
+
+def steady_gas_pressures(system: "System", result) -> dict[str, float | None]:
+    """Per tank with a vent, the gauge pressure [Pa] at which its vent passes the air that
+    the steady ``result``'s net outflow makes room for (``None`` when no pressure does: a
+    sealed tank with an outflow, or a choked vent); 0 without net flow.
+
+    The steady flows are those of the open tank: the vacuum lowers them by ``p/(rho g)``
+    of head, which a simulation with ``initial_state = "steady"`` takes into account.
+    """
+    from workbench.core.atmosphere import R_AIR
+    from workbench.core.model import draw_off_at, inflow_at
+    from workbench.core.vent import GAMMA_AIR, quasi_steady_pressure
+
+    p_atm = system.atmospheric_pressure
+    rho_atm = p_atm / (R_AIR * (system.fluid.temperature or 293.15))
+    out: dict[str, float | None] = {}
+    for tid, res in system.reservoirs.items():
+        if res.vent is None:
+            continue
+        outflow = draw_off_at(res, 0.0) - inflow_at(res, 0.0)
+        for lid, line in system.lines.items():
+            flow = result.lines[lid].flow
+            outflow += flow if line.from_node == tid else -flow if line.to_node == tid else 0.0
+        n = GAMMA_AIR if res.gas_process == "adiabatic" else 1.0
+        p = quasi_steady_pressure(res.vent.effective_area, outflow, p_atm, rho_atm, n)
+        out[tid] = None if not np.isfinite(p) else p - p_atm
+    return out
+
+
+def steady_gas_texts(system: "System", result, unit_system: str) -> list:
+    """One line per tank with a vent for ``solve``'s tables: its gas-space pressure at the
+    steady outflow, against its design."""
+    from rich.text import Text
+
+    out = []
+    for tid, p in steady_gas_pressures(system, result).items():
+        res = system.reservoirs[tid]
+        vent = vent_words(res.vent, unit_system)
+        if p is None:
+            out.append(Text(
+                f"Tank {tid} ({vent}): its vent cannot pass the air for this steady outflow; "
+                "the vacuum grows until the drain slows or stops (run a simulation).",
+                style="bold"))
+            continue
+        text = (f"Tank {tid} ({vent}): gas space at "
+                f"{quantity_text(p, 'pressure', unit_system, 3)} gauge at the steady outflow")
+        design = res.design_vacuum if p < 0.0 else res.design_pressure
+        if design is not None:
+            beyond = abs(p) > design
+            text += (f", {'beyond' if beyond else 'within'} its design "
+                     f"{'vacuum' if p < 0.0 else 'pressure'} of "
+                     f"{quantity_text(design, 'pressure', unit_system, 3)}")
+        out.append(Text(text + ".", style="bold red" if design is not None and abs(p) > design
+                        else ""))
+    return out
