@@ -112,8 +112,9 @@ def line_profiles(system: System, line_ids, q: np.ndarray, head_from: np.ndarray
     details : dict of ndarray
         :meth:`workbench.core.line.LineSet.details` at ``q`` (losses [m], signed or not).
     status : list of str
-        Per line ``"flowing"``, ``"closed"`` (valve shut) or ``"drains_back"`` (no flow,
-        open to the air).
+        Per line ``"flowing"``, ``"siphon_break"`` (flowing, capped; the caller redraws the
+        leg beyond the parting point), ``"closed"`` (valve shut) or ``"drains_back"`` (no
+        flow, open to the air).
 
     Returns
     -------
@@ -134,7 +135,7 @@ def line_profiles(system: System, line_ids, q: np.ndarray, head_from: np.ndarray
     length = np.array([ln.length for ln in lines], dtype=float)
     q = np.asarray(q, dtype=float)
     stat = np.array(status, dtype=object)
-    flowing = (stat == "flowing") & (q != 0.0)
+    flowing = ((stat == "flowing") | (stat == "siphon_break")) & (q != 0.0)
     forward = q > 0.0
     vh = np.abs(details["velocity_head"])
     alpha = np.asarray(details["kinetic_energy_coefficient"], dtype=float)

@@ -42,6 +42,7 @@ import numpy as np
 from workbench.core.checks import ProfileResult, line_profiles, steady_findings
 from workbench.core.line import LineSet
 from workbench.core.model import Finding, G, System, receiver_head, reservoir_head
+from workbench.core.siphon import SiphonBreak, broken_profile, find_break, stop_level
 from workbench.core.topology import Topology, TopologyError, build_topology
 
 #: Energy residual tolerance [m].
@@ -85,7 +86,9 @@ class LineResult:
     velocity_head: float
     """v^2/2g [m]."""
     status: str
-    """``"flowing"``, ``"closed"`` (valve shut), ``"drains_back"`` (would run backwards
+    """``"flowing"``, ``"siphon_break"`` (the column parts at a high point: the flow is what
+    the leg up to it can lift, :attr:`SteadyResult.siphon_breaks`), ``"closed"`` (valve
+    shut), ``"drains_back"`` (would run backwards
     from an open discharge: no flow) or ``"isolated"`` (between junctions cut off from
     every known head by shut valves: no flow)."""
     from_node: str
@@ -137,6 +140,9 @@ class SteadyResult:
     """Valve openings used, per line with a valve [-]."""
     solve_time: float = 0.0
     """Wall-clock time of the solve [s]."""
+    siphon_breaks: dict[str, SiphonBreak] = field(default_factory=dict)
+    """Lines whose column parts at a high point (status ``"siphon_break"``): where, and the
+    flow they pass instead of the full-bore one (:mod:`workbench.core.siphon`)."""
 
 
 def fixed_heads(system: System, topo: Topology, levels: dict[str, float] | None = None):
@@ -441,6 +447,67 @@ def node_static_heads(topo: Topology, node_h: np.ndarray, details: dict[str, np.
     return node_h - largest
 
 
+def _siphon_breaks(system: System, topo: Topology, lines: LineSet, q: np.ndarray,
+                   node_h: np.ndarray, x_open, status: list[str]) -> dict[int, SiphonBreak]:
+    """Cap the flow of every line between two fixed heads whose column would part at a high
+    point (:func:`workbench.core.siphon.find_break`); ``q`` and ``status`` are updated in
+    place. Lines that meet a junction are left to the findings (not capped)."""
+    from workbench.core.checks import SUBATMOSPHERIC_TOLERANCE_M
+
+    out: dict[int, SiphonBreak] = {}
+    if system.fluid.vapor_pressure is None:
+        return out
+    nj = topo.n_junctions
+    tol = system.fluid.density * G * SUBATMOSPHERIC_TOLERANCE_M
+    for i, lid in enumerate(topo.line_ids):
+        a, b = int(topo.line_from[i]), int(topo.line_to[i])
+        if status[i] != "flowing" or q[i] == 0.0 or a < nj or b < nj:
+            continue
+        brk = find_break(system, lines, i, lid, q, x_open, float(node_h[a]), float(node_h[b]),
+                         tol)
+        if brk is not None:
+            out[i] = brk
+            q[i] = np.sign(q[i]) * brk.flow
+            status[i] = "siphon_break"
+    return out
+
+
+def siphon_findings(system: System, breaks) -> list[Finding]:
+    """``line.siphon_break`` (danger) for every capped line: where, the flow it passes, and
+    the source level at which it stops."""
+    from workbench.core.finding_text import finding
+
+    out = []
+    for brk in breaks:
+        level = stop_level(system, brk)
+        at_level = (f" (level {{stop}} in {brk.source!r})" if level is not None else "")
+        vals = dict(s=(brk.distance, "length"), z=(brk.elevation, "elevation", 4),
+                    q=(brk.flow, "flow"), full=(brk.full_bore_flow, "flow"),
+                    head=(brk.stop_head, "head", 4))
+        if level is not None:
+            vals["stop"] = (level, "length")
+        line = system.lines[brk.line]
+        res = system.reservoirs.get(brk.source)
+        never = level is not None and res is not None and level <= res.min_level
+        stops = (", down to the tank's lowest level (the high point is less than a water "
+                 "barometer above it)" if never else
+                 ", and the flow stops when the source head falls to {head}" + at_level)
+        if brk.flow > 0.0:
+            what = ("the line passes only {q} (capped: full-bore it would carry {full}); the "
+                    "leg beyond runs part-full" + stops)
+        else:
+            what = ("the source head is at or below {head}" + at_level + ", so nothing can "
+                    "be lifted over it: the flow stops (full-bore it would carry {full})")
+        out.append(finding(
+            "line.siphon_break", brk.line,
+            f"the liquid column parts at {{s}} from {line.from_node!r} (elevation {{z}}), "
+            "where the pressure would fall to the vapour pressure (siphon break): " + what
+            + "; lower the crest, or raise the source or the downstream pressure",
+            "danger", "energy equation up to the high point at the vapour pressure of the "
+            "liquid", **vals))
+    return out
+
+
 def _assemble(system, topo, lines, newton, x, h_fixed, x_open, shut, back, levels,
               iterations, residuals, t0, cut=None) -> SteadyResult:
     nj = topo.n_junctions
@@ -450,10 +517,11 @@ def _assemble(system, topo, lines, newton, x, h_fixed, x_open, shut, back, level
     cut = np.zeros(lines.n, bool) if cut is None else cut
     q[shut | back | cut] = 0.0
     rho = system.fluid.density
-    det = lines.details(q, x_open)
     node_h = np.concatenate([hj, h_fixed])
     status = ["closed" if shut[i] else "drains_back" if back[i] else
               "isolated" if cut[i] else "flowing" for i in range(lines.n)]
+    breaks = _siphon_breaks(system, topo, lines, q, node_h, x_open, status)
+    det = lines.details(q, x_open)
     line_results: dict[str, LineResult] = {}
     cols = {k: np.abs(det[k]).tolist() for k in (
         "friction_loss", "fittings_loss", "valve_loss", "entrance_loss", "exit_loss",
@@ -462,7 +530,7 @@ def _assemble(system, topo, lines, newton, x, h_fixed, x_open, shut, back, level
     f_list, regime, method = det["friction_factor"].tolist(), det["regime"], det["method"]
     q_list = q.tolist()
     for i, lid in enumerate(topo.line_ids):
-        flowing = status[i] == "flowing" and q_list[i] != 0.0
+        flowing = status[i] in ("flowing", "siphon_break") and q_list[i] != 0.0
         f = f_list[i]
         line = system.lines[lid]
         line_results[lid] = LineResult(
@@ -479,6 +547,13 @@ def _assemble(system, topo, lines, newton, x, h_fixed, x_open, shut, back, level
         )
     profiles = line_profiles(system, topo.line_ids, q, node_h[topo.line_from],
                              node_h[topo.line_to], det, status)
+    for i, brk in breaks.items():
+        lid = topo.line_ids[i]
+        excess = (node_h[topo.line_from[i]] - node_h[topo.line_to[i]]) * np.sign(q[i]) \
+            - cols["head_loss"][i] if q[i] != 0.0 else 0.0
+        arrays = broken_profile(system, profiles[lid], brk, x[nj + i] > 0.0, excess)
+        prof = profiles[lid]
+        profiles[lid] = ProfileResult(prof.distance, prof.elevation, *arrays)
     nodes: dict[str, NodeResult] = {}
     kinds = ("junction",) * nj + tuple(topo.fixed_kind)
     static = node_static_heads(topo, node_h, det, status)
@@ -492,6 +567,7 @@ def _assemble(system, topo, lines, newton, x, h_fixed, x_open, shut, back, level
     lv = {rid: levels.get(rid, r.level) for rid, r in system.reservoirs.items()}
     isolated = tuple(j for j, iso in zip(topo.junction_ids, newton.isolated, strict=True) if iso)
     findings = steady_findings(system, topo.line_ids, det, q, status, profiles, lv, isolated)
+    findings.extend(siphon_findings(system, breaks.values()))
     openings_used = {lid: float(x_open[i]) for i, lid in enumerate(topo.line_ids)
                      if lines.has_valve[i]}
     n_passes_note = ""
@@ -504,4 +580,5 @@ def _assemble(system, topo, lines, newton, x, h_fixed, x_open, shut, back, level
         lines=line_results, nodes=nodes, profiles=profiles, warnings=findings, flows=q,
         line_ids=topo.line_ids, levels=lv, openings=openings_used,
         solve_time=time.perf_counter() - t0,
+        siphon_breaks={topo.line_ids[i]: brk for i, brk in breaks.items()},
     )

@@ -47,7 +47,10 @@ def steady_to_json(result: SteadyResult, system: System) -> dict:
     Grade lines: a junction's ``head_m`` is the energy head the lines meeting there share,
     its ``pressure_pa`` the lowest static pressure among those lines; a line's profile
     ``hgl_m``, ``pressure_pa`` and ``pressure_abs_pa`` are static (piezometric, the energy
-    head ``egl_m`` less the line's own ``alpha v^2/2g``). A warning with numbers adds
+    head ``egl_m`` less the line's own ``alpha v^2/2g``). A line whose column parts at a high
+    point has ``status`` ``"siphon_break"``, ``capped`` true and ``siphon_break``
+    {``distance_m``, ``elevation_m``, ``break_pressure_abs_pa``, ``full_bore_flow_m3_s``,
+    ``stop_head_m``, ``source``}; its ``flow_m3_s`` is the capped flow. A warning with numbers adds
     ``values`` {slot: {``value`` (SI), ``kind``}}.
 
     Tank nodes add their volume balance at the solved flows: ``lines_net_inflow_m3_s``,
@@ -99,6 +102,15 @@ def steady_to_json(result: SteadyResult, system: System) -> dict:
         }
         if lid in result.openings:
             entry["valve_opening"] = _num(result.openings[lid])
+        brk = getattr(result, "siphon_breaks", {}).get(lid)
+        if brk is not None:
+            entry["capped"] = True
+            entry["siphon_break"] = {
+                "distance_m": _num(brk.distance), "elevation_m": _num(brk.elevation),
+                "break_pressure_abs_pa": _num(brk.break_pressure),
+                "full_bore_flow_m3_s": _num(brk.full_bore_flow),
+                "stop_head_m": _num(brk.stop_head), "source": brk.source,
+            }
         prof = result.profiles.get(lid)
         if prof is not None:
             entry["profile"] = {
@@ -180,10 +192,11 @@ def steady_tables(result: SteadyResult, system: System, unit_system: str = "SI")
         losses.add_column(col, justify=just, overflow="fold",
                           no_wrap=col in ("friction", "minor", "velocity head"))
     for lid, r in result.lines.items():
+        moving = r.status in ("flowing", "siphon_break") and r.flow != 0.0
         regime = r.regime if r.status == "flowing" else r.status.replace("_", " ")
         lines.add_row(
             lid, q(r.flow, "flow"), q(r.velocity, "velocity"),
-            f"{r.reynolds:,.0f}" if r.status == "flowing" else "—", regime,
+            f"{r.reynolds:,.0f}" if moving else "—", regime,
             plain(r.friction_factor, 4), q(r.head_loss, "head"),
         )
         losses.add_row(lid, f"{r.from_node} → {r.to_node}", q(r.friction_loss, "head"),
