@@ -102,7 +102,7 @@ def _dialect(text: str):
 
 
 def _locate(header: list[str], col: _Column, shown: str) -> _Column:
-    from workbench.project.validate import did_you_mean
+    from workbench.project.validate.checker import did_you_mean
 
     names = [h.strip() for h in header]
     if col.name not in names:

@@ -177,7 +177,7 @@ def check_measurements(data: Any, file: str | None = None, *, atmosphere: float 
 
 
 def _check_one(r: _Reader, name: str, t: dict) -> Measurement | None:
-    from workbench.project.validate import did_you_mean
+    from workbench.project.validate.checker import did_you_mean
 
     path = f"measurements.{name}"
     specs = SECTIONS["measurements"]
@@ -224,7 +224,7 @@ def _check_one(r: _Reader, name: str, t: dict) -> Measurement | None:
 
 
 def _element_fits(r: _Reader, path: str, element: Any, quantity: str) -> bool:
-    from workbench.project.validate import did_you_mean
+    from workbench.project.validate.checker import did_you_mean
 
     if not isinstance(element, str):
         r.add(f"{path}.element", "expected the id of an element, in quotes")
