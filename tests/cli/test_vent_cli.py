@@ -104,3 +104,23 @@ def test_solve_says_the_vacuum_in_words(tmp_path, capsys):
     assert main(["solve", str(_write(tmp_path, VENT))]) == 0
     text = " ".join(capsys.readouterr().out.split())
     assert "gas space at" in text and "design vacuum" in text
+
+
+def test_a_sweep_over_vent_bores_finds_the_smallest_within_the_design_vacuum(tmp_path, capsys):
+    """Quasi-steady vent drop dp = rho (Q/(C_d A))^2/2 (ISO 5167-1, eps = 1) at the peak
+    outflow Q: the smallest bore with dp < 0.5 kPa has A >= Q sqrt(rho K/(2 dp)). With Q the
+    run's largest outflow (about 9 L/s) that bore is about 22 mm: 25 mm passes, 10 mm
+    fails."""
+    path = _write(tmp_path, VENT)
+    code = main(["sweep", str(path), "--vary",
+                 "reservoirs.TK.vent.inner_diameter=10 mm,25 mm,50 mm", "--require",
+                 "min_gas_pressure(TK) > -0.5 kPa", "--workers", "1", "--json"])
+    assert code == 0
+    sweep = json.loads(capsys.readouterr().out)
+    rho_air = 101_325.0 / (287.05 * 293.15)
+    q = max(c["simulation"]["levels"]["TK"]["required_inbreathing_m3_s"]
+            for c in sweep["cases"])
+    d_min = math.sqrt(4.0 / math.pi * q * math.sqrt(rho_air * 1.5 / (2 * 500.0)))
+    expected = [d > d_min for d in (0.010, 0.025, 0.050)]
+    assert [c["pass"] for c in sweep["cases"]] == expected
+    assert sweep["first_passing"] == expected.index(True)

@@ -108,6 +108,9 @@ def resolve_keypath(keypath: str, data: Mapping | None = None) -> KeyTarget:
         if head == "lines" and rest[0] in ("valve", "surge") and len(rest) == 2:
             section = f"lines.{rest[0]}"
             rest = rest[1:]
+        elif head == "reservoirs" and rest[0] == "vent" and len(rest) == 2:
+            section = "reservoirs.vent"
+            rest = rest[1:]
         if data is not None:
             ids = data.get(head) or {}
             if element not in ids:
@@ -425,6 +428,13 @@ METRICS: dict[str, Metric] = {
                "lowest level of a tank during the simulation (above its bottom)"),
         Metric("final_level", "length", "reservoirs", True, _sim_level("final_level_m"),
                "level of a tank at the end of the simulation (above its bottom)"),
+        Metric("min_gas_pressure", "pressure", "reservoirs", True,
+               _sim_level("min_gas_pressure_pa"),
+               "lowest gauge pressure of a tank's gas space during the simulation (a tank "
+               "with a vent)"),
+        Metric("max_gas_pressure", "pressure", "reservoirs", True,
+               _sim_level("max_gas_pressure_pa"),
+               "highest gauge pressure of a tank's gas space during the simulation"),
         Metric("max_pressure", "pressure", "lines", True, _sim_line("max_pressure_pa"),
                "highest gauge pressure on a line during the simulation"),
         Metric("min_pressure", "pressure", "lines", True, _sim_line("min_pressure_pa"),
