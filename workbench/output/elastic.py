@@ -33,6 +33,17 @@ def elastic_line_json(result: ElasticResult, line_id: str) -> dict:
     throughout), ``column_separation`` (``null`` or {``time_s``, ``line``, ``distance_m``,
     ``pressure_abs_pa``}), ``notes`` and ``kernel`` (the time-stepping kernel used,
     ``"compiled"`` or ``"numpy"``; the numbers agree to round-off).
+
+    Added with the vapour cavity model and branched lines (keys only added): ``lines_run``
+    (every line run together), ``initial_flows_m3_s`` (per line), ``vapour_head_m`` (along
+    this line), ``max_pressure_before_separation_pa`` (highest gauge pressure on this line
+    before the first cavity formed; ``null`` when none formed), ``cavity_max_volume_m3``
+    (along this line), ``cavity_volume_m3`` (total in the lines run, every step),
+    ``cavities`` (zones on this line: ``start_m``, ``end_m``, ``sections``, ``events``,
+    ``first_open_s``, ``last_collapse_s`` (``null``: open at the end), ``max_volume_m3``,
+    ``max_volume_time_s``, ``max_volume_at_m``), ``grid_check`` (``null``, or the same run
+    with twice the reaches: ``reaches`` and ``max_pressure_pa`` per line), ``traces_m``
+    (head in time at valves and junctions, by label) and ``cavity_model``.
     """
     out: dict[str, Any] = {
         "success": bool(result.success),
@@ -72,7 +83,46 @@ def elastic_line_json(result: ElasticResult, line_id: str) -> dict:
         "notes": list(result.notes),
         "kernel": result.kernel,
     })
+    out.update(_cavity_json(result, line_id))
     return out
+
+
+CAVITY_MODEL = ("discrete vapour cavity model (Wylie & Streeter 1993, ch. 8; Bergant, "
+                "Simpson & Tijsseling 2006), cavity volume weighting psi = 1")
+
+
+def _cavity_json(result: ElasticResult, line_id: str) -> dict:
+    env = result.envelopes[line_id]
+    pre = env.max_head_before_separation
+    rho_g = None
+    if pre is not None:
+        # gauge pressure from head as the envelope's own: p = rho g (H - z)
+        k = int(env.max_head.argmax())
+        rho_g = env.max_pressure[k] / (env.max_head[k] - env.elevation[k]) \
+            if env.max_head[k] != env.elevation[k] else None
+    gc = result.grid_check
+    return {
+        "lines_run": list(result.line_ids),
+        "initial_flows_m3_s": {k: _num(v) for k, v in result.initial_flows.items()},
+        "vapour_head_m": _list(result.vapour_head.get(line_id, [])),
+        "max_pressure_before_separation_pa": (
+            None if pre is None or rho_g is None
+            else _num(float((rho_g * (pre - env.elevation)).max()))),
+        "cavity_max_volume_m3": (None if env.cavity_max_volume is None
+                                 else _list(env.cavity_max_volume)),
+        "cavity_volume_m3": _list(result.cavity_volume),
+        "cavities": [{
+            "start_m": _num(z.start), "end_m": _num(z.end), "sections": z.sections,
+            "events": z.events, "first_open_s": _num(z.first_open),
+            "last_collapse_s": _num(z.last_collapse), "max_volume_m3": _num(z.max_volume),
+            "max_volume_time_s": _num(z.max_volume_time), "max_volume_at_m": _num(z.max_volume_at),
+        } for z in result.cavity_zones if z.line == line_id],
+        "grid_check": None if gc is None else {
+            "reaches": dict(gc.reaches),
+            "max_pressure_pa": {k: _num(v) for k, v in gc.max_pressure.items()}},
+        "traces_m": {label: _list(v) for label, v in result.traces.items()},
+        "cavity_model": CAVITY_MODEL if len(result.cavity_volume) else None,
+    }
 
 
 def elastic_to_json(results: dict[str, ElasticResult]) -> dict[str, dict]:
@@ -130,6 +180,7 @@ def elastic_table(results: dict[str, ElasticResult], system: System, unit_system
             sep = res.column_separation
             notes.append(f"{lid}: VAPOUR PRESSURE reached on {sep.line} at {sep.distance:.0f} m, "
                          f"t = {sep.time:.2f} s: results after that time are not trustworthy")
+            notes.extend(_cavity_notes(res, lid, unit_system))
         over = rating is not None and env.max_pressure.max() > rating
         if over:
             notes.append(f"{lid}: the peak is OVER THE RATING")
@@ -140,14 +191,53 @@ def elastic_table(results: dict[str, ElasticResult], system: System, unit_system
             f"{res.dt * 1e3:.3g} ms",
             format_quantity(float(env.max_pressure.max()), "pressure", unit_system)
             + (" !" if over else ""),
-            format_quantity(float(env.min_pressure.min()), "pressure", unit_system),
+            format_quantity(float(env.min_pressure.min()), "pressure", unit_system)
+            + (" v" if _at_vapour(res, lid) else ""),
             "" if rating is None else format_quantity(rating, "pressure", unit_system),
         )
+    vapour = any(_at_vapour(res, lid) for lid, res in results.items()
+                 if lid in res.envelopes)
     caption = ["a: wave speed used; p: gauge pressure, highest and lowest anywhere on the line "
                "over the surge run" + ("; ! over the rating" if any("OVER" in n for n in notes)
-                                       else "")]
+                                       else "")
+               + ("; v at vapour pressure (a vapour cavity)" if vapour else "")]
     caption.extend(notes)
     # messages quote file keys such as [fluid]: plain text, never console markup
     table.caption = Text("\n".join(caption))
     table.caption_justify = "left"
     return table
+
+
+def _at_vapour(res: ElasticResult, lid: str) -> bool:
+    """True when the line's lowest head is the vapour head (a cavity formed on it)."""
+    return any(z.line == lid for z in res.cavity_zones)
+
+
+def _cavity_notes(res: ElasticResult, lid: str, unit_system: str) -> list[str]:
+    """Per line: its cavity zones, the peak before separation and the grid check."""
+    from workbench.project.units import format_quantity
+
+    def p(value):
+        return format_quantity(value, "pressure", unit_system)
+
+    env = res.envelopes[lid]
+    out = []
+    for z in res.cavity_zones:
+        if z.line != lid:
+            continue
+        where = (f"at {z.start:.0f} m" if z.sections == 1
+                 else f"along {z.start:.0f}-{z.end:.0f} m")
+        end = ("open at the end" if z.last_collapse is None
+               else f"last collapse {z.last_collapse:.2f} s")
+        out.append(f"{lid}: vapour cavities {where}, from {z.first_open:.2f} s, largest "
+                   f"{z.max_volume * 1e3:.3g} L, {end}")
+    if env.max_head_before_separation is not None and out:
+        j = int(env.max_head.argmax())
+        rho_g = env.max_pressure[j] / (env.max_head[j] - env.elevation[j])
+        before = float((rho_g * (env.max_head_before_separation - env.elevation)).max())
+        out.append(f"{lid}: p max {p(float(env.max_pressure.max()))} with the collapses, "
+                   f"{p(before)} before the column separated")
+    if res.grid_check is not None and out:
+        out.append(f"{lid}: with {res.grid_check.reaches[lid]} reaches p max is "
+                   f"{p(res.grid_check.max_pressure[lid])} (the peak depends on the grid)")
+    return out

@@ -73,19 +73,21 @@ def _track(node, v_new, k, vol, events, first_open, last_close, v_max, v_max_ste
 
 
 @_jit
-def _reach_loss(x, n, inv2b, r, quasi, cphi, clin, repq, rr, fixed, loss):
-    """Loss of one reach at every node from the flow there [m]."""
+def _reach_loss(x, n, inv2b, r2, quasi, cphi, clin, repq2, rr, fixed, loss):
+    """Change of ``u`` over one reach at every node, ``-F(Q)`` [m] (``w`` changes by
+    ``+F``), in the very order of operations of the numpy kernel so both round alike."""
     for i in range(n):
-        q = (x[i] - x[2 * n - 1 - i]) * inv2b[i]
+        d = x[i] - x[2 * n - 1 - i]  # u - w = 2BQ
         if quasi:
-            re = abs(q) * repq[i]
+            q2 = d * inv2b[i]
+            re2 = abs(d) * repq2[i]
             if fixed[i] == fixed[i]:  # not NaN: a fixed friction factor
-                phi = fixed[i] * re
+                phi = fixed[i] * re2
             else:
-                phi = friction_re_product_scalar(re, rr[i])
-            loss[i] = r[i] * q * abs(q) + (cphi[i] * phi + clin[i]) * q
+                phi = friction_re_product_scalar(re2, rr[i])
+            loss[i] = -(cphi[i] * phi + clin[i]) * q2 + r2[i] * (d * abs(d))
         else:
-            loss[i] = r[i] * q * abs(q)
+            loss[i] = abs(d) * d * r2[i]
 
 
 @_jit
@@ -145,7 +147,7 @@ def march(x, xn, k0, m, dt, inv2b, b, fric, cav, hv, interior, vol, rec, fixed, 
     Returns the number of nodes holding a cavity at the end.
     """
     n = b.shape[0]
-    r, quasi, cphi, clin, repq, rr, fixed_f = fric
+    r2, quasi, cphi, clin, repq2, rr, fixed_f = fric
     h_max, h_min, h_max_pre, h_vap_check, sep_head = env
     events, first_open, last_close, v_max, v_max_step, sep = rec
     x0 = x
@@ -153,11 +155,11 @@ def march(x, xn, k0, m, dt, inv2b, b, fric, cav, hv, interior, vol, rec, fixed, 
     heads = np.empty(n)
     for j in range(m):
         k = k0 + j + 1
-        _reach_loss(x, n, inv2b, r, quasi, cphi, clin, repq, rr, fixed_f, loss)
+        _reach_loss(x, n, inv2b, r2, quasi, cphi, clin, repq2, rr, fixed_f, loss)
         for i in range(1, n):  # u carried one node downstream
-            xn[i] = x[i - 1] - loss[i - 1]
+            xn[i] = x[i - 1] + loss[i - 1]
         for p in range(n - 1):  # w carried one node upstream
-            xn[2 * n - 1 - p] = x[2 * n - 2 - p] + loss[p + 1]
+            xn[2 * n - 1 - p] = x[2 * n - 2 - p] - loss[p + 1]
         for i in range(n):
             heads[i] = 0.5 * (xn[i] + xn[2 * n - 1 - i])
         if cav:

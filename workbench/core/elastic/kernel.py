@@ -95,7 +95,10 @@ def run_compiled(plan: MarchPlan, out: MarchOutput, progress=None, cancel=None):
     hv = plan.h_vap if cav else np.full(n, -math.inf)
     check = plan.h_vap if (plan.h_vap is not None and not cav and out.sep[0] < 0) \
         else np.zeros(0)
-    fric = (fr.r, bool(fr.quasi), fr.cphi, fr.clin, fr.re_per_q, fr.rel_roughness, fr.fixed_f)
+    inv2b = 0.5 / plan.b_node
+    r2 = -fr.r * inv2b * inv2b  # as the numpy kernel forms it, so both round alike
+    fric = (r2, bool(fr.quasi), fr.cphi, fr.clin, fr.re_per_q * inv2b, fr.rel_roughness,
+            fr.fixed_f)
     rec = (out.events, out.first_open, out.last_close, out.v_max, out.v_max_step, out.sep)
     fixed = (bd.fixed_node, bd.fixed_in, bd.fixed_out, bd.fixed_head, bd.fixed_k_out,
              bd.fixed_k_in, bd.fixed_b, bd.fixed_valve)
@@ -107,7 +110,7 @@ def run_compiled(plan: MarchPlan, out: MarchOutput, progress=None, cancel=None):
     k, active = 0, 0
     while k < n_steps:
         m = min(chunk, n_steps - k)
-        active = compiled.march(x, xn, k, m, plan.dt, 0.5 / plan.b_node, plan.b_node, fric,
+        active = compiled.march(x, xn, k, m, plan.dt, inv2b, plan.b_node, fric,
                                 cav, hv, plan.interior, out.vol, rec, fixed, juncs, pairs,
                                 kappa, env, out.series, plan.series_nodes, out.cavity_volume,
                                 active)

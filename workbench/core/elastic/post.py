@@ -129,6 +129,8 @@ def assemble(setup: RunSetup, out: MarchOutput, steps: int, cancelled: bool,
     findings = list(setup.findings)
     if sep is not None:
         findings.append(separation_finding(sep, cav))
+    zones = cavity_zones(setup, out) if cav else ()
+    findings += cavity_findings(zones, env, rho)
     findings += rating_findings(setup, env)
     status = -2 if cancelled else (1 if sep is not None else 0)
     times = setup.times[:steps + 1]
@@ -160,7 +162,40 @@ def assemble(setup: RunSetup, out: MarchOutput, steps: int, cancelled: bool,
         initial_flows=dict(zip(g.line_ids, map(float, setup.flows))),
         traces={label: series[:, col[p]].copy() for label, p in setup.traces.items()},
         cavity_volume=out.cavity_volume[:steps + 1].copy() if cav else np.zeros(0),
-        cavity_zones=cavity_zones(setup, out) if cav else (),
+        cavity_zones=zones,
         vapour_head=({} if setup.plan.h_vap is None else
                      {ln.id: setup.plan.h_vap[g.first(i):g.last(i) + 1].copy()
                       for i, ln in enumerate(setup.lines)}))
+
+
+#: The published basis of the cavity model, as findings and notes name it.
+CAVITY_SOURCE = ("discrete vapour cavity model (Wylie & Streeter 1993, ch. 8; Bergant, "
+                 "Simpson & Tijsseling 2006)")
+
+#: Neighbouring sections with cavities from which a zone counts as "many small cavities".
+MANY_SECTIONS = 3
+
+
+def cavity_findings(zones, env: dict[str, Envelope], rho: float) -> list[Finding]:
+    """DANGER per cavity zone, with the collapse and the model's known limits in words."""
+    found = []
+    for z in zones:
+        e = env[z.line]
+        peak = float(e.max_pressure.max())
+        pre = e.max_head_before_separation
+        before = float((rho * G * (pre - e.elevation)).max()) if pre is not None else peak
+        where = (f"at {z.start:.0f} m" if z.sections == 1
+                 else f"along {z.start:.0f}-{z.end:.0f} m ({z.sections} computing sections)")
+        collapse = ("still open at the end of the run" if z.last_collapse is None
+                    else f"the last collapses at {z.last_collapse:.2f} s")
+        text = (f"line {z.line}: vapour cavities {where}, the first at {z.first_open:.2f} s, "
+                f"largest {z.max_volume * 1e3:.3g} L at {z.max_volume_at:.0f} m, {collapse}. "
+                f"Highest pressure on the line {peak / 1e3:.0f} kPa gauge with the collapses, "
+                f"{before / 1e3:.0f} kPa before the column first separated. Cavity collapse "
+                "can burst or move a pipe; these figures are screening estimates, not design "
+                "values: get a specialist surge study.")
+        if z.sections >= MANY_SECTIONS:
+            text += (" Many small cavities along a reach: the model is known to give "
+                     "spurious pressure spikes there; treat the peaks as indicative.")
+        found.append(Finding("surge.cavity_collapse", z.line, text, "danger", CAVITY_SOURCE))
+    return found

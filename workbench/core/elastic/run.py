@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 from collections.abc import Callable
+from dataclasses import replace
 
 from workbench.core.elastic.grid import SPEED_TOLERANCE
 from workbench.core.elastic.kernel import run_march
@@ -11,6 +12,7 @@ from workbench.core.elastic.results import (
     STATUS_MESSAGES,
     ElasticResult,
     ElasticSetupError,
+    GridCheck,
     failed,
 )
 from workbench.core.elastic.setup import prepare
@@ -31,6 +33,8 @@ def simulate_elastic(
     progress: Callable[[float], None] | None = None,
     cancel: Callable[[], bool] | None = None,
     kernel: str = "auto",
+    cavities: bool = True,
+    grid_check: bool = True,
 ) -> ElasticResult:
     r"""Run the method of characteristics on the lines run together with a line.
 
@@ -66,6 +70,10 @@ def simulate_elastic(
         ``"compiled"`` (numba), ``"numpy"`` or ``"auto"`` (the compiled kernel for a long
         run or once it is loaded, see :func:`workbench.core.elastic.kernel.choose_kernel`).
         Both give the same numbers to round-off. Without numba, numpy is always used.
+    cavities : bool
+        Model vapour cavities (discrete vapour cavity model,
+        :mod:`workbench.core.elastic.boundaries`); false only flags the first contact with
+        vapour pressure and lets the head fall below it (for comparison).
 
     Returns
     -------
@@ -105,7 +113,7 @@ def simulate_elastic(
         lines = [system.lines[lid] for lid in series_chain(system, line_id)]
         setup = prepare(system, line_id, lines, duration=duration, max_duration=max_duration,
                         reaches=reaches, friction=friction, tolerance=speed_tolerance,
-                        speeds=wave_speeds)
+                        speeds=wave_speeds, cavities=cavities)
         notes = setup.notes
         out, steps, cancelled, used = run_march(setup.plan, kernel, notes, progress, cancel)
     except (ElasticSetupError, ValueError, KeyError) as exc:
@@ -113,7 +121,32 @@ def simulate_elastic(
         # speed inputs) come back as a failed result whose message says what was wrong
         text = exc.args[0] if isinstance(exc, KeyError) and exc.args else exc
         return failed(f"{STATUS_MESSAGES[-1]} {text}")
-    return assemble(setup, out, steps, cancelled, system, used)
+    res = assemble(setup, out, steps, cancelled, system, used)
+    if grid_check and res.cavity_zones and res.status == 1:
+        res = _with_grid_check(res, system, line_id, duration=res.duration, friction=friction,
+                               speed_tolerance=speed_tolerance, wave_speeds=wave_speeds,
+                               kernel=kernel, cancel=cancel)
+    return res
+
+
+def _with_grid_check(res: ElasticResult, system: System, line_id: str, **kw) -> ElasticResult:
+    """``res`` with the peaks of the same run on twice the reaches, and a note comparing them."""
+    finer = {lid: 2 * n for lid, n in res.reaches.items()}
+    check = simulate_elastic(system, line_id, reaches=finer, grid_check=False, **kw)
+    if not check.success:
+        return res
+    gc = GridCheck(
+        reaches=dict(check.reaches),
+        max_head={lid: float(e.max_head.max()) for lid, e in check.envelopes.items()},
+        max_pressure={lid: float(e.max_pressure.max()) for lid, e in check.envelopes.items()})
+    parts = []
+    for lid, e in res.envelopes.items():
+        a, b = float(e.max_pressure.max()), gc.max_pressure[lid]
+        parts.append(f"{lid} {a / 1e3:.0f} kPa with {res.reaches[lid]} reaches, "
+                     f"{b / 1e3:.0f} kPa with {gc.reaches[lid]}")
+    note = ("vapour cavities formed; the highest pressure depends on the grid (lumped "
+            "cavities at the computing sections): " + "; ".join(parts))
+    return replace(res, grid_check=gc, notes=res.notes + (note,))
 
 
 def run_elastic(
