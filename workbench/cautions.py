@@ -34,6 +34,17 @@ CAUTIONS: tuple[Caution, ...] = (
         "collapse. Air drawn in at joints changes the flow.",
     ),
     Caution(
+        "Vacuum on tanks and tank vents",
+        "Atmospheric storage tanks are built for a few hundred pascals of vacuum; a drain or "
+        "pump-out through a vent that is too small, iced, fouled with polymer or blanked "
+        "after maintenance pulls them in. The vent model is an ideal-gas air space: a "
+        "nitrogen or other inert blanket changes the gas, and its blanketing regulator (not "
+        "the vent) then sets the pressure; flame arresters, conservation (pressure-vacuum) "
+        "vents and emergency vents pass what their makers' stated capacity curves say, not "
+        "an orifice law. Size and check vents to the tank's design code and API 2000 / "
+        "ISO 28300 (thermal breathing, fire case), and follow local practice.",
+    ),
+    Caution(
         "Siphon break and column separation",
         "Where the computed pressure nears the liquid's vapour pressure, dissolved air and vapour "
         "come out, the column separates and the computed full-bore flow is not possible. Keep "

@@ -124,3 +124,14 @@ def test_a_sweep_over_vent_bores_finds_the_smallest_within_the_design_vacuum(tmp
     expected = [d > d_min for d in (0.010, 0.025, 0.050)]
     assert [c["pass"] for c in sweep["cases"]] == expected
     assert sweep["first_passing"] == expected.index(True)
+
+
+def test_the_record_lists_the_gas_spaces_and_the_csv_their_pressure(tmp_path):
+    path = _write(tmp_path, VENT)
+    record = tmp_path / "record.md"
+    assert main(["report", str(path), "--output", str(record), "--csv-dir",
+                 str(tmp_path / "csv")]) == 0
+    text = record.read_text(encoding="utf-8")
+    assert "### Tank gas spaces" in text and "Tank gas space and vent" in text
+    header = (tmp_path / "csv" / "timeseries.csv").read_text(encoding="utf-8").splitlines()[0]
+    assert header.endswith("gas pressure TK [Pa]")

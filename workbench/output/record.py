@@ -319,6 +319,10 @@ def _methods(project: Project, steady: SteadyResult | None, transient: Transient
                          "mass balance of an incompressible liquid (common practice)",
                          "a drained tank's outlets stop at min_level and restart at the restart "
                          "level (in the plant they would run part-full)"])
+        if transient.gas_tank_ids:
+            from workbench.output.vent import RECORD_METHOD_ROW
+
+            rows.append(list(RECORD_METHOD_ROW))
         formulas = sorted({s.formula for s in transient.surge.values() if s.formula})
         for formula in formulas:
             rows.append(["Wave speed", formula, "Korteweg; Wylie and Streeter, Fluid Transients in Systems (1993)",
@@ -398,6 +402,12 @@ def _simulation(project: Project, transient: TransientResult | None) -> list[str
                          getattr(transient, "end_states", {}).get(tid, "-")])
         out += ["### Tanks", ""]
         out += _table(["Tank", "Initial level", "Final level", "Drain time", "At end"], rows, "lrrrl")
+    if transient.gas_tank_ids:
+        from workbench.output.vent import RECORD_GAS_HEADER, record_gas_rows
+
+        out += ["### Tank gas spaces", ""]
+        out += _table(RECORD_GAS_HEADER, record_gas_rows(transient, project.system, units),
+                      "llrrrrrr")
     rows = []
     for k, lid in enumerate(transient.line_ids):
         q = transient.flows[k]
@@ -582,11 +592,14 @@ def result_tables(project: Project, steady: SteadyResult | None,
         list(row) for row in _all_findings(steady, transient, elastic)]
     if transient is not None:
         header = ["time [s]"] + [f"flow {lid} [m^3/s]" for lid in transient.line_ids] + [
-            f"level {tid} [m]" for tid in transient.tank_ids]
+            f"level {tid} [m]" for tid in transient.tank_ids] + [
+            f"gas pressure {tid} [Pa]" for tid in transient.gas_tank_ids]
         rows = [header]
         for k, t in enumerate(transient.t):
             rows.append([float(t)] + [float(transient.flows[i, k]) for i in range(len(transient.line_ids))]
-                        + [float(transient.levels[i, k]) for i in range(len(transient.tank_ids))])
+                        + [float(transient.levels[i, k]) for i in range(len(transient.tank_ids))]
+                        + [float(transient.gas_pressures[i, k])
+                           for i in range(len(transient.gas_tank_ids))])
         tables["timeseries.csv"] = rows
         tables["events.csv"] = [["time [s]", "code", "element", "message"]] + [
             [e.time, e.code, e.element, e.message] for e in transient.events]

@@ -141,3 +141,40 @@ def steady_gas_texts(system: "System", result, unit_system: str) -> list:
         out.append(Text(text + ".", style="bold red" if design is not None and abs(p) > design
                         else ""))
     return out
+
+
+#: The calculation record's methods-table row for tanks with a vent.
+RECORD_METHOD_ROW = [
+    "Tank gas space and vent",
+    "ideal-gas air space (isothermal, or adiabatic by choice) in the state; vent flow "
+    "m = eps C_d A sqrt(2 rho dp), choked below the critical ratio; gas pressure in the "
+    "tank's head",
+    "ISO 5167-2:2003 expansibility (via fluids); API 2000 / ISO 28300 required venting for "
+    "liquid movement",
+    "air at the liquid's temperature; no thermal breathing, no inert blanket, no conservation "
+    "vent or flame arrester curves",
+]
+
+
+def record_gas_rows(result: "TransientResult", system: "System", units: str) -> list[list[str]]:
+    """Rows of the record's *Tank gas spaces* table: tank, vent, lowest and highest gauge
+    pressure, design vacuum and pressure, required in- and outbreathing."""
+    def q(value, kind):
+        return quantity_text(value, kind, units, 4) if value is not None else "-"
+
+    rows = []
+    for g, tid in enumerate(result.gas_tank_ids):
+        res = system.reservoirs[tid]
+        p = result.gas_pressures[g]
+        rows.append([tid, vent_words(res.vent, units),
+                     q(float(np.min(p)) if p.size else None, "pressure"),
+                     q(float(np.max(p)) if p.size else None, "pressure"),
+                     q(res.design_vacuum, "pressure"), q(res.design_pressure, "pressure"),
+                     q(result.required_inbreathing.get(tid), "flow"),
+                     q(result.required_outbreathing.get(tid), "flow")])
+    return rows
+
+
+RECORD_GAS_HEADER = ["Tank", "Vent", "Lowest gas pressure (gauge)",
+                     "Highest gas pressure (gauge)", "Design vacuum", "Design pressure",
+                     "Required inbreathing", "Required outbreathing"]
