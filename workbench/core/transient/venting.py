@@ -52,8 +52,10 @@ def required_venting(model: TransientModel, ys, feeds, draws, spills):
     net = model.t_rows @ ys[: model.nl] + feeds - draws - spills
     for g, k in enumerate(model.gas.tank.tolist()):
         tid = model.gas.ids[g]
+        noise = 1e-9 * float(np.max(np.abs(net[k])))  # round-off of a stopped line
         inb[tid] = max(float(np.max(-net[k])), 0.0)
         outb[tid] = max(float(np.max(net[k])), 0.0)
+        inb[tid], outb[tid] = (v if v > noise else 0.0 for v in (inb[tid], outb[tid]))
     return inb, outb
 
 
