@@ -120,6 +120,8 @@ def transient_to_json(result: TransientResult, system: System, include_series: b
             "max_level_m": _num(np.max(levels)) if levels.size else None,
             "min_level_m": _num(np.min(levels)) if levels.size else None,
             "drain_time_s": _num(result.drain_times.get(tid)),
+            **({"drain_time_note": result.drain_notes[tid]}
+               if tid in getattr(result, "drain_notes", {}) else {}),
             "settle_99_s": _num(settle_time(result.t, levels)),
         })
         if include_series:

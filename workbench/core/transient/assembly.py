@@ -20,7 +20,7 @@ from workbench.core.transient.loop import Run
 from workbench.core.transient.model import TransientModel
 from workbench.core.transient.results import TransientResult
 from workbench.core.transient.submergence import submergence
-from workbench.core.transient import venting
+from workbench.core.transient import siphon, venting
 
 #: Kept for importers: a run's minimum now counts as sub-atmospheric only below
 #: ``-rho g SUBATMOSPHERIC_TOLERANCE_M`` (1 cm of liquid, see :mod:`workbench.core.checks`).
@@ -55,6 +55,8 @@ def finish(model: TransientModel, run: Run, outcome, wall: float) -> TransientRe
     stop_events, stop_findings = venting.stopped_drains(model, state, t, ys, gas_p)
     warnings.extend(stop_findings)
     warnings.extend(reverse_findings(model, t, flows))
+    siphon_warnings, drain_notes = siphon.siphon_findings(model, state, levels)
+    warnings.extend(siphon_warnings)
     return TransientResult(
         success=status in (0, 1),
         status=status,
@@ -70,6 +72,7 @@ def finish(model: TransientModel, run: Run, outcome, wall: float) -> TransientRe
         **pressures,
         warnings=tuple(warnings),
         drain_times=dict(state.drain_times),
+        drain_notes=drain_notes,
         feeds=feeds,
         draw_offs=draw_offs,
         end_rates=end_rates,
@@ -123,6 +126,10 @@ def line_pressures(model: TransientModel, run: Run) -> dict:
             static_head=float(rec.h_static_max[i]), velocity_max=float(rec.v_max[i]),
             effective_closure=eff, max_time=max_t, min_time=min_t, separation_time=sep_t,
             flow_sign=cut_sign)
+        if state_broken(run, i):
+            # a siphon that breaks slowly is reported as such (line.siphon_break), not as a
+            # surge matter
+            findings = [f for f in findings if f.code != "surge.column_separation"]
         out["surge"][lid] = screened
         out["findings"].extend(findings)
         out["max_pressure"][lid] = screened.max_pressure
@@ -152,6 +159,11 @@ def _subatmospheric(model: TransientModel, i: int, screened: LineSurge, pmin_st,
         "caution", "rigid-column pressures at the line's profile points", digits=4,
         p=(screened.min_pressure, "pressure"), s=(where, "length"),
         z=(float(model.st_elev[sel][j]), "elevation"))
+
+
+def state_broken(run: Run, i: int) -> bool:
+    """Line ``i``'s column parted at a high point during the run (:mod:`.siphon`)."""
+    return bool(run.state.siphon_broken.size and run.state.siphon_broken[i])
 
 
 def _flow_sign_at(run: Run, i: int, t: float) -> float:

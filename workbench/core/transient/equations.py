@@ -18,6 +18,7 @@ import numpy as np
 
 from workbench.core.fittings import exit_k
 from workbench.core.model import G
+from workbench.core.transient import siphon
 from workbench.core.transient.model import Configuration, TransientModel
 from workbench.core.transient.state import RunState
 
@@ -68,6 +69,8 @@ class Equations:
         nl = self.model.nl
         hf, levels = self.model.fixed_heads(y[nl:])  # [V, X]
         h, dh = self.model.lines.head_loss(y[:nl], self._openings(t))
+        if self.state.siphon_broken.any():
+            h, dh = siphon.broken_losses(self.model, self.state, y[:nl], hf, h, dh)
         out = (hf, levels, h, dh)
         self._cache = (t, y.copy(), out)
         return out

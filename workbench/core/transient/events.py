@@ -15,6 +15,9 @@ kind                size  function
 ``DISCHARGE_STOP``  nl    ``s Q`` falling: flow would turn back out of an open discharge
 ``RELEASE``         nl    ``s (H_from - H_to)`` rising: head returns above the discharge
 ``REFILL``          nt    ``V - V_restart`` rising: a drained tank refilled
+``SIPHON``          nl    lowest ``p_abs - p_v`` at interior points falling: the column parts
+``SIPHON_STOP``     nl    ``s Q`` of a broken line falling: nothing more can be lifted
+``SIPHON_RESTART``  nl    source head less the cavity head rising: a stopped line restarts
 ==================  ====  =============================================================
 
 (``s`` is +1 where a line discharges to air at its to-end, -1 at its from-end.)
@@ -29,6 +32,7 @@ import numpy as np
 from workbench.core.transient.equations import Equations
 
 DRAIN, OVERFLOW, SPILL_END, REVERSAL, DISCHARGE_STOP, RELEASE, REFILL = range(7)
+SIPHON, SIPHON_STOP, SIPHON_RESTART = range(7, 10)
 
 
 @dataclass(frozen=True)
@@ -69,7 +73,20 @@ def event_values(eq: Equations, t: float, y: np.ndarray) -> np.ndarray:
         sign * q,  # flow turning back out of an open discharge
         drive,  # head returning above an open discharge
         v - model.v_restart,  # a drained tank refilled to its restart level
+        *_siphon_values(eq, t, y),
     ])
+
+
+def _siphon_values(eq: Equations, t: float, y: np.ndarray):
+    """The three siphon components (module docstring); quiet zeros where none can break."""
+    from workbench.core.transient import siphon
+
+    model, state = eq.model, eq.state
+    nl = model.nl
+    if not siphon.lines_of(model).any:
+        return np.ones(nl), np.ones(nl), np.zeros(nl)
+    return (siphon.crest_margins(eq, t, y), state.siphon_sign * y[:nl],
+            siphon.restart_values(model, state, eq.losses(t, y)[0]))
 
 
 def arm(eq: Equations) -> EventSet:
@@ -82,21 +99,35 @@ def arm(eq: Equations) -> EventSet:
         ~state.spilling & np.isfinite(model.v_over),
         state.spilling,
         is_open & ~model.is_discharge,
-        is_open & model.is_discharge,
+        is_open & model.is_discharge & ~state.siphon_broken,
         state.backstopped & ~state.blocked,
         state.drained & ~state.spilling,
+        *_siphon_armed(eq, is_open),
     ])
     direction = np.concatenate([
         np.full(nt, -1), np.full(nt, 1), np.full(nt, -1),
         np.zeros(nl, int), np.full(nl, -1), np.full(nl, 1), np.full(nt, 1),
+        np.full(nl, -1), np.full(nl, -1), np.full(nl, 1),
     ])
     terminal = np.concatenate([
         np.ones(3 * nt, bool), np.zeros(nl, bool), np.ones(2 * nl + nt, bool),
+        np.ones(3 * nl, bool),
     ])
-    sizes = (nt, nt, nt, nl, nl, nl, nt)
+    sizes = (nt, nt, nt, nl, nl, nl, nt, nl, nl, nl)
     kind_of = np.concatenate([np.full(n, kind) for kind, n in enumerate(sizes)])
     index_of = np.concatenate([np.arange(n) for n in sizes])
     return EventSet(armed, direction, terminal, kind_of, index_of)
+
+
+def _siphon_armed(eq: Equations, is_open: np.ndarray):
+    """Armed siphon components: a line that can break and runs full; a broken line
+    flowing; a broken line stopped."""
+    from workbench.core.transient import siphon
+
+    state = eq.state
+    can = siphon.lines_of(eq.model).candidate
+    broken, stopped = state.siphon_broken, state.siphon_stopped
+    return (can & is_open & ~broken, broken & ~stopped & is_open, broken & stopped)
 
 
 def find_events(eq: Equations, events: EventSet, sol, t_old, y_old, t_new, y_new):

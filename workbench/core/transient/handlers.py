@@ -13,6 +13,7 @@ import numpy as np
 
 from workbench.core.model import restart_level
 from workbench.core.transient import events as ev
+from workbench.core.transient import siphon
 from workbench.core.transient.model import TransientModel
 from workbench.core.transient.state import RunState
 
@@ -177,7 +178,7 @@ def sealed_stop(model: TransientModel, state: RunState, i: int, t: float,
 
 
 def apply_terminal(model: TransientModel, state: RunState, events: ev.EventSet, hits,
-                   y: np.ndarray, stop_when: str | None) -> bool:
+                   y: np.ndarray, stop_when: str | None, eq=None) -> bool:
     """Apply the terminal events ``hits`` (``(time, component)``); return True when the
     run should stop (``stop_when == "drained"`` and every draining tank drained)."""
     for te, k in hits:
@@ -195,6 +196,12 @@ def apply_terminal(model: TransientModel, state: RunState, events: ev.EventSet, 
             _release(model, state, idx, te)
         elif kind == ev.REFILL:
             refill(model, state, idx, te)
+        elif kind == ev.SIPHON:
+            siphon.on_break(eq, state, idx, te, y)
+        elif kind == ev.SIPHON_STOP:
+            siphon.on_stop(model, state, idx, te, y)
+        elif kind == ev.SIPHON_RESTART:
+            siphon.on_restart(model, state, idx, te, y)
     if stop_when == "drained":
         must = state.draining_capable
         if must.any() and state.drained[must].all():

@@ -14,7 +14,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from workbench.core.transient import handlers
+from workbench.core.transient import handlers, siphon
 from workbench.core.transient.equations import Equations
 from workbench.core.transient.events import EventSet, arm, find_events, first_terminal
 from workbench.core.transient.model import Configuration, TransientModel
@@ -102,6 +102,7 @@ class Run:
         else:
             res = solve(model.system)
         q0 = np.array([res.lines[lid].flow for lid in model.topo.line_ids], dtype=float)
+        self.steady_breaks = dict(res.siphon_breaks)
         return q0, p0
 
     def _start(self, y: np.ndarray) -> None:
@@ -116,6 +117,7 @@ class Run:
                                                and max(r.draw_off_schedule.flows) > 0.0)
                           for r in model.tanks], dtype=bool)
         state.draining_capable = leaves | draws | asked
+        siphon.start_broken(model, state, getattr(self, "steady_breaks", {}), y)
         for k, r in enumerate(model.tanks):
             if y[nl + k] <= model.v_min[k] and state.draining_capable[k]:
                 handlers.drain(model, state, k, 0.0, y, started=True)
@@ -173,7 +175,7 @@ class Run:
         # used for pressures (see Recording.track)
         self.rec.closing = lines.has_valve & ~valve_shut & shut_b
         for _ in range(model.nl + 1):
-            open_lines = ~valve_shut & ~state.blocked & ~state.backstopped
+            open_lines = ~valve_shut & ~state.blocked & ~state.backstopped & ~state.siphon_stopped
             y[: model.nl][~open_lines] = 0.0
             self.eq.reset(Configuration(model, open_lines, state.spilling), floor)
             y[: model.nl] = self.eq.cfg.project(y[: model.nl])
@@ -300,7 +302,7 @@ class Run:
             t, y, hits = self._accept(solver, t_old, y_old)
             if hits:
                 stop = handlers.apply_terminal(self.model, self.state, self.events, hits, y,
-                                               self.options.stop_when)
+                                               self.options.stop_when, eq=self.eq)
                 if self.rec.t_out[-1] != t:
                     self.rec.record(t, y, self.eq.cfg.open, self.state)
                 if stop:

@@ -13,6 +13,7 @@ import numpy as np
 
 from workbench.core.model import G
 from workbench.core.transient.equations import Equations, line_end_heads
+from workbench.core.transient import siphon
 from workbench.core.transient.model import TransientModel
 from workbench.core.transient.state import RunState
 
@@ -84,12 +85,15 @@ class Recording:
         o = model.st_owner
         h_st = h_a[o] + model.st_frac * (h_b[o] - h_a[o])
         p = model.rho * G * (h_st - model.st_elev)
+        if state.siphon_broken.any():
+            p = siphon.broken_pressures(model, state, p, h_a, h_b)
         # Outlets of drained tanks run part-full or empty: no pressure is tracked there. In
         # the last 0.1 % of a valve closure the flow is below what the tolerances resolve,
         # and the deceleration of the column (hence the valve-end head) is noise: skip it;
         # the head there differs from the last tracked one by a negligible amount.
         tail = self.closing & (np.abs(q) < 1e-3 * state.q_peak)
-        p = np.where((state.blocked | state.backstopped | tail)[o], np.nan, p)
+        p = np.where((state.blocked | state.backstopped | state.siphon_stopped | tail)[o],
+                     np.nan, p)
         up = p > self.p_max
         self.p_max = np.where(up, p, self.p_max)
         self.p_max_t = np.where(up, t, self.p_max_t)

@@ -98,6 +98,9 @@ class TransientResult:
     pass for liquid movement (API 2000 / ISO 28300) [m^3/s]."""
     required_outbreathing: dict[str, float] = field(default_factory=dict)
     """Per gas tank, the largest liquid inflow less any spill [m^3/s]."""
+    drain_notes: dict[str, str] = field(default_factory=dict)
+    """Per tank that did not drain for a stated reason, the words (a siphon that broke and
+    stopped: ``"does not drain: the siphon over line L breaks and stops at level X m"``)."""
     method: str = "Radau"
     nfev: int = 0
     njev: int = 0

@@ -43,6 +43,16 @@ class RunState:
     """Tanks that can drain (an outlet, an initial outflow or a draw-off) [bool, nt]."""
     valve_shut: np.ndarray | None = None
     """Valves shut over the whole current segment [bool, nl]; ``None`` before the first."""
+    siphon_broken: np.ndarray = field(default_factory=lambda: np.zeros(0, bool))
+    """Lines whose column has parted at a high point (:mod:`.siphon`) [bool, nl]."""
+    siphon_stopped: np.ndarray = field(default_factory=lambda: np.zeros(0, bool))
+    """Broken lines stopped: the source is too low to lift anything [bool, nl]."""
+    siphon_frac: np.ndarray = field(default_factory=lambda: np.zeros(0))
+    """Where each broken line parted, as a fraction of its length from the from-end [-]."""
+    siphon_head: np.ndarray = field(default_factory=lambda: np.zeros(0))
+    """Head of the cavity at the parting point, gauge based [m]."""
+    siphon_sign: np.ndarray = field(default_factory=lambda: np.zeros(0))
+    """Direction of the flow when the line broke (+1 from-end to to-end)."""
     events: list[Event] = field(default_factory=list)
     drain_times: dict[str, float] = field(default_factory=dict)
     """Time each tank first drained [s]."""
@@ -64,6 +74,11 @@ class RunState:
             q_peak=np.zeros(n_lines),
             peak_since_rev=np.zeros(n_lines),
             rev_count=np.zeros(n_lines, dtype=int),
+            siphon_broken=np.zeros(n_lines, bool),
+            siphon_stopped=np.zeros(n_lines, bool),
+            siphon_frac=np.zeros(n_lines),
+            siphon_head=np.zeros(n_lines),
+            siphon_sign=np.ones(n_lines),
         )
 
     def event(self, t: float, code: str, element: str, message: str) -> None:
