@@ -47,7 +47,7 @@ async def test_the_profile_table_adds_a_point_edits_a_cell_applies_and_undo_rest
         await pilot.press("right")
         await type_keys(pilot, "3 m")  # typing on a cell edits it
         await pilot.press("enter")
-        await pilot.press("ctrl+s")
+        await pilot.press("ctrl+a")
         await settle(pilot)
         assert not isinstance(app.screen, ListEditorScreen)
         profile = app.project.data["lines"][LINE]["profile"]
@@ -78,7 +78,7 @@ async def test_a_bad_profile_cell_is_refused_beside_its_row_and_nothing_changes(
         screen = await open_table(pilot, "profile")
         await pilot.press(*["down"] * (row - 1))
         await type_keys(pilot, text)
-        await pilot.press("enter", "ctrl+s")
+        await pilot.press("enter", "ctrl+a")
         await pilot.pause()
         assert isinstance(app.screen, ListEditorScreen)  # still open
         shown = problems_shown(screen)
@@ -135,7 +135,7 @@ async def test_the_fittings_table_offers_the_fitting_names_in_its_type_column(pr
         await pilot.press("right")  # takes the suggested rest of the name
         await pilot.press("enter")
         assert screen.rows[1].cells["type"] == "ball_valve"
-        await pilot.press("ctrl+s")
+        await pilot.press("ctrl+a")
         await settle(pilot)
     fittings = app.project.data["lines"][LINE]["fittings"]
     assert fittings[1] == {**before[1], "type": "ball_valve"}  # count and label kept
@@ -163,13 +163,13 @@ async def test_rows_are_deleted_and_moved_and_a_bad_order_is_named(project_file)
         screen = await open_table(pilot, "profile")
         await pilot.press("down", "right_square_bracket")  # 20 m below 240 m
         assert [r.cells["distance"] for r in screen.rows] == ["0 m", "240 m", "20 m"]
-        await pilot.press("ctrl+s")
+        await pilot.press("ctrl+a")
         await pilot.pause()
         assert "row 3 · distance" in problems_shown(screen)
         assert "increase" in problems_shown(screen)
         assert app.project is project
         await pilot.press("delete")  # the misplaced point goes
-        await pilot.press("ctrl+s")
+        await pilot.press("ctrl+a")
         await settle(pilot)
     assert [p["distance"] for p in app.project.data["lines"][LINE]["profile"]] == ["0 m", "240 m"]
 
@@ -196,7 +196,7 @@ def test_the_key_list_names_the_table_keys():
     from workbench.app.screens.keys import binding_rows, key_contexts
 
     rows = binding_rows(key_contexts(WorkbenchApp))
-    assert ("list table", "Ctrl+S", "Apply") in rows
+    assert ("list table", "Ctrl+A", "Apply list") in rows
     assert ("list table", "a", "Add row") in rows
     assert ("list table", "[ / Ctrl+Up", "Row up") in rows
     assert ("field", "Ctrl+T", "Table") in rows

@@ -56,19 +56,55 @@ class Field:
     keypath: str
     spec: FieldSpec
     group: str = ""
-    """Heading the field sits under (``"valve"``, ``"surge"``) or ``""``."""
+    """The sub-table the key lives in (``"valve"``, ``"surge"``) or ``""``."""
+    heading: str = ""
+    """The form's heading the field is shown under (``"size and route"``) or ``""``."""
+
+
+#: A line's ~30 keys in a few headed groups, the common what-if keys first (the size,
+#: length and valve opening fit on the first screen at 80x24). Key names relative to the
+#: line; a name not listed here falls into the last group.
+LINE_HEADINGS: tuple[tuple[str, tuple[str, ...]], ...] = (
+    ("size and route", ("from", "to", "length", "nominal_size", "schedule",
+                        "inner_diameter")),
+    ("valve", ("valve.opening", "valve.characteristic", "valve.k_open", "valve.kv_open",
+               "valve.rangeability", "valve.position", "valve.schedule")),
+    ("losses", ("material", "roughness", "friction_factor", "entrance", "fittings",
+                "profile")),
+    ("wall and surge", ("pressure_rating", "wall_thickness", "elastic_modulus",
+                        "poisson_ratio", "support", "surge.model", "surge.reaches")),
+    ("notes", ("description",)),
+)
 
 
 def form_fields(entry: Entry) -> list[Field]:
-    """Every editable key of an entry, with its key path, in schema order."""
+    """Every editable key of an entry, with its key path; a line's in :data:`LINE_HEADINGS`
+    order, other sections in schema order (a sub-table's keys under its name)."""
     if entry.element is None:
         return [Field(f"{entry.section}.{s.name}", s) for s in SECTIONS[entry.section]]
     base = f"{entry.section}.{entry.element}"
     fields = [Field(f"{base}.{s.name}", s) for s in SECTIONS[entry.section] if s.kind != "table"]
     for sub in (s for s in SECTIONS[entry.section] if s.kind == "table"):
         sub_specs = SECTIONS.get(f"{entry.section}.{sub.name}", ())
-        fields += [Field(f"{base}.{sub.name}.{s.name}", s, sub.name) for s in sub_specs]
+        fields += [Field(f"{base}.{sub.name}.{s.name}", s, sub.name, sub.name)
+                   for s in sub_specs]
+    if entry.section == "lines":
+        return _headed(fields, base)
     return fields
+
+
+def _headed(fields: list[Field], base: str) -> list[Field]:
+    """``fields`` reordered and headed by :data:`LINE_HEADINGS` (unlisted keys go last)."""
+    by_name = {f.keypath[len(base) + 1:]: f for f in fields}
+    out: list[Field] = []
+    for heading, names in LINE_HEADINGS:
+        for name in names:
+            field = by_name.pop(name, None)
+            if field is not None:
+                out.append(Field(field.keypath, field.spec, field.group, heading))
+    last = LINE_HEADINGS[-1][0]
+    out += [Field(f.keypath, f.spec, f.group, last) for f in by_name.values()]
+    return out
 
 
 def lookup(data: dict, keypath: str) -> Any:

@@ -27,7 +27,9 @@ class FieldInput(Input):
 
     BINDINGS = [
         Binding("enter", "submit", "Apply", id="field.apply"),
-        Binding("escape", "revert", "Revert", id="field.revert"),
+        Binding("escape", "back", "Revert/back", id="field.revert"),
+        Binding("up", "step(-1)", "Prev field", show=False, id="field.previous"),
+        Binding("down", "step(1)", "Next field", show=False, id="field.next"),
         Binding("ctrl+t", "table", "Table", id="field.table"),
     ]
 
@@ -48,6 +50,22 @@ class FieldInput(Input):
         if isinstance(row, FieldRow):
             row.revert()
 
+    def action_back(self) -> None:
+        """Esc: put back a value typed but not applied; with nothing to put back, leave the
+        form for the element list."""
+        row = self.parent
+        if isinstance(row, FieldRow) and (row.problem or self.value != value_text(row.stored)):
+            row.revert()
+            return
+        form = next((n for n in self.ancestors if isinstance(n, FieldForm)), None)
+        if form is not None:
+            form.post_message(FieldForm.Left())
+
+    def action_step(self, step: int) -> None:
+        form = next((n for n in self.ancestors if isinstance(n, FieldForm)), None)
+        if form is not None:
+            form.step_focus(self, step)
+
     def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
         """The table editor is offered on list fields only (hidden elsewhere)."""
         if action == "table":
@@ -63,12 +81,66 @@ class FieldInput(Input):
 
 
 def _placeholder(field: Field) -> str:
+    """What an empty field says: its default, "required" or "not set" — never an example
+    value, which reads as a computed one (an example bore on a DN150 line); examples are
+    on the help line."""
     spec = field.spec
     if spec.default not in (None, ""):
-        return f"{spec.default} (default)"
-    if spec.example:
-        return f"e.g. {spec.example}"
-    return "required" if spec.required else ""
+        return f"(default {spec.default})"
+    if spec.required:
+        return "(required)"
+    if spec.name == "inner_diameter":
+        return "(from the size)"
+    return "(not set)"
+
+
+class GroupHeading(Static):
+    """A heading of the form; Enter or Space folds its fields away or shows them."""
+
+    can_focus = True
+    BINDINGS = [
+        Binding("enter,space", "toggle", "Fold/unfold", id="field.fold"),
+        Binding("up", "step(-1)", "Prev field", show=False),
+        Binding("down", "step(1)", "Next field", show=False),
+        Binding("escape", "back", "Back", id="field.back"),
+    ]
+
+    def __init__(self, title: str, count: int) -> None:
+        super().__init__("", classes="field-group", markup=False)
+        self.title = title
+        self.count = count
+        self.folded = False
+        self._label()
+
+    def _label(self) -> None:
+        mark = "▸" if self.folded else "▾"
+        extra = f"  ({self.count} fields, Enter shows them)" if self.folded else ""
+        self.update(f"{mark} {self.title}{extra}")
+
+    def _form(self) -> "FieldForm | None":
+        return next((n for n in self.ancestors if isinstance(n, FieldForm)), None)
+
+    def action_toggle(self) -> None:
+        form = self._form()
+        if form is not None:
+            self.folded = not self.folded
+            self._label()
+            form.fold(self, self.folded)
+
+    def action_step(self, step: int) -> None:
+        form = self._form()
+        if form is not None:
+            form.step_focus(self, step)
+
+    def action_back(self) -> None:
+        form = self._form()
+        if form is not None:
+            form.post_message(FieldForm.Left())
+
+    def on_focus(self) -> None:
+        form = self._form()
+        if form is not None:
+            form.scroll_to_widget(self, animate=False)
 
 
 class FieldRow(Horizontal):
@@ -92,6 +164,8 @@ class FieldRow(Horizontal):
         self.stored = stored
         self.choices = choices
         self.problem = ""
+        self.heading = ""
+        """The form heading this row sits under."""
         self._hint_text = ""
         self._editor: Input | Select | None = None
         self._note: Static | None = None
@@ -175,7 +249,11 @@ class FieldRow(Horizontal):
                 self._show_note()
 
     def on_descendant_focus(self) -> None:
+        self.add_class("-editing")
         self.post_message(self.Focused(self))
+
+    def on_descendant_blur(self) -> None:
+        self.remove_class("-editing")
 
 
 def hint(field: Field, stored: Any, unit_system: str) -> str:
@@ -202,6 +280,9 @@ class FieldForm(VerticalScroll):
         def __init__(self, keypath: str) -> None:
             super().__init__()
             self.keypath = keypath
+
+    class Left(Message):
+        """Esc with nothing to revert: the user is done with the form."""
 
     def __init__(self, **kwargs) -> None:
         super().__init__(**kwargs)
@@ -235,11 +316,14 @@ class FieldForm(VerticalScroll):
             rows: list = []
             group = ""
             for field in fields:
-                if field.group != group:
-                    group = field.group
-                    rows.append(Static(f"── {group} ──", classes="field-group", markup=False))
-                rows.append(FieldRow(field, lookup(data, field.keypath),
-                                     choices_for(field, data)))
+                heading = field.heading or field.group
+                if heading != group:
+                    group = heading
+                    count = sum(1 for f in fields if (f.heading or f.group) == heading)
+                    rows.append(GroupHeading(heading, count))
+                row = FieldRow(field, lookup(data, field.keypath), choices_for(field, data))
+                row.heading = heading
+                rows.append(row)
             holder = Vertical(*rows, id=holder_id, classes="form-section")
             holder.display = not hidden
             await self.mount(holder)
@@ -258,6 +342,43 @@ class FieldForm(VerticalScroll):
                 if not self.query("#form-" + entry.section):
                     await self._holder(entry, data, hidden=True)
 
+    def focusables(self) -> list:
+        """The headings and field editors of the shown form, top to bottom, that can
+        take the focus now (a folded group's fields cannot)."""
+        if self.entry is None:
+            return []
+        holders = self.query("#form-" + self.entry.section)
+        if not holders:
+            return []
+        found = []
+        for child in holders.first().children:
+            if isinstance(child, GroupHeading):
+                found.append(child)
+            elif isinstance(child, FieldRow) and child.display and child.editor is not None:
+                found.append(child.editor)
+        return found
+
+    def step_focus(self, widget, step: int) -> None:
+        """Up/Down: the previous or next heading or field (stays put at either end)."""
+        items = self.focusables()
+        if widget not in items:
+            return
+        index = items.index(widget) + step
+        if 0 <= index < len(items):
+            items[index].focus()
+
+    def fold(self, heading: GroupHeading, folded: bool) -> None:
+        """Hide or show the fields under ``heading``."""
+        holder = heading.parent
+        if holder is None:
+            return
+        for child in holder.children:
+            if isinstance(child, FieldRow) and getattr(child, "heading", "") == heading.title:
+                child.display = not folded
+
+    def on_field_row_focused(self, message: "FieldRow.Focused") -> None:
+        self.scroll_to_widget(message.row, animate=False)
+
     def current_rows(self) -> list[FieldRow]:
         if self.entry is None:
             return []
@@ -266,6 +387,12 @@ class FieldForm(VerticalScroll):
     def refresh_values(self, data: dict, unit_system: str) -> None:
         for row in self.current_rows():
             row.set_stored(lookup(data, row.field.keypath), unit_system)
+            field = row.field
+            if field.group and isinstance(row.editor, Input):
+                # a sub-table that is absent: its keys are not "required" until it exists
+                absent = lookup(data, field.keypath.rsplit(".", 1)[0]) is None
+                row.editor.placeholder = (f"(no {field.group}: typing adds one)" if absent
+                                          else _placeholder(field))
 
     def focus_first(self) -> None:
         rows = [row for row in self.current_rows() if row.editor is not None]

@@ -8,7 +8,7 @@ from textual.widgets import Static
 
 from workbench.app.outline import NOUN, Entry, entries
 from workbench.app.panes.elements import ElementList
-from workbench.app.panes.form import FieldForm, FieldRow
+from workbench.app.panes.form import FieldForm, FieldRow, hint
 
 
 class SystemPane(Horizontal):
@@ -63,7 +63,7 @@ class SystemPane(Horizontal):
         title = (f"{NOUN[entry.section]} {entry.element}" if entry.element
                  else f"{entry.section} settings")
         self.query_one("#form-title", Static).update(
-            f"{title}   (* required · Enter applies · Esc reverts)")
+            f"{title}  · ↑↓ Tab move · Enter applies · Esc back")
         await self.query_one(FieldForm).show(entry, self.app.project.data, self.app.unit_system)
 
     async def on_element_list_chosen(self, message: ElementList.Chosen) -> None:
@@ -76,10 +76,17 @@ class SystemPane(Horizontal):
         await self._show_entry(self.query_one(ElementList).entry)
         self.query_one(FieldForm).focus_first()
 
+    def on_field_form_left(self, message: FieldForm.Left) -> None:
+        message.stop()
+        self.query_one(ElementList).focus()
+
     def on_field_row_focused(self, message: FieldRow.Focused) -> None:
         spec = message.field.spec
-        text = f"{message.field.keypath}: {spec.help}"
         row = message.row
+        shown = hint(message.field, row.stored, self.app.unit_system)
+        text = f"{message.field.keypath}{' ' + shown if shown else ''}: {spec.help}"
+        if spec.example:
+            text += f" · example: {spec.example}"
         if row.choices:
             text += " · one of: " + ", ".join(row.choices)
         if spec.kind == "list":

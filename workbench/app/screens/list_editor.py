@@ -2,7 +2,7 @@
 
 One row per entry, one column per entry key the schema knows, cells as the user typed
 them, and beside each quantity column its values in the display unit. Changes stay in
-the editor until Ctrl+S applies the whole list through the project layer's ``set_value``,
+the editor until Ctrl+A applies the whole list through the project layer's ``set_value``,
 exactly as the form's inline field does, so validation, undo, the modified mark, the
 recovery copy and the steady re-solve work unchanged. A refused list keeps the editor
 open with each problem beside the row and column its key path names.
@@ -101,7 +101,7 @@ class ListEditorScreen(ModalScreen[bool]):
     """
 
     BINDINGS = [
-        Binding("ctrl+s", "apply", "Apply", id="list.apply", priority=True),
+        Binding("ctrl+a", "apply", "Apply list", id="list.apply", priority=True),
         Binding("escape", "leave", "Back", id="list.back"),
         Binding("a", "add_row", "Add row", id="list.add"),
         Binding("d,delete", "delete_row", "Delete row", id="list.delete"),
@@ -129,7 +129,7 @@ class ListEditorScreen(ModalScreen[bool]):
     def compose(self) -> ComposeResult:
         with Vertical(classes="sheet", id="list-sheet") as box:
             box.border_title = self.keypath
-            box.border_subtitle = "Ctrl+S applies to the project · Esc leaves"
+            box.border_subtitle = "Ctrl+A applies to the project · Esc leaves"
             yield Static(self._heading(), id="list-heading", markup=False)
             yield ListTable(id="list-table", cursor_type="cell", zebra_stripes=True)
             yield Static("", id="list-problems", markup=False)

@@ -1,0 +1,118 @@
+"""The forms at 80x24: every field reachable and visible, Up/Down and Esc, grouped line keys."""
+
+from __future__ import annotations
+
+from tests.app.conftest import SIZE, TRANSFER, choose_entry, field_input, make, settle
+
+LINE = "310-PW-12"
+
+
+def _inside(inner, outer) -> bool:
+    return (inner.y >= outer.y and inner.bottom <= outer.bottom
+            and inner.x >= outer.x and inner.right <= outer.right)
+
+
+async def test_down_visits_every_field_of_a_line_form_and_each_is_inside_the_visible_form(
+        project_file):
+    from workbench.app.outline import Entry, form_fields
+    from workbench.app.panes.form import FieldForm, FieldInput
+
+    app = make(project_file(TRANSFER))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await choose_entry(pilot, f"lines:{LINE}")
+        await pilot.press("enter")
+        await pilot.pause()
+        form = app.screen.query_one(FieldForm)
+        seen = []
+        for _ in range(60):
+            focused = app.focused
+            if isinstance(focused, FieldInput):
+                seen.append(focused.field.keypath)
+            # the widget being edited is drawn inside the form's visible region
+            assert _inside(focused.region, form.region), (focused, focused.region, form.region)
+            await pilot.press("down")
+            await pilot.pause()
+            if app.focused is focused:
+                break
+    expected = [f.keypath for f in form_fields(Entry("lines", LINE))]
+    assert seen == expected
+    assert len(expected) >= 25
+
+
+async def test_a_line_form_puts_size_length_and_valve_opening_on_the_first_screen(project_file):
+    app = make(project_file(TRANSFER))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await choose_entry(pilot, f"lines:{LINE}")
+        form = app.screen.query_one("#form")
+        for key in ("length", "nominal_size", "valve.opening"):
+            row = field_input(app, f"lines.{LINE}.{key}").parent
+            assert _inside(row.region, form.region), key
+
+
+async def test_esc_reverts_a_typed_value_first_then_leaves_the_form_for_the_element_list(
+        project_file):
+    from workbench.app.panes.elements import ElementList
+
+    app = make(project_file(TRANSFER))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await choose_entry(pilot, f"lines:{LINE}")
+        editor = field_input(app, f"lines.{LINE}.length")
+        editor.focus()
+        stored = editor.value
+        await pilot.press("end", "9", "9")
+        await pilot.press("escape")
+        assert editor.value == stored and app.focused is editor
+        await pilot.press("escape")
+        assert isinstance(app.focused, ElementList)
+    assert app.history.can_undo is False  # nothing was applied
+
+
+async def test_a_long_value_shows_whole_in_the_field_being_edited(project_file):
+    app = make(project_file(TRANSFER))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await choose_entry(pilot, f"lines:{LINE}")
+        editor = field_input(app, f"lines.{LINE}.description")
+        text = "drain line from the day tank, lagged"  # 36 characters, over the old 22
+        editor.focus()
+        await pilot.pause()
+        await pilot.press("end", "ctrl+u", *["space" if c == " " else c for c in text])
+        await pilot.pause()
+        shown = "".join(s.text for s in editor.render_line(0))
+        assert text in shown
+
+
+async def test_an_empty_optional_field_says_not_set_and_never_shows_an_example_value(
+        project_file):
+    app = make(project_file(TRANSFER))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await choose_entry(pilot, f"lines:{LINE}")
+        placeholders = {e.field.spec.name: e.placeholder
+                        for e in app.screen.query("FieldInput") if e.field.keypath.startswith(
+                            f"lines.{LINE}.")}
+    assert "102.26" not in placeholders["inner_diameter"]
+    assert all("e.g." not in text for text in placeholders.values())
+
+
+async def test_enter_on_a_heading_folds_its_fields_and_down_skips_them(project_file):
+    from workbench.app.panes.form import GroupHeading
+
+    app = make(project_file(TRANSFER))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await choose_entry(pilot, f"lines:{LINE}")
+        heading = next(h for h in app.screen.query(GroupHeading)
+                       if h.title == "losses" and h.parent.display)
+        heading.focus()
+        await pilot.press("enter")
+        await pilot.pause()
+        assert not field_input(app, f"lines.{LINE}.roughness").parent.display
+        await pilot.press("down")
+        assert app.focused.title == "wall and surge"
+        await pilot.press("up", "enter")
+        await pilot.pause()
+        assert field_input(app, f"lines.{LINE}.roughness").parent.display
