@@ -110,12 +110,14 @@ def parse_data(text: str, name: str | None) -> dict:
     label = name or "<text>"
     if not isinstance(text, str):
         raise ProjectError(Problem(label, "", f"expected text, got {type(text).__name__}"))
-    markers = _conflict_markers(text, label)
-    if markers:
-        raise ProjectError(markers)
     try:
         return tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
+        # A marker line outside a string is never valid TOML: a file that reads has its
+        # marker-like lines inside multi-line strings, and they are text, not a conflict.
+        markers = _conflict_markers(text, label)
+        if markers:
+            raise ProjectError(markers) from None
         raise ProjectError(_syntax_problem(exc, label)) from None
     except RecursionError:
         raise ProjectError(Problem(label, "", "lists or tables nested too deeply to read (a "

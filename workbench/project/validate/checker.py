@@ -16,6 +16,7 @@ from workbench.core import model as m
 from workbench.project.problems import Problem
 from workbench.project.schema import LIST_ITEMS, SECTIONS, FieldSpec
 from workbench.project.units import QUANTITY_KINDS, UnitError, parse_quantity
+from workbench.project.validate.plausible import number_problem, quantity_problem
 
 __all__ = ["ID_PATTERN", "QUANTITY_LIMIT", "Checker", "describe", "did_you_mean", "field_spec",
            "toml_example", "words"]
@@ -105,6 +106,10 @@ class Checker:
         if nonnegative and value < 0:
             self.add(key, f"{table[name]!r}: the {QUANTITY_KINDS[kind].name} must not be negative")
             return None
+        implausible = quantity_problem(key, kind, table[name], value, self.atmosphere)
+        if implausible:
+            self.add(key, implausible)
+            return None
         return value
 
     def number(self, table: dict, spec: FieldSpec, path: str, *, integer: bool = False,
@@ -137,6 +142,10 @@ class Checker:
             else:
                 expected = f"at most {high:g}"
             self.add(key, f"{value!r} is out of range: expected {expected}")
+            return None
+        implausible = number_problem(key, value)
+        if implausible:
+            self.add(key, implausible)
             return None
         return value
 

@@ -101,6 +101,13 @@ def _bore(c: Checker, t: dict, path: str) -> tuple[float | None, float | None]:
         c.add(f"{path}.schedule", f"expected a schedule such as \"40\", got "
               f"{describe(schedule)}")
     else:
+        from workbench.core.pipes import parse_schedule
+
+        try:
+            parse_schedule(schedule)
+        except (PipeSizeError, ValueError) as exc:  # the schedule itself is not one
+            c.add(f"{path}.schedule", str(exc))
+            return None, None
         try:
             size = pipe_dimensions(nominal, schedule)
         except (PipeSizeError, ValueError) as exc:

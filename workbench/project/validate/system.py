@@ -24,6 +24,7 @@ from workbench.project.validate.checker import Checker, describe
 from workbench.project.validate.elements import check_junction, check_receiver, element_tables
 from workbench.project.validate.fluid import check_fluid
 from workbench.project.validate.lines import check_line
+from workbench.project.validate.profile_ends import check_profile_ends
 from workbench.project.validate.root import check_project, check_root
 from workbench.project.validate.simulation import check_simulation
 from workbench.project.validate.tanks import check_reservoir
@@ -66,7 +67,8 @@ def _check_measurements(c: Checker, parts: Parts) -> None:
 
 
 #: Checks run after the built-in sections, in order, each as ``check(c, parts)``.
-FURTHER_CHECKS: list[Callable[[Checker, Parts], None]] = [_check_measurements]
+FURTHER_CHECKS: list[Callable[[Checker, Parts], None]] = [check_profile_ends,
+                                                        _check_measurements]
 
 
 def check_data(data: Any, file: str | None = None) -> tuple[m.System | None, list[Problem]]:
