@@ -167,7 +167,7 @@ async def test_e_in_the_surge_view_runs_the_highlighted_line_and_marks_it(projec
     assert "STALE" in stale
 
 
-async def test_e_on_a_branched_line_says_why_the_elastic_model_refuses_it(project_file):
+async def test_e_on_a_branched_line_runs_the_whole_connected_part(project_file):
     from tests.app.conftest import NETWORK
 
     app = make(project_file(NETWORK))
@@ -181,10 +181,12 @@ async def test_e_on_a_branched_line_says_why_the_elastic_model_refuses_it(projec
         title = str(app.screen.query_one("#surge-title").render())
         note = str(app.screen.query_one("#surge-note").render())
         listed = [str(o.prompt) for o in app.screen.query_one("#surge-lines").options]
-    assert app.elastic_status == "failed"
-    assert "failed" in title
-    assert "series only" in note
-    assert listed[1].startswith("✗")
+    assert app.elastic_status == "done", note
+    assert "head envelope" in title
+    ran = app.elastic[listed[1][2:]]
+    assert ran.success and len(ran.line_ids) >= 3  # the branches joined through junctions
+    assert all(app.elastic[lid] is ran for lid in ran.line_ids)
+    assert listed[1].startswith("●")
 
 
 async def test_the_run_view_offers_a_fed_tanks_feed_draw_off_and_spill(project_file):

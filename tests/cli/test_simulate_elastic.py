@@ -158,9 +158,9 @@ def test_the_summary_shows_an_elastic_surge_table(tmp_path, capsys):
     assert "Elastic surge" in out and "L1" in out
 
 
-def test_a_branch_named_for_the_elastic_model_fails_with_a_message(tmp_path, capsys):
-    # The elastic model takes lines in series only; a tee is refused in words, the rigid
-    # results are still printed, and the exit status says the request was not met.
+def test_a_branch_named_for_the_elastic_model_runs_the_whole_tee(tmp_path, capsys):
+    # The elastic model takes the whole part of the system joined through junctions: a tee
+    # is run with all three lines, each line's JSON object naming them.
     text = PROJECT.replace('to = "TAIL"', 'to = "J1"').replace("[lines.L1.valve]", """\
 [junctions.J1]
 elevation = "0 m"
@@ -183,10 +183,12 @@ roughness = "0.045 mm"
     code = main(["simulate", str(write(tmp_path, text)), "--json", "--elastic", "L2"])
     captured = capsys.readouterr()
     data = json.loads(captured.out)
-    assert code == 1
-    assert "J1" in captured.err and "series" in captured.err
-    assert data["surge"]["L2"]["elastic"]["success"] is False
-    assert "surge.elastic_failed" in [w["code"] for w in data["warnings"]]
+    assert code == 0, captured.err
+    for lid in ("L1", "L2", "L3"):
+        obj = data["surge"][lid]["elastic"]
+        assert obj["success"] is True
+        assert obj["lines_run"] == ["L1", "L2", "L3"]
+    assert "junction J1" in data["surge"]["L2"]["elastic"]["traces_m"]
 
 
 def test_the_tables_read_whole_at_80_columns(tmp_path, capsys, monkeypatch):

@@ -108,7 +108,28 @@ def dead_end_chain() -> System:
                   {"J1": Junction("J1", 0.0), "J2": Junction("J2", 0.0)}, {}, lines)
 
 
+def header_tee(valve_at_junction: bool = False) -> System:
+    """A reservoir and a tank feeding a header, branching to a valve that shuts fast and a
+    free discharge: junctions of three lines, cavities on a branch."""
+    lines = {
+        "A": Line("A", "R1", "J1", 500.0, 0.25, roughness=4.5e-5),
+        "B": Line("B", "T1", "J1", 300.0, 0.2, roughness=4.5e-5),
+        "C": Line("C", "J1", "J2", 200.0, 0.3, roughness=4.5e-5),
+        "D": Line("D", "J2", "OUT", 400.0, 0.2, roughness=4.5e-5, valve=closing(0.2)),
+        "E": Line("E", "J2", "OUT2", 250.0, 0.15, roughness=4.5e-5,
+                  valve=closing(0.1, position="from") if valve_at_junction else None),
+    }
+    return System("tee", WATER, {"R1": Reservoir("R1", "constant_level", 0.0, 30.0),
+                                 "T1": Reservoir("T1", "tank", 0.0, 25.0)},
+                  {"J1": Junction("J1", 0.0), "J2": Junction("J2", 0.0)},
+                  {"OUT": Receiver("OUT", "open_discharge", 0.0),
+                   "OUT2": Receiver("OUT2", "open_discharge", 0.0)}, lines)
+
+
 CASES = {
+    "branched header, fast closure on a branch": (header_tee, "D", "initial"),
+    "branched header, quasi-steady friction": (header_tee, "C", "quasi_steady"),
+    "a valve at a junction of three lines": (lambda: header_tee(True), "E", "initial"),
     "valve at a junction, flow reversing, held friction": (reversing_chain, "L2", "initial"),
     "valve at a junction, quasi-steady friction": (reversing_chain, "L2", "quasi_steady"),
     "closure to the air, column separation": (lambda: single(closing(0.2)), "L1", "initial"),
@@ -137,6 +158,11 @@ def test_the_compiled_and_numpy_kernels_give_the_same_run(case):
     scale = max(1.0, float(np.abs(a.valve_head).max()) if len(a.valve_head) else 1.0)
     if len(a.valve_head):
         assert np.abs(a.valve_head - b.valve_head).max() <= 1e-9 * scale
+    assert np.abs(a.cavity_volume - b.cavity_volume).max() <= 1e-9 * max(
+        1e-9, float(np.abs(a.cavity_volume).max(initial=0.0)))
+    assert a.cavity_zones == b.cavity_zones
+    for label in a.traces:
+        assert np.abs(a.traces[label] - b.traces[label]).max() <= 1e-9 * scale
     for lid in a.envelopes:
         ea, eb = a.envelopes[lid], b.envelopes[lid]
         assert np.abs(ea.max_head - eb.max_head).max() <= 1e-9 * scale

@@ -18,7 +18,6 @@ from workbench.core.elastic import (
     ElasticSetupError,
     elastic_line_ids,
     run_elastic,
-    series_chain,
     simulate_elastic,
 )
 from workbench.core.model import (
@@ -417,23 +416,6 @@ def test_korteweg_speed_is_used_when_none_is_given():
     res = simulate_elastic(system, "L1", duration=1.0)
     assert res.wave_speeds["L1"].korteweg == pytest.approx(1307.6, abs=0.05)
     assert res.wave_speeds["L1"].adjustment == pytest.approx(0.0, abs=1e-12)
-
-
-def test_a_branch_is_refused_with_a_message_naming_the_junction():
-    lines = {
-        "L1": Line("L1", "R1", "J1", 100.0, 0.2),
-        "L2": Line("L2", "J1", "OUT", 100.0, 0.2),
-        "L3": Line("L3", "J1", "OUT2", 100.0, 0.2),
-    }
-    system = System("branch", WATER, {"R1": Reservoir("R1", "constant_level", 0.0, 5.0)},
-                    {"J1": Junction("J1", 0.0)},
-                    {"OUT": Receiver("OUT", "open_discharge", 0.0),
-                     "OUT2": Receiver("OUT2", "open_discharge", 0.0)}, lines)
-    res = simulate_elastic(system, "L2", wave_speeds={k: 1000.0 for k in lines})
-    assert not res.success and res.status == -1
-    assert "J1" in res.message and "series" in res.message
-    with pytest.raises(ElasticSetupError, match="J1"):
-        series_chain(system, "L1")
 
 
 def test_a_liquid_without_bulk_modulus_is_refused_with_a_message():

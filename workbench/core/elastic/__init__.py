@@ -52,11 +52,11 @@ from workbench.core.elastic.results import (
 )
 from workbench.core.elastic.run import run_elastic, simulate_elastic
 from workbench.core.elastic.setup import DEFAULT_ROUND_TRIPS
-from workbench.core.elastic.topology import elastic_line_ids, series_chain
+from workbench.core.elastic.topology import connected_lines, elastic_line_ids, series_chain
 
 __all__ = [
     "AUTO_REACHES", "CavityZone", "ColumnSeparation", "DEFAULT_ROUND_TRIPS",
     "ElasticResult", "ElasticSetupError", "Envelope", "FRICTION_MODELS", "GridCheck",
     "MAX_AUTO_REACHES", "SPEED_TOLERANCE", "STATUS_MESSAGES", "WaveSpeedUse",
-    "elastic_line_ids", "run_elastic", "series_chain", "simulate_elastic",
+    "connected_lines", "elastic_line_ids", "run_elastic", "series_chain", "simulate_elastic",
 ]

@@ -155,3 +155,89 @@ def valve_between(c1: float, b1: float, c2: float, b2: float, k: float, vol1: fl
     v1 = max(0.0, vol1 + dt * (q - (c1 - h1) / b1)) if cav1 else 0.0
     v2 = max(0.0, vol2 + dt * ((h2 - c2) / b2 - q)) if cav2 else 0.0
     return h1, h2, v1, v2
+
+
+def valve_at_junction(sum_cb: float, sum_inv_b: float, c_lo: float, c_hi: float, cv: float,
+                      bv: float, k: float, vol_j: float, vol_f: float, dt: float, hv_j: float,
+                      hv_f: float):
+    r"""Head at a junction of several lines where one of them joins through a valve.
+
+    The other line ends meet at the common head ``H`` (as :func:`junction`); the valve's
+    line brings ``c_v`` and its face, at ``H_f = c_v - B_v (q + V_f/dt)``, passes ``q`` into
+    the junction through ``H_f - H = k q|q|``. Continuity at the junction,
+
+    .. math:: F(H) = \sum (c_j - H)/B_j + q(H) + V_J/\Delta t = 0,
+
+    is monotone in ``H`` and solved by regula falsi (Illinois variant) on a bracket of the
+    characteristics. A face below its vapour head holds a cavity (``H_f = H_v``,
+    ``q = sign sqrt(|H_v - H|/k)``); a junction below its vapour head likewise
+    (``H = H_v``, ``V_J' = V_J + dt (sum (H_v - c_j)/B_j - q)``).
+
+    Returns
+    -------
+    (H, H_f, V_J', V_f')
+    """
+    shut = k == math.inf
+    cve = cv - bv * vol_f / dt
+    face_cav = False
+    h = hv_j
+    q = 0.0
+    for attempt in range(2):  # the face as liquid first, then holding a cavity
+        lo = min(c_lo, cve) - (vol_j / dt) / sum_inv_b - 1.0
+        hi = max(c_hi, cve) + (vol_j / dt) / sum_inv_b + 1.0
+        if face_cav:  # hv_f is finite here
+            lo = min(lo, hv_f - 1.0)
+            hi = max(hi, hv_f + 1.0)
+        f_lo = 1.0
+        f_hi = -1.0
+        side = 0
+        h = 0.5 * (lo + hi)
+        for it in range(200):
+            if it == 0:
+                h = lo
+            elif it == 1:
+                h = hi
+            else:
+                h = (lo * f_hi - hi * f_lo) / (f_hi - f_lo)
+            if face_cav:
+                d = hv_f - h
+                q = 0.0 if shut or k <= 0.0 else math.copysign(math.sqrt(abs(d) / k), d)
+            else:
+                d = cve - h
+                q = 0.0 if shut else 2.0 * d / (bv + math.sqrt(bv * bv + 4.0 * k * abs(d)))
+            f = sum_cb - h * sum_inv_b + q + vol_j / dt
+            if it == 0:
+                f_lo = f
+                continue
+            if it == 1:
+                f_hi = f
+                continue
+            if f == 0.0 or hi - lo <= 1e-13 * (1.0 + abs(h)):
+                break
+            if f > 0.0:
+                lo, f_lo = h, f
+                if side == 1:
+                    f_hi *= 0.5
+                side = 1
+            else:
+                hi, f_hi = h, f
+                if side == -1:
+                    f_lo *= 0.5
+                side = -1
+        h_face = hv_f if face_cav else cve - bv * q
+        if face_cav or shut or h_face >= hv_f:
+            break
+        face_cav = True
+    v_j = 0.0
+    if h < hv_j:
+        h = hv_j
+        if face_cav:
+            d = hv_f - h
+            q = 0.0 if shut or k <= 0.0 else math.copysign(math.sqrt(abs(d) / k), d)
+        else:
+            d = cve - h
+            q = 0.0 if shut else 2.0 * d / (bv + math.sqrt(bv * bv + 4.0 * k * abs(d)))
+        v_j = max(0.0, vol_j + dt * (h * sum_inv_b - sum_cb - q))
+    h_face = hv_f if face_cav else cve - bv * q
+    v_f = max(0.0, vol_f + dt * (q - (cv - h_face) / bv)) if face_cav else 0.0
+    return h, h_face, v_j, v_f

@@ -28,6 +28,7 @@ _clamond_inv_sqrt_f = _jit(_friction._clamond_inv_sqrt_f)
 fixed_end = _jit(_bc.fixed_end)
 junction = _jit(_bc.junction)
 valve_between = _jit(_bc.valve_between)
+valve_at_junction = _jit(_bc.valve_at_junction)
 
 
 @_jit
@@ -140,8 +141,44 @@ def _ends(xn, k, dt, hv, vol, rec, fixed, juncs, pairs, kappa):
 
 
 @_jit
+def _valve_junctions(xn, k, dt, hv, vol, rec, vjs, kappa):
+    """Junctions where one line joins through a valve; the change in open cavities."""
+    ptr, m_in, m_out, m_b, j_node, face, face_b, valve = vjs
+    events, first_open, last_close, v_max, v_max_step, sep = rec
+    change = 0
+    for j in range(ptr.shape[0] - 1):
+        p = j_node[j]
+        pf = face[j, 0]
+        sum_cb = 0.0
+        inv = 0.0
+        c_lo = math.inf
+        c_hi = -math.inf
+        for s in range(ptr[j], ptr[j + 1]):
+            c = xn[m_in[s]]
+            sum_cb += c / m_b[s]
+            inv += 1.0 / m_b[s]
+            c_lo = min(c_lo, c)
+            c_hi = max(c_hi, c)
+        cv = xn[face[j, 1]]
+        vj = vol[p]
+        vf = vol[pf]
+        h, hf, vjn, vfn = valve_at_junction(sum_cb, inv, c_lo, c_hi, cv, face_b[j],
+                                            kappa[valve[j], k], vj, vf, dt, hv[p], hv[pf])
+        for s in range(ptr[j], ptr[j + 1]):
+            xn[m_out[s]] = 2.0 * h - xn[m_in[s]]
+        xn[face[j, 2]] = 2.0 * hf - cv
+        if vjn > 0.0 or vj > 0.0:
+            change += _track(p, vjn, k, vol, events, first_open, last_close, v_max,
+                             v_max_step, sep)
+        if vfn > 0.0 or vf > 0.0:
+            change += _track(pf, vfn, k, vol, events, first_open, last_close, v_max,
+                             v_max_step, sep)
+    return change
+
+
+@_jit
 def march(x, xn, k0, m, dt, inv2b, b, fric, cav, hv, interior, vol, rec, fixed, juncs,
-          pairs, kappa, env, series, snodes, cav_volume, active):
+          pairs, vjs, kappa, env, series, snodes, cav_volume, active):
     """March ``m`` steps from step ``k0``; ``x`` holds the state before and after.
 
     Returns the number of nodes holding a cavity at the end.
@@ -180,6 +217,7 @@ def march(x, xn, k0, m, dt, inv2b, b, fric, cav, hv, interior, vol, rec, fixed, 
                     active += _track(i, v_new, k, vol, events, first_open, last_close, v_max,
                                      v_max_step, sep)
         active += _ends(xn, k, dt, hv, vol, rec, fixed, juncs, pairs, kappa)
+        active += _valve_junctions(xn, k, dt, hv, vol, rec, vjs, kappa)
         for i in range(n):  # line ends: the boundaries set their heads
             if not interior[i]:
                 heads[i] = 0.5 * (xn[i] + xn[2 * n - 1 - i])
@@ -189,6 +227,8 @@ def march(x, xn, k0, m, dt, inv2b, b, fric, cav, hv, interior, vol, rec, fixed, 
         for i in range(n):
             h_max[i] = max(h_max[i], heads[i])
             h_min[i] = min(h_min[i], heads[i])
+            if heads[i] != heads[i]:  # NaN: keep it, so that the guard after the run sees it
+                h_max[i] = heads[i]
         if not cav and h_vap_check.shape[0] == n and sep[0] < 0:
             worst = math.inf
             node = -1

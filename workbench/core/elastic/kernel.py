@@ -104,6 +104,8 @@ def run_compiled(plan: MarchPlan, out: MarchOutput, progress=None, cancel=None):
              bd.fixed_k_in, bd.fixed_b, bd.fixed_valve)
     juncs = (bd.junction_ptr, bd.member_in, bd.member_out, bd.member_b, bd.junction_node)
     pairs = (bd.pair_node, bd.pair_in, bd.pair_out, bd.pair_b, bd.pair_valve)
+    vjs = (bd.vj_ptr, bd.vj_in, bd.vj_out, bd.vj_b, bd.vj_node, bd.vj_face, bd.vj_face_b,
+           bd.vj_valve)
     kappa = bd.kappa if bd.kappa.shape[0] else np.zeros((1, n_steps + 1))
     env = (out.h_max, out.h_min, out.h_max_pre, check, out.sep_head)
     chunk = max(64, min(CHUNK_UPDATES // max(n, 1), -(-n_steps // PROGRESS_REPORTS)))
@@ -112,8 +114,8 @@ def run_compiled(plan: MarchPlan, out: MarchOutput, progress=None, cancel=None):
         m = min(chunk, n_steps - k)
         active = compiled.march(x, xn, k, m, plan.dt, inv2b, plan.b_node, fric,
                                 cav, hv, plan.interior, out.vol, rec, fixed, juncs, pairs,
-                                kappa, env, out.series, plan.series_nodes, out.cavity_volume,
-                                active)
+                                vjs, kappa, env, out.series, plan.series_nodes,
+                                out.cavity_volume, active)
         k += m
         if progress is not None:
             progress(k / n_steps)

@@ -74,6 +74,16 @@ class _Stepper:
                        tuple(bd.pair_out[i].tolist()), tuple(bd.pair_b[i].tolist()),
                        int(bd.pair_valve[i])) for i in range(len(bd.pair_valve))]
         self.kappa = [row.tolist() for row in bd.kappa]
+        vp = bd.vj_ptr.tolist()
+        self.valve_juncs = []
+        for j in range(len(vp) - 1):
+            members = list(zip(bd.vj_in[vp[j]:vp[j + 1]].tolist(),
+                               bd.vj_out[vp[j]:vp[j + 1]].tolist(),
+                               bd.vj_b[vp[j]:vp[j + 1]].tolist()))
+            inv = sum(1.0 / b for _, _, b in members)
+            self.valve_juncs.append((int(bd.vj_node[j]), members, inv,
+                                     tuple(bd.vj_face[j].tolist()), float(bd.vj_face_b[j]),
+                                     int(bd.vj_valve[j])))
         self.hv_list = hv.tolist()
 
     def interior(self, cur: np.ndarray, cur_rev: np.ndarray, new_tail: np.ndarray,
@@ -147,6 +157,24 @@ class _Stepper:
                 new[s_out] = 2.0 * h - new.item(s_in)
             if v > 0.0 or vol.item(node) > 0.0:
                 self.active += out.track_one(node, v, k)
+        for node, members, inv, (pf, fin, fout), bf, valve in self.valve_juncs:
+            sum_cb, c_lo, c_hi = 0.0, math.inf, -math.inf
+            for s_in, _, b in members:
+                c = new.item(s_in)
+                sum_cb += c / b
+                c_lo, c_hi = min(c_lo, c), max(c_hi, c)
+            cv = new.item(fin)
+            vj, vf = vol.item(node), vol.item(pf)
+            h, hf, vjn, vfn = bc.valve_at_junction(sum_cb, inv, c_lo, c_hi, cv, bf,
+                                                   self.kappa[valve][k], vj, vf, dt, hv[node],
+                                                   hv[pf])
+            for s_in, s_out, _ in members:
+                new[s_out] = 2.0 * h - new.item(s_in)
+            new[fout] = 2.0 * hf - cv
+            if vjn > 0.0 or vj > 0.0:
+                self.active += out.track_one(node, vjn, k)
+            if vfn > 0.0 or vf > 0.0:
+                self.active += out.track_one(pf, vfn, k)
         for (p1, p2), (i1, i2), (o1, o2), (b1, b2), valve in self.pairs:
             c1, c2 = new.item(i1), new.item(i2)
             v1, v2 = vol.item(p1), vol.item(p2)

@@ -53,6 +53,18 @@ class Boundaries:
     pair_valve: np.ndarray
     kappa: np.ndarray
     """``(valves, steps + 1)`` valve loss ``K/(2 g A^2)`` in time [s^2/m^5]."""
+    vj_ptr: np.ndarray
+    """Junctions of three or more lines, one joining through a valve: the other members
+    ``vj_ptr[j]:vj_ptr[j+1]`` of ``vj_in``, ``vj_out``, ``vj_b``."""
+    vj_in: np.ndarray
+    vj_out: np.ndarray
+    vj_b: np.ndarray
+    vj_node: np.ndarray
+    """Grid node holding the junction's cavity."""
+    vj_face: np.ndarray
+    """``(junctions, 3)``: the valve line's face node, in and out slots."""
+    vj_face_b: np.ndarray
+    vj_valve: np.ndarray
 
 
 @dataclass(frozen=True, eq=False)
@@ -115,7 +127,7 @@ def build_boundaries(system: System, ends: list[LineEnds], grid: Grid, times: np
     """The boundaries of the grid, and the valve rows by line id."""
     n = grid.n
     b_line = [grid.speeds[e.line.id].used / (G * e.loss.area) for e in ends]
-    fixed, juncs, pairs, valves = [], [], [], {}
+    fixed, juncs, pairs, valves, valve_juncs = [], [], [], {}, []
 
     def valve_row(i: int) -> int:
         valves.setdefault(ends[i].line.id, len(valves))
@@ -139,19 +151,20 @@ def build_boundaries(system: System, ends: list[LineEnds], grid: Grid, times: np
                           (b_line[one[0]], b_line[two[0]]), valve_row(with_valve[0][0])))
             continue
         if with_valve and len(members) > 2:
-            raise ElasticSetupError(
-                f"line {ends[with_valve[0][0]].line.id}'s valve sits at junction {node!r} "
-                f"where {len(members)} lines meet; the elastic model takes a valve at a "
-                "junction of two lines or at a reservoir, tank or outlet")
+            v = with_valve[0]
+            others = [m for m in members if m is not v]
+            valve_juncs.append(([(slots(n, p, here), b_line[i], p) for i, here, p, _ in others],
+                                (v[2], *slots(n, v[2], v[1])), b_line[v[0]], valve_row(v[0])))
+            continue
         juncs.append([(slots(n, p, here), b_line[i], p) for i, here, p, _ in members])
     kappa = np.zeros((len(valves), len(times)))
     by_id = {e.line.id: e.line for e in ends}
     for lid, row in valves.items():
         kappa[row] = valve_kappa(times, by_id[lid])
-    return _as_arrays(fixed, juncs, pairs, kappa), valves
+    return _as_arrays(fixed, juncs, pairs, kappa, valve_juncs), valves
 
 
-def _as_arrays(fixed, juncs, pairs, kappa) -> Boundaries:
+def _as_arrays(fixed, juncs, pairs, kappa, valve_juncs) -> Boundaries:
     def col(rows, j, dtype=float):
         return np.array([r[j] for r in rows], dtype=dtype)
 
@@ -174,4 +187,12 @@ def _as_arrays(fixed, juncs, pairs, kappa) -> Boundaries:
         pair_b=np.array([p[3] for p in pairs], dtype=float).reshape(-1, 2),
         pair_valve=np.array([p[4] for p in pairs], dtype=np.int64),
         kappa=kappa,
+        vj_ptr=np.cumsum([0] + [len(v[0]) for v in valve_juncs]).astype(np.int64),
+        vj_in=np.array([m[0][0] for v in valve_juncs for m in v[0]], dtype=np.int64),
+        vj_out=np.array([m[0][1] for v in valve_juncs for m in v[0]], dtype=np.int64),
+        vj_b=np.array([m[1] for v in valve_juncs for m in v[0]], dtype=float),
+        vj_node=np.array([v[0][0][2] for v in valve_juncs], dtype=np.int64),
+        vj_face=np.array([v[1] for v in valve_juncs], dtype=np.int64).reshape(-1, 3),
+        vj_face_b=np.array([v[2] for v in valve_juncs], dtype=float),
+        vj_valve=np.array([v[3] for v in valve_juncs], dtype=np.int64),
     )

@@ -16,7 +16,7 @@ from workbench.core.elastic.results import (
     failed,
 )
 from workbench.core.elastic.setup import prepare
-from workbench.core.elastic.topology import series_chain
+from workbench.core.elastic.topology import connected_lines
 from workbench.core.model import System
 
 
@@ -43,7 +43,10 @@ def simulate_elastic(
     system : System
         The validated system (SI).
     line_id : str
-        A line of the chain; the whole chain (see :func:`series_chain`) is run.
+        A line of the system; every line joined to it through junctions is run with it
+        (:func:`workbench.core.elastic.topology.connected_lines`): lines in series, branches
+        and loops, with reservoirs, tanks and receivers at their ends and valves wherever a
+        line has one.
     duration : float, optional
         Simulated time [s]. Default: the last valve movement plus
         :data:`DEFAULT_ROUND_TRIPS` round trips ``2*sum(L/a)`` of the lines, but no longer
@@ -110,7 +113,7 @@ def simulate_elastic(
     330.78
     """
     try:
-        lines = [system.lines[lid] for lid in series_chain(system, line_id)]
+        lines = [system.lines[lid] for lid in connected_lines(system, line_id)]
         setup = prepare(system, line_id, lines, duration=duration, max_duration=max_duration,
                         reaches=reaches, friction=friction, tolerance=speed_tolerance,
                         speeds=wave_speeds, cavities=cavities)
@@ -176,7 +179,7 @@ def run_elastic(
         if lid in out:
             continue
         try:
-            chain = series_chain(system, lid)
+            chain = connected_lines(system, lid)
         except ElasticSetupError as exc:
             out[lid] = failed(f"{STATUS_MESSAGES[-1]} {exc}", line_ids=(lid,))
             continue

@@ -86,12 +86,12 @@ def _record_nodes(lines, grid: Grid, line_id: str, plan_bounds):
         traces[f"valve {ln.id}"] = node
         if valve_line != line_id:
             valve_line, valve_node = ln.id, node
-    for j, node in enumerate(plan_bounds.junction_node.tolist()):
-        members = plan_bounds.junction_ptr[j + 1] - plan_bounds.junction_ptr[j]
-        if members >= 2:
-            i, _ = grid.locate(node)
-            name = lines[i].to_node if node == grid.last(i) else lines[i].from_node
-            traces[f"junction {name}"] = node
+    nodes = [node for j, node in enumerate(plan_bounds.junction_node.tolist())
+             if plan_bounds.junction_ptr[j + 1] - plan_bounds.junction_ptr[j] >= 2]
+    for node in nodes + plan_bounds.vj_node.tolist():
+        i, _ = grid.locate(node)
+        name = lines[i].to_node if node == grid.last(i) else lines[i].from_node
+        traces[f"junction {name}"] = node
     return mid, traces, valve_line, valve_node
 
 

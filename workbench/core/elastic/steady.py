@@ -86,42 +86,50 @@ def _carrying_lines(ends: list[LineEnds], system: System) -> list[int]:
         live = [i for i in live if i not in dead]
 
 
-def _junction_heads(ends, live, system, heads: dict[str, float]) -> dict[str, float]:
-    """Solve continuity at the junctions joined by carrying lines."""
+def _solve_network(ends, live, heads: dict[str, float]) -> dict[int, float]:
+    """Flows of the carrying lines and heads at their junctions (``heads`` is completed).
+
+    Unknowns: each carrying line's flow and each junction's head; equations: each line's
+    loss ``H_from - H_to = h(Q)`` and continuity at each junction (Newton-type solution,
+    scipy's ``hybr``). Lines between fixed heads alone are solved one by one.
+    """
     unknown = sorted({node for i in live for node in (ends[i].line.from_node,
                                                        ends[i].line.to_node)
                       if node not in heads})
     if not unknown:
-        return heads
-    index = {node: j for j, node in enumerate(unknown)}
-    guess = np.full(len(unknown), float(np.mean(list(heads.values()))))
+        return {i: ends[i].flow(heads[ends[i].line.from_node] - heads[ends[i].line.to_node])
+                for i in live}
+    from scipy.optimize import root
+
+    index = {node: len(live) + j for j, node in enumerate(unknown)}
+    h_scale = max(1.0, max(heads.values()) - min(heads.values()))
+    q_scale = max(ends[i].loss.area * math.sqrt(2.0 * G * h_scale) for i in live)
+
+    def head(x, node):
+        return heads[node] if node not in index else x[index[node]] * h_scale
 
     def residual(x):
-        h = dict(heads)
-        h.update({node: float(x[j]) for node, j in index.items()})
-        r = np.zeros(len(unknown))
-        for i in live:
+        r = np.zeros(len(x))
+        for j, i in enumerate(live):
             ln = ends[i].line
-            q = ends[i].flow(h[ln.from_node] - h[ln.to_node])
+            q = x[j] * q_scale
+            r[j] = (head(x, ln.from_node) - head(x, ln.to_node) - ends[i].total_loss(q)) \
+                / h_scale
             if ln.from_node in index:
-                r[index[ln.from_node]] -= q
+                r[index[ln.from_node]] -= x[j]
             if ln.to_node in index:
-                r[index[ln.to_node]] += q
+                r[index[ln.to_node]] += x[j]
         return r
 
-    if len(unknown) == 1:
-        from scipy.optimize import brentq
-
-        lo, hi = min(heads.values()), max(heads.values())
-        x = brentq(lambda v: residual([v])[0], lo, hi, xtol=1e-14, rtol=1e-15, maxiter=200)
-        solved = [x]
-    else:
-        from scipy.optimize import root
-
-        sol = root(residual, guess, method="hybr", options={"xtol": 1e-14})
-        solved = sol.x
-    heads.update({node: float(solved[j]) for node, j in index.items()})
-    return heads
+    guess = np.concatenate([np.full(len(live), 0.1),
+                            np.full(len(unknown), np.mean(list(heads.values())) / h_scale)])
+    sol = root(residual, guess, method="hybr", options={"xtol": 1e-15})
+    if not np.all(np.abs(residual(sol.x)) < 1e-9):
+        raise ElasticSetupError(
+            "the steady flow the surge run starts from could not be found for the lines "
+            f"{', '.join(ends[i].line.id for i in live)}")
+    heads.update({node: float(sol.x[k]) * h_scale for node, k in index.items()})
+    return {i: float(sol.x[j]) * q_scale for j, i in enumerate(live)}
 
 
 def _spread_heads(ends, live, heads: dict[str, float]) -> None:
@@ -161,11 +169,9 @@ def steady_state(system: System, ends: list[LineEnds]) -> tuple[list[float], dic
             f"the lines {' - '.join(e.line.id for e in ends)} have no free surface or "
             "receiver at any end")
     live = _carrying_lines(ends, system)
-    _junction_heads(ends, live, system, heads)
     flows = [0.0] * len(ends)
-    for i in live:
-        ln = ends[i].line
-        flows[i] = ends[i].flow(heads[ln.from_node] - heads[ln.to_node])
+    for i, q in _solve_network(ends, live, heads).items():
+        flows[i] = q
     _spread_heads(ends, live, heads)
     return flows, heads
 

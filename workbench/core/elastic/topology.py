@@ -1,7 +1,8 @@
-"""Which lines an elastic run takes together: the chain of lines in series around a line.
+"""Which lines an elastic run takes together: every line joined through junctions.
 
-The chain grows through junctions joining exactly two lines and stops at reservoirs,
-receivers and dead ends (a junction with one line).
+A chain of lines in series grows through junctions joining exactly two lines and stops at
+reservoirs, receivers and dead ends (a junction with one line); a branched or looped part is
+taken whole (:func:`connected_lines`).
 """
 
 from __future__ import annotations
@@ -89,3 +90,40 @@ def elastic_line_ids(system: System, extra: tuple[str, ...] | list[str] = ()) ->
     chosen = [lid for lid, line in system.lines.items() if line.surge.model == "elastic"]
     chosen += [lid for lid in extra if lid not in chosen]
     return tuple(chosen)
+
+
+def connected_lines(system: System, line_id: str) -> tuple[str, ...]:
+    """The lines joined to ``line_id`` through junctions (reservoirs, tanks and receivers
+    hold their heads and separate the parts of a system).
+
+    Lines in series come upstream to downstream (:func:`series_chain`); a branched or looped
+    part comes in the order of the project's lines.
+
+    Raises
+    ------
+    ElasticSetupError
+        Unknown line.
+    """
+    if line_id not in system.lines:
+        raise ElasticSetupError(
+            f"no line {line_id!r}; lines are: {', '.join(system.lines) or 'none'}"
+        )
+    touching = lines_at_nodes(system)
+    seen = {line_id}
+    todo = [line_id]
+    while todo:
+        line = system.lines[todo.pop()]
+        for node in (line.from_node, line.to_node):
+            if node not in system.junctions:
+                continue
+            for other in touching.get(node, []):
+                if other not in seen:
+                    seen.add(other)
+                    todo.append(other)
+    try:
+        chain = series_chain(system, line_id)
+    except ElasticSetupError:
+        chain = ()
+    if set(chain) == seen:
+        return chain
+    return tuple(lid for lid in system.lines if lid in seen)
