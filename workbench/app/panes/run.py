@@ -44,6 +44,10 @@ def trend_series(result: Any) -> list[tuple[str, str, str, Any]]:
         for tank, values in zip(_get(result, "tank_ids", default=()) or (), table):
             if any(v != 0.0 for v in values):
                 found.append((f"{name}:{tank}", f"{word} {tank}", "flow", values))
+    # the gauge pressure of each tank's gas space (tanks with a vent)
+    for tank, values in zip(_get(result, "gas_tank_ids", default=()) or (),
+                            _get(result, "gas_pressures", default=()) if result is not None else ()):
+        found.append((f"gas:{tank}", f"gas pressure {tank}", "pressure", values))
     return found
 
 
@@ -97,12 +101,12 @@ class RunPane(Vertical):
         box = self.query_one("#run-series", SelectionList)
         self._series = trend_series(result) if result is not None else []
         if self._chosen is None and self._series:
-            # first run: every level, the first line flow, and any feed or spill
+            # first run: every level, the first line flow, any feed or spill, gas pressures
             flows = [k for k, _l, kind, _v in self._series if k.startswith("flow:")]
             self._chosen = {k for k, _l, kind, _v in self._series if kind == "length"}
             self._chosen |= set(flows[:1])
             self._chosen |= {k for k, _l, _kind, _v in self._series
-                             if k.startswith(("feeds:", "spills:"))}
+                             if k.startswith(("feeds:", "spills:", "gas:"))}
         box.clear_options()
         box.add_options([(label, key, key in (self._chosen or set()))
                          for key, label, _kind, _values in self._series])
@@ -147,5 +151,8 @@ class RunPane(Vertical):
                      marker=markers[n % len(markers)], yside=side)
         plt.xlabel("time [h]" if hours else "time [s]")
         plt.ylabel(f"level [{display_unit('length', units)}]", yside="left")
-        plt.ylabel(f"flow [{display_unit('flow', units)}]", yside="right")
+        right = sorted({kind for key, _l, kind, _v in self._series
+                        if kind != "length" and key in (self._chosen or set())}) or ["flow"]
+        plt.ylabel(", ".join(f"{'gas' if k == 'pressure' else k} [{display_unit(k, units)}]"
+                             for k in right), yside="right")
         self._plot.refresh()
