@@ -94,71 +94,91 @@ def transient_to_json(result: TransientResult, system: System, include_series: b
                   "jacobians": int(result.njev), "wall_time_s": _num(result.wall_time)},
     })
     for i, lid in enumerate(result.line_ids):
-        flows = result.flows[i] if result.flows.size else np.zeros(0)
-        entry: dict[str, Any] = {}
-        if include_series:
-            entry["flow_m3_s"] = _list(flows)
-        entry.update({
-            "max_pressure_pa": _num(result.max_pressure.get(lid)),
-            "min_pressure_pa": _num(result.min_pressure.get(lid)),
-            "max_pressure_time_s": _num(result.max_pressure_time.get(lid)),
-            "min_pressure_time_s": _num(result.min_pressure_time.get(lid)),
-            "peak_flow_m3_s": _num(np.max(flows)) if flows.size else None,
-            "min_flow_m3_s": _num(np.min(flows)) if flows.size else None,
-        })
-        out["lines"][lid] = entry
+        out["lines"][lid] = _line_json(result, i, include_series)
     feeds, draws = _external(result)
     spills = _spills(result)
     for k, tid in enumerate(result.tank_ids):
-        levels = result.levels[k]
-        entry = {}
-        if include_series:
-            entry["level_m"] = _list(levels)
-        entry.update({
-            "initial_level_m": _num(levels[0]) if levels.size else None,
-            "final_level_m": _num(levels[-1]) if levels.size else None,
-            "max_level_m": _num(np.max(levels)) if levels.size else None,
-            "min_level_m": _num(np.min(levels)) if levels.size else None,
-            "drain_time_s": _num(result.drain_times.get(tid)),
-            **({"drain_time_note": result.drain_notes[tid]}
-               if tid in getattr(result, "drain_notes", {}) else {}),
-            "settle_99_s": _num(settle_time(result.t, levels)),
-        })
-        if include_series:
-            entry["inflow_m3_s"] = _list(feeds[k])
-            entry["draw_off_m3_s"] = _list(draws[k])
-            entry["spill_m3_s"] = _list(spills[k])
-        entry.update({
-            "inflow_volume_m3": _num(_moved(result.t, feeds[k])),
-            "draw_off_volume_m3": _num(_moved(result.t, draws[k])),
-            "end_state": result.end_states.get(tid),
-            "end_net_inflow_m3_s": _num(result.end_rates.get(tid)),
-            "end_level_rate_m_s": _num(_level_rate(result, system, k)),
-            "peak_spill_m3_s": _num(np.max(spills[k], initial=0.0)),
-        })
-        entry.update(gas_json(result, tid, include_series))  # tanks with a vent only
-        out["levels"][tid] = entry
+        out["levels"][tid] = _tank_json(result, system, k, (feeds[k], draws[k], spills[k]),
+                                        include_series)
     out["events"] = [
         {"time_s": _num(e.time), "code": e.code, "element": e.element, "message": e.message}
         for e in result.events
     ]
-    for lid, s in result.surge.items():
-        out["surge"][lid] = {
-            "wave_speed_m_s": _num(s.wave_speed),
-            "joukowsky_pa": _num(s.joukowsky),
-            "effective_closure_s": _num(s.effective_closure),
-            "round_trip_s": _num(s.round_trip),
-            "rapid_closure": bool(s.rapid_closure),
-            "capped": bool(s.capped),
-            "max_pressure_uncapped_pa": _num(s.max_pressure_uncapped),
-            "formula": s.formula,
-        }
+    out["surge"] = {lid: _surge_json(s) for lid, s in result.surge.items()}
     out["warnings"] = [
         {"code": w.code, "element": w.element, "message": w.message, "severity": w.severity,
          "source": w.source, **({"values": finding_values(w)} if w.values else {})}
         for w in result.warnings
     ]
     return out
+
+
+def _line_json(result: TransientResult, i: int, include_series: bool) -> dict:
+    """``lines.ID``: the flow series and the extremes of flow and pressure with their times."""
+    lid = result.line_ids[i]
+    flows = result.flows[i] if result.flows.size else np.zeros(0)
+    entry: dict[str, Any] = {}
+    if include_series:
+        entry["flow_m3_s"] = _list(flows)
+    entry.update({
+        "max_pressure_pa": _num(result.max_pressure.get(lid)),
+        "min_pressure_pa": _num(result.min_pressure.get(lid)),
+        "max_pressure_time_s": _num(result.max_pressure_time.get(lid)),
+        "min_pressure_time_s": _num(result.min_pressure_time.get(lid)),
+        "peak_flow_m3_s": _num(np.max(flows)) if flows.size else None,
+        "min_flow_m3_s": _num(np.min(flows)) if flows.size else None,
+    })
+    return entry
+
+
+def _tank_json(result: TransientResult, system: System, k: int, external: tuple,
+               include_series: bool) -> dict:
+    """``levels.ID`` of tank ``k``: levels, drained and settled times, feed, draw-off and
+    spill (``external``: their series), the state at the end, and a vented tank's gas."""
+    tid = result.tank_ids[k]
+    feed, draw, spill = external
+    levels = result.levels[k]
+    entry: dict[str, Any] = {}
+    if include_series:
+        entry["level_m"] = _list(levels)
+    entry.update({
+        "initial_level_m": _num(levels[0]) if levels.size else None,
+        "final_level_m": _num(levels[-1]) if levels.size else None,
+        "max_level_m": _num(np.max(levels)) if levels.size else None,
+        "min_level_m": _num(np.min(levels)) if levels.size else None,
+        "drain_time_s": _num(result.drain_times.get(tid)),
+        **({"drain_time_note": result.drain_notes[tid]}
+           if tid in getattr(result, "drain_notes", {}) else {}),
+        "settle_99_s": _num(settle_time(result.t, levels)),
+    })
+    if include_series:
+        entry["inflow_m3_s"] = _list(feed)
+        entry["draw_off_m3_s"] = _list(draw)
+        entry["spill_m3_s"] = _list(spill)
+    entry.update({
+        "inflow_volume_m3": _num(_moved(result.t, feed)),
+        "draw_off_volume_m3": _num(_moved(result.t, draw)),
+        "end_state": result.end_states.get(tid),
+        "end_net_inflow_m3_s": _num(result.end_rates.get(tid)),
+        "end_level_rate_m_s": _num(_level_rate(result, system, k)),
+        "peak_spill_m3_s": _num(np.max(spill, initial=0.0)),
+    })
+    entry.update(gas_json(result, tid, include_series))  # tanks with a vent only
+    return entry
+
+
+def _surge_json(s) -> dict:
+    """``surge.ID``: the rigid-column run's surge screening of one line."""
+    return {
+        "wave_speed_m_s": _num(s.wave_speed),
+        "joukowsky_pa": _num(s.joukowsky),
+        "effective_closure_s": _num(s.effective_closure),
+        "round_trip_s": _num(s.round_trip),
+        "rapid_closure": bool(s.rapid_closure),
+        "capped": bool(s.capped),
+        "max_pressure_uncapped_pa": _num(s.max_pressure_uncapped),
+        "formula": s.formula,
+    }
 
 
 def _external(result: TransientResult) -> tuple[np.ndarray, np.ndarray]:
