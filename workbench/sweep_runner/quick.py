@@ -54,7 +54,6 @@ def run_quick_sweep(project: Project, plan: SweepPlan) -> QuickSweep:
     import numpy as np
 
     from workbench.core.sweep import LineCases, line_cases_from_systems, single_line_ends, solve_line_cases
-    from workbench.project.document import ProjectError, set_value
 
     project = prepared_base(project, plan.axes)
     line_id = single_line_ends(project.system)
@@ -63,27 +62,10 @@ def run_quick_sweep(project: Project, plan: SweepPlan) -> QuickSweep:
             "a quick sweep needs a project with one line between two fixed heads (reservoirs or "
             "receivers, no junctions); run the full sweep instead"
         )
-    quick_metrics = {"flow", "velocity", "reynolds", "head_loss"}
-    for c in plan.criteria:
-        if c.metric is not None and c.metric not in quick_metrics:
-            raise SweepSpecError(f"--require {c.text!r}: a quick sweep has only {', '.join(sorted(quick_metrics))}")
-        if c.absent_code is not None:
-            raise SweepSpecError(f"--require {c.text!r}: a quick sweep computes no warnings")
+    _check_quick_criteria(plan)
     base = line_cases_from_systems([project.system])
     names = list(base.__dataclass_fields__)
-    axis_rows: list[LineCases | None] = []
-    axis_errors: list[list[str | None]] = []
-    for axis in plan.axes:
-        systems, errs = [], []
-        for value in axis.values:
-            try:
-                systems.append(set_value(project, axis.keypath, value).system)
-                errs.append(None)
-            except (ProjectError, ValueError) as exc:
-                systems.append(project.system)
-                errs.append(problems_text(exc))
-        axis_rows.append(line_cases_from_systems(systems, line_id))
-        axis_errors.append(errs)
+    axis_rows, axis_errors = _axis_rows(project, plan, line_id)
     shape = tuple(len(a.values) for a in plan.axes)
     changed_by: dict[str, list[int]] = {n: [] for n in names}
     for k, rows in enumerate(axis_rows):
@@ -97,29 +79,81 @@ def run_quick_sweep(project: Project, plan: SweepPlan) -> QuickSweep:
         msgs = [axis_errors[k][i] for k, i in enumerate(idx) if axis_errors[k][i]]
         errors.append("; ".join(msgs) or None)
     if combined:
-        columns = {}
-        for n in names:
-            col = np.broadcast_to(getattr(base, n)[0], shape).copy()
-            for k in changed_by[n]:
-                view = [None] * len(shape)
-                view[k] = slice(None)
-                col = np.broadcast_to(getattr(axis_rows[k], n)[tuple(view)], shape).copy()
-            columns[n] = col.ravel()
-        cases = LineCases(**columns)
+        cases = LineCases(**_grid(base, axis_rows, shape, changed_by))
     else:
-        systems = []
-        for case, err in zip(plan.cases, errors, strict=True):
-            if err is not None:
-                systems.append(project.system)
-                continue
-            try:
-                systems.append(apply_settings(project, case.settings).system)
-            except (ProjectError, ValueError) as exc:
-                systems.append(project.system)
-                errors[case.index] = problems_text(exc)
-        cases = line_cases_from_systems(systems, line_id)
+        cases = _case_by_case(project, plan, errors, line_id)
     result = solve_line_cases(cases)
     return QuickSweep(line_id, cases, result, tuple(errors), combined)
+
+
+#: The metrics a quick sweep computes.
+QUICK_METRICS = ("flow", "head_loss", "reynolds", "velocity")
+
+
+def _check_quick_criteria(plan: SweepPlan) -> None:
+    """Refuse criteria a quick sweep cannot judge (no pressures, no warnings)."""
+    for c in plan.criteria:
+        if c.metric is not None and c.metric not in QUICK_METRICS:
+            raise SweepSpecError(f"--require {c.text!r}: a quick sweep has only {', '.join(QUICK_METRICS)}")
+        if c.absent_code is not None:
+            raise SweepSpecError(f"--require {c.text!r}: a quick sweep computes no warnings")
+
+
+def _axis_rows(project: Project, plan: SweepPlan, line_id: str):
+    """For each axis, the line's SI quantities at each of its values (set through the
+    document, validated), and per value the error text or ``None``."""
+    from workbench.core.sweep import line_cases_from_systems
+    from workbench.project.document import ProjectError, set_value
+
+    axis_rows: list[LineCases] = []
+    axis_errors: list[list[str | None]] = []
+    for axis in plan.axes:
+        systems, errs = [], []
+        for value in axis.values:
+            try:
+                systems.append(set_value(project, axis.keypath, value).system)
+                errs.append(None)
+            except (ProjectError, ValueError) as exc:
+                systems.append(project.system)
+                errs.append(problems_text(exc))
+        axis_rows.append(line_cases_from_systems(systems, line_id))
+        axis_errors.append(errs)
+    return axis_rows, axis_errors
+
+
+def _grid(base: LineCases, axis_rows: list, shape: tuple, changed_by: dict) -> dict:
+    """Each quantity over the whole grid (flattened in sweep order): the base value, or the
+    values of the one axis that changes it, broadcast along that axis."""
+    import numpy as np
+
+    columns = {}
+    for n, axes in changed_by.items():
+        col = np.broadcast_to(getattr(base, n)[0], shape).copy()
+        for k in axes:
+            view = [None] * len(shape)
+            view[k] = slice(None)
+            col = np.broadcast_to(getattr(axis_rows[k], n)[tuple(view)], shape).copy()
+        columns[n] = col.ravel()
+    return columns
+
+
+def _case_by_case(project: Project, plan: SweepPlan, errors: list, line_id: str) -> LineCases:
+    """Every case set up through the document (when axes interact); a case that cannot be
+    set up keeps the base system and its error in ``errors``."""
+    from workbench.core.sweep import line_cases_from_systems
+    from workbench.project.document import ProjectError
+
+    systems = []
+    for case, err in zip(plan.cases, errors, strict=True):
+        if err is not None:
+            systems.append(project.system)
+            continue
+        try:
+            systems.append(apply_settings(project, case.settings).system)
+        except (ProjectError, ValueError) as exc:
+            systems.append(project.system)
+            errors[case.index] = problems_text(exc)
+    return line_cases_from_systems(systems, line_id)
 
 
 def quick_sweep_json(quick: QuickSweep, plan: SweepPlan) -> dict:
