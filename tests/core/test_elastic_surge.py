@@ -405,8 +405,13 @@ def test_quasi_steady_friction_gives_nearly_the_same_first_peak():
 
 
 def test_korteweg_speed_is_used_when_none_is_given():
-    # Steel NPS 12 Sch 40 with water, anchored: 1307.6 m/s (HYDRAULICS.md, computed from the
-    # Korteweg formula); a single line keeps its speed exactly.
+    # Steel NPS 12 Sch 40 with water, anchored: Korteweg with the thick-wall factor used at
+    # every D/e, c1 = 2e/D (1 + nu) + D (1 - nu^2)/(D + e) (Wylie & Streeter 1993, ch. 2,
+    # from memory), by hand below (the thin-wall factor gives 1307.6 m/s, HYDRAULICS.md);
+    # a single line keeps its speed exactly.
+    d, e = 0.30318, 0.01031
+    c1 = 2 * e / d * 1.30 + d * (1 - 0.30**2) / (d + e)
+    a = ((2.19e9 / 998.2) / (1 + c1 * 2.19e9 * d / (207e9 * e))) ** 0.5
     line = Line("L1", "R1", "OUT", 600.0, 0.30318, roughness=4.5e-5, wall_thickness=0.01031,
                 elastic_modulus=207e9, poisson_ratio=0.30, support="anchored",
                 valve=closing(1.0))
@@ -414,7 +419,7 @@ def test_korteweg_speed_is_used_when_none_is_given():
                     {"R1": Reservoir("R1", "constant_level", 0.0, 30.0)}, {},
                     {"OUT": Receiver("OUT", "open_discharge", 0.0)}, {"L1": line})
     res = simulate_elastic(system, "L1", duration=1.0)
-    assert res.wave_speeds["L1"].korteweg == pytest.approx(1307.6, abs=0.05)
+    assert res.wave_speeds["L1"].korteweg == pytest.approx(a, rel=1e-12)
     assert res.wave_speeds["L1"].adjustment == pytest.approx(0.0, abs=1e-12)
 
 

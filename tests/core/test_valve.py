@@ -81,3 +81,30 @@ def test_a_schedule_is_piecewise_linear_and_holds_its_ends():
 def test_unknown_characteristic_names_the_known_ones():
     with pytest.raises(KeyError, match="equal_percentage"):
         relative_flow_coefficient("butterfly_curve", 0.5)
+
+
+@pytest.mark.parametrize("x", [0.02, 0.1, 0.2, 0.5, 1.0])
+def test_the_iec_low_opening_keeps_the_pure_equal_percentage_curve(x):
+    # IEC 60534-2-4 inherent equal percentage: c = R^(x-1) for every opening above zero.
+    from workbench.core.valve import relative_flow_coefficient
+
+    assert relative_flow_coefficient("equal_percentage", x, 30.0, "iec") == pytest.approx(
+        30.0 ** (x - 1.0), rel=1e-12)
+
+
+def test_the_iec_low_opening_seats_at_zero_travel():
+    from workbench.core.valve import relative_flow_coefficient, valve_k
+
+    assert valve_k(0.2, relative_flow_coefficient("equal_percentage", 0.0, 30.0, "iec")) == math.inf
+
+
+def test_the_tangent_s_k_at_one_tenth_is_2_3_times_iec_s_for_r_30():
+    # Closed form: tangent c = x e ln R / R below x = 1/ln R; IEC c = R^(x-1); K ~ 1/c^2.
+    from workbench.core.valve import equal_percentage_note, relative_flow_coefficient
+
+    r, x = 30.0, 0.1
+    expected = (r ** (x - 1.0) / (x * math.e * math.log(r) / r)) ** 2
+    got = (relative_flow_coefficient("equal_percentage", x, r, "iec")
+           / relative_flow_coefficient("equal_percentage", x, r)) ** 2
+    assert got == pytest.approx(expected, rel=1e-12) and f"{expected:.2g}" == "2.3"
+    assert "2.3 times IEC's" in equal_percentage_note("tangent", r)

@@ -199,11 +199,11 @@ class Entrance:
 
 ENTRANCES: dict[str, Entrance] = {
     "sharp": Entrance(0.5, "sharp-edged, flush with the wall",
-                      "common practice; Rennels & Hudson, Pipe Flow (2012) give 0.57"),
+                      "rule of thumb; Rennels & Hudson, Pipe Flow (2012) give 0.57"),
     "square_edged": Entrance(0.5, "square-edged, flush with the wall (same as sharp)",
-                             "common practice; Rennels & Hudson, Pipe Flow (2012) give 0.57"),
+                             "rule of thumb; Rennels & Hudson, Pipe Flow (2012) give 0.57"),
     "inward_projecting": Entrance(0.78, "pipe end projecting into the tank (re-entrant)",
-                                  "from memory (textbook value); fluids' entrance_distance "
+                                  "textbook value (rule of thumb); fluids' entrance_distance "
                                   "(Rennels) gives about 0.9 for a thin wall"),
     "slightly_rounded": Entrance(0.28, "rounded inlet, r/D = 0.02",
                                  "Crane TP-410, via fluids.entrance_rounded(method='Crane')"),

@@ -294,22 +294,21 @@ FRICTION_METHODS: dict[str, FrictionMethod] = {
             friction_colebrook,
             (4000.0, 1e8),
             (0.0, 0.05),
-            "Colebrook (1939), solved by Clamond (2009); range that of the Moody (1944) chart "
-            "(from memory)",
+            "Colebrook (1939), solved by Clamond (2009); range that of the Moody (1944) chart",
         ),
         FrictionMethod(
             "laminar",
             friction_laminar,
             (0.0, RE_LAMINAR),
             (0.0, np.inf),
-            "Hagen-Poiseuille, f = 64/Re; laminar below Re about 2000 (common practice)",
+            "Hagen-Poiseuille, f = 64/Re; laminar below Re about 2000 (rule of thumb)",
         ),
         FrictionMethod(
             "churchill_1977",
             friction_churchill,
             (0.0, 1e8),
             (0.0, 0.05),
-            "Churchill (1977), Chem. Eng. 84(24) (from memory)",
+            "Churchill (1977), Chem. Eng. 84(24)",
         ),
         FrictionMethod(
             "swamee_jain_1976",

@@ -147,8 +147,12 @@ class LineSet:
         valves = [self._valves[i] for i in self._valve_idx]
         self._steady_x = np.array([v.opening for v in valves], dtype=float)
         self._rangeability = np.array([v.rangeability for v in valves], dtype=float)
-        chars = np.array([v.characteristic for v in valves], dtype=object)
-        self._valve_groups = [(c, np.flatnonzero(chars == c)) for c in sorted(set(chars))]
+        chars = np.array([(v.characteristic, v.low_opening) for v in valves] or
+                         np.zeros((0, 2)), dtype=object).reshape(-1, 2)
+        kinds = sorted({(str(a), str(b)) for a, b in chars})
+        self._valve_groups = [(kind, np.flatnonzero((chars[:, 0] == kind[0])
+                                                    & (chars[:, 1] == kind[1])))
+                              for kind in kinds]
 
         # Constant factors of the head-loss terms.
         nu = self.kinematic_viscosity
@@ -194,8 +198,8 @@ class LineSet:
             x = np.asarray(openings, dtype=float)[self._valve_idx]
             x = np.where(np.isnan(x), self._steady_x, x)
         k = np.zeros(self.n)
-        for characteristic, sel in self._valve_groups:
-            c = relative_flow_coefficient(characteristic, x[sel], self._rangeability[sel])
+        for (characteristic, low), sel in self._valve_groups:
+            c = relative_flow_coefficient(characteristic, x[sel], self._rangeability[sel], low)
             k[self._valve_idx[sel]] = valve_k(self.valve_k_open[self._valve_idx[sel]], c)
         return k
 

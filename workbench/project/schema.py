@@ -239,6 +239,9 @@ SECTIONS: dict[str, tuple[FieldSpec, ...]] = {
               default=50.0),
         field("position", "choice", help="end of the line where the valve sits",
               choices=("from", "to"), default="to"),
+        field("low_opening", "choice", help="equal percentage below x = 1/ln R: 'tangent' "
+              "(a line to zero, closes smoothly) or 'iec' (R^(x-1), IEC 60534-2-4)",
+              choices=("tangent", "iec"), default="tangent"),
         field("schedule", "list", help="opening in time for simulations: { time = '...', "
               "opening = x } points with increasing time"),
     ),

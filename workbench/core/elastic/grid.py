@@ -206,7 +206,7 @@ def build_grid(system: System, lines: list[Line], line_id: str, reaches, toleran
             "surge.wave_speed_adjusted", lines[0].id,
             f"wave speeds had to be changed by up to {100 * worst:.1f} % to fit a common time "
             f"step (tolerance {100 * tolerance:.1f} %); give more reaches to reduce it",
-            "caution", "Wylie & Streeter 1993, ch. 3 (common practice)"))
+            "caution", "Wylie & Streeter 1993, ch. 3"))
     counts_t = tuple(int(c) for c in counts)
     xs = tuple(np.linspace(0.0, ln.length, c + 1) for ln, c in zip(lines, counts_t))
     zs = tuple(node_elevations(system, ln, x) for ln, x in zip(lines, xs))

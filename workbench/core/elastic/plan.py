@@ -105,7 +105,7 @@ def valve_kappa(times: np.ndarray, line: Line) -> np.ndarray:
         x = np.interp(times, v.schedule.times, v.schedule.openings)
     else:
         x = np.full(len(times), opening_at(v, 0.0))
-    c = relative_flow_coefficient(v.characteristic, x, v.rangeability)
+    c = relative_flow_coefficient(v.characteristic, x, v.rangeability, v.low_opening)
     area = math.pi * line.diameter ** 2 / 4.0
     return np.asarray(valve_k(v.k_open, c), dtype=float) / (2.0 * G * area * area)
 

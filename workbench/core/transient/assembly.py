@@ -55,6 +55,7 @@ def finish(model: TransientModel, run: Run, outcome, wall: float) -> TransientRe
     stop_events, stop_findings = venting.stopped_drains(model, state, t, ys, gas_p)
     warnings.extend(stop_findings)
     warnings.extend(reverse_findings(model, t, flows))
+    warnings.extend(laminar_findings(model, flows))
     siphon_warnings, drain_notes = siphon.siphon_findings(model, state, levels)
     warnings.extend(siphon_warnings)
     return TransientResult(
@@ -112,8 +113,8 @@ def line_pressures(model: TransientModel, run: Run) -> dict:
         if line.valve is not None and line.valve.schedule is not None:
             valve = line.valve
             est = effective_closure_time(
-                valve, lambda x, v=valve: relative_flow_coefficient(v.characteristic, x,
-                                                                    v.rangeability),
+                valve, lambda x, v=valve: relative_flow_coefficient(
+                    v.characteristic, x, v.rangeability, v.low_opening),
                 rest_of_line_k(model, i, run))
             if est is not None and est.fastest_cut_at <= run.t_final:
                 eff = est.effective_time
@@ -166,6 +167,29 @@ def state_broken(run: Run, i: int) -> bool:
     return bool(run.state.siphon_broken.size and run.state.siphon_broken[i])
 
 
+def laminar_findings(model: TransientModel, flows: np.ndarray) -> list[Finding]:
+    """``transient.laminar`` (info) for a line whose flow changes while laminar (peak Re up
+    to 2000): the rigid column runs its flow changes too fast (Szymanski 1932)."""
+    from workbench.core.checks import LAMINAR_TRANSIENT_CAUTION
+    from workbench.core.friction import RE_LAMINAR
+
+    out = []
+    lines = model.lines
+    nu = np.broadcast_to(lines.kinematic_viscosity, (model.nl,))
+    for i, lid in enumerate(model.topo.line_ids):
+        if model.system.lines[lid].friction_factor is not None or not flows.shape[1]:
+            continue
+        q = flows[i]
+        peak = float(np.max(np.abs(q)))
+        re_peak = peak / lines.area[i] * lines.diameter[i] / nu[i]
+        if peak > 0.0 and re_peak <= RE_LAMINAR and float(np.ptp(q)) > 1e-3 * peak:
+            out.append(Finding("transient.laminar", lid,
+                               f"line {lid} runs laminar (Re up to {re_peak:.3g}): "
+                               + LAMINAR_TRANSIENT_CAUTION, "info",
+                               "Szymanski (1932), exact start-up of laminar pipe flow"))
+    return out
+
+
 def _flow_sign_at(run: Run, i: int, t: float) -> float:
     """Sign of line ``i``'s flow at time ``t`` from the recorded series (+1 without one)."""
     rec = run.rec
@@ -213,7 +237,7 @@ def overflow_findings(model: TransientModel, run: Run, spills: np.ndarray) -> li
                 "tank.overflow", ev.element,
                 f"{ev.message} at t = {ev.time:.6g} s: check the overflow capacity under the "
                 f"worst-case inflow{surplus} (defer to local codes)", "danger",
-                "common practice"))
+                "rule of thumb"))
     return out
 
 
@@ -230,7 +254,7 @@ def cycling_findings(model: TransientModel, run: Run) -> list[Finding]:
                 "level. In the plant the outlets would run part-full and draw air (vortexing) "
                 "rather than stop and restart; the model stops them at min_level and restarts "
                 f"them at the restart level {restart_level(model.tanks[k]):.4g} m", "caution",
-                "common practice"))
+                "rule of thumb"))
     return out
 
 

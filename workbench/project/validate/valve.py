@@ -29,6 +29,7 @@ def check_valve(c: Checker, t: dict, path: str, diameter: float | None,
     rangeability = c.number(v, field_spec("lines.valve", "rangeability"), vpath,
                             exclusive_minimum=True)
     position = c.choice(v, field_spec("lines.valve", "position"), vpath)
+    low_opening = c.choice(v, field_spec("lines.valve", "low_opening"), vpath)
     if "k_open" in v and "kv_open" in v:
         c.add(f"{vpath}.kv_open", "give k_open or kv_open, not both")
     elif "k_open" not in v and "kv_open" not in v:
@@ -67,7 +68,7 @@ def check_valve(c: Checker, t: dict, path: str, diameter: float | None,
             return False, None
     return True, m.Valve(characteristic=characteristic, k_open=float(k_open),
                          opening=float(opening), rangeability=float(rangeability),
-                         schedule=schedule, position=position)
+                         schedule=schedule, position=position, low_opening=low_opening)
 
 
 def check_surge(c: Checker, t: dict, path: str) -> tuple[bool, m.SurgeSettings]:
