@@ -60,6 +60,8 @@ class WorkbenchApp(App[int]):
         Binding("f7", "toggle_units", "SI/US", key_display="F7", id="app.units"),
         Binding("f8", "cautions", "Cautions", key_display="F8", id="app.cautions"),
         Binding("f9", "sweep", "Sweep", key_display="F9", id="run.sweep", show=False),
+        Binding("f11", "calibrate", "Calibrate", key_display="F11", id="run.calibrate",
+                show=False),
         Binding("ctrl+s", "save", "Save", id="file.save"),
         Binding("ctrl+z", "undo", "Undo", id="edit.undo"),
         Binding("ctrl+y", "redo", "Redo", id="edit.redo"),
@@ -494,6 +496,12 @@ class WorkbenchApp(App[int]):
 
         if self.project is not None:
             self.push_screen(SweepScreen())
+
+    def action_calibrate(self) -> None:
+        from workbench.app.screens.calibrate import CalibrateScreen
+
+        if self.project is not None:
+            self.push_screen(CalibrateScreen())
 
     def action_toggle_units(self) -> None:
         self.unit_system = "US" if self.unit_system == "SI" else "SI"

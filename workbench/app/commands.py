@@ -32,6 +32,7 @@ PALETTE: tuple[tuple[str, str, str], ...] = (
     ("run: simulate", "run the time simulation in the background", "simulate"),
     ("run: stop", "stop the running simulation", "stop_run"),
     ("run: sweep…", "what-if sweep: vary inputs, see the table and a plot of the results", "sweep"),
+    ("run: calibrate…", "fit roughness, bore or losses to the site tests ([measurements])", "calibrate"),
     ("units: switch SI/US", "display units only; the file keeps its values", "toggle_units"),
 )
 

@@ -26,12 +26,12 @@ if TYPE_CHECKING:  # pragma: no cover
     from workbench.project.calibration import CalibrationRun
     from workbench.project.measurements import Measurement
 
-__all__ = ["UNIT_SI", "calibration_plot", "calibration_tables", "calibration_to_json",
+__all__ = ["DISPLAY_KIND", "UNIT_SI", "calibration_plot", "calibration_tables", "calibration_to_json",
            "caution_text", "crossing_time", "mark_level", "tested_range_text"]
 
 #: Measured quantity -> SI unit of its readings and residuals, and its display kind.
 UNIT_SI = {"level": "m", "flow": "m^3/s", "pressure": "Pa"}
-_KIND = {"level": "elevation", "flow": "flow", "pressure": "pressure"}
+DISPLAY_KIND = {"level": "elevation", "flow": "flow", "pressure": "pressure"}
 
 
 def crossing_time(times: np.ndarray, series: np.ndarray, level: float) -> float | None:
@@ -53,7 +53,7 @@ def tested_range_text(m: "Measurement", unit_system: str = "SI") -> str:
     """The conditions a measurement covers, in words and display units."""
     from workbench.project.units import format_quantity
 
-    kind = _KIND[m.quantity]
+    kind = DISPLAY_KIND[m.quantity]
     low, high = float(np.min(m.values)), float(np.max(m.values))
     span = (format_quantity(low, kind, unit_system, 3) if math.isclose(low, high)
             else f"{format_quantity(low, kind, unit_system, 3)} to "
@@ -205,7 +205,7 @@ def calibration_tables(run: "CalibrationRun") -> list:
     for col in ("measurement", "readings", "RMS before", "RMS after", "largest after"):
         mt.add_column(col, justify="left" if col == "measurement" else "right", no_wrap=True)
     for m in run.measurements:
-        kind = _KIND[m.quantity]
+        kind = DISPLAY_KIND[m.quantity]
 
         def q(v):
             return "—" if v is None or not math.isfinite(v) else format_quantity(v, kind, units, 3)
@@ -251,7 +251,7 @@ def calibration_plot(run: "CalibrationRun", colour: bool = True, width: int = 80
     for m in run.measurements:
         if m.times is None:
             continue
-        kind = _KIND[m.quantity]
+        kind = DISPLAY_KIND[m.quantity]
         scale, t_unit = (3600.0, "h") if m.times[-1] >= 7200 else \
             (60.0, "min") if m.times[-1] >= 120 else (1.0, "s")
         t = (m.times / scale).tolist()

@@ -149,6 +149,9 @@ class RunPane(Vertical):
             xs, y = decimate(x, to_display(np.asarray(values, dtype=float), kind, units))
             plt.plot(xs, y, label=f"{label} [{display_unit(kind, units)}]",
                      marker=markers[n % len(markers)], yside=side)
+        from workbench.app.measurement_overlay import draw_readings  # site tests, as points
+
+        draw_readings(plt, self.app.project, self._chosen or set(), 3600.0 if hours else 1.0, units)
         plt.xlabel("time [h]" if hours else "time [s]")
         plt.ylabel(f"level [{display_unit('length', units)}]", yside="left")
         right = sorted({kind for key, _l, kind, _v in self._series

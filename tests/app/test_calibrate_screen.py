@@ -1,0 +1,86 @@
+"""The calibration view at 80x24 in the real workbench: fit in the background, apply as one
+undoable edit.
+
+The view must show what the project layer's fit gives for the same request
+(:func:`workbench.project.calibration.calibrate`, run directly in the test; that fit is
+itself checked against closed forms in tests/core/test_calibration.py), and its edit must be
+the same as ``calibrate --write``'s (:func:`apply_fit`).
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+from tests.app.conftest import SIZE, make, settle
+from tests.cli.test_calibrate import SMALL
+
+FIT = "lines.L1.roughness=0.001..2 mm"
+
+
+def _project(tmp_path: Path) -> Path:
+    path = tmp_path / "rinse.toml"
+    path.write_text(SMALL, encoding="utf-8")
+    return path
+
+
+async def _type(pilot, selector: str, text: str) -> None:
+    widget = pilot.app.screen.query_one(selector)
+    widget.value = ""
+    widget.focus()
+    await pilot.press(*["space" if c == " " else c for c in text])
+
+
+async def _wait_for_fit(pilot) -> None:
+    screen = pilot.app.screen
+    for _ in range(1200):
+        await pilot.pause(0.05)
+        await screen.workers.wait_for_complete()
+        if not screen.running:
+            await pilot.pause()
+            return
+    raise AssertionError("the fit never finished")
+
+
+async def test_the_view_fits_in_the_background_and_applies_one_undoable_edit(tmp_path):
+    from workbench.app.screens.calibrate import CalibrateScreen
+    from workbench.project.calibration import calibrate
+    from workbench.project.document import load_project
+
+    path = _project(tmp_path)
+    expected = calibrate(load_project(path), [FIT]).result.values[0]
+    app = make(path)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("f11")
+        await pilot.pause()
+        assert isinstance(app.screen, CalibrateScreen)
+        await _type(pilot, "#calib-fit", FIT)
+        await pilot.press("ctrl+r")
+        await _wait_for_fit(pilot)
+        screen = app.screen
+        assert screen.run.result.success
+        assert abs(screen.run.result.values[0] - expected) <= 1e-9 * expected
+        assert "lines.L1.roughness: 0.045 mm ->" in str(screen.query_one("#calib-result").render())
+        await pilot.press("ctrl+t")
+        await pilot.pause()
+        assert not isinstance(app.screen, CalibrateScreen)
+        assert abs(app.project.system.lines["L1"].roughness - expected) < 0.005 * expected
+        assert "calibrated to drop on" in app.project.text
+        await pilot.press("ctrl+z")
+        await pilot.pause()
+        assert app.project.text == SMALL
+
+
+async def test_a_key_path_that_is_not_a_number_is_refused_in_words(tmp_path):
+    path = _project(tmp_path)
+    app = make(path)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("f11")
+        await pilot.pause()
+        await _type(pilot, "#calib-fit", "lines.L1.material")
+        await pilot.press("ctrl+r")
+        await _wait_for_fit(pilot)
+        status = str(app.screen.query_one("#calib-status").render())
+        assert "material is not a number" in status
+        assert app.screen.run is None
