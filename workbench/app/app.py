@@ -179,8 +179,12 @@ class WorkbenchApp(App[int]):
 
     def notify(self, message: str, *, title: str = "", severity="information",
                timeout: float | None = None, markup: bool = False) -> None:
-        """Notifications carry file text (key paths, lists in brackets): no markup."""
-        super().notify(message, title=title, severity=severity, timeout=timeout, markup=markup)
+        """Notifications carry file text (key paths, lists in brackets): no markup, and
+        control characters shown escaped."""
+        from workbench.printable import printable
+
+        super().notify(printable(message, keep_lines=True), title=title, severity=severity,
+                       timeout=timeout, markup=markup)
 
     # --- start-up ----------------------------------------------------------------------
     def get_default_screen(self):

@@ -12,6 +12,7 @@ import tomllib
 from dataclasses import dataclass
 from typing import Any
 
+from workbench.printable import printable
 from workbench.project.schema import ELEMENT_SECTIONS, SECTIONS, FieldSpec
 
 #: Singular words for the element sections, as the list and the questions say them.
@@ -129,7 +130,7 @@ def value_text(value: Any) -> str:
     if isinstance(value, bool):
         return "true" if value else "false"
     if isinstance(value, str):
-        return value
+        return printable(value)  # control characters from the file shown, never sent
     if isinstance(value, (list, tuple)):
         return "[" + ", ".join(_inline(v) for v in value) + "]"
     return str(value)
@@ -141,7 +142,7 @@ def _inline(value: Any) -> str:
     if isinstance(value, bool):
         return "true" if value else "false"
     if isinstance(value, str):
-        return json.dumps(value, ensure_ascii=False)
+        return printable(json.dumps(value, ensure_ascii=False))
     if isinstance(value, (list, tuple)):
         return "[" + ", ".join(_inline(v) for v in value) + "]"
     return repr(value)

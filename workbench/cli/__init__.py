@@ -75,7 +75,10 @@ def main(argv: Sequence[str] | None = None) -> int:
     except Exception as exc:  # last resort: a bug must not greet the user with a traceback
         if os.environ.get("WORKBENCH_DEBUG"):
             raise
-        print(f"workbench {args.command}: internal error: {type(exc).__name__}: {exc}. "
+        from workbench.printable import printable
+
+        print(f"workbench {args.command}: internal error: {type(exc).__name__}: "
+              f"{printable(exc)}. "
               "This is a bug: please report it with the project file (WORKBENCH_DEBUG=1 "
               "shows the traceback).", file=sys.stderr)
         return int(ExitCode.INTERNAL)

@@ -29,6 +29,8 @@ from collections.abc import Iterable, Mapping, Sequence
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
+from workbench.printable import printable
+
 if TYPE_CHECKING:  # pragma: no cover
     from workbench.core.network import SteadyResult
     from workbench.core.transient import TransientResult
@@ -53,7 +55,8 @@ _SECTION_TITLES = {
 def _cell(value: Any) -> str:
     """Text safe inside a pipe-table cell."""
     text = "" if value is None else str(value)
-    return text.replace("\\", "\\\\").replace("|", "\\|").replace("\n", " ").strip() or " "
+    text = text.replace("\\", "\\\\").replace("|", "\\|").replace("\n", " ").strip()
+    return printable(text) or " "
 
 
 def _table(header: Sequence[str], rows: Iterable[Sequence[Any]], align: str | None = None) -> list[str]:
@@ -126,7 +129,7 @@ def _identification(project: Project, date: _dt.datetime) -> list[str]:
     out = [f"# Calculation record: {title}", ""]
     description = (project.data.get("project") or {}).get("description")
     if description:
-        out += [str(description), ""]
+        out += [printable(description, keep_lines=True), ""]
     out += _table(
         ["Item", "Value"],
         [

@@ -24,6 +24,12 @@ class Problem:
     column: int | None = None
 
     def __str__(self) -> str:
+        """One line, with any control character from the file shown escaped."""
+        from workbench.printable import printable
+
+        return printable(self._text())
+
+    def _text(self) -> str:
         where = self.file or "<text>"
         if not self.key and self.line is not None:
             column = f":{self.column}" if self.column is not None else ""

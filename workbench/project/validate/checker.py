@@ -13,6 +13,7 @@ import re
 from typing import Any
 
 from workbench.core import model as m
+from workbench.printable import printable
 from workbench.project.problems import Problem
 from workbench.project.schema import LIST_ITEMS, SECTIONS, FieldSpec
 from workbench.project.units import QUANTITY_KINDS, UnitError, parse_quantity
@@ -160,7 +161,7 @@ class Checker:
         if not isinstance(value, str):
             self.add(key, f"expected text in quotes, got {describe(value)}")
             return None
-        return value
+        return printable(value)  # the model carries text safe to print; the file keeps its own
 
     def choice(self, table: dict, spec: FieldSpec, path: str, choices=None) -> str | None:
         choices = tuple(choices if choices is not None else spec.choices)
