@@ -134,3 +134,44 @@ def test_a_steady_start_begins_at_the_steady_vacuum():
     assert -res.gas_pressures[0, 0] == pytest.approx(rho_air * (q0 / area) ** 2 / 2.0, rel=5e-3)
     # and the flow starts steady: it changes only as the level falls
     assert abs(res.flows[0, 1] - q0) < 1e-3 * q0
+
+
+def test_an_adiabatic_sealed_gas_space_follows_the_isentrope():
+    """Sealed, gas_process = "adiabatic": p V_g^gamma = const with gamma = 1.4 for air
+    (isentropic ideal gas, any thermodynamics text), so p = p_atm (V_g0/V_g)^1.4 at every
+    output time."""
+    res = simulate(_drain(Vent(0.0), d_line=0.02, length=1.0, duration=3000.0, stop=None,
+                          gas_process="adiabatic"))
+    assert res.success, res.message
+    area = math.pi * 1.0**2
+    v_gas = area * 4.0 - res.volumes[0]
+    expected = P_ATM * (area * 1.0 / v_gas) ** 1.4 - P_ATM
+    assert np.allclose(res.gas_pressures[0], expected, rtol=1e-9, atol=1e-6)
+    assert res.gas_pressures[0, -1] < -1000.0
+
+
+def test_a_fill_through_a_small_vent_pressurises_the_gas_space():
+    """A feed of 20 L/s into a tank with a 20 mm vent (K 1.5) whose outlet line rises to a
+    discharge above the tank (so nothing leaves): once the gas space follows the feed
+    (time constant about 35 s; 300 s run) the vent passes rho_gas Q, so
+    dp = rho_gas (Q/(eps C_d A))^2/2 (ISO 5167-1 orifice equation with the ISO 5167-2
+    expansibility at beta = 0, eps = 1 - 0.351 (1 - (p_atm/p)^(1/1.4)), written out here)
+    within 1 %; above design_pressure it is a danger; the required outbreathing is the
+    feed (API 2000 / ISO 28300)."""
+    area = bore_effective_area(0.02, 1.5)
+    tank = Reservoir("T", "tank", 0.0, 1.0, shape=TankShape("vertical_cylinder", diameter=2.0),
+                     height=4.0, vent=Vent(area, 0.02, 1.5), inflow=0.02,
+                     design_pressure=200.0)
+    system = System("f", WATER, {"T": tank}, {}, {"OUT": Receiver("OUT", "open_discharge", 20.0)},
+                    {"L1": Line("L1", "T", "OUT", 5.0, 0.05, friction_factor=0.02)},
+                    simulation=SimulationSettings(300.0, "at_rest", None, None))
+    res = simulate(system)
+    assert res.success, res.message
+    p = P_ATM + res.gas_pressures[0, -1]
+    rho_gas = p / (R_AIR * WATER.temperature)
+    eps = 1.0 - 0.351 * (1.0 - (P_ATM / p) ** (1.0 / 1.4))
+    expected = rho_gas * (0.02 / (eps * area)) ** 2 / 2.0
+    assert res.gas_pressures[0, -1] == pytest.approx(expected, rel=0.01)
+    assert res.required_outbreathing["T"] == pytest.approx(0.02, rel=1e-9)
+    codes = {w.code: w.severity for w in res.warnings}
+    assert codes.get("tank.overpressure") == "danger"
