@@ -175,3 +175,13 @@ def test_a_fill_through_a_small_vent_pressurises_the_gas_space():
     assert res.required_outbreathing["T"] == pytest.approx(0.02, rel=1e-9)
     codes = {w.code: w.severity for w in res.warnings}
     assert codes.get("tank.overpressure") == "danger"
+
+
+def test_a_sealed_gas_space_never_falls_below_the_vapour_pressure():
+    """A sealed tank with a thin gas space drained 20 m down: Boyle alone would take the
+    gas space to a few pascals absolute; the liquid boils at its vapour pressure (2339.2 Pa
+    at 20 degC, IAPWS-95) and holds it there, with a danger finding."""
+    res = simulate(_drain(Vent(0.0), level=3.999, out_z=-20.0, duration=2000.0))
+    assert res.success, res.message
+    assert res.gas_pressures.min() == pytest.approx(WATER.vapor_pressure - P_ATM, abs=1e-6)
+    assert any(w.code == "tank.vapor" and w.severity == "danger" for w in res.warnings)

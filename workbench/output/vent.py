@@ -111,6 +111,8 @@ def steady_gas_pressures(system: "System", result) -> dict[str, float | None]:
             outflow += flow if line.from_node == tid else -flow if line.to_node == tid else 0.0
         n = GAMMA_AIR if res.gas_process == "adiabatic" else 1.0
         p = quasi_steady_pressure(res.vent.effective_area, outflow, p_atm, rho_atm, n)
+        # never below the liquid's vapour pressure: the liquid boils into the gas space
+        p = max(p, system.fluid.vapor_pressure or 0.0) if np.isfinite(p) else p
         out[tid] = None if not np.isfinite(p) else p - p_atm
     return out
 
@@ -132,6 +134,13 @@ def steady_gas_texts(system: "System", result, unit_system: str) -> list:
             continue
         text = (f"Tank {tid} ({vent}): gas space at "
                 f"{quantity_text(p, 'pressure', unit_system, 3)} gauge at the steady outflow")
+        p_v = system.fluid.vapor_pressure
+        if p_v is not None and p <= p_v - system.atmospheric_pressure + 1e-6:
+            out.append(Text(
+                f"Tank {tid} ({vent}): its vent cannot pass the air for this steady outflow "
+                "short of the liquid's vapour pressure: the liquid boils into the gas space "
+                "and the tank would collapse long before (run a simulation).", style="bold red"))
+            continue
         design = res.design_vacuum if p < 0.0 else res.design_pressure
         if design is not None:
             beyond = abs(p) > design

@@ -20,6 +20,11 @@ so a sealed tank keeps ``X - rho_atm V`` (its gas mass, up to a constant) to rou
 is a linear invariant of the equations, which Runge-Kutta and multistep methods keep. The
 gauge pressure ``p - p_atm`` is added to the tank's surface head, ``p_gauge/(rho_l g)``,
 in every line's driving head.
+
+The gas space's pressure never falls below the liquid's vapour pressure: there the liquid
+boils into the space and holds it at that pressure (``p = max(p_air, p_vapour)``; the air's
+own partial pressure is not tracked separately, a simplification that matters only when the
+tank would long since have collapsed).
 """
 
 from __future__ import annotations
@@ -65,6 +70,8 @@ class GasSpaces:
                                   for r in sel])
         self.p0 = np.array([r.gas_pressure for r in sel])
         """Initial gauge pressures [Pa]."""
+        self.p_floor = float(system.fluid.vapor_pressure or 0.0)
+        """Lowest absolute pressure of a gas space: the liquid's vapour pressure [Pa]."""
 
     def v_gas(self, v_tanks: np.ndarray) -> np.ndarray:
         """Gas volumes from the tanks' liquid volumes [m^3]."""
@@ -75,7 +82,7 @@ class GasSpaces:
         """Absolute pressure [Pa], density [kg/m^3] and volume [m^3] of each gas space."""
         vg = self.v_gas(v_tanks)
         rho = np.maximum((x + self.rho_atm * vg) / vg, 1e-12 * self.rho_atm)
-        p = self.p_atm * (rho / self.rho_atm) ** self.exponent
+        p = np.maximum(self.p_atm * (rho / self.rho_atm) ** self.exponent, self.p_floor)
         return p, rho, vg
 
     def gauge(self, v_tanks: np.ndarray, x: np.ndarray) -> np.ndarray:
@@ -99,7 +106,7 @@ class GasSpaces:
         space: ``p = p_atm (rho/rho_atm)^n`` with ``rho = X/V_g + rho_atm``."""
         p, rho, vg = self.state(v_tanks, x)
         n = self.exponent
-        dp_drho = n * p / rho
+        dp_drho = np.where(p > self.p_floor, n * p / rho, 0.0)  # held at vapour pressure
         dp_dv = dp_drho * (x / vg) / vg  # d rho/dV = X/V_g^2 at fixed X
         dp_dx = dp_drho / vg
         h = np.maximum(1e-7 * np.abs(p - self.p_atm), 1e-6)
@@ -149,7 +156,7 @@ def steady_gas_pressures(model, solve, p0: np.ndarray, max_iterations: int = 100
                 if not np.isfinite(pa):
                     raise ValueError(f"tank {gas.ids[i]}: its vent cannot pass the air for "
                                      f"its steady outflow of {out[k] * 1000:.4g} L/s")
-                p_new[i] = pa - gas.p_atm
+                p_new[i] = max(pa, gas.p_floor) - gas.p_atm
         if np.all(np.abs(p_new - p) <= 1e-7 * (1.0 + np.abs(p_new))):
             return res, p
         weight = 1.0 if sweep < 10 else 0.5

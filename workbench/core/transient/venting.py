@@ -71,6 +71,14 @@ def vent_findings(model: TransientModel, t, p_gauge, inb, outb) -> list[Finding]
         j_min, j_max = int(np.argmin(p_gauge[g])), int(np.argmax(p_gauge[g]))
         vac, t_vac = -float(p_gauge[g, j_min]), float(t[j_min])
         out.extend(_vacuum(tid, res.design_vacuum, vac, t_vac))
+        if gas.p_floor > 0.0 and gas.p_atm - vac <= gas.p_floor * (1.0 + 1e-9):
+            out.append(finding(
+                "tank.vapor", tid,
+                f"the gas space of tank {tid} falls to the liquid's vapour pressure, {{pv}}, "
+                f"at t = {t_vac:.4g} s: the liquid boils into it and the pressure is held "
+                "there. No atmospheric tank withstands this vacuum: it would have collapsed "
+                "long before", "danger", "ideal gas and the liquid's vapour pressure",
+                pv=(gas.p_floor, "pressure_abs")))
         if res.design_pressure is not None and p_gauge[g, j_max] > res.design_pressure:
             out.append(finding(
                 "tank.overpressure", tid,
