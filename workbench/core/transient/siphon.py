@@ -56,7 +56,7 @@ def lines_of(model) -> SiphonLines:
 def station_margins(eq, t: float, y: np.ndarray):
     """Absolute pressure less the vapour pressure at every station [Pa] (``inf`` where a
     line cannot break), with a full-bore grade line."""
-    from workbench.core.transient.equations import line_end_heads
+    from workbench.core.transient.line_ends import line_end_heads
 
     model = eq.model
     sl = lines_of(model)
