@@ -201,3 +201,83 @@ def test_the_demo_reads_its_csv_from_beside_the_project(tmp_path, capsys):
     assert "fellgate_wash_tank_drain_test_levels.csv: no such file" in capsys.readouterr().err
     shutil.copy(DEMO_CSV, tmp_path / DEMO_CSV.name)
     assert main(["check", str(tmp_path / DEMO.name)]) == 0
+
+
+# --- steady readings at two valve openings ---------------------------------------------------
+
+K_OPEN_TRUE = 3.0
+
+
+def meter_flow(opening: float) -> float:
+    r"""Steady flow from a constant level through a valved line to a free outlet, derived here.
+
+    Energy from the free surface (14 m above the outlet) to the outlet:
+    :math:`H = (1 + K_{ent} + fL/D + K_{open}/x^2)\,v^2/2g` with the exit's one velocity
+    head, a sharp entrance 0.5 (common practice), a fixed f = 0.02 and a linear valve whose
+    loss is :math:`K_{open}/x^2` (IEC 60534-2-4 linear characteristic, flow coefficient
+    proportional to travel).
+    """
+    import math
+
+    g, head, area = 9.80665, 14.0, math.pi * 0.1**2 / 4
+    k = 1.0 + 0.5 + 0.02 * 50.0 / 0.1 + K_OPEN_TRUE / opening**2
+    return area * math.sqrt(2 * g * head / k)
+
+
+VALVED = f"""\
+schema = 1
+
+[project]
+title = "Meter readings at two openings"
+
+[fluid]
+kind = "water"
+temperature = "20 degC"
+
+[reservoirs.R]
+kind = "constant_level"
+bottom_elevation = "10 m"
+level = "4 m"
+
+[receivers.OUT]
+kind = "open_discharge"
+elevation = "0 m"
+
+[lines.L]
+from = "R"
+to = "OUT"
+length = "50 m"
+inner_diameter = "100 mm"
+roughness = "0.045 mm"  # not used: the friction factor is fixed
+friction_factor = 0.02
+entrance = "sharp"
+
+[lines.L.valve]
+characteristic = "linear"
+k_open = 1.0  # from the catalogue
+
+[measurements.full_open]
+element = "L"
+quantity = "flow"
+points = [ {{ value = "{meter_flow(1.0) * 1000:.4f} L/s" }} ]
+valve_opening = 1.0
+
+[measurements.half_open]
+element = "L"
+quantity = "flow"
+points = [ {{ value = "{meter_flow(0.5) * 1000:.4f} L/s" }} ]
+valve_opening = 0.5
+"""
+
+
+def test_two_steady_meter_readings_give_back_the_valve_loss(tmp_path, capsys):
+    path = tmp_path / "valved.toml"
+    path.write_text(VALVED, encoding="utf-8")
+    code = main(["calibrate", str(path), "--fit", "lines.L.valve.k_open=0.1..20", "--json"])
+    assert code == 0
+    out = json.loads(capsys.readouterr().out)
+    fitted = out["parameters"]["lines.L.valve.k_open"]
+    assert fitted["value_si"] == pytest.approx(K_OPEN_TRUE, rel=2e-3)
+    assert set(out["measurements"]) == {"full_open", "half_open"}
+    assert out["measurements"]["half_open"]["unit_si"] == "m^3/s"
+    assert out["residual_rms_after"] < out["residual_rms_before"] / 100
