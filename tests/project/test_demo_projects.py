@@ -85,3 +85,20 @@ def test_the_starter_project_is_valid_and_canonical():
     project = load_project_text(starter_text(), "starter.toml")
     assert project.system.lines
     assert format_text(starter_text()) == starter_text()
+
+
+def test_the_drain_test_demo_reads_its_level_log_from_beside_it():
+    # The site-test demo: a level log exported from a historian (ISO timestamps, one reading
+    # lost to a communications gap), beside the project; its line states no roughness of
+    # its own, so the model starts from the material's handbook value (Moody 1944, 0.045 mm
+    # for commercial steel, from memory, as HYDRAULICS.md lists it).
+    from workbench.project.measurements import measurements_of
+
+    path = Path(__file__).resolve().parents[2] / "projects" / "fellgate_wash_tank_drain_test.toml"
+    project = load_project(path)
+    test = measurements_of(project)["drain_test_nov"]
+    assert (test.element, test.quantity, len(test.values), test.skipped_rows) == (
+        "TK-420", "level", 38, (19,))
+    assert test.times[0] == 0.0 and test.times[-1] == 38 * 60.0
+    assert "roughness" not in project.data["lines"]["420-DR-07"]
+    assert project.system.lines["420-DR-07"].roughness == pytest.approx(0.045e-3)
