@@ -138,7 +138,8 @@ SYNTHETIC = {
     "core/a.py": "from typing import TYPE_CHECKING\n"
                  "if TYPE_CHECKING:\n    from pkg.project import doc\n"
                  "def f():\n    from pkg.core import b\n",
-    "core/b.py": "from . import a\n",
+    "core/b.py": "from . import a\nfrom pkg.words import W\n",
+    "words.py": "W = 1\n",
     "project/__init__.py": "",
     "project/doc.py": "import pkg.core.a\n",
     "output/__init__.py": "",
@@ -153,7 +154,8 @@ SYNTHETIC = {
 def test_the_graph_tool_finds_a_circle_through_a_lazy_import_and_an_upward_edge(tmp_path) -> None:
     """A made-up package: core.a imports core.b inside a function and core.b imports core.a
     (a circle); output imports the CLI (upward); the app imports the CLI (refused sideways);
-    a TYPE_CHECKING import from core to project is no edge."""
+    a TYPE_CHECKING import from core to project is no edge; a single module directly under the
+    package is a shared leaf any layer may import."""
     tool = _graph_tool()
     root = tmp_path / "pkg"
     for rel, text in SYNTHETIC.items():
@@ -161,7 +163,8 @@ def test_the_graph_tool_finds_a_circle_through_a_lazy_import_and_an_upward_edge(
         (root / rel).write_text(text)
     graph = tool.import_graph(root)
     assert graph["pkg.core.a"] == {"pkg.core.b"}
-    assert graph["pkg.core.b"] == {"pkg.core.a"}
+    assert graph["pkg.core.b"] == {"pkg.core.a", "pkg.words"}
+    assert tool.layer("pkg.words", graph) == 0  # a single module under the package: shared
     assert tool.cycles(graph) == [["pkg.core.a", "pkg.core.b"]]
     wrong = {(s, t) for s, t, _ in tool.bad_edges(graph)}
     assert wrong == {("pkg.output.table", "pkg.cli.main"), ("pkg.app.pane", "pkg.cli.main")}

@@ -18,7 +18,9 @@ reader sees. What counts as an edge:
 The layers, lowest first (an edge may point to its own layer or lower, never up):
 
 ====  ==========================================  ============================================
-  0   ``workbench``, ``workbench.cautions``       shared words and the version; import nothing
+  0   ``workbench``, ``workbench.cautions``,      shared leaves (words, the version, the text
+      ``workbench.printable``, any other           sanitiser); import only each other
+      single module directly under ``workbench``
   1   ``workbench.core``                          the numeric core
   2   ``workbench.project``                       the project document
   3   ``workbench.output``                        results as JSON, tables, the record
@@ -40,6 +42,7 @@ PACKAGE = Path(__file__).resolve().parents[1] / "workbench"
 #: Layer of each top-level part of the package (``workbench.X``); ``workbench`` itself is 0.
 LAYERS = {
     "cautions": 0,
+    "printable": 0,
     "core": 1,
     "project": 2,
     "output": 3,
@@ -180,10 +183,19 @@ def part(module: str) -> str:
     return pieces[1] if len(pieces) > 1 else ""
 
 
-def layer(module: str) -> int | None:
-    """The layer of a module, or ``None`` for a part no layer names."""
+def layer(module: str, graph: dict[str, set[str]] | None = None) -> int | None:
+    """The layer of a module, or ``None`` for a part no layer names. A single module
+    directly under the package that :data:`LAYERS` does not name (no module of ``graph``
+    lies under it) is a shared leaf, layer 0."""
     name = part(module)
-    return 0 if name == "" else LAYERS.get(name)
+    if name == "":
+        return 0
+    if name in LAYERS:
+        return LAYERS[name]
+    prefix = f"{module.split('.')[0]}.{name}."
+    if graph is not None and module.count(".") == 1 and not any(m.startswith(prefix) for m in graph):
+        return 0
+    return None
 
 
 def bad_edges(graph: dict[str, set[str]]) -> list[tuple[str, str, str]]:
@@ -192,7 +204,7 @@ def bad_edges(graph: dict[str, set[str]]) -> list[tuple[str, str, str]]:
     out = []
     for source in sorted(graph):
         for target in sorted(graph[source]):
-            ls, lt = layer(source), layer(target)
+            ls, lt = layer(source, graph), layer(target, graph)
             if ls is None or lt is None:
                 out.append((source, target, "a module in no layer (add it to LAYERS)"))
             elif lt > ls:
