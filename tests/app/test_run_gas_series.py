@@ -28,3 +28,13 @@ def test_a_vented_tank_gives_a_gas_pressure_series_and_an_open_tank_none():
     open_tank = replace(system.reservoirs["TK-118"], vent=None)
     opened = replace(system, reservoirs={"TK-118": open_tank})
     assert not any(k.startswith("gas:") for k, *_ in trend_series(simulate(opened, duration=60.0)))
+
+
+def test_the_sweep_screen_offers_a_vented_tanks_vent_keys():
+    from workbench.app.screens.sweep import keypath_suggestions
+    from workbench.project.document import load_project
+
+    found = keypath_suggestions(load_project(DEMO))
+    assert "reservoirs.TK-118.vent.nominal_size=" in found
+    assert "reservoirs.TK-118.vent.k=" in found
+    assert "reservoirs.TK-118.design_vacuum=" in found

@@ -40,6 +40,9 @@ def keypath_suggestions(project: Any) -> list[str]:
                 if "valve" in data[section][element_id]:
                     out += [f"lines.{element_id}.valve.{f.name}=" for f in SECTIONS["lines.valve"]
                             if f.kind not in ("list", "table")]
+            if section == "reservoirs" and isinstance(data[section][element_id].get("vent"), dict):
+                out += [f"reservoirs.{element_id}.vent.{f.name}=" for f in SECTIONS["reservoirs.vent"]
+                        if f.kind != "text" or f.name == "nominal_size"]
     return list(dict.fromkeys(out))
 
 
