@@ -52,7 +52,7 @@ def bench_system(reaches: int = REACHES) -> System:
     return System(
         "bench", fluid,
         {"HEAD": Reservoir("HEAD", "constant_level", 0.0, 120.0),
-         "TAIL": Reservoir("TAIL", "constant_level", 0.0, 80.0)},
+         "TAIL": Reservoir("TAIL", "constant_level", 0.0, 130.0)},
         {}, {}, {"L1": line},
     )
 
@@ -238,7 +238,10 @@ def load_costs() -> None:
 
 
 def main() -> None:
-    print("== the benchmark case: 2 km, 200 reaches, 120 s ==")
+    print("== three-line branched system: 200 reaches a line, 120 s ==")
+    compare_branched()
+    print()
+    print("== the single-line case: 2 km, 200 reaches, 120 s ==")
     ratio = compare(REACHES, DURATION)
     print(f"target: at least 50x the plain loop; compiled kernel {ratio:.1f}x: "
           f"{'met' if ratio >= 50 else 'NOT met'}")
@@ -251,6 +254,141 @@ def main() -> None:
         load_costs()
     else:
         print("numba is not installed: only the numpy kernel was measured")
+
+
+
+
+# ---------------------------------------------------------------- a three-line branched system
+
+
+def branched_system(reaches: int = REACHES) -> System:
+    """HEAD (150 m) -> L1, 1.5 km DN300 -> J1 -> L2, 1.4 km DN250 -> valve closing over 20 s
+    -> TAIL (130 m); J1 -> L3, 1.2 km DN200 -> TANK (125 m). Steel walls, Korteweg speeds."""
+    from workbench.core.model import Junction
+
+    fluid = FluidProps("water", 998.207, 1.0016e-3, 2339.2, 2.19e9, 293.15)
+    wall = dict(roughness=4.5e-5, wall_thickness=0.0095, elastic_modulus=207e9)
+    valve = Valve("linear", k_open=3.0, opening=1.0,
+                  schedule=ValveSchedule((1.0, 21.0), (1.0, 0.0)))
+    lines = {
+        "L1": Line("L1", "HEAD", "J1", 1500.0, 0.3, surge=SurgeSettings("elastic", reaches),
+                   **wall),
+        "L2": Line("L2", "J1", "TAIL", 1400.0, 0.25, valve=valve,
+                   surge=SurgeSettings("elastic", reaches), **wall),
+        "L3": Line("L3", "J1", "TANK", 1200.0, 0.2, surge=SurgeSettings("elastic", reaches),
+                   **wall),
+    }
+    return System("bench tee", fluid,
+                  {"HEAD": Reservoir("HEAD", "constant_level", 0.0, 150.0),
+                   "TAIL": Reservoir("TAIL", "constant_level", 0.0, 130.0),
+                   "TANK": Reservoir("TANK", "constant_level", 0.0, 125.0)},
+                  {"J1": Junction("J1", 0.0)}, {}, lines)
+
+
+def plain_loop_branched(system: System, result) -> dict:
+    """The branched run as a plain Python loop over reaches (lists of floats): interior
+    nodes by C+ and C-, the reservoir entrance, the junction ``H = sum(C/B)/sum(1/B)``, the
+    valve to TAIL and the exit into TANK (Wylie & Streeter 1993, ch. 3). Grid, friction,
+    initial state and valve law from the core result's set-up; no cavity forms."""
+    from workbench.core.valve import opening_at, relative_flow_coefficient, valve_k
+
+    ids = ("L1", "L2", "L3")
+    dt = result.dt
+    n = {lid: result.reaches[lid] for lid in ids}
+    area = {lid: math.pi * system.lines[lid].diameter ** 2 / 4.0 for lid in ids}
+    b = {lid: result.wave_speeds[lid].used / (G * area[lid]) for lid in ids}
+    q0 = result.initial_flows
+    h = {lid: [float(v) for v in result.envelopes[lid].initial_head] for lid in ids}
+    q = {lid: [q0[lid]] * (n[lid] + 1) for lid in ids}
+    r = {lid: (h[lid][0] - h[lid][-1]) / (n[lid] * q0[lid] * abs(q0[lid])) for lid in ids}
+    k_in = {lid: (1.0 + system.lines[lid].entrance_k) / (2.0 * G * area[lid] ** 2)
+            for lid in ids}
+    v = system.lines["L2"].valve
+    steps = len(result.time) - 1
+    x = np.array([opening_at(v, float(t)) for t in dt * np.arange(steps + 1)])
+    kappa = (np.asarray(valve_k(v.k_open, relative_flow_coefficient(v.characteristic, x)))
+             / (2.0 * G * area["L2"] ** 2)).tolist()
+    h_max = {lid: h[lid][:] for lid in ids}
+    hn = {lid: h[lid][:] for lid in ids}
+    qn = {lid: q[lid][:] for lid in ids}
+    sqrt = math.sqrt
+
+    def end_flow(bb, kk, delta):
+        return 0.0 if kk == math.inf else 2.0 * delta / (bb + sqrt(bb * bb + 4.0 * kk * abs(delta)))
+
+    for k in range(1, steps + 1):
+        cp, cm = {}, {}
+        for lid in ids:
+            hh, qq, bb, rr, N = h[lid], q[lid], b[lid], r[lid], n[lid]
+            for i in range(1, N):
+                qa, qb = qq[i - 1], qq[i + 1]
+                c_p = hh[i - 1] + bb * qa - rr * qa * abs(qa)
+                c_m = hh[i + 1] - bb * qb + rr * qb * abs(qb)
+                hn[lid][i] = 0.5 * (c_p + c_m)
+                qn[lid][i] = (c_p - c_m) / (2.0 * bb)
+            qa, qb = qq[N - 1], qq[1]
+            cp[lid] = hh[N - 1] + bb * qa - rr * qa * abs(qa)
+            cm[lid] = hh[1] - bb * qb + rr * qb * abs(qb)
+        # HEAD entrance into L1
+        qp = end_flow(b["L1"], k_in["L1"] if 150.0 - cm["L1"] >= 0 else 0.0, 150.0 - cm["L1"])
+        hn["L1"][0], qn["L1"][0] = cm["L1"] + b["L1"] * qp, qp
+        # junction J1: L1 ends, L2 and L3 start
+        hj = (cp["L1"] / b["L1"] + cm["L2"] / b["L2"] + cm["L3"] / b["L3"]) / (
+            1.0 / b["L1"] + 1.0 / b["L2"] + 1.0 / b["L3"])
+        hn["L1"][-1], qn["L1"][-1] = hj, (cp["L1"] - hj) / b["L1"]
+        for lid in ("L2", "L3"):
+            hn[lid][0], qn[lid][0] = hj, (hj - cm[lid]) / b[lid]
+        # valve to TAIL at the end of L2, exit into TANK at the end of L3
+        for lid, head, kv in (("L2", 130.0, kappa[k]), ("L3", 125.0, 0.0)):
+            delta = cp[lid] - head
+            qp = end_flow(b[lid], kv if delta >= 0 else kv + k_in[lid], delta)
+            hn[lid][-1], qn[lid][-1] = cp[lid] - b[lid] * qp, qp
+        for lid in ids:
+            hm = h_max[lid]
+            for i, value in enumerate(hn[lid]):
+                if value > hm[i]:
+                    hm[i] = value
+            h[lid], hn[lid] = hn[lid], h[lid]
+            q[lid], qn[lid] = qn[lid], q[lid]
+    return {"max_head": h_max, "steps": steps}
+
+
+def compare_branched(duration: float = DURATION, repeats: int = 3) -> None:
+    """The issue's target: 200 reaches x 120 s of a three-line branched system."""
+    system = branched_system()
+    kernels = ["compiled", "numpy"] if elastic_kernel.compiled_available() else ["numpy"]
+    runs = {}
+    for kernel in kernels:
+        simulate_elastic(system, "L2", duration=1.0, kernel=kernel)  # warm-up
+        walls = []
+        for _ in range(repeats):
+            t0 = time.perf_counter()
+            res = simulate_elastic(system, "L2", duration=duration, kernel=kernel)
+            walls.append(time.perf_counter() - t0)
+        assert res.success and res.kernel == kernel, res.message
+        runs[kernel] = (res, min(walls))
+    res = runs[kernels[0]][0]
+    nodes = sum(c + 1 for c in res.reaches.values())
+    steps = len(res.time) - 1
+    print(f"lines {res.line_ids}, reaches {res.reaches}, dt = {res.dt * 1e3:.3f} ms, "
+          f"largest wave-speed change "
+          f"{100 * max(abs(w.adjustment) for w in res.wave_speeds.values()):.2f} %")
+    print(f"simulated {res.duration:.0f} s: {steps} steps x {nodes} nodes = "
+          f"{steps * nodes / 1e6:.2f} M node-updates; status {res.status}, "
+          f"cavities {len(res.cavity_zones)}")
+    t0 = time.perf_counter()
+    loop = plain_loop_branched(system, res)
+    wall_loop = time.perf_counter() - t0
+    for kernel in kernels:
+        r, wall = runs[kernel]
+        dev = max(float(np.abs(np.asarray(loop["max_head"][lid]) - r.envelopes[lid].max_head)
+                        .max()) for lid in r.line_ids)
+        print(f"{kernel:9s} kernel, best of {repeats}: {wall:7.3f} s "
+              f"(target under 2 s: {'met' if wall < 2.0 else 'NOT met'}), "
+              f"{wall_loop / wall:6.1f}x the plain loop (target 50x: "
+              f"{'met' if wall_loop / wall >= 50 else 'NOT met'}), "
+              f"largest head difference {dev:.1e} m")
+    print(f"plain Python loop: {wall_loop:7.2f} s")
 
 
 if __name__ == "__main__":

@@ -77,18 +77,20 @@ def _track(node, v_new, k, vol, events, first_open, last_close, v_max, v_max_ste
 def _reach_loss(x, n, inv2b, r2, quasi, cphi, clin, repq2, rr, fixed, loss):
     """Change of ``u`` over one reach at every node, ``-F(Q)`` [m] (``w`` changes by
     ``+F``), in the very order of operations of the numpy kernel so both round alike."""
-    for i in range(n):
-        d = x[i] - x[2 * n - 1 - i]  # u - w = 2BQ
-        if quasi:
-            q2 = d * inv2b[i]
-            re2 = abs(d) * repq2[i]
-            if fixed[i] == fixed[i]:  # not NaN: a fixed friction factor
-                phi = fixed[i] * re2
-            else:
-                phi = friction_re_product_scalar(re2, rr[i])
-            loss[i] = -(cphi[i] * phi + clin[i]) * q2 + r2[i] * (d * abs(d))
-        else:
+    if not quasi:
+        for i in range(n):
+            d = x[i] - x[2 * n - 1 - i]  # u - w = 2BQ
             loss[i] = abs(d) * d * r2[i]
+        return
+    for i in range(n):
+        d = x[i] - x[2 * n - 1 - i]
+        q2 = d * inv2b[i]
+        re2 = abs(d) * repq2[i]
+        if fixed[i] == fixed[i]:  # not NaN: a fixed friction factor
+            phi = fixed[i] * re2
+        else:
+            phi = friction_re_product_scalar(re2, rr[i])
+        loss[i] = -(cphi[i] * phi + clin[i]) * q2 + r2[i] * (d * abs(d))
 
 
 @_jit
@@ -199,14 +201,12 @@ def march(x, xn, k0, m, dt, inv2b, b, fric, cav, hv, interior, vol, rec, fixed, 
             xn[2 * n - 1 - p] = x[2 * n - 2 - p] - loss[p + 1]
         for i in range(n):
             heads[i] = 0.5 * (xn[i] + xn[2 * n - 1 - i])
-        if cav:
+        if cav:  # interior sections: a junction of two equal B (boundaries.junction)
             for i in range(n):
-                if not interior[i]:
-                    continue
-                u = xn[i]
-                w = xn[2 * n - 1 - i]
                 h = heads[i] - vol[i] * (b[i] / (2.0 * dt))
-                if h < hv[i] or vol[i] > 0.0:
+                if (h < hv[i] or vol[i] > 0.0) and interior[i]:
+                    u = xn[i]
+                    w = xn[2 * n - 1 - i]
                     v_new = 0.0
                     if h < hv[i]:
                         h = hv[i]
@@ -227,8 +227,6 @@ def march(x, xn, k0, m, dt, inv2b, b, fric, cav, hv, interior, vol, rec, fixed, 
         for i in range(n):
             h_max[i] = max(h_max[i], heads[i])
             h_min[i] = min(h_min[i], heads[i])
-            if heads[i] != heads[i]:  # NaN: keep it, so that the guard after the run sees it
-                h_max[i] = heads[i]
         if not cav and h_vap_check.shape[0] == n and sep[0] < 0:
             worst = math.inf
             node = -1

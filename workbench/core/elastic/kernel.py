@@ -117,6 +117,9 @@ def run_compiled(plan: MarchPlan, out: MarchOutput, progress=None, cancel=None):
                                 vjs, kappa, env, out.series, plan.series_nodes,
                                 out.cavity_volume, active)
         k += m
+        if not np.isfinite(x).all():  # keep it, so that the guard after the run sees it
+            out.h_max[:] = np.nan
+            break
         if progress is not None:
             progress(k / n_steps)
         if cancel is not None and cancel():
