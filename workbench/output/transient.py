@@ -396,8 +396,9 @@ def _surge_table(closing: dict, u: _Units):
     from rich.text import Text
 
     q, when = u.q, u.when
-    st = simple_table("Surge screening of valve closures (a: wave speed; trips: closure / 2L/a)")
-    for col in ("line", "a", "2L/a", "eff. closure", "trips", "Joukowsky"):
+    st = simple_table("Surge screening of valve closures (a: wave speed; in 2L/a: closure "
+                      "time in wave round trips)")
+    for col in ("line", "a", "2L/a", "eff. closure", "in 2L/a", "Joukowsky"):
         st.add_column(col, justify="left" if col == "line" else "right", no_wrap=True)
     st.add_column("verdict", overflow="fold", ratio=1)
     for lid, s in closing.items():

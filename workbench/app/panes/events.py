@@ -89,6 +89,7 @@ class EventsPane(Vertical):
 
     def on_mount(self) -> None:
         self.watch(self.app, "transient", self._show)
+        self.watch(self.app, "elastic", self._show, init=False)  # elastic DANGER findings
         self.watch(self.app, "unit_system", self._show, init=False)
 
     def _show(self, _value=None) -> None:

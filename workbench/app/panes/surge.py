@@ -1,18 +1,25 @@
 """The Surge view: the elastic (water-hammer) run of a line, against its profile and rating.
 
-Two pictures, switched with ``v``:
+Pictures, switched with ``v``:
 
-* the envelope along the chainage: pipe elevation, the highest and lowest head reached,
-  the steady head at the start, the head at which the pipe reaches its pressure rating
-  ``z + p_rating/(rho*g)`` and the vapour limit ``z + (p_vap - p_atm)/(rho*g)``;
-* the pressure at the valve in time, with the rating and the vapour pressure (gauge).
+* the envelope along the chainage of the highlighted line: pipe elevation (where the gauge
+  pressure is atmospheric), the highest and lowest head reached, the steady head at the
+  start; the rating head ``z + p_rating/(rho*g)`` and the vapour head
+  ``z + (p_vap - p_atm)/(rho*g)`` where they fall within the data, named in words in the
+  note when they are off the scale;
+* the head in time at each valve and junction of the lines run together (their traces).
 
-Points above the rating are marked ``!``, points at or below the vapour limit ``V``.
+The axes are scaled to the data; the legend is written under the plot, not on it. Points
+above the rating are marked ``!``, vapour cavities ``C`` (and listed in words); no head below
+the vapour head (below absolute zero pressure) is drawn or printed: such a value from a run
+without the cavity model is clamped to the vapour head and said so.
 
 The list on the left holds every line of the project; ``●`` marks those with an elastic
-result, ``✗`` those whose elastic run failed (the note says why). ``e`` runs the method of characteristics on the highlighted line and the lines in
-series with it (as ``workbench simulate --elastic LINE``); Ctrl+R runs the lines whose surge
-model is ``elastic`` together with the simulation.
+result, ``✗`` those whose elastic run failed (the note says why). ``e`` runs the method of
+characteristics on the highlighted line and every line joined to it through junctions (as
+``workbench simulate --elastic LINE``); Ctrl+R runs the lines whose surge model is
+``elastic`` together with the simulation. A result computed before the project's last edit
+is marked STALE.
 """
 
 from __future__ import annotations
@@ -29,7 +36,12 @@ G = 9.80665  # standard gravity [m/s^2] (CGPM 1901)
 
 
 def envelope_series(result: Any, system: Any, line_id: str) -> dict[str, Any] | None:
-    """Chainage, pipe, heads, rating and vapour heads of a line's envelope, SI [m]."""
+    """Chainage, pipe, heads, rating and vapour heads of a line's envelope, SI [m].
+
+    ``min_head`` is never below the vapour head: lower values (a run without the cavity
+    model) are clamped to it and their nodes listed in ``clamped``. ``cavities`` lists the
+    nodes that held a vapour cavity.
+    """
     env = (getattr(result, "envelopes", {}) or {}).get(line_id)
     if env is None:
         return None
@@ -39,7 +51,8 @@ def envelope_series(result: Any, system: Any, line_id: str) -> dict[str, Any] | 
         "distance": [float(v) for v in env.distance], "elevation": z,
         "max_head": [float(v) for v in env.max_head], "min_head": [float(v) for v in env.min_head],
         "initial_head": [float(v) for v in env.initial_head],
-        "rating": None, "vapour": None, "over": [], "vapour_hits": [],
+        "rating": None, "vapour": None, "over": [], "vapour_hits": [], "clamped": [],
+        "cavities": [],
     }
     rating = system.lines[line_id].pressure_rating
     if rating is not None:
@@ -49,15 +62,53 @@ def envelope_series(result: Any, system: Any, line_id: str) -> dict[str, Any] | 
     if p_vap is not None:
         offset = (p_vap - system.atmospheric_pressure) / (rho * G)
         out["vapour"] = [zi + offset for zi in z]
-        out["vapour_hits"] = [i for i, h in enumerate(out["min_head"]) if h <= z[i] + offset]
+        hv = out["vapour"]
+        out["clamped"] = [i for i, h in enumerate(out["min_head"]) if h < hv[i] - 1e-9]
+        out["min_head"] = [max(h, hv[i]) for i, h in enumerate(out["min_head"])]
+        out["vapour_hits"] = [i for i, h in enumerate(out["min_head"]) if h <= hv[i] + 1e-9]
+    cav = getattr(env, "cavity_max_volume", None)
+    if cav is not None:
+        out["cavities"] = [i for i, v in enumerate(cav) if v > 0.0]
     return out
 
 
+def time_scale(span: float) -> tuple[float, str]:
+    """Divisor and unit for a time axis of ``span`` seconds: s, min or h."""
+    if span <= 300.0:
+        return 1.0, "s"
+    if span <= 3.0 * 3600.0:
+        return 60.0, "min"
+    return 3600.0, "h"
+
+
+def axis_range(series: list[list[float]]) -> tuple[float, float]:
+    """Lower and upper limits around the data (5 % margin; 1 m when flat)."""
+    values = [v for s in series for v in s]
+    lo, hi = min(values), max(values)
+    pad = 0.05 * (hi - lo) if hi > lo else 1.0
+    return lo - pad, hi + pad
+
+
+def limits_in_words(limits: dict[str, list[float]], lo: float, hi: float) -> list[str]:
+    """Names of the limits that lie wholly above or below the plotted range."""
+    words = []
+    for name, values in limits.items():
+        if min(values) > hi:
+            words.append(f"{name} above the plot")
+        elif max(values) < lo:
+            words.append(f"{name} below the plot")
+    return words
+
+
+LEGEND_ENVELOPE = ("key: ^ max v min - start = pipe (atmospheric) # rating . vapour "
+                   "C cavity ! over rating")
+
+
 class SurgePane(Horizontal):
-    """Pick a line run elastically; see its envelope or its valve pressure trace."""
+    """Pick a line run elastically; see its envelope or the valve and junction traces."""
 
     BINDINGS = [
-        Binding("v", "switch_picture", "Envelope/valve", id="surge.picture"),
+        Binding("v", "switch_picture", "Envelope/traces", id="surge.picture"),
         Binding("e", "elastic_run", "Elastic run", id="surge.run"),
     ]
 
@@ -116,8 +167,18 @@ class SurgePane(Horizontal):
         self._line = event.option.id
         self._redraw()
 
+    def _pictures(self) -> list[str]:
+        """``envelope`` then the labels of the valve and junction traces of the result."""
+        result = (self.app.elastic or {}).get(self._line)
+        traces = list(getattr(result, "traces", {}) or {})
+        if not traces and result is not None and getattr(result, "valve_line", None):
+            traces = [f"valve {result.valve_line}"]
+        return ["envelope", *traces]
+
     def action_switch_picture(self) -> None:
-        self.picture = "valve" if self.picture == "envelope" else "envelope"
+        pictures = self._pictures()
+        i = pictures.index(self.picture) if self.picture in pictures else 0
+        self.picture = pictures[(i + 1) % len(pictures)]
         self._redraw()
 
     def activate(self) -> None:
@@ -146,31 +207,24 @@ class SurgePane(Horizontal):
         if self._line is None:
             title.update("Surge: the project has no lines")
             note.update("")
-            self._plot.refresh()
-            return
-        if app.elastic_status == "running" and app.elastic_line == self._line:
+        elif app.elastic_status == "running" and app.elastic_line == self._line:
             title.update(f"{self._line}: elastic run {100 * app.elastic_progress:.0f} % "
                          "(Esc stops)")
-            note.update("method of characteristics on this line and the lines in series "
-                        "with it")
-            self._plot.refresh()
-            return
-        if self._line not in elastic or system is None:
+            note.update("method of characteristics on this line and every line joined to "
+                        "it through junctions")
+        elif self._line not in elastic or system is None:
             title.update(f"{self._line}: no elastic run yet · e runs it")
-            note.update("e: method of characteristics on this line and the lines in series "
-                        "with it. Ctrl+R also runs lines whose surge model is 'elastic'.")
-            self._plot.refresh()
-            return
-        result = elastic[self._line]
-        if not result.success:
+            note.update("e: method of characteristics on this line and every line joined to "
+                        "it through junctions. Ctrl+R also runs lines whose surge model is "
+                        "'elastic'.")
+        elif not elastic[self._line].success:
             title.update(f"Surge {self._line}: the elastic run failed")
-            note.update(str(result.message))
-            self._plot.refresh()
-            return
-        if self.picture == "envelope":
-            self._draw_envelope(plt, result, system, title, note)
+            note.update(str(elastic[self._line].message))
+        elif self.picture not in self._pictures() or self.picture == "envelope":
+            self.picture = "envelope"
+            self._draw_envelope(plt, elastic[self._line], system, title, note)
         else:
-            self._draw_valve(plt, result, system, title, note)
+            self._draw_trace(plt, elastic[self._line], system, title, note)
         self._plot.refresh()
 
     def _draw_envelope(self, plt, result, system, title, note) -> None:
@@ -183,53 +237,90 @@ class SurgePane(Horizontal):
             return
         conv = lambda v: [float(to_display(x, "head", units)) for x in v]  # noqa: E731
         x = conv(s["distance"])
-        plt.plot(x, conv(s["elevation"]), label="pipe", marker="=")
-        plt.plot(x, conv(s["max_head"]), label="max head", marker="^")
-        plt.plot(x, conv(s["initial_head"]), label="start head", marker="-")
-        plt.plot(x, conv(s["min_head"]), label="min head", marker="v")
-        if s["rating"] is not None:
-            plt.plot(x, conv(s["rating"]), label="rating", marker="#")
-        if s["vapour"] is not None:
-            plt.plot(x, conv(s["vapour"]), label="vapour limit", marker=".")
-        top = conv(s["max_head"])
+        data = [conv(s[k]) for k in ("elevation", "max_head", "initial_head", "min_head")]
+        lo, hi = axis_range(data)
+        for values, marker in zip(data, ("=", "^", "-", "v")):
+            plt.plot(x, values, marker=marker)
+        limits = {}
+        for key, name, marker in (("rating", "rating", "#"), ("vapour", "vapour limit", ".")):
+            if s[key] is None:
+                continue
+            values = conv(s[key])
+            limits[name] = values
+            if max(values) >= lo and min(values) <= hi:
+                plt.plot(x, values, marker=marker)
+        top, bottom = data[1], data[3]
         if s["over"]:
-            plt.scatter([x[i] for i in s["over"]], [top[i] for i in s["over"]], marker="!",
-                        label="over rating")
-        bottom = conv(s["min_head"])
-        if s["vapour_hits"]:
-            plt.scatter([x[i] for i in s["vapour_hits"]], [bottom[i] for i in s["vapour_hits"]],
-                        marker="V", label="vapour")
+            plt.scatter([x[i] for i in s["over"]], [top[i] for i in s["over"]], marker="!")
+        if s["cavities"]:
+            plt.scatter([x[i] for i in s["cavities"]], [bottom[i] for i in s["cavities"]],
+                        marker="C")
+        plt.ylim(lo, hi)
         head = display_unit("head", units)
         plt.xlabel(f"chainage [{head}]")
         plt.ylabel(f"head [{head}]")
-        title.update(f"Surge {self._line}: head envelope (v: valve trace){self._stale()}")
-        note.update(self._summary(result, s))
+        title.update(f"Surge {self._line}: head envelope (v: traces){self._stale()}")
+        words = limits_in_words(limits, lo, hi)
+        note.update(" · ".join([self._summary(result, s), *words, LEGEND_ENVELOPE]))
 
-    def _draw_valve(self, plt, result, system, title, note) -> None:
+    def _draw_trace(self, plt, result, system, title, note) -> None:
+        from workbench.app.results import decimate
         from workbench.project.units import display_unit, to_display
 
         units = self.app.unit_system
-        if result.valve_line is None or not len(result.valve_pressure):
-            title.update(f"Surge {self._line}: no valve in this chain (v: envelope)")
-            note.update("")
-            return
-        from workbench.app.results import decimate
-
-        t = [float(result.time[0]), float(result.time[-1])]
+        label = self.picture
+        heads = (getattr(result, "traces", {}) or {}).get(label)
+        kind, name = label.split(" ", 1)
+        rho = system.fluid.density
+        if heads is None:  # a result from before the traces: the valve's pressure series
+            pressure = list(result.valve_pressure)
+        else:
+            z = self._trace_elevation(result, system, kind, name)
+            pressure = [rho * G * (h - z) for h in heads]
+        p_vap_g = (None if system.fluid.vapor_pressure is None
+                   else system.fluid.vapor_pressure - system.atmospheric_pressure)
+        clamped = p_vap_g is not None and min(pressure) < p_vap_g - 1e-6
+        if p_vap_g is not None:
+            pressure = [max(p, p_vap_g) for p in pressure]
+        div, unit = time_scale(float(result.time[-1]))
+        xs, ys = decimate([t / div for t in result.time], pressure)
         conv = lambda v: [float(to_display(p, "pressure", units)) for p in v]  # noqa: E731
-        xs, ys = decimate(result.time, result.valve_pressure)
-        plt.plot(xs, conv(ys), label="at valve", marker="hd")
-        rating = system.lines[result.valve_line].pressure_rating
-        if rating is not None:
-            plt.plot([t[0], t[-1]], conv([rating, rating]), label="rating", marker="#")
-        if system.fluid.vapor_pressure is not None:
-            p_vap_g = system.fluid.vapor_pressure - system.atmospheric_pressure
-            plt.plot([t[0], t[-1]], conv([p_vap_g, p_vap_g]), label="vapour", marker=".")
-        plt.xlabel("time [s]")
+        values = conv(ys)
+        lo, hi = axis_range([values, conv([0.0])])
+        plt.plot(xs, values, marker="hd")
+        t = [xs[0], xs[-1]]
+        limits = {"atmospheric": conv([0.0, 0.0])}
+        plt.plot(t, limits["atmospheric"], marker="=")
+        line_id = name if kind == "valve" else self._line
+        rating = system.lines[line_id].pressure_rating if line_id in system.lines else None
+        for key, value, marker in (("rating", rating, "#"), ("vapour", p_vap_g, ".")):
+            if value is None:
+                continue
+            limits[key] = conv([value, value])
+            if lo <= limits[key][0] <= hi:
+                plt.plot(t, limits[key], marker=marker)
+        plt.ylim(lo, hi)
+        plt.xlabel(f"time [{unit}]")
         plt.ylabel(f"p [{display_unit('pressure', units)} g]")
-        title.update(f"Surge {result.valve_line}: pressure at the valve (v: envelope)"
-                     f"{self._stale()}")
-        note.update(self._summary(result, None))
+        where = "pressure at the valve" if kind == "valve" else "pressure at the junction"
+        title.update(f"Surge {name}: {where} (v: next){self._stale()}")
+        words = limits_in_words(limits, lo, hi)
+        if clamped:
+            words.append("values below vapour pressure (column separation, run without "
+                         "the cavity model) are drawn at the vapour limit")
+        legend = "key: = atmospheric # rating . vapour"
+        note.update(" · ".join([self._summary(result, None), *words, legend]))
+
+    @staticmethod
+    def _trace_elevation(result, system, kind: str, name: str) -> float:
+        """Pipe elevation at a valve (its line's end) or a junction [m]."""
+        if kind == "junction":
+            return float(system.node_elevation(name))
+        env = result.envelopes.get(name)
+        line = system.lines.get(name)
+        if env is None or line is None or line.valve is None:
+            return 0.0
+        return float(env.elevation[0] if line.valve.position == "from" else env.elevation[-1])
 
     def _stale(self) -> str:
         """A mark when the results were computed before the project's last edit."""
@@ -238,18 +329,29 @@ class SurgePane(Horizontal):
         return "" if app.elastic_system is current else "  (STALE: e reruns)"
 
     def _summary(self, result, series) -> str:
+        """DANGER (column separation, cavities) first, then the peak and the low point."""
         from workbench.project.units import format_quantity
 
         units = self.app.unit_system
         env = result.envelopes.get(self._line)
         parts = []
-        if env is not None:
-            parts.append(f"peak {format_quantity(float(max(env.max_pressure)), 'pressure', units)} g")
-            parts.append(f"low {format_quantity(float(min(env.min_pressure)), 'pressure', units)} g")
-        if series is not None and series["over"]:
-            parts.append(f"! over rating at {len(series['over'])} pt")
         sep = result.column_separation
         if sep is not None:
-            parts.append(f"‼ column separation at {sep.time:.2f} s, {sep.distance:.0f} m on "
-                         f"{sep.line}: results after it not reliable")
+            zones = [z for z in getattr(result, "cavity_zones", ()) or () if z.line == self._line]
+            text = (f"DANGER column separation {sep.time:.2f} s at {sep.distance:.0f} m on "
+                    f"{sep.line}")
+            for z in zones:
+                where = (f"{z.start:.0f} m" if z.sections == 1
+                         else f"{z.start:.0f}-{z.end:.0f} m")
+                text += f"; vapour cavities {where}, largest {z.max_volume * 1e3:.3g} L"
+            parts.append(text + ": figures after it not reliable, get a specialist surge "
+                         "study")
+        if env is not None:
+            parts.append(f"peak {format_quantity(float(max(env.max_pressure)), 'pressure', units)} g")
+            if series is not None:
+                low = min(h - z for h, z in zip(series["min_head"], series["elevation"]))
+                rho = self.app.elastic_system.fluid.density
+                parts.append(f"low {format_quantity(rho * G * low, 'pressure', units)} g")
+        if series is not None and series["over"]:
+            parts.append(f"! over rating at {len(series['over'])} pt")
         return " · ".join(parts)

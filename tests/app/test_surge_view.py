@@ -1,0 +1,94 @@
+"""The Surge view (F10): envelope and traces drawn within the physically possible, limits
+named when off the scale, time axes by span, elastic DANGER findings on the events view.
+
+The physical bound checked is the vapour pressure (IAPWS IF97 for water at 20 degC): no
+head below the vapour head, i.e. no absolute pressure below the vapour pressure (and so never
+below absolute zero), is drawn or printed.
+"""
+
+from __future__ import annotations
+
+import pytest
+
+from workbench.app.panes.surge import (
+    axis_range,
+    envelope_series,
+    limits_in_words,
+    time_scale,
+)
+from workbench.core.elastic import simulate_elastic
+from workbench.core.model import (
+    FluidProps,
+    Line,
+    Receiver,
+    Reservoir,
+    SurgeSettings,
+    System,
+    Valve,
+    ValveSchedule,
+)
+
+WATER = FluidProps("water", 998.207, 1.0016e-3, 2339.2, 2.19e9, 293.15)
+P_ATM = 101325.0
+
+
+def separating_line() -> System:
+    shut = Valve("linear", 62.0, opening=1.0, schedule=ValveSchedule((0.0, 1e-6), (1.0, 0.0)))
+    line = Line("L1", "R1", "OUT", 600.0, 0.3, friction_factor=0.0, entrance_k=0.0,
+                valve=shut, surge=SurgeSettings("elastic", 20))
+    return System("sep", WATER, {"R1": Reservoir("R1", "constant_level", 0.0, 20.0)}, {},
+                  {"OUT": Receiver("OUT", "open_discharge", 0.0)}, {"L1": line})
+
+
+@pytest.mark.parametrize("cavities", [True, False])
+def test_no_envelope_value_below_the_vapour_head_is_drawn(cavities):
+    # Without the cavity model the computed minimum falls far below vapour (impossible):
+    # the view clamps it to the vapour head and lists the clamped points; with the model
+    # nothing needs clamping and the cavity sections are listed for the C marks.
+    system = separating_line()
+    res = simulate_elastic(system, "L1", wave_speeds={"L1": 1300.0}, duration=3.0,
+                           cavities=cavities, grid_check=False)
+    s = envelope_series(res, system, "L1")
+    hv = s["vapour"]
+    assert all(h >= v - 1e-9 for h, v in zip(s["min_head"], hv))
+    p_abs = [WATER.density * 9.80665 * (h - z) + P_ATM
+             for h, z in zip(s["min_head"], s["elevation"])]
+    assert min(p_abs) >= WATER.vapor_pressure - 1e-6 > 0.0
+    if cavities:
+        assert s["cavities"] and not s["clamped"]
+    else:
+        assert s["clamped"] and not s["cavities"]
+        assert float(res.envelopes["L1"].min_head.min()) < min(hv) - 10.0  # premise
+
+
+def test_time_axes_read_in_seconds_minutes_or_hours_by_span():
+    assert time_scale(50.0) == (1.0, "s")
+    assert time_scale(1800.0) == (60.0, "min")
+    assert time_scale(6 * 3600.0) == (3600.0, "h")
+
+
+def test_limits_off_the_scale_are_named_in_words():
+    lo, hi = axis_range([[10.0, 20.0], [12.0, 15.0]])
+    assert lo < 10.0 and hi > 20.0 and hi - lo < 12.0  # scaled to the data, not the rating
+    words = limits_in_words({"rating": [500.0, 500.0], "vapour limit": [-10.0, -10.0],
+                             "inside": [15.0, 15.0]}, lo, hi)
+    assert words == ["rating above the plot", "vapour limit below the plot"]
+
+
+async def test_elastic_danger_findings_reach_the_events_view(project_file):
+    from tests.app.conftest import SIZE, TRANSFER, make, settle, table_cells
+
+    app = make(project_file(TRANSFER))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        system = separating_line()
+        res = simulate_elastic(system, "L1", wave_speeds={"L1": 1300.0}, duration=3.0,
+                               grid_check=False)
+        app.elastic_system = system
+        app.elastic = {"L1": res}
+        await pilot.press("f6")
+        await pilot.pause()
+        rows = table_cells(app, "#run-finding-table")
+    codes = [cell for row in rows for cell in row]
+    assert any("surge.column_separation" in c for c in codes)
+    assert any("surge.cavity_collapse" in c for c in codes)
