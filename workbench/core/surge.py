@@ -466,16 +466,8 @@ def screen_line(
     if line.pressure_rating is not None and reported_max > line.pressure_rating:
         after = (separation and separation_time is not None and max_time is not None
                  and max_time > separation_time)
-        caveat = (f" -- after the column separated at t = {separation_time:.4g} s, so this "
-                  "rigid-column peak is not trustworthy (the cavity's collapse can give more "
-                  "or less)" if after else "")
-        findings.append(finding(
-            "surge.pressure", line_id,
-            f"the pressure on line {line_id} reaches {{p}} gauge{at_max}{caveat}, above its "
-            "rating of {rating}: slow the valve closure or add surge protection (defer to "
-            "local codes and licensed practice)",
-            "danger", "pressure rating from the project file",
-            p=(reported_max, "pressure"), rating=(line.pressure_rating, "pressure")))
+        findings.append(_rating_finding(line_id, line, reported_max, at_max,
+                                        separation_time if after else None))
     if separation:
         first = separation_time if separation_time is not None else min_time
         at_first = f" first at t = {first:.4g} s" if first is not None else ""
@@ -496,6 +488,22 @@ def screen_line(
         max_pressure_uncapped=raw_max, capped=capped, max_pressure=reported_max,
         min_pressure=reported_min, column_separation=separation,
     ), findings
+
+
+def _rating_finding(line_id: str, line: Line, reported_max: float, at_max: str,
+                    separated_at: float | None) -> Finding:
+    """``surge.pressure``: the peak above the rating, marked untrustworthy when it came after
+    the column separated at ``separated_at`` [s]."""
+    caveat = (f" -- after the column separated at t = {separated_at:.4g} s, so this "
+              "rigid-column peak is not trustworthy (the cavity's collapse can give more "
+              "or less)" if separated_at is not None else "")
+    return finding(
+        "surge.pressure", line_id,
+        f"the pressure on line {line_id} reaches {{p}} gauge{at_max}{caveat}, above its "
+        "rating of {rating}: slow the valve closure or add surge protection (defer to "
+        "local codes and licensed practice)",
+        "danger", "pressure rating from the project file",
+        p=(reported_max, "pressure"), rating=(line.pressure_rating, "pressure"))
 
 
 def _rapid_closure_finding(line_id: str, line: Line, effective_closure: float, trip: float,

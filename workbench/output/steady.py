@@ -81,47 +81,7 @@ def steady_to_json(result: SteadyResult, system: System) -> dict:
         "warnings": [],
     }
     for lid, r in result.lines.items():
-        entry = {
-            "flow_m3_s": _num(r.flow),
-            "velocity_m_s": _num(r.velocity),
-            "reynolds": _num(r.reynolds),
-            "regime": r.regime,
-            "friction_factor": _num(r.friction_factor),
-            "friction_method": r.friction_method,
-            "head_loss_m": _num(r.head_loss),
-            "friction_loss_m": _num(r.friction_loss),
-            "minor_loss_m": _num(r.minor_loss),
-            "fittings_loss_m": _num(r.fittings_loss),
-            "valve_loss_m": _num(r.valve_loss),
-            "entrance_loss_m": _num(r.entrance_loss),
-            "exit_loss_m": _num(r.exit_loss),
-            "velocity_head_m": _num(r.velocity_head),
-            "status": r.status,
-            "from": r.from_node,
-            "to": r.to_node,
-        }
-        if lid in result.openings:
-            entry["valve_opening"] = _num(result.openings[lid])
-        brk = getattr(result, "siphon_breaks", {}).get(lid)
-        if brk is not None:
-            entry["capped"] = True
-            entry["siphon_break"] = {
-                "distance_m": _num(brk.distance), "elevation_m": _num(brk.elevation),
-                "break_pressure_abs_pa": _num(brk.break_pressure),
-                "full_bore_flow_m3_s": _num(brk.full_bore_flow),
-                "stop_head_m": _num(brk.stop_head), "source": brk.source,
-            }
-        prof = result.profiles.get(lid)
-        if prof is not None:
-            entry["profile"] = {
-                "distance_m": _list(prof.distance),
-                "elevation_m": _list(prof.elevation),
-                "hgl_m": _list(prof.hgl),
-                "egl_m": _list(prof.egl),
-                "pressure_pa": _list(prof.pressure_gauge),
-                "pressure_abs_pa": _list(prof.pressure_abs),
-            }
-        out["lines"][lid] = entry
+        out["lines"][lid] = _line_json(result, lid, r)
     for nid, n in result.nodes.items():
         out["nodes"][nid] = {
             "head_m": _num(n.head),
@@ -152,6 +112,51 @@ def steady_to_json(result: SteadyResult, system: System) -> dict:
         for w in result.warnings
     ]
     return out
+
+
+def _line_json(result, lid: str, r) -> dict:
+    """One line of ``solve --json``: its flow and losses, opening, siphon break, profile."""
+    entry = {
+        "flow_m3_s": _num(r.flow),
+        "velocity_m_s": _num(r.velocity),
+        "reynolds": _num(r.reynolds),
+        "regime": r.regime,
+        "friction_factor": _num(r.friction_factor),
+        "friction_method": r.friction_method,
+        "head_loss_m": _num(r.head_loss),
+        "friction_loss_m": _num(r.friction_loss),
+        "minor_loss_m": _num(r.minor_loss),
+        "fittings_loss_m": _num(r.fittings_loss),
+        "valve_loss_m": _num(r.valve_loss),
+        "entrance_loss_m": _num(r.entrance_loss),
+        "exit_loss_m": _num(r.exit_loss),
+        "velocity_head_m": _num(r.velocity_head),
+        "status": r.status,
+        "from": r.from_node,
+        "to": r.to_node,
+    }
+    if lid in result.openings:
+        entry["valve_opening"] = _num(result.openings[lid])
+    brk = getattr(result, "siphon_breaks", {}).get(lid)
+    if brk is not None:
+        entry["capped"] = True
+        entry["siphon_break"] = {
+            "distance_m": _num(brk.distance), "elevation_m": _num(brk.elevation),
+            "break_pressure_abs_pa": _num(brk.break_pressure),
+            "full_bore_flow_m3_s": _num(brk.full_bore_flow),
+            "stop_head_m": _num(brk.stop_head), "source": brk.source,
+        }
+    prof = result.profiles.get(lid)
+    if prof is not None:
+        entry["profile"] = {
+            "distance_m": _list(prof.distance),
+            "elevation_m": _list(prof.elevation),
+            "hgl_m": _list(prof.hgl),
+            "egl_m": _list(prof.egl),
+            "pressure_pa": _list(prof.pressure_gauge),
+            "pressure_abs_pa": _list(prof.pressure_abs),
+        }
+    return entry
 
 
 def steady_tables(result: SteadyResult, system: System, unit_system: str = "SI") -> list:
