@@ -150,7 +150,7 @@ def test_every_warning_and_event_of_the_run_is_in_the_record(project_path, recor
         # numbers in the record follow the project's display units (README)
         assert finding_message(f, project.unit_system).replace("|", "\\|") in text
     for e in events:
-        assert e.message.replace("|", "\\|") in text
+        assert finding_message(e, project.unit_system).replace("|", "\\|") in text
 
 
 def test_the_hill_transfer_record_shows_its_warnings(tmp_path) -> None:

@@ -229,3 +229,23 @@ def test_the_settling_time_is_after_the_last_excursion_not_the_first_crossing():
     assert settled > 30.0 > first_crossing
     after = t >= settled
     assert np.all(np.abs(ringing[after] - ringing[-1]) <= 0.01 * abs(ringing[-1] - ringing[0]))
+
+
+def test_a_us_project_s_events_and_warnings_give_feet(capsys):
+    # Display units follow [project] units = "US" (README); 1 ft = 0.3048 m (NIST SP 811).
+    from pathlib import Path
+
+    from workbench.core.transient import simulate
+    from workbench.output.common import finding_message
+    from workbench.project.document import load_project
+
+    path = Path(__file__).parents[2] / "projects" / "fellgate_cooling_water_network.toml"
+    project = load_project(path)
+    res = simulate(project.system)
+    (drained,) = [e for e in res.events if e.code == "tank.drained"]
+    text = finding_message(drained, "US")
+    level = project.system.reservoirs[drained.element].min_level
+    assert f"drained level {level / 0.3048:.4g} ft" in text and " m;" not in text
+    assert main(["simulate", str(path)]) == 0
+    out = capsys.readouterr().out
+    assert f"{level / 0.3048:.4g} ft" in out

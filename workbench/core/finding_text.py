@@ -65,6 +65,19 @@ def fill(template: str, values, text_of) -> str:
     return string.Formatter().vformat(template, (), texts)
 
 
+def slots(template: str, digits: int = 3, **values) -> tuple[str, str, tuple]:
+    """``(SI message, template, values)`` for a message with numbers kept (an event's, or a
+    finding built by hand); arguments as :func:`finding`."""
+    kept = []
+    for name, spec in values.items():
+        value, kind = float(spec[0]), spec[1]
+        if kind not in SI_DISPLAY:
+            raise ValueError(f"unknown quantity kind {kind!r} for {name!r}")
+        kept.append((name, value, kind, int(spec[2]) if len(spec) > 2 else digits))
+    kept_t = tuple(kept)
+    return fill(template, kept_t, si_text), template, kept_t
+
+
 def finding(code: str, element: str, template: str, severity: Severity = "caution",
             source: str = "", digits: int = 3, **values) -> Finding:
     """A :class:`Finding` whose numbers are kept as SI values with their kind.
@@ -81,12 +94,5 @@ def finding(code: str, element: str, template: str, severity: Severity = "cautio
         ``name=(SI value, kind)`` or ``name=(SI value, kind, digits)``; ``kind`` a key of
         :data:`SI_DISPLAY`.
     """
-    slots = []
-    for name, spec in values.items():
-        value, kind = float(spec[0]), spec[1]
-        if kind not in SI_DISPLAY:
-            raise ValueError(f"unknown quantity kind {kind!r} for {name!r}")
-        slots.append((name, value, kind, int(spec[2]) if len(spec) > 2 else digits))
-    slots_t = tuple(slots)
-    return Finding(code, element, fill(template, slots_t, si_text), severity, source,
-                   template=template, values=slots_t)
+    message, template, kept = slots(template, digits, **values)
+    return Finding(code, element, message, severity, source, template=template, values=kept)

@@ -413,6 +413,8 @@ def _steady(project: Project, steady: SteadyResult | None) -> list[str]:
 
 
 def _simulation(project: Project, transient: TransientResult | None) -> list[str]:
+    from workbench.output.common import finding_message
+
     units = project.unit_system
     out = ["## 5. Simulation", ""]
     if transient is None:
@@ -461,7 +463,9 @@ def _simulation(project: Project, transient: TransientResult | None) -> list[str
     out += ["### Events", ""]
     if transient.events:
         out += _table(["Time", "Code", "Element", "Message"],
-                      [[_time(e.time), f"`{e.code}`", e.element, e.message] for e in transient.events], "rlll")
+                      [[_time(e.time), f"`{e.code}`", e.element,
+                        finding_message(e, project.unit_system)] for e in transient.events],
+                      "rlll")
     else:
         out += ["No events.", ""]
     return out

@@ -429,7 +429,7 @@ def _events(result: TransientResult, u: _Units) -> list:
     ev.add_column("message", overflow="fold", ratio=1)
     shown = result.events[:EVENTS_SHOWN]
     for e in shown:
-        ev.add_row(u.when(e.time), e.code, e.element, Text(e.message))
+        ev.add_row(u.when(e.time), e.code, e.element, Text(finding_message(e, u.unit_system)))
     out: list = [ev]
     if len(result.events) > len(shown):
         out.append(Text(f"... {len(result.events) - len(shown)} more events in --json."))

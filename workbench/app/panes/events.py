@@ -22,7 +22,7 @@ def event_rows(result: Any, units: str) -> list[tuple[str, str, str, str]]:
         time = float(_get(event, "time", "time_s", default=math.nan))
         rows.append((results.duration_text(time),
                      _get(event, "code", default=""), _get(event, "element", default=""),
-                     _get(event, "message", default="")))
+                     results.finding_text(event, units)))
     return rows
 
 

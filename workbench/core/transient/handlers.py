@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from workbench.core.finding_text import slots
 from workbench.core.model import restart_level
 from workbench.core.transient import events as ev
 from workbench.core.transient import siphon
@@ -58,14 +59,14 @@ def drain(model: TransientModel, state: RunState, k: int, t: float, y: np.ndarra
     names = ", ".join(model.topo.line_ids[i] for i in np.flatnonzero(drawing))
     res = model.tanks[k]
     what = "starts at or below" if started else "reaches"
-    state.event(t, "tank.drained", rid,
-                f"tank {rid} {what} its drained level {res.min_level:g} m; "
-                f"outlet line(s) {names or 'none'} stop drawing")
+    state.event(t, "tank.drained", rid, *slots(
+        f"tank {rid} {what} its drained level {{level}}; outlet line(s) {names or 'none'} "
+        "stop drawing", level=(res.min_level, "length", 4)))
     asked = float(model.external(t)[1][k])
     if asked > 0.0:
-        state.event(t, "tank.draw_off_stopped", rid,
-                    f"tank {rid} can no longer supply its draw-off of "
-                    f"{asked * 1000:.4g} L/s: the draw-off stops (the tank is drained)")
+        state.event(t, "tank.draw_off_stopped", rid, *slots(
+            f"tank {rid} can no longer supply its draw-off of {{q}}: the draw-off stops (the "
+            "tank is drained)", q=(asked, "flow", 4)))
 
 
 def _cycle_listed(state: RunState, k: int, t: float, rid: str) -> bool:
@@ -94,11 +95,11 @@ def refill(model: TransientModel, state: RunState, k: int, t: float) -> None:
     names = ", ".join(model.topo.line_ids[i] for i in np.flatnonzero(released))
     asked = float(model.external(t)[1][k])
     lvl = restart_level(model.tanks[k])
-    state.event(t, "tank.refilled", rid,
-                f"tank {rid} refills to its restart level {lvl:.4g} m: "
-                + (f"outlet line(s) {names} open again" if names else "it is back in use")
-                + (f"; its draw-off of {asked * 1000:.4g} L/s resumes" if asked > 0.0
-                   else ""))
+    state.event(t, "tank.refilled", rid, *slots(
+        f"tank {rid} refills to its restart level {{level}}: "
+        + (f"outlet line(s) {names} open again" if names else "it is back in use")
+        + ("; its draw-off of {q} resumes" if asked > 0.0 else ""),
+        level=(lvl, "length", 4), q=(asked, "flow", 4)))
 
 
 def overflow(model: TransientModel, state: RunState, k: int, t: float, y: np.ndarray) -> None:

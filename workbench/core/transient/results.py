@@ -35,6 +35,11 @@ class Event:
     element: str
     """Id of the tank, line or valve's line."""
     message: str
+    template: str = ""
+    """The message with ``{name}`` slots for :attr:`values` (see
+    :mod:`workbench.core.finding_text`); "" when it carries no numbers."""
+    values: tuple = ()
+    """``(name, SI value, quantity kind, digits)`` per slot."""
 
 
 @dataclass(frozen=True)

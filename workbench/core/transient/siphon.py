@@ -25,6 +25,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from workbench.core.finding_text import finding, slots
 from workbench.core.fittings import exit_k
 from workbench.core.model import G
 
@@ -152,16 +153,17 @@ def broken_pressures(model, state, p: np.ndarray, h_a: np.ndarray, h_b: np.ndarr
     return p
 
 
-def source_level_text(model, state, i: int, y: np.ndarray) -> str:
-    """`` with the level of tank X at L m`` for the tank line ``i`` draws from ("" if none)."""
+def source_level(model, state, i: int, y: np.ndarray) -> tuple[str, dict]:
+    """`` with the level of tank X at {level}`` and its value, for the tank line ``i``
+    draws from (``("", {})`` if it draws from no tank)."""
     topo = model.topo
     node = topo.line_from[i] if state.siphon_sign[i] > 0 else topo.line_to[i]
     nid = topo.node_ids[node]
     if nid not in model.tank_ids:
-        return ""
+        return "", {}
     k = model.tank_ids.index(nid)
-    level = model.tank_levels(y[model.nl:model.nl + model.nt])[k]
-    return f" with the level of tank {nid} at {level:.4g} m"
+    level = float(model.tank_levels(y[model.nl:model.nl + model.nt])[k])
+    return f" with the level of tank {nid} at {{level}}", {"level": (level, "length", 4)}
 
 
 def on_break(eq, state, i: int, t: float, y: np.ndarray) -> None:
@@ -178,31 +180,34 @@ def on_break(eq, state, i: int, t: float, y: np.ndarray) -> None:
     state.siphon_frac[i] = model.st_frac[j]
     state.siphon_head[i] = model.st_elev[j] + (
         sl.p_vap - model.system.atmospheric_pressure) / (model.rho * G)
-    where = model.st_frac[j] * line.length
-    state.event(t, "line.siphon_break", lid,
-                f"the liquid column in line {lid} parts {where:.4g} m from {line.from_node!r} "
-                f"(elevation {model.st_elev[j]:.4g} m), where the pressure reaches the vapour "
-                f"pressure{source_level_text(model, state, i, y)}: from here the line passes "
-                "only what the leg up to that point can lift, and the leg beyond runs part-full")
+    text, vals = source_level(model, state, i, y)
+    state.event(t, "line.siphon_break", lid, *slots(
+        f"the liquid column in line {lid} parts {{s}} from {line.from_node!r} (elevation "
+        f"{{z}}), where the pressure reaches the vapour pressure{text}: from here the line "
+        "passes only what the leg up to that point can lift, and the leg beyond runs "
+        "part-full", s=(model.st_frac[j] * line.length, "length", 4),
+        z=(model.st_elev[j], "elevation", 4), **vals))
 
 
 def on_stop(model, state, i: int, t: float, y: np.ndarray) -> None:
     """A broken line's flow fell to zero: nothing more can be lifted over the high point."""
     lid = model.topo.line_ids[i]
     state.siphon_stopped[i] = True
-    state.event(t, "line.siphon_stop", lid,
-                f"the flow in line {lid} stops{source_level_text(model, state, i, y)}: the "
-                "source has fallen to the height the liquid can be lifted over the high point "
-                f"(head {state.siphon_head[i]:.4g} m)")
+    text, vals = source_level(model, state, i, y)
+    state.event(t, "line.siphon_stop", lid, *slots(
+        f"the flow in line {lid} stops{text}: the source has fallen to the height the liquid "
+        "can be lifted over the high point (head {head})",
+        head=(state.siphon_head[i], "head", 4), **vals))
 
 
 def on_restart(model, state, i: int, t: float, y: np.ndarray) -> None:
     """The source rose above the cavity head again: the line restarts from rest."""
     lid = model.topo.line_ids[i]
     state.siphon_stopped[i] = False
-    state.event(t, "line.siphon_restart", lid,
-                f"the source of line {lid} rises above the head the high point needs"
-                f"{source_level_text(model, state, i, y)}: the line restarts")
+    text, vals = source_level(model, state, i, y)
+    state.event(t, "line.siphon_restart", lid, *slots(
+        f"the source of line {lid} rises above the head the high point needs{text}: the "
+        "line restarts", **vals))
 
 
 def start_broken(model, state, breaks: dict, y: np.ndarray) -> None:
@@ -215,12 +220,12 @@ def start_broken(model, state, breaks: dict, y: np.ndarray) -> None:
         state.siphon_sign[i] = -1.0 if y[i] < 0.0 else 1.0
         state.siphon_frac[i] = brk.distance / line.length
         state.siphon_head[i] = brk.stop_head
-        state.event(0.0, "line.siphon_break", lid,
-                    f"the liquid column in line {lid} is parted from the start, "
-                    f"{brk.distance:.4g} m from {line.from_node!r} (elevation "
-                    f"{brk.elevation:.4g} m), where the pressure is at the vapour pressure"
-                    f"{source_level_text(model, state, i, y)}: the line passes only what the "
-                    "leg up to that point can lift")
+        text, vals = source_level(model, state, i, y)
+        state.event(0.0, "line.siphon_break", lid, *slots(
+            f"the liquid column in line {lid} is parted from the start, {{s}} from "
+            f"{line.from_node!r} (elevation {{z}}), where the pressure is at the vapour "
+            f"pressure{text}: the line passes only what the leg up to that point can lift",
+            s=(brk.distance, "length", 4), z=(brk.elevation, "elevation", 4), **vals))
         if brk.flow == 0.0:
             on_stop(model, state, i, 0.0, y)
 
@@ -231,8 +236,6 @@ def siphon_findings(model, state, levels: np.ndarray):
 
     ``levels`` are the tank levels at the end of the run [m] (tanks x times, last column).
     """
-    from workbench.core.model import Finding
-
     findings, notes = [], {}
     for i, lid in enumerate(model.topo.line_ids):
         if not state.siphon_broken[i]:
@@ -243,18 +246,21 @@ def siphon_findings(model, state, levels: np.ndarray):
         topo = model.topo
         node = topo.line_from[i] if state.siphon_sign[i] > 0 else topo.line_to[i]
         nid = topo.node_ids[node]
-        after = ""
+        after, vals = "", {name: (v, kind, d) for name, v, kind, d in first.values}
         if stop is not None and nid in model.tank_ids and nid not in state.drain_times:
             k = model.tank_ids.index(nid)
             level = float(levels[k, -1]) if levels.size else float("nan")
             notes[nid] = (f"does not drain: the siphon over line {lid} breaks and stops at "
                           f"level {level:.4g} m")
-            after = f"; tank {nid} {notes[nid]} (t = {stop.time:.4g} s)"
-        findings.append(Finding(
+            after = (f"; tank {nid} does not drain: the siphon over line {lid} breaks and "
+                     f"stops at level {{stop_level}} (t = {stop.time:.4g} s)")
+            vals["stop_level"] = (level, "length", 4)
+        findings.append(finding(
             "line.siphon_break", lid,
-            f"at t = {first.time:.4g} s {first.message}{after}. A siphon that breaks is not a "
-            "surge matter, but the flows and times after the break are those of a part-full "
-            "leg; lower the high point, or vent it only where air may enter safely",
+            f"at t = {first.time:.4g} s {first.template or first.message}{after}. A siphon "
+            "that breaks is not a surge matter, but the flows and times after the break are "
+            "those of a part-full leg; lower the high point, or vent it only where air may "
+            "enter safely",
             "danger", "energy equation of the rising leg with its high point at the vapour "
-            "pressure (rigid column)"))
+            "pressure (rigid column)", **vals))
     return findings, notes

@@ -81,9 +81,11 @@ class RunState:
             siphon_sign=np.ones(n_lines),
         )
 
-    def event(self, t: float, code: str, element: str, message: str) -> None:
-        """List an event at time ``t`` [s]."""
-        self.events.append(Event(float(t), code, element, message))
+    def event(self, t: float, code: str, element: str, message: str, template: str = "",
+              values: tuple = ()) -> None:
+        """List an event at time ``t`` [s] (``template``/``values``: its numbers kept, see
+        :func:`workbench.core.finding_text.slots`)."""
+        self.events.append(Event(float(t), code, element, message, template, values))
 
     def note_peaks(self, q: np.ndarray) -> None:
         """Raise the flow peaks to the magnitudes of ``q`` [m^3/s]."""

@@ -10,6 +10,7 @@ import math
 
 import numpy as np
 
+from workbench.core.finding_text import finding, slots
 from workbench.core.model import G, Finding
 from workbench.core.transient.model import TransientModel
 from workbench.core.transient.results import Event
@@ -52,15 +53,14 @@ def submergence(model: TransientModel, t: np.ndarray, flows: np.ndarray, levels:
             level = float(np.interp(when, t, levels[k]))
             rule = (f"the submergence a vortex-prevention rule asks for (S = D(1 + 2.3 Fr), "
                     f"Fr {fr[j]:.3g})")
-            events.append(Event(
-                when, "outlet.submergence", end,
-                f"the depth over the outlet into line {lid}, {level:.4g} m, falls below {rule}: "
-                "a vortex can draw air in"))
+            events.append(Event(when, "outlet.submergence", end, *slots(
+                f"the depth over the outlet into line {lid}, {{level}}, falls below {rule}: "
+                "a vortex can draw air in", level=(level, "length", 4))))
             start = "from the start" if j == 0 else f"from about t = {when:.4g} s"
-            findings.append(Finding(
+            findings.append(finding(
                 "outlet.submergence", lid,
                 f"during the run the depth over the outlet of {end!r} into line {lid} is below "
-                f"{rule} {start}, at a level of {level:.4g} m: air can be drawn in by a vortex "
+                f"{rule} {start}, at a level of {{level}}: air can be drawn in by a vortex "
                 "from then on, and the flows and drained time after it assume none is",
-                "caution", SUBMERGENCE_SOURCE))
+                "caution", SUBMERGENCE_SOURCE, level=(level, "length", 4)))
     return events, findings
