@@ -185,3 +185,28 @@ def test_a_sealed_gas_space_never_falls_below_the_vapour_pressure():
     assert res.success, res.message
     assert res.gas_pressures.min() == pytest.approx(WATER.vapor_pressure - P_ATM, abs=1e-6)
     assert any(w.code == "tank.vapor" and w.severity == "danger" for w in res.warnings)
+
+
+@pytest.mark.parametrize(("fluid", "friction", "duration"), [
+    (WATER, 0.02, 20_000.0),  # turbulent: the column rings down through reversals
+    (FluidProps("oil", 900.0, 0.5, None, None, 293.15), None, 200_000.0),  # laminar, creeping
+])
+def test_a_sealed_tank_draining_into_a_lower_reservoir_settles_at_the_boyle_balance(
+        fluid, friction, duration):
+    """Sealed tank (gas 1 m deep at p_atm, shell 4 m) joined to a constant-level reservoir
+    whose surface is 1 m below the tank bottom: at rest the heads balance,
+    p_atm (4 - 3)/(4 - h) - p_atm + rho g (h + 1 m) = 0 (Boyle, hydrostatics; closed form
+    here), with nothing stopping the line, so the level settles there to 1e-6; the stop
+    is listed (tank.sealed_stop) once, as an event and a finding."""
+    tank = Reservoir("T", "tank", 0.0, 3.0, shape=TankShape("vertical_cylinder", diameter=2.0),
+                     height=4.0, vent=Vent(0.0))
+    low = Reservoir("R", "constant_level", -2.0, 1.0)
+    system = System("t", fluid, {"T": tank, "R": low}, {}, {},
+                    {"L1": Line("L1", "T", "R", 2.0, 0.02, friction_factor=friction)},
+                    simulation=SimulationSettings(duration, "at_rest", None, None))
+    res = simulate(system)
+    assert res.success, res.message
+    h_eq = brentq(lambda h: P_ATM / (4.0 - h) - P_ATM + fluid.density * G * (h + 1.0), 0.0, 3.0)
+    assert res.levels[0, -1] == pytest.approx(h_eq, rel=1e-6)
+    assert [e.code for e in res.events].count("tank.sealed_stop") == 1
+    assert [w.code for w in res.warnings].count("tank.sealed_stop") == 1
