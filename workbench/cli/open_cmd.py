@@ -29,5 +29,20 @@ def run(args: argparse.Namespace) -> ExitCode:
     from workbench.app.factory import make_app
 
     app = make_app(path=path, offer_new=path is None, unit_system=args.units)
-    code = app.run()
-    return ExitCode(code) if code in {c.value for c in ExitCode} else ExitCode.OK
+    result = app.run()
+    return exit_status(result, app.return_code)
+
+
+def exit_status(result: object, return_code: int | None) -> ExitCode:
+    """The process status of a finished app.
+
+    ``result`` is what the app exited with (``app.exit(1)`` after a project that could not
+    be opened); ``return_code`` is Textual's: non-zero when the app died of an unhandled
+    exception (its traceback is already printed), and then ``run()`` returns ``None``.
+    """
+    if return_code:
+        print("workbench open: internal error: the workbench stopped on an unexpected "
+              "exception (above). This is a bug: please report it with the project file; "
+              "unsaved edits are offered again from the recovery copy on the next open.", file=sys.stderr)
+        return ExitCode.INTERNAL
+    return ExitCode(result) if result in {c.value for c in ExitCode} else ExitCode.OK
