@@ -2,15 +2,98 @@
 
 Textual's footer keeps to one row, which at 80 columns hides most keys; this one wraps
 onto a second row. It also redraws when the terminal has not reported focus (a detached
-multiplexer), so the keys are never missing.
+multiplexer), so the keys are never missing. Each key is a :class:`KeyCap` of our own
+(Textual's key widget is in a private module), drawn with the footer's theme variables.
 """
 
 from __future__ import annotations
 
+from rich.text import Text
 from textual.app import ComposeResult
 from textual.containers import HorizontalGroup
+from textual.reactive import reactive
+from textual.widget import Widget
 from textual.widgets import Footer
-from textual.widgets._footer import FooterKey
+
+
+class KeyCap(Widget):
+    """One key of the footer: the key as on the key cap, then what it does.
+
+    A click runs the key as if pressed; a key that cannot run now is dimmed and rings the bell.
+    """
+
+    ALLOW_SELECT = False
+    COMPONENT_CLASSES = {"keycap--key", "keycap--description"}
+    DEFAULT_CSS = """
+    KeyCap {
+        width: auto;
+        height: 1;
+        text-wrap: nowrap;
+        background: $footer-item-background;
+        .keycap--key {
+            color: $footer-key-foreground;
+            background: $footer-key-background;
+            text-style: bold;
+            padding: 0 1;
+        }
+        .keycap--description {
+            padding: 0 1 0 0;
+            color: $footer-description-foreground;
+            background: $footer-description-background;
+        }
+        &:hover {
+            color: $footer-key-foreground;
+            background: $block-hover-background;
+        }
+        &.-disabled {
+            text-style: dim;
+        }
+        &.-compact {
+            margin-right: 1;
+            .keycap--key {
+                padding: 0;
+            }
+            .keycap--description {
+                padding: 0 0 0 1;
+            }
+        }
+    }
+    """
+
+    compact = reactive(True)
+    """Keys without padding, one space apart."""
+
+    def __init__(self, key: str, key_display: str, description: str, *,
+                 disabled: bool = False, tooltip: str = "") -> None:
+        super().__init__(classes="-disabled" if disabled else "")
+        self.key = key
+        self.key_display = key_display
+        self.description = description
+        self._key_disabled = disabled
+        self.set_reactive(Widget.shrink, False)
+        if tooltip:
+            self.tooltip = tooltip
+
+    def render(self) -> Text:
+        key_pad = self.get_component_styles("keycap--key").padding
+        text_pad = self.get_component_styles("keycap--description").padding
+        parts = [(" " * key_pad.left + self.key_display + " " * key_pad.right,
+                  self.get_component_rich_style("keycap--key"))]
+        if self.description:
+            parts.append((" " * text_pad.left + self.description + " " * text_pad.right,
+                          self.get_component_rich_style("keycap--description")))
+        text = Text.assemble(*parts)
+        text.stylize_before(self.rich_style)
+        return text
+
+    def on_mouse_down(self) -> None:
+        if self._key_disabled:
+            self.app.bell()
+        else:
+            self.app.simulate_key(self.key)
+
+    def watch_compact(self, compact: bool) -> None:
+        self.set_class(compact, "-compact")
 
 
 class KeyFooter(Footer):
@@ -40,7 +123,7 @@ class KeyFooter(Footer):
             if binding.show and binding.action not in seen:
                 seen[binding.action] = (binding, enabled, tooltip)
         width = max(self.app.size.width, 40)
-        rows: list[list[FooterKey]] = [[], []]
+        rows: list[list[KeyCap]] = [[], []]
         used = [0, 0]
         row = 0
         for binding, enabled, tooltip in seen.values():
@@ -50,8 +133,7 @@ class KeyFooter(Footer):
                 row = 1
             used[row] += need
             rows[row].append(
-                FooterKey(binding.key, key_display, binding.description, binding.action,
-                          disabled=not enabled, tooltip=tooltip).data_bind(
-                              compact=Footer.compact))
+                KeyCap(binding.key, key_display, binding.description, disabled=not enabled,
+                       tooltip=tooltip).data_bind(compact=Footer.compact))
         for keys in rows:
             yield HorizontalGroup(*keys, classes="footer-row")
