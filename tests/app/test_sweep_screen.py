@@ -9,6 +9,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
+import pytest
 from textual.app import App
 
 PROJECTS = Path(__file__).resolve().parents[2] / "projects"
@@ -143,6 +144,7 @@ async def test_f9_in_the_workbench_opens_the_sweep_screen_on_the_open_project() 
         assert pilot.app.screen.project is pilot.app.project
 
 
+@pytest.mark.slow
 async def test_a_simulated_sweep_runs_in_worker_processes_and_reports_drain_times() -> None:
     from workbench.core.transient import simulate
     from workbench.project.document import set_value

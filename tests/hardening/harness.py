@@ -4,7 +4,7 @@ A call ends well when it exits 0 with a result (for ``--json``: an object whose 
 is finite) or exits 1 with the project's own message on stderr, starting with the file name.
 Anything else is a failure: another exit code, an exception escaping ``main``, the word
 "Traceback" on stderr, a NaN or infinity in JSON presented as valid, or a call that runs
-past its time limit (a hang).
+past its CPU-time limit (a hang).
 """
 
 from __future__ import annotations
@@ -14,6 +14,7 @@ import io
 import json
 import math
 import os
+import resource
 import signal
 import subprocess
 import sys
@@ -26,7 +27,7 @@ from pathlib import Path
 ROOT = Path(__file__).resolve().parents[2]
 PYTHON = sys.executable
 
-#: Per-call time limits [s]; generous next to the tens of milliseconds a call takes.
+#: Per-call CPU-time limits [s]; generous next to the tens of milliseconds a call takes.
 TIME_LIMIT = {"check": 20.0, "solve": 20.0, "simulate": 30.0, "format": 20.0}
 
 
@@ -66,23 +67,22 @@ class Outcome:
 
 @contextlib.contextmanager
 def time_limit(seconds: float):
-    """Raise :class:`Hang` after ``seconds`` of wall time (SIGALRM, main thread only).
+    """Raise :class:`Hang` after ``seconds`` of this process's CPU time (SIGPROF).
 
-    pytest-timeout uses the same timer: its remaining time is put back afterwards.
+    CPU time, not wall time: a busy machine slows a call down but does not make it use more
+    CPU, so the limit catches a runaway loop without failing on a loaded CI machine. A call
+    that blocks without using CPU is caught by pytest-timeout's generous wall limit.
     """
-    def on_alarm(signum, frame):
-        raise Hang(f"still running after {seconds} s")
+    def on_limit(signum, frame):
+        raise Hang(f"used more than {seconds} s of CPU")
 
-    old_handler = signal.signal(signal.SIGALRM, on_alarm)
-    old_delay, _ = signal.setitimer(signal.ITIMER_REAL, seconds)
-    t0 = time.monotonic()
+    old_handler = signal.signal(signal.SIGPROF, on_limit)
+    signal.setitimer(signal.ITIMER_PROF, seconds)
     try:
         yield
     finally:
-        signal.setitimer(signal.ITIMER_REAL, 0)
-        signal.signal(signal.SIGALRM, old_handler)
-        if old_delay:
-            signal.setitimer(signal.ITIMER_REAL, max(old_delay - (time.monotonic() - t0), 0.01))
+        signal.setitimer(signal.ITIMER_PROF, 0)
+        signal.signal(signal.SIGPROF, old_handler)
 
 
 def _own_frame(tb) -> str:
@@ -184,17 +184,29 @@ def run_cli(argv: list[str], *, project_path: str | None = None,
 
 def run_subprocess(argv: list[str], *, project_path: str | None = None,
                    limit: float = 60.0) -> Outcome:
-    """The same judgement on a real ``python -m workbench`` process."""
+    """The same judgement on a real ``python -m workbench`` process.
+
+    ``limit`` is CPU time [s], enforced by the kernel (``RLIMIT_CPU``); the wall-clock
+    timeout is only a net for a process that blocks, and is many times longer.
+    """
     env = dict(os.environ, NO_COLOR="1", PYTHONUTF8="1")
+
+    def cap_cpu():
+        resource.setrlimit(resource.RLIMIT_CPU, (math.ceil(limit), math.ceil(limit) + 5))
+
     t0 = time.perf_counter()
     try:
         proc = subprocess.run([PYTHON, "-m", "workbench", *argv], capture_output=True,
-                              text=True, timeout=limit, cwd=ROOT, env=env)
+                              text=True, timeout=20 * limit, cwd=ROOT, env=env,
+                              preexec_fn=cap_cpu)
         outcome = Outcome(argv, proc.returncode, proc.stdout, proc.stderr,
                           time.perf_counter() - t0)
+        if proc.returncode in (-signal.SIGXCPU, -signal.SIGKILL):
+            outcome.error = f"Hang: used more than {limit} s of CPU"
     except subprocess.TimeoutExpired as exc:
         outcome = Outcome(argv, None, str(exc.stdout or ""), str(exc.stderr or ""),
-                          time.perf_counter() - t0, f"Hang: still running after {limit} s", "?")
+                          time.perf_counter() - t0, f"Hang: still running after {20 * limit} s",
+                          "?")
     return judge(outcome, project_path)
 
 

@@ -107,6 +107,7 @@ def test_mutated_demo_files_end_in_a_result_or_a_message(tmp_path, start):
     _assert_all_ended_well(failures)
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize("seed", range(HEAVY))
 def test_files_of_several_megabytes_end_in_a_result_or_a_message(tmp_path, seed):
     case = mutate(10_000 + seed, heavy=True)
@@ -118,6 +119,7 @@ def test_files_of_several_megabytes_end_in_a_result_or_a_message(tmp_path, seed)
     _assert_all_ended_well(failures)
 
 
+@pytest.mark.slow
 def test_a_damaged_file_is_refused_in_a_real_process_without_a_traceback(tmp_path):
     """A few cases through ``python -m workbench``: what a user on a shell actually sees."""
     picked = [mutate(seed) for seed in (1, 2)] + [mutate(10_000, heavy=True)]

@@ -8,6 +8,8 @@ copy is gone with the edit in the file. A clean quit leaves no copy behind.
 
 from __future__ import annotations
 
+import pytest
+
 from tests.app.conftest import SIZE, TRANSFER, choose_entry, make, settle, type_into
 
 LINE = "310-PW-12"
@@ -29,6 +31,7 @@ class KeptCopies:
         return "".join(p.read_text() for p in self.files())
 
 
+@pytest.mark.slow
 async def test_edits_survive_a_session_that_dies_and_come_back_on_the_next_open(project_file):
     from workbench.app.screens.dialogs import AskScreen
 

@@ -184,6 +184,7 @@ def test_a_drain_that_loses_volume_without_flow_is_caught():
     assert "volume" in {v.check for v in found}, found
 
 
+@pytest.mark.slow
 def test_tanks_joined_only_to_each_other_keep_their_total_on_a_coarse_grid(tmp_path):
     # Two tanks swinging as a U-tube (period about 15 s), sampled every 60 s: the grid
     # cannot resolve the flows, yet the sum of the volumes is invariant (mass conservation;
