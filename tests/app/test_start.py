@@ -24,8 +24,10 @@ async def test_the_app_built_as_the_cli_builds_it_opens_a_demo_and_solves_it(dem
     from workbench.core.network import solve_steady
     from workbench.project.document import load_project
 
+    for source in PROJECTS.iterdir():  # a demo may read a file beside it (a level log)
+        if source.is_file():
+            (tmp_path / source.name).write_bytes(source.read_bytes())
     path = tmp_path / demo.name
-    path.write_bytes(demo.read_bytes())
     app = make_app(path=path, debounce=0.05, prebuild_forms=False)
     async with app.run_test(size=SIZE) as pilot:
         await settle(pilot, timeout=120.0)

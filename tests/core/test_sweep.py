@@ -16,13 +16,17 @@ import numpy as np
 import pytest
 from scipy.optimize import brentq
 
+from workbench.core.friction import friction_with_slope
 from workbench.core.model import G
-from workbench.core.sweep import (
-    LineCases,
-    colebrook_friction,
-    darcy_friction_vectorised,
-    solve_line_cases,
-)
+from workbench.core.sweep import LineCases, solve_line_cases
+
+
+def colebrook_friction(re, rr):
+    """The sweep's friction law on the turbulent range (Re >= 4000): Colebrook."""
+    return friction_with_slope(re, rr)
+
+
+darcy_friction_vectorised = friction_with_slope
 
 # A grid over the turbulent range Colebrook covers in practice: Re 5e3..1e8, eps/D 0..0.05.
 RE = np.logspace(math.log10(5e3), 8, 120)
@@ -53,7 +57,7 @@ def test_colebrook_matches_fluids_colebrook_closed_form_to_1e_10(re: float, rr: 
     assert float(f) == pytest.approx(fluids.friction.Colebrook(re, rr), rel=1e-10)
 
 
-def test_colebrook_derivative_matches_a_central_difference() -> None:
+def test_the_friction_slope_matches_a_central_difference() -> None:
     # Independent check: central finite difference of the same function, relative step 1e-6.
     h = 1e-6
     f_plus, _ = colebrook_friction(RE_GRID * (1 + h), RR_GRID)
@@ -271,10 +275,10 @@ def test_viscous_cases_agree_with_the_network_solver_from_laminar_to_turbulent(v
         assert float(h[0]) == pytest.approx(dh, rel=1e-9)
 
 
-def test_both_friction_implementations_give_the_same_flows() -> None:
-    # Newton on Colebrook (ours) against the network solver's Clamond (2009) implementation:
-    # two independent solutions of the same law must agree to rounding.
-    from workbench.core.sweep import FRICTION_METHODS
+def test_the_sweep_uses_the_network_solvers_friction_law_to_the_last_bit() -> None:
+    # One friction law in the core: the friction factor the sweep reports at each solved
+    # Reynolds number is core.friction's default method there, bit for bit, in every regime.
+    from workbench.core.friction import friction_blend
 
     rng = np.random.default_rng(3)
     n = 500
@@ -282,16 +286,15 @@ def test_both_friction_implementations_give_the_same_flows() -> None:
         head_from=rng.uniform(0.05, 30.0, n), head_to=0.0, length=rng.uniform(1.0, 300.0, n),
         diameter=rng.uniform(0.01, 0.3, n), roughness=rng.choice([0.0, 4.5e-5, 1.5e-4], n),
         density=998.0, viscosity=10 ** rng.uniform(-3.0, -0.5, n), k_forward=rng.uniform(0.5, 8.0, n)))
-    assert set(FRICTION_METHODS) == {"colebrook_blend", "network"}
-    ours = solve_line_cases(cases, method="colebrook_blend")
-    network = solve_line_cases(cases, method="network")
-    assert ours.success and network.success
-    np.testing.assert_allclose(ours.flow, network.flow, rtol=1e-11)
-    assert np.any(ours.reynolds < 2000) and np.any((ours.reynolds > 2000) & (ours.reynolds < 4000))
+    result = solve_line_cases(cases)
+    assert result.success
+    expected = friction_blend(result.reynolds, cases.roughness / cases.diameter)
+    np.testing.assert_array_equal(result.friction_factor, expected)
+    assert np.any(result.reynolds < 2000) and np.any((result.reynolds > 2000) & (result.reynolds < 4000))
 
 
 def test_an_unknown_friction_method_is_refused_with_the_known_names() -> None:
     cases = LineCases.from_mapping(dict(head_from=1.0, head_to=0.0, length=1.0, diameter=0.1,
                                         roughness=0.0, density=1000.0, viscosity=1e-3, k_forward=1.5))
-    with pytest.raises(ValueError, match="colebrook_blend"):
+    with pytest.raises(ValueError, match="laminar_blend_colebrook"):
         solve_line_cases(cases, method="moody")

@@ -231,6 +231,39 @@ def friction_blend(re, rel_roughness):
         return phi / re
 
 
+def friction_with_slope(re, rel_roughness):
+    r"""Default-method friction factor and its slope, for solvers iterating on velocity.
+
+    :math:`f = \phi/Re` and :math:`df/dRe = (\phi' - \phi/Re)/Re` from
+    :func:`friction_re_product` (laminar 64/Re, the C1 blend, Colebrook by Clamond 2009):
+    the one vectorised Colebrook solution of the core, shared by the network solver's line
+    model and the sweep engine (:mod:`workbench.core.sweep`).
+
+    Parameters
+    ----------
+    re : array_like
+        Reynolds number [-]; its absolute value is used (``Re = 0`` gives ``inf``).
+    rel_roughness : array_like
+        eps/D [-].
+
+    Returns
+    -------
+    f, df_dre : ndarray
+        Darcy friction factor [-] and its derivative with respect to ``|Re|`` [-].
+
+    Examples
+    --------
+    >>> f, df = friction_with_slope(1000.0, 0.0)
+    >>> float(f), float(df)
+    (0.064, -6.4e-05)
+    """
+    re = _as_array(re)
+    phi, dphi = friction_re_product(re, rel_roughness)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        f = phi / re
+        return f, (dphi - f) / re
+
+
 def friction_churchill(re, rel_roughness):
     r"""Churchill (1977) friction factor: one continuous expression for every regime.
 

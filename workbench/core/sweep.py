@@ -5,10 +5,10 @@ single-line problem hundreds or thousands of times with a different diameter, le
 temperature or valve opening. Solved one case at a time that is a loop of scalar root
 finds; here the whole array of cases is solved together in numpy:
 
-* the Darcy friction factor comes from the Colebrook (1939) equation solved by Newton's
-  method on ``x = 1/sqrt(f)`` for every case at once (:func:`colebrook_friction`), laminar
-  ``64/Re`` below Re 2000 and a smooth blend across the 2000-4000 band
-  (:func:`darcy_friction_vectorised`);
+* the Darcy friction factor and its slope come from the core's one friction law
+  (:func:`workbench.core.friction.friction_with_slope`: laminar ``64/Re`` below Re 2000,
+  Colebrook (1939) by Clamond (2009) above 4000, a smooth blend between), the same the
+  network solver's line model uses;
 * the flow of each case between its two fixed heads comes from a safeguarded Newton
   iteration on the mean velocity, bracketed so that every case converges
   (:func:`solve_line_cases`).
@@ -18,177 +18,29 @@ Everything here is SI floats and numpy arrays; no file I/O, pint or UI.
 
 from __future__ import annotations
 
-import math
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass, fields
 
 import numpy as np
 
 from workbench.core.fittings import exit_k
+from workbench.core.friction import DEFAULT_METHOD, friction_with_slope
 from workbench.core.model import G, System, receiver_head, reservoir_head
 
 __all__ = [
     "FRICTION_METHODS",
     "LineCases",
     "LineCasesResult",
-    "colebrook_friction",
-    "darcy_friction_vectorised",
     "line_cases_from_systems",
     "single_line_ends",
     "solve_line_cases",
 ]
 
-_LN10 = math.log(10.0)
-
-#: Reynolds number below which flow is taken as laminar [-] (common practice, no source).
-RE_LAMINAR = 2000.0
-#: Reynolds number above which flow is taken as fully turbulent [-] (common practice, no source).
-RE_TURBULENT = 4000.0
-
-
-def _swamee_jain(re: np.ndarray, rr: np.ndarray) -> np.ndarray:
-    """Swamee & Jain (1976) explicit estimate of 1/sqrt(f): the Newton starting point."""
-    arg = rr / 3.7 + 5.74 / re**0.9
-    return -2.0 * np.log10(arg)
-
-
-def colebrook_friction(
-    re, rel_roughness, *, rtol: float = 1e-14, max_iter: int = 20
-) -> tuple[np.ndarray, np.ndarray]:
-    r"""Darcy friction factor from the Colebrook equation, for an array of cases.
-
-    Solves, for every element at once,
-
-    .. math:: \frac{1}{\sqrt f} = -2\log_{10}\left(\frac{\varepsilon/D}{3.7}
-              + \frac{2.51}{Re\sqrt f}\right)
-
-    by Newton's method on :math:`x = 1/\sqrt f`, started from the Swamee & Jain (1976)
-    explicit estimate. The residual ``F(x) = x + 2 log10(a + b x)`` with
-    ``a = (eps/D)/3.7`` and ``b = 2.51/Re`` is increasing and concave in x, so Newton's
-    iterates from that start converge monotonically; three to four steps reach machine
-    precision.
-
-    Parameters
-    ----------
-    re : array_like
-        Reynolds number, > 0 [-].
-    rel_roughness : array_like
-        Relative roughness eps/D, >= 0 [-].
-    rtol : float
-        Relative tolerance on ``x`` [-].
-    max_iter : int
-        Newton step limit.
-
-    Returns
-    -------
-    f : ndarray
-        Darcy friction factor [-].
-    df_dre : ndarray
-        Derivative of f with respect to Re [-], from implicit differentiation of the
-        Colebrook equation (used by the flow solver's Newton steps).
-
-    References
-    ----------
-    Colebrook, C. F. (1939). Turbulent flow in pipes, with particular reference to the
-    transition region between the smooth and rough pipe laws. J. ICE 11(4), 133-156.
-    Swamee, P. K. and Jain, A. K. (1976). Explicit equations for pipe-flow problems.
-    J. Hydraulics Div. ASCE 102(HY5), 657-664.
-
-    Examples
-    --------
-    >>> f, _ = colebrook_friction(1e5, 1e-4)
-    >>> round(float(f), 8)
-    0.01851387
-    """
-    re = np.asarray(re, dtype=float)
-    rr = np.asarray(rel_roughness, dtype=float)
-    re, rr = np.broadcast_arrays(re, rr)
-    a = rr / 3.7
-    b = 2.51 / re
-    x = _swamee_jain(re, rr)
-    for _ in range(max_iter):
-        u = a + b * x
-        fx = x + 2.0 * np.log10(u)
-        dfx = 1.0 + 2.0 * b / (_LN10 * u)
-        step = fx / dfx
-        x = x - step
-        if np.all(np.abs(step) <= rtol * np.abs(x)):
-            break
-    u = a + b * x
-    # dx/dRe from F(x, Re) = 0: dx/dRe = -(dF/dRe)/(dF/dx), dF/dRe = 2/(ln10 u) * (-b x/Re)
-    dfdx = 1.0 + 2.0 * b / (_LN10 * u)
-    dfdre = -2.0 * b * x / (_LN10 * u * re)
-    dx_dre = -dfdre / dfdx
-    f = 1.0 / (x * x)
-    df_dre = -2.0 / (x * x * x) * dx_dre
-    return f, df_dre
-
-
-def darcy_friction_vectorised(re, rel_roughness) -> tuple[np.ndarray, np.ndarray]:
-    r"""Darcy friction factor in every regime, continuous and differentiable in Re.
-
-    * laminar, :math:`Re \le 2000`: :math:`f = 64/Re` (Hagen-Poiseuille);
-    * turbulent, :math:`Re \ge 4000`: Colebrook (1939), :func:`colebrook_friction`;
-    * between them a smoothstep blend :math:`f = (1-w)\,64/Re + w\,f_C`,
-      :math:`w = 3s^2 - 2s^3`, :math:`s = (Re-2000)/2000`. Friction in this band is
-      uncertain by up to about 2x (common practice, no source): the blend only keeps
-      the iteration smooth.
-
-    Parameters
-    ----------
-    re : array_like
-        Reynolds number, >= 0 [-] (zero gives an infinite f that the flow solver never
-        multiplies by a non-zero velocity).
-    rel_roughness : array_like
-        Relative roughness eps/D [-].
-
-    Returns
-    -------
-    f, df_dre : ndarray
-        Friction factor [-] and its derivative with respect to Re [-].
-    """
-    re = np.asarray(re, dtype=float)
-    rr = np.asarray(rel_roughness, dtype=float)
-    re, rr = np.broadcast_arrays(re, rr)
-    with np.errstate(divide="ignore"):
-        f_lam = 64.0 / re
-        df_lam = -64.0 / (re * re)
-    f = f_lam.copy()
-    df = df_lam.copy()
-    turb = re > RE_LAMINAR
-    if np.any(turb):
-        fc, dfc = colebrook_friction(re[turb], rr[turb])
-        s = np.clip((re[turb] - RE_LAMINAR) / (RE_TURBULENT - RE_LAMINAR), 0.0, 1.0)
-        w = s * s * (3.0 - 2.0 * s)
-        dw = np.where(s < 1.0, 6.0 * s * (1.0 - s) / (RE_TURBULENT - RE_LAMINAR), 0.0)
-        fl, dfl = f_lam[turb], df_lam[turb]
-        f[turb] = (1.0 - w) * fl + w * fc
-        df[turb] = (1.0 - w) * dfl + w * dfc + dw * (fc - fl)
-    return f, df
-
-
-def network_friction(re, rel_roughness) -> tuple[np.ndarray, np.ndarray]:
-    """The network solver's friction law (:func:`workbench.core.friction.friction_re_product`).
-
-    The same laminar/blend/Colebrook law as :func:`darcy_friction_vectorised`, with Colebrook
-    solved by Clamond's (2009) method instead of Newton's: a second, independent
-    implementation, and the one to pick to match ``solve_steady`` bit for bit.
-    """
-    from workbench.core.friction import friction_re_product
-
-    re = np.asarray(re, dtype=float)
-    phi, dphi = friction_re_product(re, rel_roughness)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        return phi / re, (dphi - phi / re) / re
-
-
 VectorisedFriction = Callable[[np.ndarray, np.ndarray], tuple[np.ndarray, np.ndarray]]
 
-#: Vectorised friction methods by name: each maps (Re, eps/D) to (f, df/dRe).
-FRICTION_METHODS: dict[str, VectorisedFriction] = {
-    "colebrook_blend": darcy_friction_vectorised,
-    "network": network_friction,
-}
+#: Vectorised friction laws by name: each maps (Re, eps/D) to (f, df/dRe). One law, the
+#: core's default (:mod:`workbench.core.friction`).
+FRICTION_METHODS: dict[str, VectorisedFriction] = {DEFAULT_METHOD: friction_with_slope}
 
 
 @dataclass(frozen=True)
@@ -305,7 +157,7 @@ def _resistance(v, cases: LineCases, k_const, n_exit, friction: VectorisedFricti
 def solve_line_cases(
     cases: LineCases,
     *,
-    method: str = "colebrook_blend",
+    method: str = DEFAULT_METHOD,
     rtol: float = 1e-12,
     max_iter: int = 60,
 ) -> LineCasesResult:
@@ -320,16 +172,16 @@ def solve_line_cases(
     flow, 1 for turbulent, blended between (:func:`workbench.core.fittings.exit_k`, the
     same as the network solver's line model). The residual
     :math:`\phi(V) = K_t(V)V^2/2g - |\Delta H|` is increasing in V, negative at V = 0; the
-    solver brackets the root, then takes Newton steps with the analytic derivative
-    (including df/dRe from the friction method) and bisects whenever a step leaves the
-    bracket, so every case converges.
+    solver brackets the root (:func:`_bracket`), then takes Newton steps with the analytic
+    derivative (including df/dRe) and bisects whenever a step leaves the bracket
+    (:func:`_newton_bisect`), so every case converges.
 
     Parameters
     ----------
     cases : LineCases
         The cases [SI].
     method : str
-        Name of a vectorised friction method in :data:`FRICTION_METHODS`.
+        Name of a vectorised friction law in :data:`FRICTION_METHODS`.
     rtol : float
         Relative tolerance on the velocity [-].
     max_iter : int
@@ -362,7 +214,6 @@ def solve_line_cases(
     target = np.abs(dh)
     k_const = np.where(sign > 0, cases.k_forward, cases.k_reverse)
     n_exit = np.where(sign > 0, cases.exit_forward, cases.exit_reverse)
-    two_g = 2.0 * G
     moving = (target > 0.0) & np.isfinite(k_const) & (cases.diameter > 0.0)
 
     v = np.zeros(cases.shape)
@@ -370,40 +221,60 @@ def solve_line_cases(
     iterations = 0
     if np.any(moving):
         sub = LineCases(**{f.name: getattr(cases, f.name)[moving] for f in fields(cases)})
-        kc = k_const[moving]
-        ne = n_exit[moving]
-        h = target[moving]
-        # Start: turbulent guess f = 0.02; bracket [0, hi] with phi(hi) > 0.
-        v_k = np.sqrt(two_g * h / (0.02 * sub.length / sub.diameter + kc + ne + 1e-9))
-        lo = np.zeros_like(h)
-        hi = np.sqrt(two_g * h / np.maximum(kc + ne, 1e-9))
-        for _ in range(80):
-            k_hi, _, _, _ = _resistance(hi, sub, kc, ne, friction)
-            short = k_hi * hi * hi / two_g < h
-            if not np.any(short):
-                break
-            lo = np.where(short, hi, lo)
-            hi = np.where(short, hi * 4.0, hi)
-        v_k = np.clip(v_k, lo, hi)
-        done = np.zeros(h.shape, dtype=bool)
-        for iterations in range(1, max_iter + 1):  # noqa: B007 - count is reported
-            k_t, dk, _, _ = _resistance(v_k, sub, kc, ne, friction)
-            phi = k_t * v_k * v_k / two_g - h
-            dphi = (2.0 * k_t * v_k + dk * v_k * v_k) / two_g
-            lo = np.where(phi < 0.0, v_k, lo)
-            hi = np.where(phi > 0.0, v_k, hi)
-            with np.errstate(divide="ignore", invalid="ignore"):
-                v_new = v_k - phi / dphi
-            outside = ~np.isfinite(v_new) | (v_new < lo) | (v_new > hi)
-            v_new = np.where(outside, 0.5 * (lo + hi), v_new)
-            step = np.abs(v_new - v_k)
-            done = (step <= rtol * np.abs(v_new)) | (phi == 0.0)
-            v_k = v_new
-            if np.all(done):
-                break
-        v[moving] = v_k
-        converged[moving] = done
-    v = sign * v
+        v[moving], converged[moving], iterations = _newton_bisect(
+            sub, k_const[moving], n_exit[moving], target[moving], friction, rtol, max_iter)
+    return _result(cases, sign * v, dh, converged, iterations, friction)
+
+
+def _bracket(sub: LineCases, kc, ne, h, friction: VectorisedFriction):
+    """A start and a bracket ``[lo, hi]`` of each case's velocity, ``phi(lo) <= 0 < phi(hi)``.
+
+    Start from a turbulent guess ``f = 0.02``; ``hi`` from the minor losses alone, grown
+    fourfold until the loss at ``hi`` exceeds the head (at most 80 times).
+    """
+    two_g = 2.0 * G
+    v_start = np.sqrt(two_g * h / (0.02 * sub.length / sub.diameter + kc + ne + 1e-9))
+    lo = np.zeros_like(h)
+    hi = np.sqrt(two_g * h / np.maximum(kc + ne, 1e-9))
+    for _ in range(80):
+        k_hi, _, _, _ = _resistance(hi, sub, kc, ne, friction)
+        short = k_hi * hi * hi / two_g < h
+        if not np.any(short):
+            break
+        lo = np.where(short, hi, lo)
+        hi = np.where(short, hi * 4.0, hi)
+    return np.clip(v_start, lo, hi), lo, hi
+
+
+def _newton_bisect(sub: LineCases, kc, ne, h, friction: VectorisedFriction, rtol: float,
+                   max_iter: int):
+    """Velocities of the flowing cases: Newton on ``phi(V) = K_t V^2/2g - h``, bisecting
+    whenever a step leaves the bracket. Returns (V [m/s], converged flags, iterations)."""
+    two_g = 2.0 * G
+    v_k, lo, hi = _bracket(sub, kc, ne, h, friction)
+    done = np.zeros(h.shape, dtype=bool)
+    iterations = 0
+    for iterations in range(1, max_iter + 1):  # noqa: B007 - count is reported
+        k_t, dk, _, _ = _resistance(v_k, sub, kc, ne, friction)
+        phi = k_t * v_k * v_k / two_g - h
+        dphi = (2.0 * k_t * v_k + dk * v_k * v_k) / two_g
+        lo = np.where(phi < 0.0, v_k, lo)
+        hi = np.where(phi > 0.0, v_k, hi)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            v_new = v_k - phi / dphi
+        outside = ~np.isfinite(v_new) | (v_new < lo) | (v_new > hi)
+        v_new = np.where(outside, 0.5 * (lo + hi), v_new)
+        step = np.abs(v_new - v_k)
+        done = (step <= rtol * np.abs(v_new)) | (phi == 0.0)
+        v_k = v_new
+        if np.all(done):
+            break
+    return v_k, done, iterations
+
+
+def _result(cases: LineCases, v, dh, converged, iterations: int,
+            friction: VectorisedFriction) -> LineCasesResult:
+    """Flows, Reynolds numbers and friction factors of the solved velocities ``v`` [m/s]."""
     area = 0.25 * np.pi * cases.diameter**2
     nu = cases.viscosity / cases.density
     re = np.abs(v) * cases.diameter / nu
