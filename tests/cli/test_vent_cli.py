@@ -135,3 +135,10 @@ def test_the_record_lists_the_gas_spaces_and_the_csv_their_pressure(tmp_path):
     assert "### Tank gas spaces" in text and "Tank gas space and vent" in text
     header = (tmp_path / "csv" / "timeseries.csv").read_text(encoding="utf-8").splitlines()[0]
     assert header.endswith("gas pressure TK [Pa]")
+
+
+def test_solve_says_a_sealed_tank_has_no_steady_outflow(tmp_path, capsys):
+    assert main(["solve", str(_write(tmp_path, 'vent = "none"')), "--json"]) == 0
+    assert json.loads(capsys.readouterr().out)["nodes"]["TK"]["gas_pressure_pa"] is None
+    assert main(["solve", str(_write(tmp_path, 'vent = "none"'))]) == 0
+    assert "cannot pass the air" in " ".join(capsys.readouterr().out.split())
