@@ -281,3 +281,17 @@ def test_two_steady_meter_readings_give_back_the_valve_loss(tmp_path, capsys):
     assert set(out["measurements"]) == {"full_open", "half_open"}
     assert out["measurements"]["half_open"]["unit_si"] == "m^3/s"
     assert out["residual_rms_after"] < out["residual_rms_before"] / 100
+
+
+def test_a_fitted_bore_replaces_the_nominal_size_and_keeps_the_wall(tmp_path, capsys):
+    # NPS 2 schedule 40: bore 52.50 mm, wall 3.91 mm (ASME B36.10M)
+    path = tmp_path / "rinse.toml"
+    path.write_text(SMALL.replace('inner_diameter = "52.5 mm"',
+                                  'nominal_size = "2 in"\nschedule = "40"'), encoding="utf-8")
+    code = main(["calibrate", str(path), "--fit", "lines.L1.inner_diameter=30..60 mm",
+                 "--write"])
+    assert code == 0
+    line = tomllib.loads(path.read_text(encoding="utf-8"))["lines"]["L1"]
+    assert "nominal_size" not in line and "schedule" not in line
+    assert line["wall_thickness"] == "3.91 mm"
+    assert "nominal_size 2 in schedule 40" in path.read_text(encoding="utf-8")

@@ -302,8 +302,11 @@ def apply_fit(project: "Project", run: CalibrationRun, date: _dt.date | None = N
         key = p.key
         changes[key] = float(text) if kind == "number" else text
         notes[key] = note
-        if p.target == "diameter" and "nominal_size" in project.data["lines"][p.line]:
+        table = project.data["lines"][p.line]
+        if p.target == "diameter" and "nominal_size" in table:
             _bore_instead_of_size(project, p, changes)
+            notes[key] = note.replace(")", f", nominal_size {table['nominal_size']} schedule "
+                                      f"{table.get('schedule', '40')})")
     new = set_values(project, changes)
     return _with_comments(new, notes)
 
