@@ -20,8 +20,6 @@ ROOT = Path(__file__).resolve().parents[1]
 ALLOWED = {
     ("workbench/core/sanity.py", "check_transient"),
     ("workbench/core/sanity.py", "check_steady"),
-    ("workbench/core/sweep.py", "solve_line_cases"),
-    ("workbench/core/surge.py", "screen_line"),
 }
 
 
