@@ -152,3 +152,15 @@ def test_a_vent_field_is_set_by_its_key_path_as_the_form_does():
     edited = set_value(project, "reservoirs.TK.vent.inner_diameter", "80 mm")
     assert edited.system.reservoirs["TK"].vent.diameter == pytest.approx(0.08)
     assert edited.system.reservoirs["TK"].vent.k == pytest.approx(1.5)
+
+
+@pytest.mark.parametrize(("tank", "key"), [
+    ('vent = { inner_diameter = "1e-320 m", k = 1.5 }', "reservoirs.TK.vent.inner_diameter"),
+    ('vent = { inner_diameter = "50 mm", k = 1e300 }', "reservoirs.TK.vent.k"),
+    ('vent = { rated_flow = "300 m3/h", rated_pressure_drop = "1e-9 Pa" }',
+     "reservoirs.TK.vent.rated_pressure_drop"),
+    ('vent = "none"\ndesign_vacuum = "500 kPa"', "reservoirs.TK.design_vacuum"),
+])
+def test_an_implausible_vent_figure_is_refused_by_its_key_path(tank, key):
+    found = problems_of(tank)
+    assert key in found and "not plausible" in found[key], found
