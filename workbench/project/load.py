@@ -24,7 +24,7 @@ if TYPE_CHECKING:  # pragma: no cover
 
     from workbench.core.model import System
 
-__all__ = ["MAX_FILE_BYTES", "Project", "load_project", "read_project_bytes", "load_project_text", "locate_key", "parse_data", "parse_doc",
+__all__ = ["MAX_FILE_BYTES", "KeyLines", "Project", "load_project", "read_project_bytes", "load_project_text", "locate_key", "parse_data", "parse_doc",
            "parse_toml", "project_from_doc"]
 
 #: Largest project file read [bytes]: far beyond any plant's (the demos are a few kB).
@@ -146,36 +146,49 @@ def parse_toml(text: str, name: str | None) -> tuple[dict, "tomlkit.TOMLDocument
 
 def locate_key(text: str, key: str) -> int | None:
     """Best-effort line number (1-based) of a key path such as ``lines.L1.length``."""
-    parts = [re.sub(r"\[\d+\]$", "", p) for p in key.split(".") if p]
-    if not parts:
+    return KeyLines(text).find(key)
+
+
+class KeyLines:
+    """Where each table header and key of a text is, read once.
+
+    :meth:`find` is then a few dictionary look-ups per key path, so locating the lines of
+    many problems takes time linear in their number (a rescan of the text per problem made
+    ``check`` quadratic: 10,000 problems took minutes).
+    """
+
+    _HEADER = re.compile(r"^\s*\[\s*([^\[\]]+?)\s*\]\s*(#.*)?$")
+    _ASSIGN = re.compile(r"^\s*(\"[^\"]*\"|'[^']*'|[A-Za-z0-9_-]+)\s*=")
+
+    def __init__(self, text: str) -> None:
+        self.first: dict[tuple[str, ...], int] = {}
+        current: tuple[str, ...] = ()
+        for number, line in enumerate(text.splitlines(), start=1):
+            h = self._HEADER.match(line)
+            if h:
+                current = tuple(p.strip().strip("\"'") for p in h.group(1).split("."))
+                self.first.setdefault(current, number)
+                continue
+            a = self._ASSIGN.match(line)
+            if a:
+                self.first.setdefault((*current, a.group(1).strip("\"'")), number)
+
+    def find(self, key: str) -> int | None:
+        """The line of the longest leading part of ``key`` found (its first occurrence)."""
+        parts = tuple(re.sub(r"\[\d+\]$", "", p) for p in key.split(".") if p)
+        for size in range(len(parts), 0, -1):
+            line = self.first.get(parts[:size])
+            if line is not None:
+                return line
         return None
-    header = re.compile(r"^\s*\[\s*([^\[\]]+?)\s*\]\s*(#.*)?$")
-    assign = re.compile(r"^\s*(\"[^\"]*\"|'[^']*'|[A-Za-z0-9_-]+)\s*=")
-    lines = text.splitlines()
-    current: list[str] = []
-    best: tuple[int, int] | None = None  # (matched parts, line)
-    for number, line in enumerate(lines, start=1):
-        h = header.match(line)
-        if h:
-            current = [p.strip().strip("\"'") for p in h.group(1).split(".")]
-            if current == parts[: len(current)]:
-                if best is None or len(current) > best[0]:
-                    best = (len(current), number)
-            continue
-        a = assign.match(line)
-        if a:
-            name = a.group(1).strip("\"'")
-            full = [*current, name]
-            if full == parts[: len(full)] and (best is None or len(full) > best[0]):
-                best = (len(full), number)
-    return best[1] if best else None
 
 
 def _with_lines(problems: list[Problem], text: str) -> list[Problem]:
     out = []
+    index = KeyLines(text) if any(p.line is None and p.key for p in problems) else None
     for p in problems:
         if p.line is None and p.key:
-            out.append(Problem(p.file, p.key, p.message, locate_key(text, p.key), None))
+            out.append(Problem(p.file, p.key, p.message, index.find(p.key), None))
         else:
             out.append(p)
     return out
