@@ -24,7 +24,8 @@ Transient (:func:`check_transient`)
       their total volume (to round-off, on any output grid); each tank obeys
       :math:`V(t) - V(0) = \int_0^t (\sum Q_{in} - \sum Q_{out} + Q_{feed} - Q_{draw})\,dt`
       (trapezoidal rule on the output grid, which includes every event time and schedule
-      break point) where the grid resolves the flows, for tanks that did not spill;
+      break point) where the grid resolves the flows, spilling tanks included (their spill
+      counts as an outflow);
     * continuity at every junction at every output time;
     * no flow through a shut valve at any output time after the shut instant.
 
@@ -115,14 +116,26 @@ def check_steady(system: System, result) -> list[Violation]:
     list of Violation
         Empty when the result is sound.
     """
-    out: list[Violation] = []
     if not getattr(result, "success", False):
-        return out
+        return []
     levels = dict(getattr(result, "levels", {}) or {})
     fixed = _fixed_head_values(system, levels)
     isolated = {w.element for w in getattr(result, "warnings", ()) if w.code == "node.isolated"}
+    out = _steady_complete_and_finite(system, result, isolated)
+    if out:
+        return out
+    span = max(fixed.values()) - min(fixed.values()) if fixed else 0.0
+    e_tol = ENERGY_ATOL + ENERGY_RTOL * max(span, 1.0)
+    out += _levels_and_fixed_heads(result, levels, fixed, e_tol)
+    out += _junction_continuity(system, result)
+    out += _shut_lines_carry_nothing(system, result)
+    out += _energy_along_paths(system, result, fixed, isolated, e_tol)
+    return out
 
-    # Completeness and finiteness.
+
+def _steady_complete_and_finite(system: System, result, isolated: set) -> list[Violation]:
+    """Every line and node in the result, with finite numbers and no negative loss."""
+    out: list[Violation] = []
     for lid in system.lines:
         if lid not in result.lines:
             out.append(Violation("finite", lid, "the line is missing from the result"))
@@ -144,24 +157,26 @@ def check_steady(system: System, result) -> list[Violation]:
             continue
         if not (np.isfinite(nr.head) and np.isfinite(nr.pressure)):
             out.append(Violation("finite", nid, f"head {nr.head!r}, pressure {nr.pressure!r}"))
-    if out:
-        return out
+    return out
 
-    # Levels.
+
+def _levels_and_fixed_heads(result, levels: dict, fixed: dict, e_tol: float) -> list[Violation]:
+    """No negative level; the fixed heads in the result are those the system defines."""
+    out: list[Violation] = []
     for rid, level in levels.items():
         if level < -NEGATIVE_TOL:
             out.append(Violation("level", rid, f"level {level:.6g} m is negative"))
-
-    # Fixed heads as the system defines them.
-    span = max(fixed.values()) - min(fixed.values()) if fixed else 0.0
-    e_tol = ENERGY_ATOL + ENERGY_RTOL * max(span, 1.0)
     for nid, h in fixed.items():
         got = result.nodes[nid].head
         if abs(got - h) > e_tol:
             out.append(Violation("fixed_head", nid, f"head {got:.9g} m in the result, "
                                  f"{h:.9g} m from the levels and elevations"))
+    return out
 
-    # Continuity at junctions.
+
+def _junction_continuity(system: System, result) -> list[Violation]:
+    """What flows into each junction flows out."""
+    out: list[Violation] = []
     net = {j: 0.0 for j in system.junctions}
     scale = {j: 0.0 for j in system.junctions}
     for lid, line in system.lines.items():
@@ -175,8 +190,12 @@ def check_steady(system: System, result) -> list[Violation]:
         if abs(value) > tol:
             out.append(Violation("continuity", j, f"net inflow {value:.6g} m3/s (flows up to "
                                  f"{scale[j]:.6g} m3/s meet there)"))
+    return out
 
-    # Shut valves and closed lines carry no flow.
+
+def _shut_lines_carry_nothing(system: System, result) -> list[Violation]:
+    """Shut valves, closed, isolated and drained-back lines carry no flow."""
+    out: list[Violation] = []
     for lid, line in system.lines.items():
         lr = result.lines[lid]
         opening = result.openings.get(lid, line.valve.opening if line.valve else None)
@@ -187,8 +206,13 @@ def check_steady(system: System, result) -> list[Violation]:
         elif lr.status in ("isolated", "drains_back") and lr.flow != 0.0:
             out.append(Violation("continuity", lid, f"flow {lr.flow:.6g} m3/s in a line "
                                  f"reported as {lr.status.replace('_', ' ')} (no flow)"))
+    return out
 
-    # Energy along every path of flowing lines from the fixed heads (and around loops).
+
+def _energy_along_paths(system: System, result, fixed: dict, isolated: set,
+                        e_tol: float) -> list[Violation]:
+    """Energy along every path of flowing lines from the fixed heads (and around loops)."""
+    out: list[Violation] = []
     flowing = {lid: system.lines[lid] for lid, lr in result.lines.items()
                if lr.status == "flowing"}
     adjacency: dict[str, list[tuple[str, str, float]]] = {}
@@ -281,23 +305,49 @@ def check_transient(system: System, result) -> list[Violation]:
     list of Violation
         Empty when the result is sound.
     """
-    from workbench.core.tank import tank_geometry
-    from workbench.core.valve import opening_at
-
-    out: list[Violation] = []
     if not getattr(result, "success", False):
-        return out
+        return []
     t = np.asarray(result.t, dtype=float)
     flows = np.asarray(result.flows, dtype=float).reshape(len(result.line_ids), t.size)
     levels = np.asarray(result.levels, dtype=float).reshape(len(result.tank_ids), t.size)
     volumes = np.asarray(result.volumes, dtype=float).reshape(len(result.tank_ids), t.size)
+    external = _external_flows(result, volumes)
+    out = _transient_finite(result, t, flows, levels, volumes, external)
+    if out:
+        return out
+    if t.size and np.any(np.diff(t) < 0.0):
+        return [Violation("time", "", "output times go backwards")]
+    row = {lid: i for i, lid in enumerate(result.line_ids)}
+    spilled = {ev.element for ev in result.events if ev.code == "tank.overflow"}
+    # The balance of one tank needs its inflow integrated over the output grid: only
+    # meaningful when the grid resolves the flows (a coarse grid can miss oscillations).
+    dense = bool(t.size >= DENSE_SAMPLES and
+                 np.max(np.diff(t)) <= (t[-1] - t[0]) / (DENSE_SAMPLES / 2))
+    out.extend(_closed_groups(system, result, volumes, spilled))
+    for k, rid in enumerate(result.tank_ids):
+        out += _tank_levels_and_shape(system, rid, t, levels[k], volumes[k])
+        if dense:
+            out += _tank_balance(system, rid, t, flows, row, volumes[k], external[k])
+    out += _junction_continuity_in_time(system, t, flows, row)
+    out += _shut_valves_in_time(system, t, flows, row)
+    return out
+
+
+def _external_flows(result, volumes: np.ndarray) -> np.ndarray:
+    """Per tank and output time, feed less draw-off less spill [m^3/s]."""
     external = np.zeros_like(volumes)
-    feeds = np.asarray(getattr(result, "feeds", ()), dtype=float)
-    draws = np.asarray(getattr(result, "draw_offs", ()), dtype=float)
-    if feeds.shape == volumes.shape and draws.shape == volumes.shape:
-        external = feeds - draws
+    for name, sign in (("feeds", 1.0), ("draw_offs", -1.0), ("spills", -1.0)):
+        series = np.asarray(getattr(result, name, ()), dtype=float)
+        if series.shape == volumes.shape:
+            external = external + sign * series
+    return external
+
+
+def _transient_finite(result, t, flows, levels, volumes, external) -> list[Violation]:
+    """Every series finite; every line's pressure range finite and ordered."""
+    out: list[Violation] = []
     for name, arr in (("time", t), ("flows", flows), ("levels", levels), ("volumes", volumes),
-                      ("feed and draw-off", external)):
+                      ("feed, draw-off and spill", external)):
         if not np.all(np.isfinite(arr)):
             out.append(Violation("finite", "", f"the {name} series holds {np.sum(~np.isfinite(arr))} "
                                  "non-finite values"))
@@ -311,61 +361,65 @@ def check_transient(system: System, result) -> list[Violation]:
         elif not never and low > high:
             out.append(Violation("finite", lid, f"minimum pressure {low:.6g} Pa above the "
                                  f"maximum {high:.6g} Pa"))
-    if out:
-        return out
-    if t.size and np.any(np.diff(t) < 0.0):
-        out.append(Violation("time", "", "output times go backwards"))
-        return out
+    return out
 
-    row = {lid: i for i, lid in enumerate(result.line_ids)}
-    spilled = {ev.element for ev in result.events if ev.code == "tank.overflow"}
-    # The balance of one tank needs its inflow integrated over the output grid: only
-    # meaningful when the grid resolves the flows (a coarse grid can miss oscillations).
-    dense = bool(t.size >= DENSE_SAMPLES and
-                 np.max(np.diff(t)) <= (t[-1] - t[0]) / (DENSE_SAMPLES / 2))
-    out.extend(_closed_groups(system, result, volumes, spilled))
-    for k, rid in enumerate(result.tank_ids):
-        lv, vol = levels[k], volumes[k]
-        if lv.size and lv.min() < -NEGATIVE_TOL:
-            i = int(np.argmin(lv))
-            out.append(Violation("level", rid, f"level {lv[i]:.6g} m at t = {t[i]:.6g} s is negative"))
-        if vol.size and vol.min() < -NEGATIVE_TOL:
-            i = int(np.argmin(vol))
-            out.append(Violation("volume", rid, f"volume {vol[i]:.6g} m3 at t = {t[i]:.6g} s "
-                                 "is negative"))
-        geom = tank_geometry(system.reservoirs[rid])
-        for i in np.unique(np.linspace(0, t.size - 1, min(t.size, 50)).astype(int)):
-            h = float(lv[i])
-            if 0.0 <= h <= geom.top:
-                v = geom.volume(h)
-                if abs(v - vol[i]) > 1e-6 * max(abs(v), 1e-3):
-                    out.append(Violation("volume", rid, f"level {h:.6g} m and volume "
-                                         f"{vol[i]:.6g} m3 at t = {t[i]:.6g} s disagree "
-                                         f"(the shape gives {v:.6g} m3)"))
-                    break
-        if rid in spilled or not dense:
-            continue
-        inflow = external[k].copy()
-        for lid, line in system.lines.items():
-            if line.to_node == rid:
-                inflow += flows[row[lid]]
-            if line.from_node == rid:
-                inflow -= flows[row[lid]]
-        moved = float(np.trapezoid(inflow, t))
-        throughput = float(np.trapezoid(np.abs(inflow), t))
-        # Where the flow is monotone over an output interval the exact integral lies between
-        # the left and right sums, so half their difference bounds the trapezoid's error.
-        if np.count_nonzero(np.diff(np.sign(inflow))) > 0.1 * t.size:
-            continue  # the net inflow swings back and forth between samples: aliased
-        sampling = float(np.sum(np.abs(np.diff(inflow)) * np.diff(t))) / 2.0
-        change = float(vol[-1] - vol[0])
-        tol = sampling + VOLUME_RTOL * throughput + 1e-9 * max(abs(vol[0]), 1.0)
-        if abs(change - moved) > tol:
-            out.append(Violation("volume", rid, f"volume changed by {change:.6g} m3 while the "
-                                 f"lines, feed and draw-off moved {moved:.6g} m3 in (net) "
-                                 "over the run"))
 
-    # Continuity at junctions at every output time.
+def _tank_levels_and_shape(system: System, rid: str, t, lv, vol) -> list[Violation]:
+    """No negative level or volume; level and volume agree through the tank's shape."""
+    from workbench.core.tank import tank_geometry
+
+    out: list[Violation] = []
+    if lv.size and lv.min() < -NEGATIVE_TOL:
+        i = int(np.argmin(lv))
+        out.append(Violation("level", rid, f"level {lv[i]:.6g} m at t = {t[i]:.6g} s is negative"))
+    if vol.size and vol.min() < -NEGATIVE_TOL:
+        i = int(np.argmin(vol))
+        out.append(Violation("volume", rid, f"volume {vol[i]:.6g} m3 at t = {t[i]:.6g} s "
+                             "is negative"))
+    geom = tank_geometry(system.reservoirs[rid])
+    for i in np.unique(np.linspace(0, t.size - 1, min(t.size, 50)).astype(int)):
+        h = float(lv[i])
+        if 0.0 <= h <= geom.top:
+            v = geom.volume(h)
+            if abs(v - vol[i]) > 1e-6 * max(abs(v), 1e-3):
+                out.append(Violation("volume", rid, f"level {h:.6g} m and volume "
+                                     f"{vol[i]:.6g} m3 at t = {t[i]:.6g} s disagree "
+                                     f"(the shape gives {v:.6g} m3)"))
+                break
+    return out
+
+
+def _tank_balance(system: System, rid: str, t, flows, row: dict, vol,
+                  external) -> list[Violation]:
+    """The tank's volume change equals what its lines, feed, draw-off and spill moved.
+
+    A spilling tank is checked too: its spill is part of ``external``, so a tank held at
+    its overflow level while its lines take more than its feed brings is caught.
+    """
+    inflow = external.copy()
+    for lid, line in system.lines.items():
+        if line.to_node == rid:
+            inflow += flows[row[lid]]
+        if line.from_node == rid:
+            inflow -= flows[row[lid]]
+    moved = float(np.trapezoid(inflow, t))
+    throughput = float(np.trapezoid(np.abs(inflow), t))
+    # Where the flow is monotone over an output interval the exact integral lies between
+    # the left and right sums, so half their difference bounds the trapezoid's error.
+    if np.count_nonzero(np.diff(np.sign(inflow))) > 0.1 * t.size:
+        return []  # the net inflow swings back and forth between samples: aliased
+    sampling = float(np.sum(np.abs(np.diff(inflow)) * np.diff(t))) / 2.0
+    change = float(vol[-1] - vol[0])
+    tol = sampling + VOLUME_RTOL * throughput + 1e-9 * max(abs(vol[0]), 1.0)
+    if abs(change - moved) <= tol:
+        return []
+    return [Violation("volume", rid, f"volume changed by {change:.6g} m3 while the lines, "
+                      f"feed, draw-off and spill moved {moved:.6g} m3 in (net) over the run")]
+
+
+def _junction_continuity_in_time(system: System, t, flows, row: dict) -> list[Violation]:
+    """Continuity at every junction at every output time."""
+    out: list[Violation] = []
     for j in system.junctions:
         net = np.zeros(t.size)
         scale = np.zeros(t.size)
@@ -381,9 +435,15 @@ def check_transient(system: System, result) -> list[Violation]:
             i = int(np.argmax(np.abs(net)))
             out.append(Violation("continuity", j, f"net inflow {net[i]:.6g} m3/s at "
                                  f"t = {t[i]:.6g} s"))
+    return out
 
-    # No flow through a shut valve (strictly after the instant it shuts, where the
-    # series may hold the flow just before the event).
+
+def _shut_valves_in_time(system: System, t, flows, row: dict) -> list[Violation]:
+    """No flow through a shut valve (strictly after the instant it shuts, where the series
+    may hold the flow just before the event)."""
+    from workbench.core.valve import opening_at
+
+    out: list[Violation] = []
     for lid, line in system.lines.items():
         if line.valve is None or lid not in row:
             continue
