@@ -141,7 +141,10 @@ def find_events(eq: Equations, events: EventSet, sol, t_old, y_old, t_new, y_new
     e_old = event_values(eq, t_old, y_old)
     e_new = event_values(eq, t_new, y_new)
     up = (e_old < 0.0) & (e_new >= 0.0) & (events.direction >= 0)
-    down = (e_old > 0.0) & (e_new <= 0.0) & (events.direction <= 0)
+    # a spilling tank whose net inflow is exactly zero at a restart (its lines at rest)
+    # stops spilling as soon as the net inflow turns negative
+    from_zero = (e_old == 0.0) & (e_new < 0.0) & (events.kind_of == SPILL_END)
+    down = ((e_old > 0.0) & (e_new <= 0.0) | from_zero) & (events.direction <= 0)
     hits = np.flatnonzero((up | down) & events.armed)
     found = []
     for k in hits:

@@ -135,6 +135,27 @@ def overflow_cause(model: TransientModel, state: RunState, k: int, t: float,
             f"({draw_k * 1000:.4g} L/s)")
 
 
+def end_spills_in_deficit(eq, t: float, y: np.ndarray) -> bool:
+    """End the spill of every tank whose net inflow is negative at a (re)configuration.
+
+    The ``tank.spill_end`` event watches the net inflow falling *through* zero; at a
+    restart the net inflow can already be negative -- a tank that starts at its overflow
+    level with its outlets taking more than its feed, or whose upstream tank just drained
+    -- and no crossing would ever come, holding the tank full while its lines drain it.
+    Returns True when a spill was ended (the configuration must be rebuilt).
+    """
+    model, state = eq.model, eq.state
+    if not model.nt or not state.spilling.any():
+        return False
+    net = model.t_rows @ y[:model.nl]
+    if model.has_ext:
+        net = net + eq.external_net(t)
+    ending = state.spilling & (net < 0.0)
+    for k in np.flatnonzero(ending):
+        _spill_end(model, state, int(k), t)
+    return bool(ending.any())
+
+
 def _spill_end(model: TransientModel, state: RunState, k: int, t: float) -> None:
     rid = model.tank_ids[k]
     state.spilling[k] = False

@@ -174,11 +174,13 @@ class Run:
         # valves shutting at the end of this segment: the last 0.1 % of their flow is not
         # used for pressures (see Recording.track)
         self.rec.closing = lines.has_valve & ~valve_shut & shut_b
-        for _ in range(model.nl + 1):
+        for _ in range(model.nl + model.nt + 1):
             open_lines = ~valve_shut & ~state.blocked & ~state.backstopped & ~state.siphon_stopped
             y[: model.nl][~open_lines] = 0.0
             self.eq.reset(Configuration(model, open_lines, state.spilling), floor)
             y[: model.nl] = self.eq.cfg.project(y[: model.nl])
+            if handlers.end_spills_in_deficit(self.eq, t_a, y):
+                continue  # a tank no longer held at its overflow: configure again
             if not self._stop_dry_discharges(t_a, y, open_lines):
                 break
         # a reversal in the new configuration needs a real swing of the flow first
