@@ -7,8 +7,8 @@ from __future__ import annotations
 import pickle
 
 import pytest
-
 from sweep_runner_project import PROJECT, load_runner_project
+
 from workbench.sweep_runner import case as case_module
 from workbench.sweep_runner.case import SweepTask, cached_project, run_task, solve_case
 

@@ -12,8 +12,8 @@ from __future__ import annotations
 import math
 
 import pytest
-
 from sweep_runner_project import SIZES, comparable, load_runner_project
+
 from workbench.sweep_runner import plan_sweep, run_sweep
 
 

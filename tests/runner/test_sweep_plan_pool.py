@@ -6,8 +6,8 @@ from __future__ import annotations
 import threading
 
 import pytest
-
 from sweep_runner_project import load_runner_project
+
 from workbench.sweep_runner.plan import plan_sweep, prepared_base
 from workbench.sweep_runner.pool import pool_context
 

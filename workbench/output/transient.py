@@ -10,16 +10,23 @@ screening, events and warnings; a warning's severity is a word as well as a colo
 
 from __future__ import annotations
 
-from workbench.output.common import SEVERITY_STYLE, level_rate_text, quantity_text, simple_table
-from workbench.output.common import finding_message, finding_values
-from workbench.output.common import json_float as _num, json_list as _list
-from workbench.output.vent import gas_csv_columns, gas_json, gas_table
-
 import csv
 import math
 from typing import TYPE_CHECKING, Any, TextIO
 
 import numpy as np
+
+from workbench.output.common import (
+    SEVERITY_STYLE,
+    finding_message,
+    finding_values,
+    level_rate_text,
+    quantity_text,
+    simple_table,
+)
+from workbench.output.common import json_float as _num
+from workbench.output.common import json_list as _list
+from workbench.output.vent import gas_csv_columns, gas_json, gas_table
 
 if TYPE_CHECKING:  # pragma: no cover
     from workbench.core.model import System
