@@ -218,3 +218,21 @@ def test_a_refusal_quoting_a_file_key_prints_the_key(tmp_path, capsys, monkeypat
     note = flat[flat.index("L1: not run:"):]
     note = note[:note.index("bulk_modulus") + len("bulk_modulus")]
     assert note.endswith("give [fluid] bulk_modulus")
+
+
+def test_the_record_lists_the_envelope_along_the_line_and_its_cavities(tmp_path, capsys):
+    # The test line separates (see above): the calculation record names the cavity model
+    # and its published sources, tabulates the envelope along the line with the cavity
+    # stations in words, and states the grid check (Wylie & Streeter 1993, ch. 8; Bergant,
+    # Simpson & Tijsseling 2006).
+    text = PROJECT + '\n[lines.L1.surge]\nmodel = "elastic"\n'
+    out_path = tmp_path / "record.md"
+    code = main(["report", str(write(tmp_path, text)), "--output", str(out_path)])
+    record = out_path.read_text()
+    assert code in (0, 1)
+    assert "| Vapour cavities | discrete vapour cavity model" in record
+    assert "Bergant, Simpson and Tijsseling (2006)" in record
+    assert "Envelope along L1 (gauge pressure):" in record
+    assert "vapour cavity (at vapour pressure)" in record
+    assert "DANGER: L1: vapour cavities along" in record
+    assert "(the peak depends on the grid)" in record

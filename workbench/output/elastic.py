@@ -241,3 +241,34 @@ def _cavity_notes(res: ElasticResult, lid: str, unit_system: str) -> list[str]:
         out.append(f"{lid}: with {res.grid_check.reaches[lid]} reaches p max is "
                    f"{p(res.grid_check.max_pressure[lid])} (the peak depends on the grid)")
     return out
+
+
+def envelope_rows(result: ElasticResult, line_id: str, unit_system: str = "SI",
+                  points: int = 9) -> list[list[str]]:
+    """Rows ``[chainage, max p, min p, note]`` at about ``points`` stations along a line,
+    the note saying in words where a vapour cavity formed nearby."""
+    import numpy as np
+
+    from workbench.project.units import format_quantity
+
+    env = result.envelopes.get(line_id)
+    if env is None:
+        return []
+    n = len(env.distance)
+    picks = sorted(set(np.linspace(0, n - 1, min(points, n)).round().astype(int).tolist()))
+    cav = env.cavity_max_volume
+    rows = []
+    for j, i in enumerate(picks):
+        lo = picks[j - 1] + 1 if j else 0
+        hi = picks[j + 1] if j + 1 < len(picks) else n
+        near = cav is not None and bool((cav[lo:hi] > 0).any())
+        rows.append([format_quantity(float(env.distance[i]), "length", unit_system),
+                     format_quantity(float(env.max_pressure[i]), "pressure", unit_system),
+                     format_quantity(float(env.min_pressure[i]), "pressure", unit_system),
+                     "vapour cavity (at vapour pressure)" if near else ""])
+    return rows
+
+
+def cavity_lines(result: ElasticResult, line_id: str, unit_system: str = "SI") -> list[str]:
+    """The cavity zones of a line and the grid check, in words, one sentence each."""
+    return _cavity_notes(result, line_id, unit_system)

@@ -342,6 +342,12 @@ def _methods(project: Project, steady: SteadyResult | None, transient: Transient
         rows.append(["Elastic surge", f"method of characteristics, Courant number 1, friction "
                      f"'{res.friction}'", "Wylie and Streeter, Fluid Transients in Systems (1993), ch. 3",
                      "one-dimensional water hammer; until column separation"])
+        if len(getattr(res, "cavity_volume", ())):
+            rows.append(["Vapour cavities", "discrete vapour cavity model, cavity volume "
+                         "weighting psi = 1", "Wylie and Streeter (1993), ch. 8; Bergant, Simpson "
+                         "and Tijsseling (2006)", "cavities lumped at the computing sections; "
+                         "collapse peaks depend on the grid (repeat at twice the reaches "
+                         "reported); after separation indicative only"])
     out = ["## 3. Methods and correlations", ""]
     out += _table(["Topic", "Method", "Published source", "Validity range"], rows)
     return out
@@ -533,6 +539,14 @@ def _elastic(project: Project, elastic: Mapping[str, Any] | None) -> list[str]:
     for res in _unique(elastic):
         for note in getattr(res, "notes", ()):
             out.append(f"- {note}")
+    from workbench.output.elastic import cavity_lines, envelope_rows
+
+    for lid, res in elastic.items():
+        rows = envelope_rows(res, lid, units)
+        if rows:
+            out += ["", f"Envelope along {lid} (gauge pressure):", ""]
+            out += _table(["Chainage", "Max pressure", "Min pressure", "Note"], rows, "rrrl")
+            out += [f"- DANGER: {text}" for text in cavity_lines(res, lid, units)]
     return out + [""]
 
 
