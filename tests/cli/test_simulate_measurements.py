@@ -171,3 +171,10 @@ points = [ {points} ]
     assert code == 0 and m["compared"] == 5 and m["unit_si"] == "m^3/s"
     # the run and the closed form agree to 1e-4 of the final flow (readings typed to 5 digits)
     assert m["max_abs"] < 1e-4 * area * v_inf
+
+
+def test_the_trend_plot_draws_the_readings_as_points(tmp_path, capsys):
+    path = tmp_path / "drain.toml"
+    path.write_text(project(_points([0, 1, 2, 4])), encoding="utf-8")
+    assert main(["simulate", str(path), "--plot"]) == 0
+    assert "drop (measured)" in capsys.readouterr().out

@@ -162,7 +162,8 @@ def run(args: argparse.Namespace) -> ExitCode:
     if args.plot:
         # plots go with the tables on stdout, or to stderr when stdout carries JSON
         stream = sys.stderr if args.json else sys.stdout
-        print(_plots(result, project.unit_system, colour=stream.isatty()), file=stream)
+        print(_plots(result, project.unit_system, colour=stream.isatty(), measured=measured),
+              file=stream)
     if not result.success:
         print(f"{args.project}: {result.message}", file=sys.stderr)
         return ExitCode.INVALID
@@ -195,8 +196,9 @@ class _progress_bar:
         return False
 
 
-def _plots(result, unit_system: str, colour: bool = True) -> str:
-    """Terminal trend plots (plotext) of tank levels and line flows, display units."""
+def _plots(result, unit_system: str, colour: bool = True, measured=()) -> str:
+    """Terminal trend plots (plotext) of tank levels and line flows, display units, with the
+    readings of site tests compared on this run as points."""
     import plotext as plt
 
     from workbench.project.units import display_unit, to_display
@@ -217,6 +219,7 @@ def _plots(result, unit_system: str, colour: bool = True) -> str:
         for k, tid in enumerate(result.tank_ids):
             plt.plot(tt, [float(v) for v in to_display(result.levels[k], "elevation", unit_system)],
                      label=tid)
+        _readings(plt, measured, "level", scale, unit_system)
         plt.title("Tank levels")
         plt.xlabel(f"time [{t_unit}]")
         plt.ylabel(f"level [{display_unit('elevation', unit_system)}]")
@@ -224,9 +227,22 @@ def _plots(result, unit_system: str, colour: bool = True) -> str:
     start()
     for i, lid in enumerate(result.line_ids):
         plt.plot(tt, [float(v) for v in to_display(result.flows[i], "flow", unit_system)], label=lid)
+    _readings(plt, measured, "flow", scale, unit_system)
     plt.title("Line flows")
     plt.xlabel(f"time [{t_unit}]")
     plt.ylabel(f"flow [{display_unit('flow', unit_system)}]")
     texts.append(plt.build())
     plt.clf()
     return "\n".join(texts)
+
+
+def _readings(plt, measured, quantity: str, scale: float, unit_system: str) -> None:
+    """Scatter the readings of the site tests of ``quantity`` compared on this run."""
+    from workbench.project.units import to_display
+
+    kind = "elevation" if quantity == "level" else "flow"
+    for c in measured:
+        if c.measurement.quantity == quantity and c.compared_on == "this run" and len(c.readings):
+            plt.scatter((c.times / scale).tolist(),
+                        [float(v) for v in to_display(c.readings, kind, unit_system)],
+                        label=f"{c.measurement.name} (measured)", marker="o")
