@@ -37,10 +37,17 @@ def run(args: argparse.Namespace) -> ExitCode:
     from workbench.core.network import solve_steady
     from workbench.output.record import calculation_record, result_tables, write_result_csvs
 
+    from workbench.core.sanity import check_steady, check_transient, describe
+
     system = project.system
     steady = solve_steady(system)
     if not steady.success:
         print(f"{args.project}: no steady solution: {steady.message}", file=sys.stderr)
+    broken = check_steady(system, steady)
+    if broken:  # the same refusal as solve's: a result that breaks the physics is a bug
+        print(f"{args.project}: internal consistency check failed: {describe(broken)}; "
+              "please report", file=sys.stderr)
+        return ExitCode.INTERNAL
     transient = None
     if system.simulation is not None and not args.steady_only:
         from workbench.core.transient import simulate
@@ -52,6 +59,13 @@ def run(args: argparse.Namespace) -> ExitCode:
         else:
             if not transient.success:
                 print(f"{args.project}: simulation: {transient.message}", file=sys.stderr)
+            if not transient.success and len(transient.t) < 2:
+                transient = None  # it never started (no steady start): nothing to record
+            elif check_transient(system, transient):
+                print(f"{args.project}: internal consistency check failed: "
+                      f"{describe(check_transient(system, transient))}; please report",
+                      file=sys.stderr)
+                return ExitCode.INTERNAL
     elastic = None
     if transient is not None:
         from workbench.core.elastic import elastic_line_ids, run_elastic

@@ -12,6 +12,8 @@ integrator restarts from there.
 
 from __future__ import annotations
 
+import time
+
 import numpy as np
 
 from workbench.core.transient import handlers, siphon
@@ -22,6 +24,11 @@ from workbench.core.transient.options import RunOptions
 from workbench.core.transient.recording import Recording
 from workbench.core.transient.results import STATUS
 from workbench.core.transient.state import RunState
+
+#: Most integration steps of one run (a day's drain takes a few hundred).
+STEP_BUDGET = 500_000
+#: Most computing time of one run [s] (the demos take about a second).
+WALL_BUDGET = 300.0
 
 
 class InitialStateError(RuntimeError):
@@ -42,6 +49,7 @@ class Run:
         self.rec = Recording(model)
         self.events: EventSet | None = None
         self.nfev = self.njev = self.nlu = self.nsteps = 0
+        self.started = time.monotonic()
         self.last_progress = -1.0
         self.t_final = 0.0
         self.grid = np.zeros(0)
@@ -295,6 +303,9 @@ class Run:
             t_old, y_old = solver.t, solver.y.copy()
             msg = solver.step()
             self.nsteps += 1
+            over = self._over_budget(solver.t)
+            if over:
+                return -1, over, t, y, False
             if solver.status == "failed":
                 return -1, (
                     f"integration failed at t = {solver.t:.6g} s: {msg}; results up "
@@ -312,6 +323,24 @@ class Run:
                 y = self.configure(t, seg_end, y)
                 return 0, STATUS[0], t, y, True
         return 0, STATUS[0], t, y, False
+
+    def _over_budget(self, t: float) -> str:
+        """Why the run stops here (the step or computing-time budget is spent), or ``""``.
+
+        Every run is bounded: a stiff system (a valve with a minute Kv, a schedule that
+        moves every few milliseconds) could otherwise step for hours. The run stops as an
+        integration failure does: the results up to ``t`` are kept and marked incomplete.
+        """
+        spent = time.monotonic() - self.started
+        if self.nsteps < STEP_BUDGET and spent < WALL_BUDGET:
+            return ""
+        what = (f"{STEP_BUDGET:,} integration steps" if self.nsteps >= STEP_BUDGET
+                else f"{WALL_BUDGET:.0f} s of computing")
+        return (f"integration stopped at t = {t:.6g} s of {self.duration:.6g} s after {what} "
+                "(the run's budget); results up to then are kept. The system is very stiff "
+                "here: look for a valve that moves every few milliseconds, a valve or line "
+                "with almost no flow area, or a level at a tank's limits; a coarser valve "
+                "schedule or a shorter duration may help")
 
     def _accept(self, solver, t_old, y_old):
         """Handle one accepted step: events located, output points kept, peaks and
