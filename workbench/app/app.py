@@ -11,7 +11,7 @@ from __future__ import annotations
 from pathlib import Path
 from typing import Any, ClassVar
 
-from textual import work
+from textual import events, work
 from textual.app import App
 from textual.binding import Binding
 from textual.message import Message
@@ -173,6 +173,9 @@ class WorkbenchApp(App[int]):
         """The line of the elastic run asked for from the Surge view (running or last)."""
         self._generation = 0
         self._steady_timer = None
+        self._held_keys: list | None = None
+        """Keys typed while the screen is not ready for them (``None``: not holding)."""
+        self._hold_timer = None
         self.recovery = RecoveryKeeper()
         """This workbench's copy of unsaved edits, and the offers of others' copies."""
         self._loading_path: Path | None = None
@@ -185,6 +188,38 @@ class WorkbenchApp(App[int]):
 
         super().notify(printable(message, keep_lines=True), title=title, severity=severity,
                        timeout=timeout, markup=markup)
+
+    # --- keys typed before the screen is ready ----------------------------------------
+    def hold_keys(self, limit: float = 5.0) -> None:
+        """Hold typed keys until :meth:`release_keys` (or ``limit`` seconds): used while
+        the project loads and while a form is being shown, so no key lands in a widget
+        about to lose the focus or is dropped."""
+        if self._held_keys is None:
+            self._held_keys = []
+        if self._hold_timer is not None:
+            self._hold_timer.stop()
+        self._hold_timer = self.set_timer(limit, self.release_keys)
+
+    def release_keys(self) -> None:
+        """Replay the held keys, in order, to whatever has the focus now."""
+        held, self._held_keys = self._held_keys, None
+        if self._hold_timer is not None:
+            self._hold_timer.stop()
+            self._hold_timer = None
+        for event in held or []:
+            key = events.Key(event.key, event.character)
+            # as from the terminal: no sender, so the key bubbles back up to the app's
+            # bindings (a message is never bubbled to the pump that sent it)
+            key._sender = None
+            self.post_message(key)
+
+    async def on_event(self, event: events.Event) -> None:
+        # only keys as typed: a key bubbling back up from a widget is being handled
+        if (isinstance(event, events.Key) and self._held_keys is not None
+                and not event.is_forwarded and event.key != "ctrl+q"):
+            self._held_keys.append(event)
+            return
+        await super().on_event(event)
 
     # --- start-up ----------------------------------------------------------------------
     def get_default_screen(self):
@@ -199,6 +234,7 @@ class WorkbenchApp(App[int]):
             # Start reading after the first frame is on screen, so the import of the
             # units and property libraries in the worker does not delay it.
             self.notify(f"loading {self._initial_path} …", timeout=2)
+            self.hold_keys(limit=30.0)  # typed ahead of the load: answered once it shows
             self.call_after_refresh(self.load_worker, self._initial_path)
         elif self._offer_new:
             # asked at once, so that a key pressed as soon as the screen shows answers it
@@ -235,6 +271,7 @@ class WorkbenchApp(App[int]):
     def on_workbench_app_project_loaded(self, message: ProjectLoaded) -> None:
         self.adopt(message.project, message.path)
         self.notify(f"opened {message.path}" if message.path else "new project from the starter")
+        # the System view releases the keys typed ahead once it shows the project
 
     def adopt(self, project: Any, path: Path | None, *, saved: bool = True,
               offer_recovery: bool = True) -> None:
@@ -269,6 +306,13 @@ class WorkbenchApp(App[int]):
         self.history.push(new, label)
         self._set_project(new)
         return new
+
+    def run_is_stale(self) -> bool:
+        """True when the last run's results belong to another state of the project than
+        the one on screen (an edit since, or an undo past it); False with no run."""
+        if self.transient is None or self.project is None:
+            return False
+        return self.transient_system is not self.project.system
 
     def project_saved(self, project: Any) -> None:
         """Swap in the project as saved (same model, new path and hash); no re-solve."""
@@ -434,6 +478,7 @@ class WorkbenchApp(App[int]):
             self.elastic_status = "failed"
             self.refresh_bindings()
         elif worker.group == "load" and self.project is None:
+            self.release_keys()
             if not self.recovery.offer_after_failed_load(
                     self, self._loading_path, text, lambda: self._show_load_problems(text)):
                 self._show_load_problems(text)

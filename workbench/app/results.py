@@ -16,6 +16,13 @@ SEVERITY = {
 }
 
 
+#: One line under every result view; the cautions themselves stay on their own screen (F8).
+SCREENING = "Screening estimate only: check against local codes and licensed practice (F8)"
+
+#: The mark a result view shows when its result belongs to an older state of the project.
+STALE_RUN = "◌ STALE: from before the latest edits (Ctrl+R runs again)"
+
+
 def severity_label(severity: str) -> str:
     symbol, word = SEVERITY.get(severity, ("?", severity))
     return f"{symbol} {word}"

@@ -80,17 +80,28 @@ class EventsPane(Vertical):
     """Events, surge summary and warnings of the last run."""
 
     def compose(self) -> ComposeResult:
+        yield Static("", id="events-stale", classes="stale-mark", markup=False)
         yield Static("", id="run-summary", classes="pane-heading", markup=False)
         yield DataTable(id="event-table", cursor_type="row", zebra_stripes=True)
         yield Static("Surge and pressure extremes (gauge)", classes="pane-heading", markup=False)
         yield DataTable(id="surge-table", cursor_type="row", zebra_stripes=True)
         yield Static("Warnings", classes="pane-heading", markup=False)
         yield DataTable(id="run-finding-table", cursor_type="row")
+        yield Static(results.SCREENING, classes="screening", markup=False)
 
     def on_mount(self) -> None:
         self.watch(self.app, "transient", self._show)
         self.watch(self.app, "elastic", self._show, init=False)  # elastic DANGER findings
         self.watch(self.app, "unit_system", self._show, init=False)
+        self.watch(self.app, "elastic", self._show, init=False)
+        self.watch(self.app, "project", self._show_stale, init=False)
+        self.watch(self.app, "run_status", self._show_stale, init=False)
+
+    def _show_stale(self, _value=None) -> None:
+        stale = self.app.run_is_stale() and self.app.run_status != "running"
+        mark = self.query_one("#events-stale", Static)
+        mark.update(results.STALE_RUN if stale else "")
+        mark.display = stale
 
     def _show(self, _value=None) -> None:
         result = self.app.transient
@@ -102,6 +113,7 @@ class EventsPane(Vertical):
             if drained:
                 summary += " · drained " + ", ".join(f"{k} at {t}" for k, t in drained)
         self.query_one("#run-summary", Static).update(summary)
+        self._show_stale()
         self._fill("#event-table", ["time", "code", "element", "message"],
                    event_rows(result, units) if result is not None else [])
         self._fill("#surge-table", ["line", *(t for t, _n, _k in SURGE_FIELDS)],

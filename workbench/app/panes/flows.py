@@ -29,6 +29,7 @@ class FlowsPane(Vertical):
         yield DataTable(id="tank-table", cursor_type="row", zebra_stripes=True)
         yield DataTable(id="finding-table", cursor_type="row")
         yield Static("", id="finding-detail", markup=False)
+        yield Static(results.SCREENING, classes="screening", markup=False)
 
     def on_mount(self) -> None:
         self.watch(self.app, "steady", self._show, init=False)

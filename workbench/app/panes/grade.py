@@ -16,7 +16,7 @@ from textual.containers import Horizontal, Vertical
 from textual.widgets import OptionList, Static
 from textual.widgets.option_list import Option
 
-from workbench.app.results import _get
+from workbench.app.results import SCREENING, _get
 
 G = 9.80665  # standard gravity [m/s^2] (CGPM 1901)
 
@@ -66,7 +66,9 @@ class GradePane(Horizontal):
         with Vertical(id="grade-side"):
             yield Static("", id="grade-title", markup=False)
             yield Vertical(id="grade-plot-holder")
+            yield Static("", id="grade-legend", classes="plot-legend", markup=False)
             yield Static("", id="grade-note", markup=False)
+            yield Static(SCREENING, classes="screening", markup=False)
 
     def __init__(self, **kwargs) -> None:
         super().__init__(**kwargs)
@@ -122,9 +124,11 @@ class GradePane(Horizontal):
         app = self.app
         title = self.query_one("#grade-title", Static)
         note = self.query_one("#grade-note", Static)
+        legend = self.query_one("#grade-legend", Static)
         plt = self._plot.plt
         plt.clear_data()
         plt.clear_figure()
+        legend.update("")
         if app.project is None or app.steady is None or self._line is None:
             title.update("Grade line: waiting for a steady solution")
             self._plot.refresh()
@@ -134,42 +138,96 @@ class GradePane(Horizontal):
             title.update(f"Grade line {self._line}: no profile in the result")
             self._plot.refresh()
             return
+        stale = "" if app.steady_status == "fresh" else "  ◌ STALE: older than the edits"
+        title.update(f"Grade line {self._line}{stale}")
+        words = self._draw(plt, series)
+        legend.update(words)
+        note.update(self._note_text(series))
+        self._plot.refresh()
+
+    def _draw(self, plt, series: dict) -> str:
+        """Draw the pipe, grade line, valve and limits; return the legend line."""
+        from workbench.app import plotaxes
         from workbench.project.units import display_unit, to_display
 
-        units = app.unit_system
+        units = self.app.unit_system
         head = display_unit("head", units)
         conv = lambda values: [float(to_display(v, "head", units)) for v in values]  # noqa: E731
         x = conv(series["distance"])
-        plt.plot(x, conv(series["elevation"]), label="pipe", marker="=")
-        plt.plot(x, conv(series["hgl"]), label="grade line", marker="hd")
+        pipe, hgl = conv(series["elevation"]), conv(series["hgl"])
+        items = [("=", "pipe"), ("▪", "grade line")]
+        plt.plot(x, pipe, marker="=")
+        plt.plot(x, hgl, marker="hd")
+        valve = valve_drop(self.app.steady, self.app.project.system, self._line)
+        extra: list[float] = []
+        if valve is not None:
+            at_end, upstream, downstream = valve
+            vx = x[-1] if at_end else x[0]
+            ys = conv([upstream, downstream])
+            plt.plot([vx, vx], ys, marker="X")
+            extra = ys
+            items.append(("X", "valve loss"))
+        span = plotaxes.data_range(pipe, hgl, extra)
+        limits = []
         if series["vapour"] is not None:
-            plt.plot(x, conv(series["vapour"]), label="vapour limit", marker=".")
-        hgl = conv(series["hgl"])
+            limits.append(plotaxes.Limit("vapour limit", conv(series["vapour"]), "."))
+        drawn, off = plotaxes.place_limits(limits, span, fmt=lambda v: f"{v:.4g} {head}")
+        for limit in drawn:
+            plt.plot(x, list(limit.values), marker=limit.marker)
+            items.append((limit.marker, limit.name))
         if series["below_atm"]:
             idx = series["below_atm"]
-            plt.scatter([x[i] for i in idx], [hgl[i] for i in idx], marker="x",
-                        label="below atm")
+            plt.scatter([x[i] for i in idx], [hgl[i] for i in idx], marker="x")
+            items.append(("x", "below atm"))
         if series["near_vapour"]:
             idx = series["near_vapour"]
-            plt.scatter([x[i] for i in idx], [hgl[i] for i in idx], marker="V",
-                        label="near vapour")
+            plt.scatter([x[i] for i in idx], [hgl[i] for i in idx], marker="V")
+            items.append(("V", "near vapour"))
+        if span is not None:
+            plt.ylim(*span)
         plt.xlabel(f"chainage [{head}]")
         plt.ylabel(f"[{head}]")
-        stale = "" if app.steady_status == "fresh" else "  (STALE)"
-        title.update(f"Grade line {self._line}{stale}")
-        p = series["p_gauge"]
-        if p:
-            i = min(range(len(p)), key=p.__getitem__)
-            from workbench.project.units import format_quantity
+        text = plotaxes.legend_text(items)
+        if off:
+            text += "  · " + "; ".join(off)
+        return text
 
-            flags = []
-            if series["below_atm"]:
-                flags.append(f"x sub-atmospheric at {len(series['below_atm'])} pt")
-            if series["near_vapour"]:
-                flags.append(f"V near vapour at {len(series['near_vapour'])} pt")
-            note.update(
-                f"lowest p {format_quantity(p[i] if abs(p[i]) >= 1.0 else 0.0, 'pressure', units)}"
-                f" g at "
-                f"{format_quantity(series['distance'][i], 'length', units)}"
+    def _note_text(self, series: dict) -> str:
+        from workbench.project.units import format_quantity
+
+        units = self.app.unit_system
+        p = series["p_gauge"]
+        if not p:
+            return ""
+        i = min(range(len(p)), key=p.__getitem__)
+        flags = []
+        if series["below_atm"]:
+            flags.append(f"x sub-atmospheric at {len(series['below_atm'])} pt")
+        if series["near_vapour"]:
+            flags.append(f"V near vapour at {len(series['near_vapour'])} pt")
+        return (f"lowest p {format_quantity(p[i] if abs(p[i]) >= 1.0 else 0.0, 'pressure', units)}"
+                f" g at {format_quantity(series['distance'][i], 'length', units)}"
                 + ("  ·  " + ", ".join(flags) if flags else "  ·  no pressure flags"))
-        self._plot.refresh()
+
+
+def valve_drop(result: Any, system: Any, line_id: str) -> tuple[bool, float, float] | None:
+    """A valve at a line's end as drawn: ``(at the to-end, head upstream, head downstream)``
+    [m], the heads on either face (the profile's end and the node beyond the valve).
+
+    ``None`` when the line has no valve or the result has no head for the node.
+    """
+    line = system.lines.get(line_id) if system is not None else None
+    if line is None or line.valve is None:
+        return None
+    profiles = _get(result, "profiles", default={}) or {}
+    prof = profiles.get(line_id)
+    nodes = _get(result, "nodes", default={}) or {}
+    at_end = line.valve.position != "from"
+    node = nodes.get(line.to_node if at_end else line.from_node)
+    if prof is None or node is None:
+        return None
+    hgl = [float(v) for v in _get(prof, "hgl")]
+    node_head = _get(node, "head", "head_m")
+    if not hgl or node_head is None:
+        return None
+    return at_end, (hgl[-1] if at_end else hgl[0]), float(node_head)

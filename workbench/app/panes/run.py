@@ -13,7 +13,7 @@ from textual.binding import Binding
 from textual.containers import Horizontal, Vertical
 from textual.widgets import ProgressBar, SelectionList, Static
 
-from workbench.app.results import _get, decimate
+from workbench.app.results import SCREENING, STALE_RUN, _get, decimate
 
 RUN_WORDS = {
     "idle": "not run yet: Ctrl+R simulates",
@@ -62,9 +62,13 @@ class RunPane(Vertical):
         with Horizontal(id="run-head"):
             yield Static("", id="run-status", markup=False)
             yield ProgressBar(total=1.0, show_eta=False, id="run-progress")
+        yield Static("", id="run-stale", classes="stale-mark", markup=False)
         with Horizontal(id="run-body"):
             yield SelectionList[str](id="run-series")
-            yield Vertical(id="run-plot-holder")
+            with Vertical(id="run-plot-side"):
+                yield Vertical(id="run-plot-holder")
+                yield Static("", id="run-legend", classes="plot-legend", markup=False)
+        yield Static(SCREENING, classes="screening", markup=False)
 
     def __init__(self, **kwargs) -> None:
         super().__init__(**kwargs)
@@ -77,10 +81,18 @@ class RunPane(Vertical):
         self.watch(self.app, "run_progress", self._show_progress)
         self.watch(self.app, "transient", self._show_result)
         self.watch(self.app, "unit_system", self._redraw, init=False)
+        self.watch(self.app, "project", self._show_stale)
 
     def _show_status(self, status: str) -> None:
         self.query_one("#run-status", Static).update(f"Run: {RUN_WORDS.get(status, status)}")
         self.set_class(status == "running", "-running")
+        self._show_stale()
+
+    def _show_stale(self, _value=None) -> None:
+        stale = self.app.run_is_stale() and self.app.run_status != "running"
+        mark = self.query_one("#run-stale", Static)
+        mark.update(STALE_RUN if stale else "")
+        mark.display = stale
 
     def _show_progress(self, fraction: float) -> None:
         self.query_one("#run-progress", ProgressBar).update(progress=fraction)
@@ -98,6 +110,7 @@ class RunPane(Vertical):
         self.call_after_refresh(self._redraw)
 
     def _show_result(self, result) -> None:
+        self._show_stale()
         box = self.query_one("#run-series", SelectionList)
         self._series = trend_series(result) if result is not None else []
         if self._chosen is None and self._series:
@@ -108,13 +121,22 @@ class RunPane(Vertical):
             self._chosen |= {k for k, _l, _kind, _v in self._series
                              if k.startswith(("feeds:", "spills:", "gas:"))}
         box.clear_options()
-        box.add_options([(label, key, key in (self._chosen or set()))
-                         for key, label, _kind, _values in self._series])
+        box.add_options([(self._prompt(n, key, label), key, key in (self._chosen or set()))
+                         for n, (key, label, _kind, _values) in enumerate(self._series)])
         self._redraw()
+
+    def _prompt(self, n: int, key: str, label: str) -> str:
+        """A series' row: shown or hidden in words' stead a mark, and its plot marker."""
+        on = key in (self._chosen or set())
+        return f"{'✓' if on else '·'} {MARKERS[n % len(MARKERS)]} {label}"
 
     def on_selection_list_selected_changed(self, event: SelectionList.SelectedChanged) -> None:
         event.stop()
         self._chosen = set(event.selection_list.selected)
+        box = event.selection_list
+        for n, (key, label, _kind, _values) in enumerate(self._series):
+            if n < box.option_count:
+                box.replace_option_prompt_at_index(n, self._prompt(n, key, label))
         self._redraw()
 
     def action_toggle_series(self) -> None:
@@ -128,34 +150,47 @@ class RunPane(Vertical):
         plt = self._plot.plt
         plt.clear_data()
         plt.clear_figure()
+        legend = self.query_one("#run-legend", Static)
         result = self.app.transient
         if result is None:
             plt.title("no simulation yet: Ctrl+R runs one")
+            legend.update("")
             self._plot.refresh()
             return
+        import numpy as np
+
+        from workbench.app import plotaxes
         from workbench.project.units import display_unit, to_display
 
         units = self.app.unit_system
-        import numpy as np
-
         t = np.asarray(_get(result, "t", default=[]), dtype=float)
-        hours = bool(len(t)) and t[-1] > 7200
-        x = t / 3600 if hours else t
-        markers = "•+ox*#@%&"
+        x, time_unit, divisor = plotaxes.time_axis(t)
+        x = np.asarray(x)
+        items = []
         for n, (key, label, kind, values) in enumerate(self._series):
             if key not in (self._chosen or set()) or len(values) != len(x):
                 continue
             side = "left" if kind == "length" else "right"
+            marker = MARKERS[n % len(MARKERS)]
             xs, y = decimate(x, to_display(np.asarray(values, dtype=float), kind, units))
-            plt.plot(xs, y, label=f"{label} [{display_unit(kind, units)}]",
-                     marker=markers[n % len(markers)], yside=side)
+            plt.plot(xs, y, marker=marker, yside=side)
+            axis = "left" if side == "left" else "right"
+            items.append((marker, f"{label} [{display_unit(kind, units)}, {axis}]"))
         from workbench.app.measurement_overlay import draw_readings  # site tests, as points
 
-        draw_readings(plt, self.app.project, self._chosen or set(), 3600.0 if hours else 1.0, units)
-        plt.xlabel("time [h]" if hours else "time [s]")
+        draw_readings(plt, self.app.project, self._chosen or set(), divisor, units)
+        if len(x):
+            ticks = plotaxes.nice_ticks(float(x[0]), float(x[-1]))
+            plt.xticks(ticks, plotaxes.tick_labels(ticks))
+        plt.xlabel(f"time [{time_unit}]")
         plt.ylabel(f"level [{display_unit('length', units)}]", yside="left")
         right = sorted({kind for key, _l, kind, _v in self._series
                         if kind != "length" and key in (self._chosen or set())}) or ["flow"]
         plt.ylabel(", ".join(f"{'gas' if k == 'pressure' else k} [{display_unit(k, units)}]"
                              for k in right), yside="right")
+        legend.update(plotaxes.legend_text(items) or "no series shown: Space shows one")
         self._plot.refresh()
+
+
+#: One plot marker per series, shown in the series list and the legend as well.
+MARKERS = "•+ox*#@%&"

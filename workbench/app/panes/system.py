@@ -34,6 +34,9 @@ class SystemPane(Horizontal):
         elements = self.query_one(ElementList)
         elements.show(project.data)
         await self._show_entry(elements.entry)
+        # keys typed ahead of the load, once the list has been laid out (two refreshes:
+        # an option list moves its cursor only after its rows are measured)
+        self.call_after_refresh(self.call_after_refresh, self.app.release_keys)
         if not self._prebuilt:
             self._prebuilt = True
             if getattr(self.app, "prebuild_forms", True):
@@ -67,14 +70,20 @@ class SystemPane(Horizontal):
         await self.query_one(FieldForm).show(entry, self.app.project.data, self.app.unit_system)
 
     async def on_element_list_chosen(self, message: ElementList.Chosen) -> None:
+        if message.entry != self.query_one(ElementList).entry:
+            return  # the list has moved on (keys typed quickly): show only where it is
         await self._show_entry(message.entry)
 
     async def on_element_list_edit_requested(self, _message: ElementList.EditRequested) -> None:
         # The highlighted element's form may still be waiting behind a form being built in
         # idle time: show it first (that waits its turn), so the focus lands in the fields
         # of the element the user chose and never in another section's hidden form.
-        await self._show_entry(self.query_one(ElementList).entry)
-        self.query_one(FieldForm).focus_first()
+        self.app.hold_keys()  # keys typed now belong to the form, not to the list
+        try:
+            await self._show_entry(self.query_one(ElementList).entry)
+            self.query_one(FieldForm).focus_first()
+        finally:
+            self.call_after_refresh(self.app.release_keys)
 
     def on_field_form_left(self, message: FieldForm.Left) -> None:
         message.stop()

@@ -34,11 +34,16 @@ STEADY_WORDS = {"idle": "—", "stale": "STALE", "solving": "solving…", "fresh
 
 
 class StatusLine(Static):
-    """File name, unsaved mark, display units, steady and run state — in words."""
+    """Steady and run state first (they must stay visible at 80 columns), then the display
+    units, then the file name and its unsaved mark, shortened from the left to fit."""
 
     def on_mount(self) -> None:
-        for name in ("path", "modified", "unit_system", "steady_status", "run_status", "project"):
+        for name in ("path", "modified", "unit_system", "steady_status", "run_status",
+                     "project", "transient"):
             self.watch(self.app, name, self._show, init=False)
+        self._show()
+
+    def on_resize(self) -> None:
         self._show()
 
     def _show(self, _value=None) -> None:
@@ -46,14 +51,28 @@ class StatusLine(Static):
         if app.project is None:
             self.update(" Gravity workbench · no project open")
             return
-        name = app.path.name if app.path else "(new, unsaved)"
-        mark = " [modified]" if app.modified else ""
-        run = "" if app.run_status == "idle" else f" · run {app.run_status}"
-        steady = STEADY_WORDS.get(app.steady_status, app.steady_status)
-        self.update(f" {name}{mark} · units {app.unit_system} · steady {steady}{run}")
+        self.update(status_text(app, self.size.width or 80))
         self.set_class(app.modified, "-modified")
-        self.set_class(app.steady_status in {"stale", "solving"}, "-stale")
+        self.set_class(app.steady_status in {"stale", "solving"} or app.run_is_stale(),
+                       "-stale")
         self.set_class(app.steady_status == "failed", "-failed")
+
+
+def status_text(app, width: int) -> str:
+    """The status line's text at ``width`` columns."""
+    steady = STEADY_WORDS.get(app.steady_status, app.steady_status)
+    run = ""
+    if app.run_status != "idle":
+        run = f" · run {app.run_status}"
+        if app.run_status != "running" and app.run_is_stale():
+            run += " STALE"
+    head = f" steady {steady}{run} · {app.unit_system} · "
+    name = app.path.name if app.path else "(new, unsaved)"
+    mark = " [modified]" if app.modified else ""
+    room = max(width - len(head) - len(mark) - 1, 8)
+    if len(name) > room:
+        name = "…" + name[-(room - 1):]
+    return f"{head}{name}{mark}"
 
 
 class DeskScreen(Screen):

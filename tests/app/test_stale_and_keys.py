@@ -1,0 +1,89 @@
+"""At 80x24: results from an older state of the project are marked, the status line keeps
+the steady and run state, and keys typed before the screen is ready are not lost."""
+
+from __future__ import annotations
+
+from tests.app.conftest import SIZE, choose_entry, make, settle, type_into
+
+DRAIN = "fellgate_neutraliser_drain.toml"
+LINE = "210-DR-04"
+
+
+def text(app, selector: str) -> str:
+    return str(app.screen.query_one(selector).render())
+
+
+async def test_after_an_edit_every_result_view_says_its_result_is_stale_and_undo_clears_it(
+        project_file):
+    app = make(project_file(DRAIN), debounce=30.0)  # the re-solve waits: the edit stays unsolved
+    async with app.run_test(size=SIZE) as pilot:
+        app.debounce = 0.05
+        await settle(pilot)
+        await pilot.press("ctrl+r")
+        await pilot.pause()
+        await app.workers.wait_for_complete()
+        await pilot.pause()
+        for view in ("f3", "f4", "f5", "f6"):  # build every view
+            await pilot.press(view)
+            await pilot.pause()
+        assert "STALE" not in text(app, "#run-stale") + text(app, "#events-stale")
+        await pilot.press("f2")
+        app.debounce = 30.0
+        await choose_entry(pilot, f"lines:{LINE}")
+        await type_into(pilot, f"lines.{LINE}.nominal_size", "6 in")
+        await pilot.pause()
+        assert app.modified
+        marks = {
+            "flows": text(app, "#steady-banner"),
+            "grade": text(app, "#grade-title"),
+            "run": text(app, "#run-stale"),
+            "events": text(app, "#events-stale"),
+        }
+        for view, mark in marks.items():
+            assert "STALE" in mark, (view, mark)
+        status = text(app, "#status")
+        await pilot.press("ctrl+z")
+        await pilot.pause()
+        after_undo = text(app, "#run-stale")
+    # at 80 columns the status line keeps both states in sight beside [modified]
+    assert len(status) <= 80 and "steady STALE" in status and "run done STALE" in status
+    assert "[modified]" in status
+    # undo returns to the state the run was made for: its results are current again
+    assert "STALE" not in after_undo
+
+
+async def test_keys_typed_while_the_project_loads_are_answered_once_it_is_shown(project_file):
+    from workbench.app.factory import make_app
+    from workbench.app.panes.form import FieldInput
+
+    path = project_file(DRAIN)
+    app = make_app(path=path, debounce=0.05, prebuild_forms=False)
+    async with app.run_test(size=SIZE) as pilot:
+        # typed at once, before the file has been read: down to the line, into its form,
+        # three fields on
+        await pilot.press(*["down"] * 5, "enter", "down", "down", "down")
+        while app.project is None or app._held_keys is not None:
+            await pilot.pause(0.05)
+        await app.workers.wait_for_complete()
+        for _ in range(20):
+            await pilot.pause()
+        focused = app.focused
+    assert isinstance(focused, FieldInput)
+    assert focused.field.keypath == f"lines.{LINE}.nominal_size"
+
+
+async def test_every_result_view_carries_the_one_line_screening_notice(project_file):
+    from workbench.app.results import SCREENING
+
+    app = make(project_file(DRAIN))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        shown = {}
+        for key, view in (("f3", "flows"), ("f4", "grade"), ("f5", "run"), ("f6", "events")):
+            await pilot.press(key)
+            await pilot.pause()
+            pane = app.screen.query_one(f"#{view}-pane")
+            notes = [w for w in pane.query(".screening") if str(w.render()) == SCREENING]
+            shown[view] = bool(notes) and notes[0].region.height == 1 and \
+                notes[0].region.bottom <= SIZE[1]
+    assert all(shown.values()), shown

@@ -1,0 +1,105 @@
+"""Time to the first steady result in the workbench app against ``workbench solve``.
+
+For each demo project, as whole processes (interpreter start included): the app is
+built as ``workbench open`` builds it and run headless at 80x24; the script records
+when the first frame is painted and when the first steady result is on screen, then
+exits. ``workbench solve`` is run on the same file. Wall and CPU (user + system) times
+are the median of a few runs; the ratio is the app's first result over solve's whole run.
+The machine may be shared: read the CPU columns first.
+
+    .venv/bin/python tests/benchmarks/bench_app_start.py [--runs 3] [projects/X.toml ...]
+"""
+
+from __future__ import annotations
+
+import argparse
+import os
+import resource
+import statistics
+import subprocess
+import sys
+import time
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parents[2]
+
+APP_SCRIPT = r"""
+import sys, time
+T0 = time.perf_counter()
+from workbench.app.factory import make_app
+from workbench.app.app import WorkbenchApp
+
+app = make_app(path=sys.argv[1])
+marks = {}
+
+def painted():
+    marks.setdefault("frame", time.perf_counter() - T0)
+
+orig_mount = WorkbenchApp.on_mount
+def on_mount(self):
+    orig_mount(self)
+    self.call_after_refresh(painted)
+WorkbenchApp.on_mount = on_mount
+
+orig_solved = WorkbenchApp.on_workbench_app_steady_solved
+def solved(self, message):
+    orig_solved(self, message)
+    if self.steady_status in {"fresh", "failed"} and "result" not in marks:
+        def shown():
+            marks["result"] = time.perf_counter() - T0
+            self.exit(0)
+        self.call_after_refresh(shown)
+WorkbenchApp.on_workbench_app_steady_solved = solved
+
+app.run(headless=True, size=(80, 24))
+print(f"frame {marks.get('frame', float('nan')):.3f} result {marks.get('result', float('nan')):.3f}")
+"""
+
+
+def run(cmd: list[str]) -> tuple[float, float, str]:
+    """Wall and CPU seconds of one child process, and its output."""
+    before = resource.getrusage(resource.RUSAGE_CHILDREN)
+    start = time.perf_counter()
+    out = subprocess.run(cmd, capture_output=True, text=True, cwd=ROOT,
+                         env={**os.environ, "NO_COLOR": "1"}, check=False)
+    wall = time.perf_counter() - start
+    after = resource.getrusage(resource.RUSAGE_CHILDREN)
+    cpu = (after.ru_utime - before.ru_utime) + (after.ru_stime - before.ru_stime)
+    if out.returncode not in (0, 1, 2):
+        raise SystemExit(f"{' '.join(cmd)} failed:\n{out.stderr}")
+    return wall, cpu, out.stdout
+
+
+def main() -> None:
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("projects", nargs="*", type=Path)
+    parser.add_argument("--runs", type=int, default=3)
+    args = parser.parse_args()
+    projects = args.projects or sorted((ROOT / "projects").glob("*.toml"))
+    exe = Path(sys.executable)
+    workbench = exe.with_name("workbench")
+    print(f"{'project':42} {'solve wall/cpu s':>17} {'app frame s':>11} "
+          f"{'app result wall/cpu s':>22} {'ratio':>6}")
+    boot = statistics.median(run([str(exe), "-c", "pass"])[0] for _ in range(3))
+    for project in projects:
+        solve, app, frames, results = [], [], [], []
+        for _ in range(args.runs):
+            wall, cpu, _out = run([str(workbench), "solve", str(project)])
+            solve.append((wall, cpu))
+            wall, cpu, out = run([str(exe), "-c", APP_SCRIPT, str(project)])
+            app.append((wall, cpu))
+            words = out.split()
+            frames.append(float(words[1]))
+            results.append(float(words[3]))
+        s_wall = statistics.median(w for w, _c in solve)
+        s_cpu = statistics.median(c for _w, c in solve)
+        a_cpu = statistics.median(c for _w, c in app)
+        # measured inside the app's process from its first line; the interpreter's own
+        # start (a bare python run) is added so both sides are whole processes
+        frame = statistics.median(frames) + boot
+        result = statistics.median(results) + boot
+        print(f"{project.name:42} {s_wall:8.2f}/{s_cpu:<8.2f} {frame:11.2f} "
+              f"{result:10.2f}/{a_cpu:<11.2f} {result / s_wall:6.2f}")
+
+if __name__ == "__main__":
+    main()
