@@ -4,7 +4,7 @@ The catalogue liquids of :mod:`workbench.core.fluid` take density, viscosity and
 pressure from published correlations whose coefficients the ``chemicals`` package carries
 in data tables. Looking a row up there loads those tables (pandas and a set of CSV files,
 about 0.5 s holding the interpreter lock), so the rows of our liquids are typed here and
-the equations evaluated with :mod:`math`:
+the equations are evaluated by ``chemicals``' own functions, which need no table:
 
 * :data:`PERRY_DIPPR` -- Perry's Chemical Engineers' Handbook, 8th ed. (2008): DIPPR
   equation 105 for saturated-liquid density (table 2-32, chemicals'
@@ -14,11 +14,11 @@ the equations evaluated with :mod:`math`:
   density (``rho_data_VDI_PPDS_2``), PPDS equation 9 for viscosity (``mu_data_VDI_PPDS_7``)
   and the Wagner 2.5-5 equation for vapour pressure (``Psat_data_VDI_PPDS_3``).
 
-Each equation is written as ``chemicals`` evaluates it (``chemicals.dippr.EQ101`` and
-``EQ105``, ``chemicals.volume.volume_VDI_PPDS``, ``chemicals.viscosity.PPDS9``,
-``chemicals.vapor_pressure.Wagner``), including their guards at and beyond the critical
-point. tests/core/test_fluid_coefficients.py checks every typed number against the
-package's tables and every value against the package's own evaluation to 1e-12.
+Each ``at`` method calls the package's evaluator (``chemicals.dippr.EQ101`` and ``EQ105``,
+``chemicals.volume.volume_VDI_PPDS``, ``chemicals.viscosity.PPDS9``,
+``chemicals.vapor_pressure.Wagner``), with their guards at and beyond the critical point;
+none of them loads pandas. tests/core/test_fluid_coefficients.py checks every typed number
+against the package's tables and every value against the package's own evaluation.
 
 Adding a liquid: copy its rows from those tables (``.loc[CAS]``), its molar mass from
 ``chemicals.MW(CAS)`` and its critical temperature from ``chemicals.critical.Tc(CAS)``;
@@ -27,7 +27,6 @@ the tests name any number that differs.
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
 
 __all__ = [
@@ -41,6 +40,10 @@ __all__ = [
     "VdiPpdsLiquid",
     "WagnerVaporPressure",
 ]
+
+#: What ``chemicals``' truncated exponential returns for an argument that overflows (the
+#: largest float); a value this large is an overflow, not a property.
+_TRUNCATED_EXP = 1.7976931348622732e308
 
 
 @dataclass(frozen=True)
@@ -66,14 +69,10 @@ class Dippr105:
     """Highest temperature of the fit as tabulated [K]."""
 
     def at(self, t: float) -> float:
-        """Molar density at ``t`` [K], [mol/m^3]."""
-        base = 1.0 - t / self.C
-        if self.D < 1.0 and base < 0.0:
-            base = 0.0
-        power = base**self.D
-        if isinstance(power, complex):  # negative base, non-integer D >= 1
-            power = 0.0
-        return self.A * self.B ** (-(1.0 + power))
+        """Molar density at ``t`` [K], [mol/m^3] (``chemicals.dippr.EQ105``)."""
+        from chemicals.dippr import EQ105
+
+        return EQ105(t, self.A, self.B, self.C, self.D)
 
 
 @dataclass(frozen=True)
@@ -94,8 +93,13 @@ class Dippr101:
     """Highest temperature of the fit as tabulated [K]."""
 
     def at(self, t: float) -> float:
-        """Value at ``t`` [K], in the unit of the table (Pa s or Pa)."""
-        return math.exp(self.A + self.B * (1.0 / t) + self.C * math.log(t) + self.D * t**self.E)
+        """Value at ``t`` [K], in the unit of the table (Pa s or Pa) (``chemicals.dippr.EQ101``)."""
+        from chemicals.dippr import EQ101
+
+        value = EQ101(t, self.A, self.B, self.C, self.D, self.E)
+        if value >= _TRUNCATED_EXP:  # chemicals caps an overflowing exponential here
+            raise OverflowError(f"DIPPR equation 101 overflows at {t} K")
+        return value
 
 
 @dataclass(frozen=True)
@@ -116,11 +120,11 @@ class Ppds10Density:
     D: float
 
     def at(self, t: float) -> float:
-        """Density at ``t`` [K], [kg/m^3]."""
-        tau = 1.0 - t / self.t_critical if t < self.t_critical else 0.0
-        tau_cbrt = tau ** (1.0 / 3.0)
-        return (self.rho_critical + self.A * tau**0.35 + self.B * tau_cbrt * tau_cbrt
-                + tau * (self.C + self.D * tau_cbrt))
+        """Density at ``t`` [K], [kg/m^3] (``chemicals.volume.volume_VDI_PPDS``)."""
+        from chemicals.volume import volume_VDI_PPDS
+
+        return volume_VDI_PPDS(t, self.t_critical, self.rho_critical, self.A, self.B, self.C,
+                               self.D)
 
 
 @dataclass(frozen=True)
@@ -142,10 +146,10 @@ class Ppds9Viscosity:
     """[Pa s]"""
 
     def at(self, t: float) -> float:
-        """Viscosity at ``t`` [K], [Pa s]."""
-        x = (self.C - t) / (t - self.D)
-        x_cbrt = -(((t - self.C) / (t - self.D)) ** (1.0 / 3.0)) if x < 0.0 else x ** (1.0 / 3.0)
-        return self.E * math.exp(self.A * x_cbrt + self.B * (x * x_cbrt))
+        """Viscosity at ``t`` [K], [Pa s] (``chemicals.viscosity.PPDS9``)."""
+        from chemicals.viscosity import PPDS9
+
+        return PPDS9(t, self.A, self.B, self.C, self.D, self.E)
 
 
 @dataclass(frozen=True)
@@ -168,15 +172,10 @@ class WagnerVaporPressure:
     """Melting point listed with the coefficients [K]."""
 
     def at(self, t: float) -> float:
-        """Vapour pressure at ``t`` [K], [Pa]."""
-        tr = min(t / self.t_critical, 1.0)
-        tau = 1.0 - tr
-        tau_rt = math.sqrt(tau)
-        tau15 = tau * tau_rt
-        tau25 = tau * tau15
-        return self.p_critical * math.exp(
-            (self.A + self.B * tau_rt + tau15 * (self.C + self.D * tau25)) * tau / tr
-        )
+        """Vapour pressure at ``t`` [K], [Pa] (``chemicals.vapor_pressure.Wagner``)."""
+        from chemicals.vapor_pressure import Wagner
+
+        return Wagner(t, self.t_critical, self.p_critical, self.A, self.B, self.C, self.D)
 
 
 @dataclass(frozen=True)
