@@ -73,30 +73,29 @@ def envelope_series(result: Any, system: Any, line_id: str) -> dict[str, Any] | 
 
 
 def time_scale(span: float) -> tuple[float, str]:
-    """Divisor and unit for a time axis of ``span`` seconds: s, min or h."""
-    if span <= 300.0:
-        return 1.0, "s"
-    if span <= 3.0 * 3600.0:
-        return 60.0, "min"
-    return 3600.0, "h"
+    """Divisor and unit for a time axis of ``span`` seconds: s, min or h (the rule of
+    :func:`workbench.app.plotaxes.time_axis`, shared by every plot)."""
+    from workbench.app.plotaxes import time_axis
+
+    _, unit, divisor = time_axis([0.0, span])
+    return divisor, unit
 
 
 def axis_range(series: list[list[float]]) -> tuple[float, float]:
-    """Lower and upper limits around the data (5 % margin; 1 m when flat)."""
-    values = [v for s in series for v in s]
-    lo, hi = min(values), max(values)
-    pad = 0.05 * (hi - lo) if hi > lo else 1.0
-    return lo - pad, hi + pad
+    """Lower and upper limits around the data (:func:`workbench.app.plotaxes.data_range`)."""
+    from workbench.app.plotaxes import data_range
+
+    return data_range(*series) or (0.0, 1.0)
 
 
-def limits_in_words(limits: dict[str, list[float]], lo: float, hi: float) -> list[str]:
-    """Names of the limits that lie wholly above or below the plotted range."""
-    words = []
-    for name, values in limits.items():
-        if min(values) > hi:
-            words.append(f"{name} above the plot")
-        elif max(values) < lo:
-            words.append(f"{name} below the plot")
+def limits_in_words(limits: dict[str, list[float]], lo: float, hi: float,
+                    fmt=lambda v: f"{v:.3g}") -> list[str]:
+    """Notes for the limits that lie wholly above or below the plotted range
+    (:func:`workbench.app.plotaxes.place_limits`)."""
+    from workbench.app.plotaxes import Limit, place_limits
+
+    _, words = place_limits([Limit(name, values) for name, values in limits.items()],
+                            (lo, hi), fmt)
     return words
 
 
@@ -260,7 +259,7 @@ class SurgePane(Horizontal):
         plt.xlabel(f"chainage [{head}]")
         plt.ylabel(f"head [{head}]")
         title.update(f"Surge {self._line}: head envelope (v: traces){self._stale()}")
-        words = limits_in_words(limits, lo, hi)
+        words = limits_in_words(limits, lo, hi, lambda v: f"{v:.4g} {head}")
         note.update(" · ".join([self._summary(result, s), *words, LEGEND_ENVELOPE]))
 
     def _draw_trace(self, plt, result, system, title, note) -> None:
@@ -304,7 +303,8 @@ class SurgePane(Horizontal):
         plt.ylabel(f"p [{display_unit('pressure', units)} g]")
         where = "pressure at the valve" if kind == "valve" else "pressure at the junction"
         title.update(f"Surge {name}: {where} (v: next){self._stale()}")
-        words = limits_in_words(limits, lo, hi)
+        p_unit = display_unit("pressure", units)
+        words = limits_in_words(limits, lo, hi, lambda v: f"{v:.4g} {p_unit} g")
         if clamped:
             words.append("values below vapour pressure (column separation, run without "
                          "the cavity model) are drawn at the vapour limit")
