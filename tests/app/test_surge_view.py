@@ -93,3 +93,29 @@ async def test_elastic_danger_findings_reach_the_events_view(project_file):
     codes = [cell for row in rows for cell in row]
     assert any("surge.column_separation" in c for c in codes)
     assert any("surge.cavity_collapse" in c for c in codes)
+
+
+async def test_v_steps_from_the_envelope_through_the_valve_and_junction_traces(project_file):
+    # A branched project: e runs the whole part joined through junctions; v shows the
+    # envelope, then each valve's and junction's pressure in time, then the envelope again.
+    from tests.app.conftest import NETWORK, SIZE, make, settle
+
+    app = make(project_file(NETWORK))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("f10")
+        await pilot.pause()
+        await pilot.press("down", "e")
+        await app.workers.wait_for_complete()
+        await pilot.pause()
+        pane = app.screen.query_one("SurgePane")
+        pictures = pane._pictures()
+        titles = []
+        for _ in pictures:
+            titles.append(str(app.screen.query_one("#surge-title").render()))
+            await pilot.press("v")
+            await pilot.pause()
+        back = str(app.screen.query_one("#surge-title").render())
+    assert pictures[0] == "envelope" and any(p.startswith("junction ") for p in pictures)
+    assert "head envelope" in titles[0] and "head envelope" in back
+    assert any("pressure at the junction" in t for t in titles)
