@@ -43,7 +43,7 @@ async def test_the_profile_table_adds_a_point_edits_a_cell_applies_and_undo_rest
         assert [c.name for c in screen.columns] == [s.name for s in LIST_ITEMS["lines.profile"]]
         assert [r.cells["distance"] for r in screen.rows] == ["0 m", "20 m", "240 m"]
         await pilot.press("down", "a")  # after 20 m: the point halfway to 240 m
-        assert screen.rows[2].cells == {"distance": "130 m", "elevation": "2 m"}
+        assert screen.rows[2].cells == {"distance": "130 m", "elevation": "2 m", "air_valve": ""}
         await pilot.press("right")
         await type_keys(pilot, "3 m")  # typing on a cell edits it
         await pilot.press("enter")

@@ -45,8 +45,11 @@ def test_an_empty_cell_leaves_the_key_out():
 def test_a_new_profile_point_goes_halfway_to_the_next_or_a_step_beyond_the_last():
     columns = columns_for("lines.L1.profile", PROFILE)
     rows = rows_from(PROFILE, columns)
-    assert new_row(rows, 0, columns).cells == {"distance": "10 m", "elevation": "10.25 m"}
-    assert new_row(rows, 2, columns).cells == {"distance": "460 m", "elevation": "1.5 m"}
+    # the optional air_valve cell starts empty (left out of the file when applied)
+    assert new_row(rows, 0, columns).cells == {"distance": "10 m", "elevation": "10.25 m",
+                                               "air_valve": ""}
+    assert new_row(rows, 2, columns).cells == {"distance": "460 m", "elevation": "1.5 m",
+                                               "air_valve": ""}
 
 
 def test_a_new_point_between_rows_in_different_units_is_written_in_the_first_ones_unit():
@@ -88,7 +91,7 @@ def test_problems_are_placed_on_the_row_and_column_their_key_paths_name():
 def test_keys_the_schema_does_not_describe_get_a_column_so_nothing_is_lost():
     items = [{"distance": "0 m", "elevation": "1 m", "note": "weir"}]
     columns = columns_for("lines.L1.profile", items)
-    assert [c.name for c in columns] == ["distance", "elevation", "note"]
+    assert [c.name for c in columns] == ["distance", "elevation", "air_valve", "note"]
     assert items_from(rows_from(items, columns), columns)[0] == items
 
 

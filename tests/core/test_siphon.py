@@ -77,3 +77,22 @@ def test_a_siphon_with_margin_runs_full_bore():
     # Crest 2 m above the surface: about 4 m of head to spare below the water barometer.
     result = solve_steady(_siphon(2.0, crest=14.0))
     assert result.lines["S"].status == "flowing" and not result.siphon_breaks
+
+
+def test_an_air_valve_at_the_crest_parts_the_column_at_atmospheric_pressure():
+    # An air valve admits air once the line falls below atmospheric: the rising leg then
+    # lifts v = sqrt(2g (H - z_c)/k_c) with the crest at zero gauge (energy equation).
+    from dataclasses import replace
+
+    system = _siphon(2.0, crest=11.0)
+    line = replace(system.lines["S"], air_valves=(12.0,))
+    vented = replace(system, lines={"S": line})
+    k_c = K_ENT + 1.0 + F * 12.0 / D
+    v = math.sqrt(2 * G * (12.0 - 11.0) / k_c)
+    result = solve_steady(vented)
+    assert solve_steady(system).lines["S"].status == "flowing"  # no valve: runs full
+    assert result.lines["S"].status == "siphon_break"
+    assert result.lines["S"].flow == pytest.approx(v * math.pi * D**2 / 4, rel=1e-8)
+    assert result.siphon_breaks["S"].vented
+    (w,) = [w for w in result.warnings if w.code == "line.siphon_break"]
+    assert "air valve" in w.message

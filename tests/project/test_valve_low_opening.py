@@ -68,3 +68,26 @@ def test_the_iec_choice_passes_more_at_one_tenth_travel(tmp_path):
         path.write_text(PLANT + line)
         flows.append(solve_steady(load_project(path).system).lines["L1"].flow)
     assert flows[1] > flows[0] > 0.0
+
+
+AIR_VALVE = PLANT.split("[lines.L1.valve]")[0] + """profile = [
+    { distance = "0 m", elevation = "20 m" },
+    { distance = "30 m", elevation = "24 m", air_valve = true },
+    { distance = "100 m", elevation = "2 m" },
+]
+"""
+
+
+def test_an_air_valve_on_a_profile_point_is_read_as_its_distance(tmp_path):
+    path = tmp_path / "plant.toml"
+    path.write_text(AIR_VALVE)
+    assert load_project(path).system.lines["L1"].air_valves == (30.0,)
+
+
+def test_an_air_valve_that_is_not_a_boolean_is_refused(tmp_path, capsys):
+    from workbench.cli import main
+
+    path = tmp_path / "plant.toml"
+    path.write_text(AIR_VALVE.replace("air_valve = true", 'air_valve = "yes"'))
+    assert main(["check", str(path)]) != 0
+    assert "lines.L1.profile[2].air_valve" in capsys.readouterr().err

@@ -254,6 +254,9 @@ class Line:
     profile: tuple[tuple[float, float], ...] = ()
     """Centreline ``(distance from the from-end [m], elevation [m])`` points, increasing
     distance; empty means a straight run between the end nodes' elevations."""
+    air_valves: tuple[float, ...] = ()
+    """Distances [m] of profile points with an air (vacuum-breaking) valve: the column parts
+    there once the pressure falls below atmospheric, the valve admitting air."""
     wall_thickness: float | None = None
     """[m]"""
     elastic_modulus: float | None = None

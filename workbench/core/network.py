@@ -455,7 +455,8 @@ def _siphon_breaks(system: System, topo: Topology, lines: LineSet, q: np.ndarray
     from workbench.core.checks import SUBATMOSPHERIC_TOLERANCE_M
 
     out: dict[int, SiphonBreak] = {}
-    if system.fluid.vapor_pressure is None:
+    if system.fluid.vapor_pressure is None and not any(
+            ln.air_valves for ln in system.lines.values()):
         return out
     nj = topo.n_junctions
     tol = system.fluid.density * G * SUBATMOSPHERIC_TOLERANCE_M
@@ -498,10 +499,13 @@ def siphon_findings(system: System, breaks) -> list[Finding]:
         else:
             what = ("the source head is at or below {head}" + at_level + ", so nothing can "
                     "be lifted over it: the flow stops (full-bore it would carry {full})")
+        where = ("where the pressure would fall below atmospheric and the air valve there "
+                 "lets air in" if brk.vented else
+                 "where the pressure would fall to the vapour pressure")
         out.append(finding(
             "line.siphon_break", brk.line,
             f"the liquid column parts at {{s}} from {line.from_node!r} (elevation {{z}}), "
-            "where the pressure would fall to the vapour pressure (siphon break): " + what
+            f"{where} (siphon break): " + what
             + "; lower the crest, or raise the source or the downstream pressure",
             "danger", "energy equation up to the high point at the vapour pressure of the "
             "liquid", **vals))

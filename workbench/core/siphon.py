@@ -46,7 +46,9 @@ class SiphonBreak:
     elevation: float
     """[m]"""
     break_pressure: float
-    """Absolute pressure at which the column parts there [Pa] (the vapour pressure)."""
+    """Absolute pressure at which the column parts there [Pa]: the vapour pressure, or
+    the atmospheric pressure at an air valve."""
+
     full_bore_flow: float
     """Flow magnitude the line would pass running full [m^3/s]."""
     flow: float
@@ -55,6 +57,8 @@ class SiphonBreak:
     """Source head at which the flow stops, ``z_c + (p_break - p_atm)/(rho g)`` [m]."""
     source: str
     """The node the line draws from."""
+    vented: bool = False
+    """The column parts at an air valve (air comes in) rather than by boiling."""
 
 
 def _line_profile(system: System, lines, i: int, lid: str, q: float, q_all: np.ndarray,
@@ -70,6 +74,17 @@ def _line_profile(system: System, lines, i: int, lid: str, q: float, q_all: np.n
                          np.array([head_to]), one, ["flowing"])[lid]
 
 
+def break_pressures(system: System, lid: str, distance: np.ndarray) -> np.ndarray:
+    """Absolute pressure at which the column parts at each profile point [Pa]: the vapour
+    pressure, or the atmospheric pressure at a point with an air valve (it admits air as
+    soon as the line falls below atmospheric). ``nan`` where neither applies."""
+    p_v = system.fluid.vapor_pressure
+    out = np.full(len(distance), np.nan if p_v is None else float(p_v))
+    for s in system.lines[lid].air_valves:
+        out[np.isclose(distance, s, rtol=0.0, atol=1e-6)] = system.atmospheric_pressure
+    return out
+
+
 def find_break(system: System, lines, i: int, lid: str, q_all: np.ndarray, x_open,
                head_from: float, head_to: float, tol_pa: float) -> SiphonBreak | None:
     """The siphon break of line ``i`` at the solution ``q_all``, or ``None`` when every point
@@ -78,16 +93,16 @@ def find_break(system: System, lines, i: int, lid: str, q_all: np.ndarray, x_ope
     The parting point is the one that limits the flow most: for each interior profile
     point the flow that puts it exactly at the vapour pressure, the smallest of them.
     """
-    p_v = system.fluid.vapor_pressure
     q_full = float(q_all[i])
-    if p_v is None or q_full == 0.0:
+    if q_full == 0.0:
         return None
     sign = 1.0 if q_full > 0.0 else -1.0
 
     def margin(qmag: float) -> np.ndarray:
         prof = _line_profile(system, lines, i, lid, sign * qmag, q_all, x_open,
                              head_from, head_to)
-        return prof.pressure_abs[1:-1] - p_v, prof
+        p_break = break_pressures(system, lid, prof.distance)[1:-1]
+        return np.where(np.isnan(p_break), np.inf, prof.pressure_abs[1:-1] - p_break), prof
 
     m_full, prof_full = margin(abs(q_full))
     if not m_full.size or float(m_full.min()) >= -tol_pa:
@@ -105,12 +120,14 @@ def find_break(system: System, lines, i: int, lid: str, q_all: np.ndarray, x_ope
         j = int(np.argmin(margin(q_cap)[0]))
     s = float(prof_full.distance[1:-1][j])
     z = float(prof_full.elevation[1:-1][j])
+    p_b = float(break_pressures(system, lid, prof_full.distance)[1:-1][j])
     rho_g = system.fluid.density * G
     line = system.lines[lid]
     return SiphonBreak(
-        line=lid, distance=s, elevation=z, break_pressure=p_v, full_bore_flow=abs(q_full),
-        flow=q_cap, stop_head=z + (p_v - system.atmospheric_pressure) / rho_g,
-        source=line.from_node if sign > 0 else line.to_node)
+        line=lid, distance=s, elevation=z, break_pressure=p_b, full_bore_flow=abs(q_full),
+        flow=q_cap, stop_head=z + (p_b - system.atmospheric_pressure) / rho_g,
+        source=line.from_node if sign > 0 else line.to_node,
+        vented=bool(p_b == system.atmospheric_pressure and line.air_valves))
 
 
 def broken_profile(system: System, prof, brk: SiphonBreak, forward: bool,

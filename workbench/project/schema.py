@@ -305,6 +305,8 @@ LIST_ITEMS: dict[str, tuple[FieldSpec, ...]] = {
     "lines.profile": (
         field("distance", "length", True, "distance along the line from its from-end"),
         field("elevation", "elevation", True, "centreline elevation there"),
+        field("air_valve", "bool", help="an air valve here: true means the column parts here "
+              "as soon as the pressure falls below atmospheric (air comes in)", default=False),
     ),
     "reservoirs.inflow_schedule": (
         field("time", "time", True, "time from the start of the simulation"),

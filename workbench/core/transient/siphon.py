@@ -34,13 +34,22 @@ class SiphonLines:
     """Which lines can break and where their interior profile points are."""
 
     def __init__(self, model):
+        from workbench.core.siphon import break_pressures
+
         system = model.system
         self.p_vap = system.fluid.vapor_pressure
+        # absolute pressure at which each station's column parts: vapour pressure, or
+        # atmospheric at an air valve (nan: never)
+        self.p_break = np.full(len(model.st_frac), np.nan)
+        for i, lid in enumerate(model.topo.line_ids):
+            mine = model.st_owner == i
+            dist = model.st_frac[mine] * system.lines[lid].length
+            self.p_break[mine] = break_pressures(system, lid, dist)
         between_fixed = ~model.from_junction & ~model.to_junction
-        interior = (model.st_frac > 0.0) & (model.st_frac < 1.0)
+        interior = (model.st_frac > 0.0) & (model.st_frac < 1.0) & ~np.isnan(self.p_break)
         has_interior = np.bincount(model.st_owner, weights=interior.astype(float),
                                    minlength=model.nl) > 0
-        self.candidate = between_fixed & has_interior & (self.p_vap is not None)
+        self.candidate = between_fixed & has_interior
         self.stations = interior & self.candidate[model.st_owner]
         self.any = bool(self.candidate.any())
 
@@ -73,7 +82,7 @@ def station_margins(eq, t: float, y: np.ndarray):
     o = model.st_owner
     h_st = h_a[o] + model.st_frac * (h_b[o] - h_a[o])
     p_abs = model.rho * G * (h_st - model.st_elev) + model.system.atmospheric_pressure
-    return np.where(sl.stations, p_abs - sl.p_vap, np.inf)
+    return np.where(sl.stations, p_abs - np.nan_to_num(sl.p_break, nan=0.0), np.inf)
 
 
 def crest_margins(eq, t: float, y: np.ndarray) -> np.ndarray:
@@ -178,12 +187,16 @@ def on_break(eq, state, i: int, t: float, y: np.ndarray) -> None:
     state.siphon_sign[i] = 1.0 if y[i] >= 0.0 else -1.0
     state.siphon_broken[i] = True
     state.siphon_frac[i] = model.st_frac[j]
+    p_b = float(sl.p_break[j])
     state.siphon_head[i] = model.st_elev[j] + (
-        sl.p_vap - model.system.atmospheric_pressure) / (model.rho * G)
+        p_b - model.system.atmospheric_pressure) / (model.rho * G)
     text, vals = source_level(model, state, i, y)
+    reason = ("the pressure falls below atmospheric and the air valve there lets air in"
+              if p_b == model.system.atmospheric_pressure and line.air_valves
+              else "the pressure reaches the vapour pressure")
     state.event(t, "line.siphon_break", lid, *slots(
         f"the liquid column in line {lid} parts {{s}} from {line.from_node!r} (elevation "
-        f"{{z}}), where the pressure reaches the vapour pressure{text}: from here the line "
+        f"{{z}}), where {reason}{text}: from here the line "
         "passes only what the leg up to that point can lift, and the leg beyond runs "
         "part-full", s=(model.st_frac[j] * line.length, "length", 4),
         z=(model.st_elev[j], "elevation", 4), **vals))

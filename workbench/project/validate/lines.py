@@ -15,6 +15,7 @@ from workbench.project.validate.checker import (
     field_spec,
     words,
 )
+from workbench.project.validate.air_valves import check_air_valves
 from workbench.project.validate.fittings import check_fittings, check_profile
 from workbench.project.validate.valve import check_surge, check_valve
 
@@ -37,6 +38,7 @@ def check_line(c: Checker, lid: str, t: dict, node_ids: dict[str, str],
     entrance_k, entrance_name = _entrance(c, t, path)
     fittings = check_fittings(c, t, path)
     profile = check_profile(c, t, path, length)
+    air_valves = check_air_valves(c, t, path)
     wall, elastic, poisson = _elastic_wall(c, t, path, diameter, wall, material)
     support = c.choice(t, field_spec("lines", "support"), path)
     rating = c.quantity(t, "pressure_rating", "pressure", path, positive=True)
@@ -48,7 +50,8 @@ def check_line(c: Checker, lid: str, t: dict, node_ids: dict[str, str],
     return m.Line(
         id=lid, from_node=ends["from"], to_node=ends["to"], length=length, diameter=diameter,
         roughness=roughness, friction_factor=friction_factor, entrance_k=entrance_k,
-        entrance_name=entrance_name, fittings=fittings, profile=profile, wall_thickness=wall,
+        entrance_name=entrance_name, fittings=fittings, profile=profile, air_valves=air_valves,
+        wall_thickness=wall,
         elastic_modulus=elastic, poisson_ratio=0.3 if poisson is None else float(poisson),
         support=support or "anchored", pressure_rating=rating, valve=valve, surge=surge,
         material=t.get("material") if material is not None else None,
