@@ -1,7 +1,9 @@
 """``workbench check PROJECT...``: validate project files and report every problem.
 
 Exit status 0 when every file is valid (a one-line summary per file on stdout), 1 when any
-is not (every problem on stderr, as ``FILE: KEY: MESSAGE``), 2 for wrong usage.
+is not (every problem on stderr, as ``FILE: KEY: MESSAGE``), 2 for wrong usage. ``--json``
+prints one object instead: ``{"valid": bool, "files": [{"file", "valid", "summary",
+"problems": [{"key", "line", "column", "message", "text"}], "notes"}]}``.
 """
 
 from __future__ import annotations
@@ -17,6 +19,9 @@ def add_parser(subparsers, name: str, help_text: str) -> argparse.ArgumentParser
         name, help=help_text, description="Validate project files. Every problem is reported, "
         "each with its file, key path, what was found and what was expected.")
     parser.add_argument("projects", nargs="+", metavar="PROJECT", help="project file (.toml)")
+    parser.add_argument("--json", action="store_true",
+                        help="print one JSON object: every file, whether it is valid, its "
+                        "problems (file, key path, line, message) and notes")
     return parser
 
 
@@ -49,22 +54,40 @@ def _duration(seconds: float) -> str:
 
 
 def run(args: argparse.Namespace) -> ExitCode:
+    reports = [_check(path) for path in args.projects]
+    valid = all(r["valid"] for r in reports)
+    if args.json:
+        import json
+
+        json.dump({"valid": valid, "files": reports}, sys.stdout, indent=1, ensure_ascii=False)
+        sys.stdout.write("\n")
+    else:
+        for report in reports:
+            for problem in report["problems"]:
+                print(problem["text"], file=sys.stderr)
+            if report["valid"]:
+                print(report["summary"])
+            for note in report["notes"]:
+                print(f"{report['file']}: fluid: note: {note}", file=sys.stderr)
+    return ExitCode.OK if valid else ExitCode.INVALID
+
+
+def _check(path: str) -> dict:
+    """One file's verdict: ``file``, ``valid``, ``summary`` (or ``None``), ``problems``
+    (each with ``key``, ``line``, ``column``, ``message`` and the one-line ``text``) and the
+    fluid's ``notes``."""
     from workbench.project.document import ProjectError, load_project
 
-    status = ExitCode.OK
-    for path in args.projects:
-        try:
-            project = load_project(path)
-            if "measurements" in project.data:  # site tests: their CSV files are read here
-                from workbench.project.measurements import measurements_of
+    report = {"file": str(path), "valid": False, "summary": None, "problems": [], "notes": []}
+    try:
+        project = load_project(path)
+        if "measurements" in project.data:  # site tests: their CSV files are read here
+            from workbench.project.measurements import measurements_of
 
-                measurements_of(project)
-        except ProjectError as exc:
-            for problem in exc.problems:
-                print(problem, file=sys.stderr)
-            status = ExitCode.INVALID
-            continue
-        print(summary(project))
-        for note in project.system.fluid.notes:
-            print(f"{project.name}: fluid: note: {note}", file=sys.stderr)
-    return status
+            measurements_of(project)
+    except ProjectError as exc:
+        report["problems"] = [{"key": p.key, "line": p.line, "column": p.column,
+                               "message": p.message, "text": str(p)} for p in exc.problems]
+        return report
+    report.update(valid=True, summary=summary(project), notes=list(project.system.fluid.notes))
+    return report

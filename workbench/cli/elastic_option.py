@@ -56,7 +56,10 @@ def run_elastic_lines(args: argparse.Namespace, system, max_duration: float | No
         return {}, f"--elastic: {exc}"
     if not ids:
         return {}, None
-    results = run_elastic(system, ids, max_duration=max_duration)
+    from workbench.cli.common import terminal_progress
+
+    with terminal_progress("elastic surge") as progress:
+        results = run_elastic(system, ids, max_duration=max_duration, progress=progress)
     failed = [f"{args.project}: elastic surge, line {lid}: {res.message}"
               for lid, res in results.items() if res.status == -1]
     return results, ("\n".join(failed) or None)

@@ -18,6 +18,9 @@ def add_parser(subparsers, name: str, help_text: str) -> None:
         "lines. It reads well in a version-control web view and converts to PDF (e.g. pandoc).",
     )
     parser.add_argument("project", type=Path, help="project file (.toml)")
+    from workbench.cli.common import add_units_option
+
+    add_units_option(parser)
     parser.add_argument("--output", "-o", type=Path, metavar="PATH",
                         help="write the record to PATH (default: standard output)")
     parser.add_argument("--csv-dir", type=Path, metavar="DIR",
@@ -30,14 +33,13 @@ def add_parser(subparsers, name: str, help_text: str) -> None:
 def run(args: argparse.Namespace) -> ExitCode:
     from workbench.cli.common import load_or_report
 
-    project = load_or_report(args.project)
+    project = load_or_report(args.project, units=args.units)
     if project is None:
         return ExitCode.INVALID
 
     from workbench.core.network import solve_steady
-    from workbench.output.record import calculation_record, result_tables, write_result_csvs
-
     from workbench.core.sanity import check_steady, check_transient, describe
+    from workbench.output.record import calculation_record, result_tables, write_result_csvs
 
     system = project.system
     steady = solve_steady(system)
@@ -50,10 +52,12 @@ def run(args: argparse.Namespace) -> ExitCode:
         return ExitCode.INTERNAL
     transient = None
     if system.simulation is not None and not args.steady_only:
+        from workbench.cli.common import terminal_progress
         from workbench.core.transient import simulate
 
         try:
-            transient = simulate(system)
+            with terminal_progress("simulating") as progress:
+                transient = simulate(system, progress=progress)
         except ValueError as exc:
             print(f"{args.project}: simulation not run: {exc}", file=sys.stderr)
         else:
@@ -72,7 +76,10 @@ def run(args: argparse.Namespace) -> ExitCode:
 
         ids = elastic_line_ids(system)
         if ids:
-            elastic = run_elastic(system, ids)
+            from workbench.cli.common import terminal_progress
+
+            with terminal_progress("elastic surge") as progress:
+                elastic = run_elastic(system, ids, progress=progress)
     text = calculation_record(project, steady, transient, elastic=elastic)
     if args.output is None:
         sys.stdout.write(text)

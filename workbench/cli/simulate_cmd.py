@@ -37,6 +37,9 @@ def add_parser(subparsers, name: str, help_text: str) -> argparse.ArgumentParser
         description="Simulate a project in time: tank levels, line flows, valve moves, "
         "events (drained, overflow, reversal, valve closed) and surge screening.")
     parser.add_argument("project", metavar="PROJECT", help="project file (.toml)")
+    from workbench.cli.common import add_units_option
+
+    add_units_option(parser)
     parser.add_argument("--duration", metavar="D",
                         help="simulated time, with units ('2 h', '90 min'; a plain number is "
                         "seconds); default: the project's [simulation] duration")
@@ -69,14 +72,14 @@ def _duration(text: str | None) -> float | None:
 def run(args: argparse.Namespace) -> ExitCode:
     import json
 
-    from workbench.cli.common import load_or_report
+    from workbench.cli.common import load_or_report, want_colour
 
     try:
         duration = _duration(args.duration)
     except ValueError as exc:
         print(f"--duration: {exc}", file=sys.stderr)
         return ExitCode.USAGE
-    project = load_or_report(args.project)
+    project = load_or_report(args.project, units=args.units)
     if project is None:
         return ExitCode.INVALID
     system = project.system
@@ -131,9 +134,8 @@ def run(args: argparse.Namespace) -> ExitCode:
         print(unreadable, file=sys.stderr)
         return ExitCode.INVALID
     if args.json:
-        from workbench.output.transient import transient_to_json
-
         from workbench.output.simulate_json import add_elastic_json
+        from workbench.output.transient import transient_to_json
 
         out = add_elastic_json(transient_to_json(result, system), elastic)
         if measured:
@@ -162,7 +164,7 @@ def run(args: argparse.Namespace) -> ExitCode:
     if args.plot:
         # plots go with the tables on stdout, or to stderr when stdout carries JSON
         stream = sys.stderr if args.json else sys.stdout
-        print(_plots(result, project.unit_system, colour=stream.isatty(), measured=measured),
+        print(_plots(result, project.unit_system, colour=want_colour(stream), measured=measured),
               file=stream)
     if not result.success:
         print(f"{args.project}: {result.message}", file=sys.stderr)
@@ -233,7 +235,8 @@ def _plots(result, unit_system: str, colour: bool = True, measured=()) -> str:
     plt.ylabel(f"flow [{display_unit('flow', unit_system)}]")
     texts.append(plt.build())
     plt.clf()
-    return "\n".join(texts)
+    text = "\n".join(texts)
+    return text if colour else plt.uncolorize(text)  # the clear theme still writes resets
 
 
 def _readings(plt, measured, quantity: str, scale: float, unit_system: str) -> None:

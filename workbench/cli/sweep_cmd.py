@@ -38,6 +38,9 @@ def add_parser(subparsers, name: str, help_text: str) -> None:
         "results come back in sweep order, and a case that fails does not stop the sweep.",
     )
     parser.add_argument("project", type=Path, help="project file (.toml)")
+    from workbench.cli.common import add_units_option
+
+    add_units_option(parser)
     parser.add_argument("--vary", action="append", default=[], metavar="KEYPATH=VALUES",
                         help="a key to vary and its values (repeat for a grid)")
     parser.add_argument("--require", action="append", default=[], metavar="CRITERION",
@@ -153,7 +156,7 @@ def run(args: argparse.Namespace) -> ExitCode:
     from workbench.project.sweep_spec import SweepSpecError
     from workbench.sweep_runner import plan_sweep, quick_sweep_json, run_quick_sweep
 
-    project = load_or_report(args.project)
+    project = load_or_report(args.project, units=args.units)
     if project is None:
         return ExitCode.INVALID
     try:
