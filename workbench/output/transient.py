@@ -163,8 +163,8 @@ def _tank_json(result: TransientResult, system: System, k: int, external: tuple,
         entry["draw_off_m3_s"] = _list(draw)
         entry["spill_m3_s"] = _list(spill)
     entry.update({
-        "inflow_volume_m3": _num(_moved(result.t, feed)),
-        "draw_off_volume_m3": _num(_moved(result.t, draw)),
+        "inflow_volume_m3": _num(_total(result, "feed_volumes", k, feed)),
+        "draw_off_volume_m3": _num(_total(result, "draw_off_volumes", k, draw)),
         "end_state": result.end_states.get(tid),
         "end_net_inflow_m3_s": _num(result.end_rates.get(tid)),
         "end_level_rate_m_s": _num(_level_rate(result, system, k)),
@@ -205,6 +205,15 @@ def _spills(result: TransientResult) -> np.ndarray:
     shape = (len(result.tank_ids), len(result.t))
     spills = np.asarray(result.spills, dtype=float)
     return spills if spills.shape == shape else np.zeros(shape)
+
+
+def _total(result: TransientResult, name: str, k: int, flow: np.ndarray) -> float | None:
+    """A tank's feed or draw-off volume over the run [m^3]: the run's own exact total when
+    it kept one, else from the output series."""
+    totals = np.asarray(getattr(result, name, ()), dtype=float)
+    if totals.size > k:
+        return float(totals[k])
+    return _moved(result.t, flow)
 
 
 def _moved(t: np.ndarray, flow: np.ndarray) -> float | None:
@@ -365,8 +374,8 @@ def _feeds_table(result: TransientResult, system: System, u: _Units):
         if result.end_states.get(tid) == "spilling":
             at_end = f"spills {q(spills[k][-1] if spills[k].size else None, 'flow')}"
         ft.add_row(tid, _span(feeds[k], q), _span(draws[k], q),
-                   q(_moved(result.t, feeds[k]), "volume"),
-                   q(_moved(result.t, draws[k]), "volume"), at_end)
+                   q(_total(result, "feed_volumes", k, feeds[k]), "volume"),
+                   q(_total(result, "draw_off_volumes", k, draws[k]), "volume"), at_end)
     return ft
 
 

@@ -76,6 +76,8 @@ def finish(model: TransientModel, run: Run, outcome, wall: float) -> TransientRe
         drain_notes=drain_notes,
         feeds=feeds,
         draw_offs=draw_offs,
+        feed_volumes=run.fed.copy(),
+        draw_off_volumes=run.drawn.copy(),
         end_rates=end_rates,
         end_states=states,
         spills=spills,

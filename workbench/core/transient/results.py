@@ -82,6 +82,12 @@ class TransientResult:
     draw_offs: np.ndarray = field(default_factory=lambda: np.zeros((0, 0)))
     """Draw-off delivered by each tank, tanks x times [m^3/s]: the asked value, zero while
     the tank is drained."""
+    feed_volumes: np.ndarray = field(default_factory=lambda: np.zeros(0))
+    """Volume fed into each tank over the run [m^3], integrated step by step as the run
+    went (exact for the piecewise-linear schedules), not from the output samples."""
+    draw_off_volumes: np.ndarray = field(default_factory=lambda: np.zeros(0))
+    """Volume drawn off each tank over the run [m^3], integrated like ``feed_volumes``
+    (nothing while the tank stood drained, however fast it cycled)."""
     end_rates: dict[str, float] = field(default_factory=dict)
     """Per tank, the rate of change of volume at the end of the run [m^3/s] (zero while it
     spills or stands drained)."""
