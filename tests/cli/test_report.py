@@ -126,9 +126,8 @@ def test_every_input_appears_as_entered(project_path, record) -> None:
 def test_every_warning_and_event_of_the_run_is_in_the_record(project_path, record) -> None:
     from workbench.core.network import solve_steady
     from workbench.core.transient import simulate
-    from workbench.project.document import load_project
-
     from workbench.output.common import finding_message
+    from workbench.project.document import load_project
 
     text = record
     project = load_project(project_path)

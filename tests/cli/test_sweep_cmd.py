@@ -167,8 +167,8 @@ def test_each_case_carries_the_solve_and_simulate_json_objects(project_file, cap
     from workbench.output.steady import steady_to_json
     from workbench.output.transient import transient_to_json
     from workbench.project.document import load_project, set_value
-    from workbench.sweep_runner import prepared_base
     from workbench.project.sweep_spec import parse_vary
+    from workbench.sweep_runner import prepared_base
 
     sweep = _sweep_json(capsys, str(project_file), "--vary", "lines.L1.nominal_size=3 in", "--workers", "1")
     case = sweep["cases"][0]
