@@ -87,6 +87,7 @@ class EventsPane(Vertical):
         yield DataTable(id="surge-table", cursor_type="row", zebra_stripes=True)
         yield Static("Warnings", classes="pane-heading", markup=False)
         yield DataTable(id="run-finding-table", cursor_type="row")
+        yield Static("", id="event-detail", markup=False)
         yield Static(results.SCREENING, classes="screening", markup=False)
 
     def on_mount(self) -> None:
@@ -125,6 +126,32 @@ class EventsPane(Vertical):
                 seen.add(id(elastic))
                 warnings += list(getattr(elastic, "findings", ()) or ())
         self._fill("#run-finding-table", results.FINDING_COLUMNS, results.finding_rows(warnings, units))
+        self._warnings = results.sorted_findings(warnings)
+        self._events = list(_get(result, "events", default=[]) or []) if result is not None else []
+        self._detail("#run-finding-table", 0)
+
+    def _detail(self, table: str, index: int) -> None:
+        """The highlighted event or warning, whole and wrapped, under the tables."""
+        detail = self.query_one("#event-detail", Static)
+        units = self.app.unit_system
+        if table == "#event-table" and self._events:
+            event = self._events[min(index, len(self._events) - 1)]
+            time = results.duration_text(float(_get(event, "time", "time_s", default=math.nan)))
+            detail.update(f"{time} {_get(event, 'code', default='')} @ "
+                          f"{_get(event, 'element', default='')}: "
+                          f"{_get(event, 'message', default='')}")
+        elif self._warnings:
+            f = self._warnings[min(index, len(self._warnings) - 1)]
+            source = _get(f, "source", default="")
+            detail.update(f"{results.severity_label(_get(f, 'severity', default=''))} "
+                          f"{_get(f, 'code', default='')} @ {_get(f, 'element', default='')}: "
+                          f"{results.finding_text(f, units)}" + (f" [{source}]" if source else ""))
+        else:
+            detail.update("")
+
+    def on_data_table_row_highlighted(self, event: DataTable.RowHighlighted) -> None:
+        if event.data_table.id in {"event-table", "run-finding-table"}:
+            self._detail(f"#{event.data_table.id}", event.cursor_row)
 
     def _fill(self, selector: str, columns: list[str], rows: list[tuple]) -> None:
         table = self.query_one(selector, DataTable)
