@@ -87,3 +87,21 @@ async def test_every_result_view_carries_the_one_line_screening_notice(project_f
             shown[view] = bool(notes) and notes[0].region.height == 1 and \
                 notes[0].region.bottom <= SIZE[1]
     assert all(shown.values()), shown
+
+
+async def test_the_sweep_is_listed_in_the_tab_bar_like_the_other_views_and_its_tab_opens_it(
+        project_file):
+    from textual.widgets import Tabs
+
+    from workbench.app.screens.sweep import SweepScreen
+
+    app = make(project_file(DRAIN))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        tabs = app.screen.query_one(Tabs)
+        titles = [str(tab.label) for tab in tabs.query("Tab")]
+        tabs.active = "--content-tab-sweep-tab"
+        await pilot.pause()
+        opened = isinstance(app.screen, SweepScreen)
+    assert "F9 Sweep" in titles
+    assert opened

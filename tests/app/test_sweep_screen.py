@@ -79,7 +79,17 @@ async def test_a_steady_sweep_fills_the_table_in_sweep_order_and_names_the_first
         await _wait_for_sweep(pilot)
         screen = pilot.app.screen
         table = screen.query_one("#sweep-table", DataTable)
-        shown_levels = [str(table.get_row_at(i)[1]) for i in range(table.row_count)]
+        keys = [key.value for key in table.columns]
+        at = keys.index(f"value:reservoirs.{TANK}.level")
+        shown_levels = [str(table.get_row_at(i)[at]) for i in range(table.row_count)]
+        # the pass column and the criterion's value lead, inside the table's width at 80
+        # columns, with no scrolling
+        pass_at = keys.index("pass")
+        columns = list(table.columns.values())
+        right_edge = sum(c.get_render_width(table) for c in columns[:pass_at + 2])
+        pass_cells = [str(table.get_row_at(i)[pass_at]) for i in range(table.row_count)]
+        visible_width = table.scrollable_content_region.width
+        detail = " ".join(str(screen.query_one("#sweep-detail").render()).split())
         status = str(screen.query_one("#sweep-status").render())
         sweep = screen.sweep
     assert shown_levels == levels
@@ -89,6 +99,9 @@ async def test_a_steady_sweep_fills_the_table_in_sweep_order_and_names_the_first
     assert [c["pass"] for c in sweep["cases"]] == [f * 1000.0 > threshold for f in flows]
     assert sweep["first_passing"] == 1
     assert "first passing: #1" in status
+    assert pass_at <= 1 and right_edge <= visible_width
+    assert pass_cells == ["yes" if f * 1000.0 > threshold else "no" for f in flows]
+    assert detail.startswith("# 0 · pass no")  # the highlighted case, every column
 
 
 async def test_the_plot_puts_the_chosen_result_against_the_swept_value() -> None:

@@ -25,6 +25,10 @@ VIEWS = {
 }
 
 
+#: The tab that opens the sweep screen (the sweep is not a pane of the desk).
+SWEEP_TAB = "sweep-tab"
+
+
 def pane_class(view: str) -> type:
     module, _, name = VIEWS[view][1].partition(":")
     return getattr(importlib.import_module(module), name)
@@ -85,6 +89,9 @@ class DeskScreen(Screen):
                 with TabPane(title, id=view):
                     if view == "system":
                         yield SystemPane(id="system-pane")
+            # the sweep has its own screen; its tab opens it, like F9
+            with TabPane("F9 Sweep", id=SWEEP_TAB):
+                yield Static("The sweep opens on its own screen (F9).", markup=False)
         yield KeyFooter(compact=True, show_command_palette=False)
 
     async def pane(self, view: str):
@@ -114,6 +121,11 @@ class DeskScreen(Screen):
                     break
 
     async def on_tabbed_content_tab_activated(self, event: TabbedContent.TabActivated) -> None:
+        if event.pane.id == SWEEP_TAB:
+            self.query_one(TabbedContent).active = getattr(self, "_last_view", "system")
+            self.app.action_sweep()
+            return
+        self._last_view = event.pane.id
         await self._activate(event.pane.id)
 
     def on_mount(self) -> None:

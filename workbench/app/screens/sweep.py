@@ -46,6 +46,23 @@ def keypath_suggestions(project: Any) -> list[str]:
     return list(dict.fromkeys(out))
 
 
+def leading_columns(columns: list) -> list:
+    """The table's columns in the order an engineer reads a sweep at 80 columns: the case,
+    whether it passes, what each criterion measured, the varied values, then the rest."""
+    def rank(column) -> int:
+        key = column.key
+        if key == "case":
+            return 0
+        if key == "pass":
+            return 1
+        if key.startswith("criterion:"):
+            return 2
+        if key.startswith("value:"):
+            return 3
+        return 4
+    return sorted(columns, key=rank)
+
+
 def axis_number(text: str) -> float | None:
     """The number a swept value starts with (``'80 mm'`` -> 80.0), or ``None`` for a name."""
     match = _LEADING_NUMBER.match(text)
@@ -72,7 +89,9 @@ class SweepScreen(Screen[None]):
     SweepScreen #sweep-status { height: 1; padding: 0 1; }
     SweepScreen #sweep-progress { padding: 0 1; }
     SweepScreen #sweep-results { height: 1fr; }
+    SweepScreen #sweep-table-box { width: 1fr; height: 1fr; }
     SweepScreen #sweep-table { width: 1fr; height: 1fr; }
+    SweepScreen #sweep-detail { height: auto; max-height: 6; padding: 0 1; color: $text-muted; }
     SweepScreen #sweep-plot-box { width: 1fr; }
     SweepScreen #sweep-plot-box Select { width: 1fr; }
     """
@@ -127,7 +146,9 @@ class SweepScreen(Screen[None]):
         yield Static("Ctrl+R runs the sweep; Esc stops it or closes this screen.", id="sweep-status")
         yield ProgressBar(id="sweep-progress", show_eta=False)
         with Horizontal(id="sweep-results"):
-            yield DataTable(id="sweep-table", zebra_stripes=True, cursor_type="row")
+            with Vertical(id="sweep-table-box"):
+                yield DataTable(id="sweep-table", zebra_stripes=True, cursor_type="row")
+                yield Static("", id="sweep-detail", markup=False)
             with Vertical(id="sweep-plot-box"):
                 yield Select([], prompt="result to plot", id="sweep-plot-choice", allow_blank=True)
                 yield Vertical(id="sweep-plot-holder")
@@ -232,12 +253,30 @@ class SweepScreen(Screen[None]):
         from workbench.output.sweep_table import display_rows, sweep_table
 
         columns, rows = sweep_table(self.sweep, self.keypaths)
+        columns = leading_columns(columns)
         table = self.query_one("#sweep-table", DataTable)
         table.clear(columns=True)
         for col in columns:
             table.add_column(col.title, key=col.key)
-        for cells in display_rows(columns, rows, self._units()):
+        self._shown = (columns, display_rows(columns, rows, self._units()))
+        for cells in self._shown[1]:
             table.add_row(*cells)
+        self._detail(0)
+
+    def _detail(self, index: int) -> None:
+        """Every column of the highlighted case, wrapped under the table."""
+        columns, rows = getattr(self, "_shown", ([], []))
+        detail = self.query_one("#sweep-detail", Static)
+        if not rows:
+            detail.update("")
+            return
+        cells = rows[min(index, len(rows) - 1)]
+        detail.update(" · ".join(f"{c.title} {v}" for c, v in zip(columns, cells)
+                                 if str(v) not in ("", "—")))
+
+    def on_data_table_row_highlighted(self, event: DataTable.RowHighlighted) -> None:
+        if event.data_table.id == "sweep-table":
+            self._detail(event.cursor_row)
 
     def plottable(self) -> list[tuple[str, str, str]]:
         """``(title, key, kind)`` of the numeric result columns."""
