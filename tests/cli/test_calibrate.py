@@ -188,7 +188,22 @@ def test_an_unknown_measurement_is_refused(tmp_path, capsys):
 def test_a_fit_that_runs_to_its_bound_says_which_parameter(tmp_path, capsys):
     code = main(["calibrate", str(_small(tmp_path)), "--fit", "lines.L1.roughness=0.001..0.01 mm"])
     assert code == 1
-    assert "lines.L1.roughness ran to its" in capsys.readouterr().err
+    out = capsys.readouterr()
+    assert "lines.L1.roughness ran to its" in out.err
+
+
+def test_a_bound_is_named_in_the_files_units_in_the_table_and_the_json(tmp_path, capsys):
+    """The fitted value on its bound is said as the user wrote the range (0.01 mm), not as a
+    bare SI number, in the headline, on stderr and in the JSON message."""
+    path = str(_small(tmp_path))
+    assert main(["calibrate", path, "--fit", "lines.L1.roughness=0.001..0.01 mm"]) == 1
+    out = capsys.readouterr()
+    assert "ran to its upper bound 0.01 mm" in out.out
+    assert "ran to its upper bound 0.01 mm" in out.err
+    assert "SI)" not in out.out + out.err
+    assert main(["calibrate", path, "--fit", "lines.L1.roughness=0.001..0.01 mm", "--json"]) == 1
+    message = json.loads(capsys.readouterr().out)["message"]
+    assert "ran to its upper bound 0.01 mm" in message
 
 
 def test_no_fit_is_a_usage_error(tmp_path, capsys):

@@ -122,24 +122,12 @@ def run(args: argparse.Namespace) -> ExitCode:
 
 
 def _failure(calibration) -> str:
-    """Why the fit did not succeed, with bounds in the file's units."""
-    from workbench.project.calibration import value_text
-
+    """Why the fit did not succeed (a bound is named in the file's units by
+    :func:`workbench.project.calibration.bound_words`)."""
     result = calibration.result
     if result.status != -1:
         return f"the fit did not succeed: {result.message}"
-    units = calibration.project.unit_system
-    words = []
-    for p, value in zip(result.parameters, result.values):
-        span = p.upper - p.lower
-        at_edge = min(abs(value - p.lower), abs(value - p.upper)) <= 1e-6 * span
-        if p.key in result.at_bound and at_edge:
-            side = "lower" if abs(value - p.lower) <= abs(value - p.upper) else "upper"
-            words.append(f"{p.key} ran to its {side} bound {value_text(p, float(value), units)}")
-    if not words:
-        return result.message
-    return ("the fit did not converge: " + "; ".join(words) + ". Widen the range, or check "
-            "that the parameter acts on these readings and that the test conditions are right")
+    return result.message
 
 
 def _write(path: str, project, calibration) -> ExitCode:

@@ -188,7 +188,7 @@ def calibration_tables(run: "CalibrationRun") -> list:
 
     res = run.result
     units = run.project.unit_system
-    out: list = [Text(f"{run.project.system.title}: calibration {res.message} "
+    out: list = [Text(f"{run.project.system.title}: calibration: {res.message} "
                       f"({res.evaluations} model runs).",
                       style="" if res.success else "bold red")]
     pt = simple_table("Parameters")

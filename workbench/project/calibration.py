@@ -36,8 +36,8 @@ if TYPE_CHECKING:  # pragma: no cover
     from workbench.project.load import Project
     from workbench.project.measurements import Measurement
 
-__all__ = ["CalibrationRun", "FitSpecError", "apply_fit", "calibrate", "parameter_kind",
-           "parse_fit", "value_text"]
+__all__ = ["CalibrationRun", "FitSpecError", "apply_fit", "bound_words", "calibrate",
+           "parameter_kind", "parse_fit", "value_text"]
 
 #: Target -> (schema key under the line, quantity kind or "number").
 _KEYS = {
@@ -271,7 +271,31 @@ def calibrate(project: "Project", fits: Sequence[str], names: Sequence[str] | No
     check_pressure_traces(chosen)
     observations = [observation(m, project.system) for m in chosen]
     result = fit(observations, parameters, progress=progress, cancel=cancel)
+    words = bound_words(result, project.unit_system)
+    if words:
+        import dataclasses
+
+        result = dataclasses.replace(result, message=words)
     return CalibrationRun(result, tuple(chosen), project)
+
+
+def bound_words(result: "FitResult", unit_system: str = "SI") -> str | None:
+    """The message of a fit whose parameters ran to a bound, with the bounds in display
+    units (the core can only say them in SI); ``None`` when no parameter is on a bound."""
+    if result.status != -1:
+        return None
+    words = []
+    for p, value in zip(result.parameters, result.values):
+        span = p.upper - p.lower
+        at_edge = min(abs(value - p.lower), abs(value - p.upper)) <= 1e-6 * span
+        if p.key in result.at_bound and at_edge:
+            side = "lower" if abs(value - p.lower) <= abs(value - p.upper) else "upper"
+            words.append(f"{p.key} ran to its {side} bound "
+                         f"{value_text(p, float(value), unit_system)}")
+    if not words:
+        return None
+    return ("the fit did not converge: " + "; ".join(words) + ". Widen the range, or check "
+            "that the parameter acts on these readings and that the test conditions are right")
 
 
 def apply_fit(project: "Project", run: CalibrationRun, date: _dt.date | None = None) -> "Project":
