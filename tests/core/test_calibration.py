@@ -216,3 +216,25 @@ def test_a_steady_flow_reading_is_predicted_by_the_steady_solution():
 def test_a_fit_without_parameters_is_refused():
     with pytest.raises(CalibrationError):
         fit([_turbulent_observation(0.0)], [])
+
+
+def test_the_models_time_to_a_level_is_read_from_its_whole_output_not_only_at_the_readings():
+    """Two readings 10 h apart of the laminar drain: the model's trace between them follows
+    the closed form ``H(t) = H_0 e^{-t/tau}`` (``laminar_levels``), so the time it reaches
+    the level 90 % of the way down is ``tau ln(H_0/H)`` (8.8 h), not 90 % of the 10 h that a
+    straight line between the two readings would say."""
+    from workbench.output.calibration import crossing_time
+
+    times = np.array([0.0, 10 * 3600.0])
+    readings = laminar_levels(times, LAM_D)
+    system = _drain(VISCOUS, Line("L", "T", "O", LAM_L, 0.030, entrance_k=0.0), times[-1])
+    bore = FitParameter("lines.L.inner_diameter", "diameter", "L", 0.015, 0.045, 0.024)
+    result = fit([Observation("lam", "T", "level", times, readings, system)], [bore])
+    assert result.success, result.message
+    mark = readings[0] + 0.9 * (readings[1] - readings[0])
+    tau = 128.0 * VISCOUS.viscosity * LAM_L * AREA / (math.pi * result.values[0]**4
+                                                      * VISCOUS.density * G)
+    expected = tau * math.log((H0 + DROP) / (mark + DROP))
+    t_model = crossing_time(*result.trace_after["lam"], mark)
+    assert t_model == pytest.approx(expected, rel=2e-3)
+    assert abs(t_model - 0.9 * times[-1]) > 0.01 * times[-1]  # the straight line is 2.4 % off

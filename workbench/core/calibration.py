@@ -160,6 +160,11 @@ class FitResult:
     """Model runs made (each runs every observation once)."""
     at_bound: tuple[str, ...] = field(default_factory=tuple)
     """Key paths of the parameters that ended on a bound."""
+    trace_before: dict[str, tuple[np.ndarray, np.ndarray]] = field(default_factory=dict)
+    """Per observation in time, the model's whole output ``(t [s], series [SI])`` with the
+    starting values (between readings too: a crossing time is read from it)."""
+    trace_after: dict[str, tuple[np.ndarray, np.ndarray]] = field(default_factory=dict)
+    """The same with the fitted values."""
 
 
 # ------------------------------------------------------------------------------------------
@@ -263,6 +268,14 @@ def predict(obs: Observation, system: System | None = None, *,
     system = obs.system if system is None else system
     if obs.times is None:
         return _predict_steady(obs, system)
+    t, series = model_trace(obs, system, cancel=cancel, rtol=rtol)
+    return np.interp(obs.times, t, series)
+
+
+def model_trace(obs: Observation, system: System, *, cancel: Callable[[], bool] | None = None,
+                rtol: float = _RTOL) -> tuple[np.ndarray, np.ndarray]:
+    """The model's output for a reading in time, ``(t [s], series [SI])``, from zero to the
+    last reading on a grid of :data:`_GRID` intervals (see :func:`predict`)."""
     from workbench.core.transient import simulate
 
     span = float(np.max(obs.times))
@@ -282,7 +295,7 @@ def predict(obs: Observation, system: System | None = None, *,
     else:
         raise CalibrationError(f"measurement {obs.name}: a pressure trace in time is not "
                                "compared yet; give one steady reading per test condition")
-    return np.interp(obs.times, result.t, series)
+    return np.asarray(result.t, dtype=float), np.asarray(series, dtype=float)
 
 
 def _predict_steady(obs: Observation, system: System) -> np.ndarray:
@@ -322,6 +335,9 @@ class _Problem:
         self.cancel = cancel
         self.evaluations = 0
         self._cache: dict[bytes, tuple[np.ndarray, list[np.ndarray]]] = {}
+        self.traces: dict[bytes, dict[str, tuple[np.ndarray, np.ndarray]]] = {}
+        """Model traces of the runs kept for the result (the start and the fitted values)."""
+        self.keep_traces = False
 
     def to_x(self, u: np.ndarray) -> np.ndarray:
         return self.lower + u * self.scale
@@ -334,10 +350,16 @@ class _Problem:
             raise _Cancelled()
         x = self.to_x(u)
         preds = []
+        traces = {}
         for o in self.obs:
             system = with_parameters(o.system, self.params, x)
             try:
-                preds.append(predict(o, system, cancel=self.cancel))
+                if o.times is None or not self.keep_traces:
+                    preds.append(predict(o, system, cancel=self.cancel))
+                    continue
+                t, series = model_trace(o, system, cancel=self.cancel)
+                traces[o.name] = (t, series)
+                preds.append(np.interp(o.times, t, series))
             except CalibrationError as exc:
                 values = ", ".join(f"{p.key} = {v:.4g}" for p, v in zip(self.params, x))
                 raise CalibrationError(f"the model could not be run at {values} (SI): {exc}") \
@@ -350,7 +372,21 @@ class _Problem:
         if len(self._cache) > 64:
             self._cache.clear()
         self._cache[key] = (r, preds)
+        if self.keep_traces:
+            self.traces[key] = traces
         return r, preds
+
+    def traced(self, u: np.ndarray) -> tuple[list[np.ndarray], dict]:
+        """Predictions and model traces at ``u`` (a cached run without traces is rerun)."""
+        key = np.asarray(u, dtype=float).tobytes()
+        if key not in self.traces:
+            self._cache.pop(key, None)
+            self.keep_traces = True
+            try:
+                self.run(u)
+            finally:
+                self.keep_traces = False
+        return self._cache[key][1], self.traces[key]
 
     def residuals(self, u: np.ndarray) -> np.ndarray:
         return self.run(u)[0]
@@ -416,7 +452,7 @@ def fit(observations: Sequence[Observation], parameters: Sequence[FitParameter],
     start = np.array([p.start for p in prob.params], dtype=float)
     u0 = np.clip((start - prob.lower) / prob.scale, 0.0, 1.0)
     try:
-        _r0, before = prob.run(u0)
+        before, trace_before = prob.traced(u0)
     except _Cancelled:
         return _stopped(prob, u0, None, -2, "cancelled before the first model run ended")
     try:
@@ -429,12 +465,13 @@ def fit(observations: Sequence[Observation], parameters: Sequence[FitParameter],
         return _stopped(prob, u0, before, -3, str(exc))
     try:
         jac = prob.jacobian(sol.x, central=True)
-        _r, after = prob.run(sol.x)
+        after, trace_after = prob.traced(sol.x)
     except _Cancelled:
         return _stopped(prob, u0, before, -2, "cancelled by the user")
     except CalibrationError as exc:
         return _stopped(prob, u0, before, -3, str(exc))
-    return _summarise(prob, sol, jac, before, after)
+    return dataclasses.replace(_summarise(prob, sol, jac, before, after),
+                               trace_before=trace_before, trace_after=trace_after)
 
 
 def _stopped(prob: _Problem, u0, before, status: int, message: str) -> FitResult:

@@ -160,8 +160,8 @@ def _measurement_json(run: "CalibrationRun", m: "Measurement") -> dict:
         entry["mark_level_m"] = _num(mark)
         entry["time_to_mark_level_s"] = {
             "measured": _num(crossing_time(m.times, m.values, mark)),
-            "before": _crossing(m, res.predicted_before.get(m.name), mark),
-            "after": _crossing(m, res.predicted_after.get(m.name), mark),
+            "before": _crossing(m, res.trace_before.get(m.name), mark),
+            "after": _crossing(m, res.trace_after.get(m.name), mark),
         }
     return entry
 
@@ -172,10 +172,12 @@ def mark_level(m: "Measurement") -> float:
     return float(m.values[0] + 0.9 * (m.values[-1] - m.values[0]))
 
 
-def _crossing(m: "Measurement", series, level: float) -> float | None:
-    if series is None or m.times is None:
+def _crossing(m: "Measurement", trace, level: float) -> float | None:
+    """When the model's whole output (not only its values at the readings) reaches
+    ``level``, within the test's span."""
+    if trace is None or m.times is None:
         return None
-    return _num(crossing_time(m.times, series, level))
+    return _num(crossing_time(*trace, level))
 
 
 def calibration_tables(run: "CalibrationRun") -> list:
