@@ -126,14 +126,14 @@ async def test_the_cautions_open_from_the_app(project_file):
 
 
 async def test_undo_is_greyed_out_until_there_is_an_edit(project_file):
-    from textual.widgets._footer import FooterKey
+    from workbench.app.widgets.keyfooter import KeyCap
 
     app = make(project_file(TRANSFER))
     async with app.run_test(size=SIZE) as pilot:
         await settle(pilot)
 
         def undo_key():
-            return next(k for k in app.screen.query(FooterKey) if k.action == "undo")
+            return next(k for k in app.screen.query(KeyCap) if k.action == "undo")
 
         assert undo_key().has_class("-disabled")
         await choose_entry(pilot, "lines:310-PW-12")

@@ -63,10 +63,11 @@ class KeyCap(Widget):
     compact = reactive(True)
     """Keys without padding, one space apart."""
 
-    def __init__(self, key: str, key_display: str, description: str, *,
+    def __init__(self, key: str, key_display: str, description: str, action: str = "", *,
                  disabled: bool = False, tooltip: str = "") -> None:
         super().__init__(classes="-disabled" if disabled else "")
         self.key = key
+        self.action = action
         self.key_display = key_display
         self.description = description
         self._key_disabled = disabled
@@ -133,7 +134,7 @@ class KeyFooter(Footer):
                 row = 1
             used[row] += need
             rows[row].append(
-                KeyCap(binding.key, key_display, binding.description, disabled=not enabled,
-                       tooltip=tooltip).data_bind(compact=Footer.compact))
+                KeyCap(binding.key, key_display, binding.description, binding.action,
+                       disabled=not enabled, tooltip=tooltip).data_bind(compact=Footer.compact))
         for keys in rows:
             yield HorizontalGroup(*keys, classes="footer-row")
