@@ -291,7 +291,7 @@ class WorkbenchApp(App[int]):
         self.run_status = "idle"
         self.run_progress = 0.0
         self.steady = None
-        self._set_project(project)
+        self._set_project(project, at_once=True)  # the first result without the pause
         if offer_recovery:
             self.recovery.offer(self, self.path)  # unsaved edits of a session that died
 
@@ -320,15 +320,16 @@ class WorkbenchApp(App[int]):
         self.set_reactive(WorkbenchApp.project, project)
         self.refresh_bindings()
 
-    def _set_project(self, project: Any) -> None:
+    def _set_project(self, project: Any, *, at_once: bool = False) -> None:
         self.project = project
         self.modified = self.history.modified if self.history else False
         self.recovery.keep(self)  # unsaved edits kept beside the project until saved
-        self.schedule_steady()
+        self.schedule_steady(at_once=at_once)
         self.refresh_bindings()
 
-    def schedule_steady(self) -> None:
-        """Mark results stale and solve again once edits pause (newer edits win)."""
+    def schedule_steady(self, *, at_once: bool = False) -> None:
+        """Mark results stale and solve again once edits pause (newer edits win);
+        ``at_once`` (a project just opened) starts without the pause."""
         if self.project is None:
             return
         self._generation += 1
@@ -336,7 +337,8 @@ class WorkbenchApp(App[int]):
         if self._steady_timer is not None:
             self._steady_timer.stop()
         self.steady_status = "stale"
-        self._steady_timer = self.set_timer(self.debounce, self._start_steady)
+        self._steady_timer = self.set_timer(0.001 if at_once else self.debounce,
+                                            self._start_steady)
 
     def _start_steady(self) -> None:
         self._steady_timer = None
