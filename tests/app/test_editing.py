@@ -4,8 +4,7 @@ from __future__ import annotations
 
 import math
 
-from tests.app.conftest import (SIZE, TRANSFER, choose_entry, field_input, make, settle,
-                                table_cells, type_into)
+from tests.app.conftest import SIZE, TRANSFER, choose_entry, field_input, make, settle, table_cells, type_into
 
 LINE = "310-PW-12"
 
@@ -175,8 +174,8 @@ async def test_a_fluid_kind_that_needs_its_strength_asks_for_it_and_applies_both
     # Glycol-water is valid only with its mass fraction, and a mass fraction only with a
     # solution kind: the form asks for the missing key and applies both as one edit; going
     # back to water drops the key that no longer applies.
-    from workbench.app.screens.dialogs import TextScreen
     from tests.app.test_files import answer
+    from workbench.app.screens.dialogs import TextScreen
 
     path = project_file(TRANSFER)
     app = make(path)

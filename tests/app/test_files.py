@@ -67,9 +67,9 @@ async def test_a_new_project_from_the_starter_is_saved_where_the_user_says(tmp_p
 
 
 async def test_ctrl_o_with_unsaved_edits_asks_then_opens_the_other_file(project_file):
+    from tests.app.conftest import make
     from workbench.app.screens.dialogs import AskScreen, TextScreen
     from workbench.project.document import set_value
-    from tests.app.conftest import make
 
     first = project_file(TRANSFER)
     other = project_file(NETWORK)

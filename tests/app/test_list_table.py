@@ -2,8 +2,17 @@
 
 from __future__ import annotations
 
-from workbench.app.listtable import (CellError, columns_for, items_from, list_key, new_row,
-                                     place_text, places, quantity_problem, rows_from)
+from workbench.app.listtable import (
+    CellError,
+    columns_for,
+    items_from,
+    list_key,
+    new_row,
+    place_text,
+    places,
+    quantity_problem,
+    rows_from,
+)
 from workbench.project.problems import Problem
 
 PROFILE = [{"distance": "0 m", "elevation": "18 m"}, {"distance": "20 m", "elevation": "2.5 m"},

@@ -27,8 +27,8 @@ import numpy as np
 from workbench.core.elastic import kernel as elastic_kernel
 from workbench.core.elastic import simulate_elastic
 from workbench.core.model import (
-    G,
     FluidProps,
+    G,
     Line,
     Reservoir,
     SurgeSettings,

@@ -20,8 +20,8 @@ def main() -> None:
     print(f"python start + import fluid, pipes, atmosphere: {t * 1e3:8.1f} ms")
 
     from workbench.core import fluid
-    from workbench.core.fluid import catalogue, water
     from workbench.core.atmosphere import atmospheric_pressure
+    from workbench.core.fluid import catalogue, water
     from workbench.core.pipes import pipe_dimensions
 
     fluid.water_properties(293.15)  # first call pays the import of chemicals (~0.2 s)

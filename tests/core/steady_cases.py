@@ -7,7 +7,6 @@ from workbench.core.model import (
     FluidProps,
     Junction,
     Line,
-    Receiver,
     Reservoir,
     System,
     Valve,

@@ -28,9 +28,9 @@ from workbench.core.calibration import (
     with_conditions,
 )
 from workbench.core.model import (
-    G,
     Fitting,
     FluidProps,
+    G,
     Line,
     Receiver,
     Reservoir,

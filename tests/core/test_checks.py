@@ -14,7 +14,7 @@ from workbench.core.checks import (
     VELOCITY_HIGH,
     VELOCITY_LOW,
 )
-from workbench.core.model import G, FluidProps, Receiver, Reservoir, TankShape
+from workbench.core.model import FluidProps, G, Receiver, Reservoir, TankShape
 from workbench.core.network import solve_steady
 
 RHO = WATER_20C.density

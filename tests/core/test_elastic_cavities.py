@@ -17,8 +17,8 @@ import pytest
 
 from workbench.core.elastic import simulate_elastic
 from workbench.core.model import (
-    G,
     FluidProps,
+    G,
     Line,
     Receiver,
     Reservoir,

@@ -21,8 +21,8 @@ from workbench.core.elastic import (
     simulate_elastic,
 )
 from workbench.core.model import (
-    G,
     FluidProps,
+    G,
     Junction,
     Line,
     Receiver,
@@ -32,6 +32,7 @@ from workbench.core.model import (
     Valve,
     ValveSchedule,
 )
+
 
 @pytest.fixture(autouse=True, params=["numpy", "compiled"])
 def kernel(request, monkeypatch):

@@ -16,7 +16,7 @@ from steady_cases import (
 )
 
 from workbench.core.line import LineSet
-from workbench.core.model import G, FluidProps, Junction, Receiver, Valve
+from workbench.core.model import FluidProps, G, Junction, Receiver, Valve
 from workbench.core.network import solve_steady
 
 # Source: HYDRAULICS.md computed Hagen-Poiseuille case.

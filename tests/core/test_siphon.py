@@ -7,7 +7,7 @@ import math
 import pytest
 from steady_cases import make_system, pipe, tank
 
-from workbench.core.model import G, FluidProps, Receiver
+from workbench.core.model import FluidProps, G, Receiver
 from workbench.core.network import solve_steady
 
 #: Water at 50 degC (IAPWS-95 density, IAPWS 2008 viscosity, IAPWS-IF97 saturation

@@ -245,8 +245,9 @@ def test_rapid_closure_words_follow_the_side_of_the_valve_the_flow_comes_from(
     # A valve cutting the flow raises the pressure on its upstream side and lowers it on its
     # downstream side, each by up to Joukowsky's a dv/g (Joukowsky 1898; Wylie & Streeter
     # 1993): the line lies upstream of a to-end valve only while the flow runs from -> to.
-    from workbench.core.surge import screen_line
     import numpy as np
+
+    from workbench.core.surge import screen_line
 
     _, findings = screen_line(
         "L1", _valved_line(position), _water(), atmospheric_pressure=101325.0,
@@ -261,8 +262,9 @@ def test_rapid_closure_words_follow_the_side_of_the_valve_the_flow_comes_from(
 def test_column_separation_gives_the_first_time_and_a_later_peak_is_marked_untrustworthy():
     # Rule of the screening: after the column has separated at vapour pressure the rigid
     # column no longer describes the liquid (Wylie & Streeter 1993, column separation).
-    from workbench.core.surge import screen_line
     import numpy as np
+
+    from workbench.core.surge import screen_line
 
     _, findings = screen_line(
         "L1", _steel_line(rating=4e5), _water(), atmospheric_pressure=101325.0,

@@ -201,7 +201,13 @@ def test_re_dependent_fitting_terms_are_included() -> None:
 def _single_line_system(diameter: float, level: float, valve_opening: float | None = None,
                         viscosity: float = 1.0016e-3):
     from workbench.core.model import (
-        Fitting, FluidProps, Line, Receiver, Reservoir, System, Valve,
+        Fitting,
+        FluidProps,
+        Line,
+        Receiver,
+        Reservoir,
+        System,
+        Valve,
     )
 
     valve = None if valve_opening is None else Valve("equal_percentage", 0.2, valve_opening)

@@ -14,8 +14,8 @@ import pytest
 from scipy.integrate import quad, solve_ivp
 
 from workbench.core.model import (
-    G,
     FluidProps,
+    G,
     Junction,
     Line,
     Receiver,

@@ -18,9 +18,9 @@ from scipy.integrate import quad, solve_ivp
 from scipy.optimize import brentq
 
 from workbench.core.model import (
-    G,
     FlowSchedule,
     FluidProps,
+    G,
     Line,
     Receiver,
     Reservoir,

@@ -7,7 +7,7 @@ import math
 import pytest
 from steady_cases import make_system, pipe
 
-from workbench.core.model import G, FluidProps, Receiver, Reservoir, SimulationSettings, TankShape
+from workbench.core.model import FluidProps, G, Receiver, Reservoir, SimulationSettings, TankShape
 from workbench.core.transient import simulate
 
 #: Water at 50 degC (IAPWS-95 density, IAPWS 2008 viscosity, IAPWS-IF97 saturation pressure

@@ -17,9 +17,9 @@ import pytest
 from scipy.optimize import brentq
 
 from workbench.core.model import (
-    G,
     FlowSchedule,
     FluidProps,
+    G,
     Line,
     Receiver,
     Reservoir,

@@ -2,11 +2,8 @@
 
 from __future__ import annotations
 
-import math
-
 import numpy as np
-import pytest
-from steady_cases import WATER_20C, make_system, pipe, tank
+from steady_cases import make_system, pipe
 
 from workbench.core.model import Receiver, Reservoir, SimulationSettings, TankShape
 from workbench.core.transient import simulate

@@ -3,7 +3,8 @@
 from __future__ import annotations
 
 import pytest
-from hypothesis import given, settings, strategies as st
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from workbench.core.finding_text import SI_DISPLAY, finding, si_text
 from workbench.output.common import finding_message

@@ -532,9 +532,7 @@ class WorkbenchApp(App[int]):
             await self.screen.show_view(name)
 
     def action_keys(self) -> None:
-        from workbench.app.screens.keys import KeysScreen
-
-        from workbench.app.screens.keys import key_contexts
+        from workbench.app.screens.keys import KeysScreen, key_contexts
 
         self.push_screen(KeysScreen(key_contexts(type(self))))
 

@@ -13,8 +13,6 @@ no source); a vapour check should keep a margin for that.
 
 from __future__ import annotations
 
-import math
-
 __all__ = [
     "AtmosphereError",
     "EARTH_RADIUS",

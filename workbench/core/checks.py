@@ -26,13 +26,13 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from workbench.core.finding_text import finding
 from workbench.core.friction import (
     RE_LAMINAR,
     RE_TURBULENT,
     friction_colebrook,
     in_published_range,
 )
-from workbench.core.finding_text import finding
 from workbench.core.model import Finding, G, System
 
 #: Margin above the vapour pressure at which a point is flagged as near it [Pa]

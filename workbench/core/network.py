@@ -267,7 +267,7 @@ class _Newton:
 
     def start(self) -> np.ndarray:
         """Laminar-style linearisation: each line as a linear resistance at a plausible speed."""
-        lines, topo = self.lines, self.topo
+        lines = self.lines
         span = self.head_span
         # A velocity the whole head span could drive through the line with f = 0.02.
         k_tot = 1.0 + lines.fittings_k_const + 0.02 * lines.length / lines.diameter

@@ -28,7 +28,6 @@ receiver or another free surface); a line that meets a junction is flagged but n
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
 
 import numpy as np

@@ -30,7 +30,7 @@ from typing import Callable, Literal
 import numpy as np
 
 from workbench.core.finding_text import finding
-from workbench.core.model import G, Finding, FluidProps, Line, Valve
+from workbench.core.model import Finding, FluidProps, G, Line, Valve
 
 Support = Literal["anchored_upstream", "anchored", "expansion_joints"]
 

@@ -8,9 +8,10 @@ These only add keys to the transient JSON; they never rename or reshape its keys
 
 from __future__ import annotations
 
-from workbench.output.common import json_float as _num, json_list as _list
-
 from typing import TYPE_CHECKING, Any
+
+from workbench.output.common import json_float as _num
+from workbench.output.common import json_list as _list
 
 if TYPE_CHECKING:  # pragma: no cover
     from workbench.core.elastic import ElasticResult

@@ -8,11 +8,18 @@ as a word and a colour, never colour alone.
 
 from __future__ import annotations
 
-from workbench.output.common import SEVERITY_STYLE, level_rate_text, quantity_text, simple_table
-from workbench.output.common import finding_message, finding_values
-from workbench.output.common import json_float as _num, json_list as _list
-
 from typing import TYPE_CHECKING, Any
+
+from workbench.output.common import (
+    SEVERITY_STYLE,
+    finding_message,
+    finding_values,
+    level_rate_text,
+    quantity_text,
+    simple_table,
+)
+from workbench.output.common import json_float as _num
+from workbench.output.common import json_list as _list
 
 if TYPE_CHECKING:  # pragma: no cover
     from workbench.core.model import System

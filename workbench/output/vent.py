@@ -13,7 +13,8 @@ from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
-from workbench.output.common import json_float as _num, json_list as _list
+from workbench.output.common import json_float as _num
+from workbench.output.common import json_list as _list
 from workbench.output.common import quantity_text, simple_table
 
 if TYPE_CHECKING:  # pragma: no cover

@@ -9,8 +9,7 @@ from textual.message import Message
 from textual.widgets import OptionList
 from textual.widgets.option_list import Option
 
-from workbench.app.outline import (NOUN, STEMS, Entry, check_new_id, entries, starting_fields,
-                                   suggest_id)
+from workbench.app.outline import NOUN, STEMS, Entry, check_new_id, entries, starting_fields, suggest_id
 from workbench.app.screens.dialogs import AskScreen, TextScreen
 
 #: What each row starts with, so a kind reads in monochrome too (our own short words).

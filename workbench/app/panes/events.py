@@ -15,7 +15,6 @@ from workbench.app.results import _get
 
 def event_rows(result: Any, units: str) -> list[tuple[str, str, str, str]]:
     """``(time, code, element, message)`` for each event, in time order."""
-    from workbench.project.units import format_quantity
 
     rows = []
     for event in _get(result, "events", default=[]) or []:

@@ -15,8 +15,16 @@ from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.message import Message
 from textual.widgets import Input, Label, Select, Static
 
-from workbench.app.outline import (Entry, EntryError, Field, edit_target, form_fields, lookup,
-                                   typed_value, value_text)
+from workbench.app.outline import (
+    Entry,
+    EntryError,
+    Field,
+    edit_target,
+    form_fields,
+    lookup,
+    typed_value,
+    value_text,
+)
 from workbench.project.units import QUANTITY_KINDS
 
 NODE_SECTIONS = ("reservoirs", "junctions", "receivers")

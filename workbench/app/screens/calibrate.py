@@ -45,7 +45,7 @@ def result_text(run: Any, unit_system: str) -> str:
     residuals, the warnings and the tested range."""
     import math
 
-    from workbench.output.calibration import caution_text, DISPLAY_KIND
+    from workbench.output.calibration import DISPLAY_KIND, caution_text
     from workbench.project.calibration import value_text
     from workbench.project.units import format_quantity
 

@@ -2,11 +2,11 @@
 
 from __future__ import annotations
 
+import importlib
+
 from textual.app import ComposeResult
 from textual.screen import Screen
 from textual.widgets import Static, TabbedContent, TabPane
-
-import importlib
 
 from workbench.app.panes.elements import ElementList
 from workbench.app.panes.system import SystemPane

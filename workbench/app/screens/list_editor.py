@@ -20,9 +20,18 @@ from textual.containers import Horizontal, Vertical
 from textual.screen import ModalScreen
 from textual.widgets import DataTable, Input, Label, Static
 
-from workbench.app.listtable import (Column, Row, columns_for, display_text, items_from,
-                                     new_row, place_text, places, quantity_problem,
-                                     rows_from)
+from workbench.app.listtable import (
+    Column,
+    Row,
+    columns_for,
+    display_text,
+    items_from,
+    new_row,
+    place_text,
+    places,
+    quantity_problem,
+    rows_from,
+)
 from workbench.app.outline import NOUN, Field, edit_target
 from workbench.app.widgets.keyfooter import KeyFooter
 

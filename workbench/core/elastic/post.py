@@ -14,7 +14,7 @@ from workbench.core.elastic.results import (
     failed,
 )
 from workbench.core.elastic.setup import RunSetup
-from workbench.core.model import G, Finding, System
+from workbench.core.model import Finding, G, System
 
 SEPARATION_SOURCE = "Wylie & Streeter 1993 (column separation)"
 

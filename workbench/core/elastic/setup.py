@@ -12,7 +12,7 @@ from workbench.core.elastic.losses import FRICTION_MODELS, line_loss, reach_fric
 from workbench.core.elastic.plan import MarchPlan, build_boundaries
 from workbench.core.elastic.results import ElasticSetupError
 from workbench.core.elastic.steady import LineEnds, fixed_head, line_heads, steady_state
-from workbench.core.model import G, Finding, Line, System
+from workbench.core.model import Finding, G, Line, System
 
 #: Default run length after the last valve movement, in round trips of the lines [-].
 DEFAULT_ROUND_TRIPS = 20

@@ -13,14 +13,14 @@ import numpy as np
 
 from workbench.core.checks import SUBATMOSPHERIC_TOLERANCE_M, reverse_cause
 from workbench.core.finding_text import finding
-from workbench.core.model import G, Finding, restart_level
+from workbench.core.model import Finding, G, restart_level
 from workbench.core.surge import LineSurge, effective_closure_time, screen_line
+from workbench.core.transient import siphon, venting
 from workbench.core.transient.end_states import end_states
 from workbench.core.transient.loop import Run
 from workbench.core.transient.model import TransientModel
 from workbench.core.transient.results import TransientResult
 from workbench.core.transient.submergence import submergence
-from workbench.core.transient import siphon, venting
 
 #: Kept for importers: a run's minimum now counts as sub-atmospheric only below
 #: ``-rho g SUBATMOSPHERIC_TOLERANCE_M`` (1 cm of liquid, see :mod:`workbench.core.checks`).

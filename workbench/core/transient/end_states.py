@@ -8,7 +8,6 @@ import numpy as np
 from workbench.core.transient.model import TransientModel
 from workbench.core.transient.state import RunState
 
-
 #: A tank whose net inflow is below this fraction of the flow through it counts as steady
 #: at the end of a run (common practice, no source).
 STEADY_FRACTION = 1e-3

@@ -12,9 +12,9 @@ from __future__ import annotations
 import numpy as np
 
 from workbench.core.model import G
+from workbench.core.transient import siphon
 from workbench.core.transient.equations import Equations
 from workbench.core.transient.line_ends import line_end_heads
-from workbench.core.transient import siphon
 from workbench.core.transient.model import TransientModel
 from workbench.core.transient.state import RunState
 

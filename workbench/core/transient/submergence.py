@@ -11,7 +11,7 @@ import math
 import numpy as np
 
 from workbench.core.finding_text import finding, slots
-from workbench.core.model import G, Finding
+from workbench.core.model import Finding, G
 from workbench.core.transient.model import TransientModel
 from workbench.core.transient.results import Event
 

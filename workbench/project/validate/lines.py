@@ -8,6 +8,7 @@ import math
 
 from workbench.core import model as m
 from workbench.project.schema import SECTIONS
+from workbench.project.validate.air_valves import check_air_valves
 from workbench.project.validate.checker import (
     Checker,
     describe,
@@ -15,7 +16,6 @@ from workbench.project.validate.checker import (
     field_spec,
     words,
 )
-from workbench.project.validate.air_valves import check_air_valves
 from workbench.project.validate.fittings import check_fittings, check_profile
 from workbench.project.validate.valve import check_surge, check_valve
 
