@@ -233,13 +233,17 @@ def overflow_findings(model: TransientModel, run: Run, spills: np.ndarray) -> li
         if ev.code == "tank.overflow":
             k = model.tank_ids.index(ev.element)
             peak = float(np.max(spills[k], initial=0.0))
-            surplus = (f" (the surplus spilling reaches {peak * 1000:.4g} L/s in this run)"
-                       if peak > 0.0 else "")
-            out.append(Finding(
+            values = {name: (v, kind, d) for name, v, kind, d in ev.values}
+            surplus = ""
+            if peak > 0.0:
+                surplus = " (the surplus spilling reaches {surplus} in this run)"
+                values["surplus"] = (peak, "flow", 4)
+            template = ev.template or ev.message.replace("{", "{{").replace("}", "}}")
+            out.append(finding(
                 "tank.overflow", ev.element,
-                f"{ev.message} at t = {ev.time:.6g} s: check the overflow capacity under the "
+                f"{template} at t = {ev.time:.6g} s: check the overflow capacity under the "
                 f"worst-case inflow{surplus} (defer to local codes)", "danger",
-                "rule of thumb"))
+                "rule of thumb", **values))
     return out
 
 

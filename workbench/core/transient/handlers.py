@@ -107,16 +107,18 @@ def overflow(model: TransientModel, state: RunState, k: int, t: float, y: np.nda
     rid = model.tank_ids[k]
     state.spilling[k] = True
     lvl = model.geoms[k].overflow_level
-    state.event(t, "tank.overflow", rid,
-                f"tank {rid} reaches its overflow level {lvl:g} m and spills"
-                + overflow_cause(model, state, k, t, y))
+    cause, values = overflow_cause(model, state, k, t, y)
+    state.event(t, "tank.overflow", rid, *slots(
+        f"tank {rid} reaches its overflow level {{level}} and spills" + cause,
+        level=(lvl, "length", 4), **values))
 
 
 def overflow_cause(model: TransientModel, state: RunState, k: int, t: float,
-                   y: np.ndarray) -> str:
-    """Words on what makes tank ``k`` overflow when it has a feed or draw-off."""
+                   y: np.ndarray) -> tuple[str, dict]:
+    """Words on what makes tank ``k`` overflow when it has a feed or draw-off: a template
+    with slots and the slots' SI values (see :func:`workbench.core.finding_text.slots`)."""
     if k not in model.ext_tanks:
-        return ""
+        return "", {}
     feed, draw = model.external(t)
     draw_k = 0.0 if state.drained[k] else float(draw[k])
     # flows of shut lines are the integrator's round-off (about 1e-45), not a flow
@@ -125,14 +127,15 @@ def overflow_cause(model: TransientModel, state: RunState, k: int, t: float,
         shut = shut | state.valve_shut
     lines_net = float(model.t_rows[k] @ np.where(shut, 0.0, y[: model.nl]))
     if feed[k] <= 0.0:
-        return ""
+        return "", {}
     out_total = draw_k - min(lines_net, 0.0)
     if lines_net <= 0.0:
-        return (f": its feed of {feed[k] * 1000:.4g} L/s is the cause, more than its "
-                f"outlets and draw-off take out ({out_total * 1000:.4g} L/s)")
-    return (f": its feed of {feed[k] * 1000:.4g} L/s and a net {lines_net * 1000:.4g} L/s "
-            f"from its lines are more than its draw-off takes out "
-            f"({draw_k * 1000:.4g} L/s)")
+        return (": its feed of {feed} is the cause, more than its outlets and draw-off take "
+                "out ({out})", {"feed": (feed[k], "flow", 4), "out": (out_total, "flow", 4)})
+    return (": its feed of {feed} and a net {net} from its lines are more than its draw-off "
+            "takes out ({draw})",
+            {"feed": (feed[k], "flow", 4), "net": (lines_net, "flow", 4),
+             "draw": (draw_k, "flow", 4)})
 
 
 def end_spills_in_deficit(eq, t: float, y: np.ndarray) -> bool:
@@ -193,10 +196,10 @@ def sealed_stop(model: TransientModel, state: RunState, i: int, t: float,
         state.sealed_stops[tid] = float(t)
         level = model.geoms[k].level_extrapolated(float(y[nl + k]))
         lid = model.topo.line_ids[i]
-        state.event(t, "tank.sealed_stop", tid,
-                    f"the drain of tank {tid} through line {lid} stops at a level of "
-                    f"{level:.4g} m: the vacuum in its gas space, {-p[g] / 1000:.3g} kPa, "
-                    "balances the head over the outlet")
+        state.event(t, "tank.sealed_stop", tid, *slots(
+            f"the drain of tank {tid} through line {lid} stops at a level of {{level}}: "
+            "the vacuum in its gas space, {vacuum}, balances the head over the outlet",
+            level=(level, "length", 4), vacuum=(-p[g], "pressure", 3)))
 
 
 def apply_terminal(model: TransientModel, state: RunState, events: ev.EventSet, hits,
