@@ -46,9 +46,12 @@ CAUTIONS: tuple[Caution, ...] = (
     ),
     Caution(
         "Siphon break and column separation",
-        "Where the computed pressure nears the liquid's vapour pressure, dissolved air and vapour "
-        "come out, the column separates and the computed full-bore flow is not possible. Keep "
-        "crests well below the limit; hot liquids flash at high points.",
+        "Where the pressure nears the liquid's vapour pressure, dissolved air and vapour come "
+        "out and the column separates. The workbench then passes only what the leg up to the "
+        "crest can lift, but air release starts above vapour pressure, so a real siphon breaks "
+        "sooner: keep crests well below the limit; hot liquids flash at high points. When a "
+        "separated column rejoins after a fast valve move, the cavity's collapse can raise the "
+        "pressure beyond the closure's own surge: get a specialist surge study.",
     ),
     Caution(
         "Back-siphonage",
