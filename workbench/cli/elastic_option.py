@@ -11,7 +11,6 @@ with the sweep runner). Heavy modules are imported only when a run is asked for.
 from __future__ import annotations
 
 import argparse
-import sys
 
 ELASTIC_HELP = (
     "also run the elastic surge model (method of characteristics) on LINE and the lines in "
@@ -75,8 +74,3 @@ def print_elastic_tables(console, results: dict, system, unit_system: str) -> No
     for w in elastic_findings(results):
         console.print(f"{w['severity'].upper()}: {w['code']} ({w['element']}): {w['message']}",
                       markup=False, highlight=False)
-
-
-def report_problem(problem: str | None) -> None:
-    if problem:
-        print(problem, file=sys.stderr)

@@ -41,13 +41,6 @@ def end_flow(b: float, k: float, delta: float) -> float:
     return 2.0 * delta / (b + math.sqrt(b * b + 4.0 * k * abs(delta)))
 
 
-def orifice_flow(k: float, delta: float) -> float:
-    r"""Flow ``Q`` with ``k Q|Q| = delta`` through a loss ``k`` [s^2/m^5]; shut (``inf``): 0."""
-    if k == math.inf or k <= 0.0:
-        return 0.0
-    return math.copysign(math.sqrt(abs(delta) / k), delta)
-
-
 def junction(sum_cb: float, sum_inv_b: float, vol: float, dt: float,
              h_vap: float) -> tuple[float, float]:
     r"""Head and cavity volume at a node where line ends meet (no loss between them).
