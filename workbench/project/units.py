@@ -29,6 +29,8 @@ from functools import lru_cache
 from pathlib import Path
 from typing import TYPE_CHECKING, Literal
 
+from workbench.core.finding_text import number_text
+
 if TYPE_CHECKING:  # pragma: no cover
     import pint
 
@@ -448,21 +450,6 @@ def to_display(value_si, kind: str, unit_system: str):
     return ureg.Quantity(value_si, spec.si_unit).to(unit).magnitude
 
 
-def _format_number(x: float, digits: int) -> str:
-    if not math.isfinite(x):
-        return str(x)
-    if x == 0:
-        return "0"
-    magnitude = math.floor(math.log10(abs(x)))
-    if magnitude >= 7 or magnitude < -4:
-        return f"{x:.{max(digits - 1, 0)}e}"
-    decimals = max(0, digits - 1 - magnitude)
-    text = f"{x:.{decimals}f}"
-    if "." in text:
-        text = text.rstrip("0").rstrip(".")
-    return "0" if text in {"-0", ""} else text
-
-
 def format_quantity(value_si: float, kind: str, unit_system: str = "SI", digits: int = 4) -> str:
     """Text for an SI value in the display unit, to ``digits`` significant digits.
 
@@ -476,4 +463,4 @@ def format_quantity(value_si: float, kind: str, unit_system: str = "SI", digits:
     '4.028 in'
     """
     magnitude = float(to_display(float(value_si), kind, unit_system))
-    return f"{_format_number(magnitude, digits)} {display_unit(kind, unit_system)}"
+    return f"{number_text(magnitude, digits)} {display_unit(kind, unit_system)}"
