@@ -23,7 +23,7 @@ import sys
 from workbench.cli.exit_codes import ExitCode
 
 _EPILOG = (
-    "Example: workbench calibrate projects/fellgate_acid_tank_drain_test.toml "
+    "Example: workbench calibrate projects/fellgate_wash_tank_drain_test.toml "
     "--fit 'lines.420-DR-07.roughness=0.01..3 mm'. "
     "A calibrated model holds near the tested conditions; the output states the range tested."
 )
