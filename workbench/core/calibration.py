@@ -60,6 +60,7 @@ __all__ = [
     "TARGETS",
     "fit",
     "predict",
+    "series_of",
     "with_conditions",
     "with_parameters",
 ]
@@ -283,19 +284,39 @@ def model_trace(obs: Observation, system: System, *, cancel: Callable[[], bool] 
         raise CalibrationError(f"measurement {obs.name}: the readings span no time; give a "
                                "steady reading (one point) or readings at different times")
     result = simulate(system, duration=span, stop_when=None, output_interval=span / _GRID,
-                      rtol=rtol, cancel=cancel)
+                      rtol=rtol, cancel=cancel, junction_pressures=obs.quantity == "pressure")
     if result.status == 2:
         raise _Cancelled()
     if not result.success:
         raise CalibrationError(f"measurement {obs.name}: {result.message}")
-    if obs.quantity == "level":
-        series = result.levels[result.tank_ids.index(obs.element)]
-    elif obs.quantity == "flow":
-        series = result.flows[result.line_ids.index(obs.element)]
-    else:
-        raise CalibrationError(f"measurement {obs.name}: a pressure trace in time is not "
-                               "compared yet; give one steady reading per test condition")
-    return np.asarray(result.t, dtype=float), np.asarray(series, dtype=float)
+    return np.asarray(result.t, dtype=float), series_of(obs, result)
+
+
+def series_of(obs: Observation, result) -> np.ndarray:
+    """The series of a run (:class:`~workbench.core.transient.TransientResult`) that an
+    observation reads [SI]: a tank's level, a line's flow or a junction's gauge pressure
+    (kept by ``simulate(..., junction_pressures=True)``).
+
+    Raises
+    ------
+    CalibrationError
+        When the run does not hold it, or no flowing line joins a junction to a fixed head
+        during the test (it has no pressure then).
+    """
+    ids = {"level": result.tank_ids, "flow": result.line_ids,
+           "pressure": result.junction_ids}[obs.quantity]
+    if obs.element not in ids:
+        raise CalibrationError(f"measurement {obs.name}: the run holds no {obs.quantity} of "
+                               f"{obs.element}")
+    rows = {"level": result.levels, "flow": result.flows,
+            "pressure": result.junction_pressures}[obs.quantity]
+    series = np.asarray(rows[list(ids).index(obs.element)], dtype=float)
+    if np.isnan(series).any():
+        t = float(np.asarray(result.t)[np.isnan(series)][0])
+        raise CalibrationError(f"measurement {obs.name}: from t = {t:.6g} s no flowing line "
+                               f"joins junction {obs.element} to a tank or an outlet (a tank "
+                               "drained, or a valve shut): it has no pressure to compare")
+    return series
 
 
 def _predict_steady(obs: Observation, system: System) -> np.ndarray:

@@ -6,8 +6,9 @@ Each ``[measurements.NAME]`` is compared where it belongs:
 * readings in time under the project's own conditions: on the simulation being shown,
   at the readings' times (linear between its output times); readings after the end of the
   run are not compared, and say so;
-* readings in time under conditions of their own (a test level, a valve opening): on a
-  run of the model at those conditions, over the test's span;
+* readings in time under conditions of their own (a test level, a valve opening), and a
+  junction's pressure in time when the run shown did not keep junction pressures: on a
+  run of the model at the test's conditions, over the test's span;
 * one steady reading: on the steady solution at the test's conditions.
 
 The residual is model minus reading; its RMS and largest magnitude are given in the
@@ -64,11 +65,13 @@ class Comparison:
 
 
 def _on_run(m: "Measurement", result) -> Comparison:
-    ids = result.tank_ids if m.quantity == "level" else result.line_ids
-    if m.quantity == "pressure" or m.element not in ids:
-        return Comparison(m, "this run", note="a pressure trace in time is not compared yet; "
-                          "give one steady reading per test condition")
-    series = (result.levels if m.quantity == "level" else result.flows)[list(ids).index(m.element)]
+    from workbench.core.calibration import CalibrationError, Observation, series_of
+
+    try:
+        series = series_of(Observation(m.name, m.element, m.quantity, m.times, m.values,
+                                       None), result)
+    except CalibrationError as exc:
+        return Comparison(m, "this run", note=f"not compared: {exc}")
     end = float(result.t[-1]) if len(result.t) else 0.0
     inside = m.times <= end * (1 + 1e-9)
     outside = int(np.count_nonzero(~inside))
@@ -111,11 +114,9 @@ def compare_measurements(project: "Project", result=None) -> list[Comparison]:
         return []
     out = []
     for m in measurements_of(project).values():
-        if m.steady or m.differs_from(project.system) or result is None:
-            if m.quantity == "pressure" and not m.steady:
-                out.append(Comparison(m, "this run", note="a pressure trace in time is not "
-                                      "compared yet; give one steady reading per test condition"))
-                continue
+        shown = result is not None and (m.quantity != "pressure"
+                                        or m.element in getattr(result, "junction_ids", ()))
+        if m.steady or m.differs_from(project.system) or not shown:
             out.append(_own(m, project.system))
         else:
             out.append(_on_run(m, result))

@@ -233,14 +233,6 @@ def _chosen(project: "Project", names: Sequence[str] | None) -> list["Measuremen
     return out
 
 
-def check_pressure_traces(measurements: Sequence["Measurement"]) -> None:
-    """Refuse a pressure trace in time (compared only as a steady reading)."""
-    for m in measurements:
-        if m.quantity == "pressure" and not m.steady:
-            raise FitSpecError(f"measurements.{m.name}: a pressure trace in time is not fitted "
-                               "yet; give one steady reading per test condition")
-
-
 def calibrate(project: "Project", fits: Sequence[str], names: Sequence[str] | None = None, *,
               progress: Callable[[int, float], None] | None = None,
               cancel: Callable[[], bool] | None = None) -> CalibrationRun:
@@ -268,7 +260,6 @@ def calibrate(project: "Project", fits: Sequence[str], names: Sequence[str] | No
     if len(set(keys)) < len(keys):
         raise FitSpecError("the same key path is given twice")
     chosen = _chosen(project, names)
-    check_pressure_traces(chosen)
     observations = [observation(m, project.system) for m in chosen]
     result = fit(observations, parameters, progress=progress, cancel=cancel)
     words = bound_words(result, project.unit_system)

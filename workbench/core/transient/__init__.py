@@ -125,6 +125,7 @@ def simulate(
     output_interval: float | None = None,
     initial_state: str | None = None,
     stop_when: str | None = "settings",
+    junction_pressures: bool = False,
 ) -> TransientResult:
     """Simulate the rigid-column transient of a gravity system.
 
@@ -150,6 +151,10 @@ def simulate(
     stop_when : {"drained", None, "settings"}
         ``"drained"`` ends the run when every draining tank has drained; ``"settings"``
         takes the value from ``system.simulation``.
+    junction_pressures : bool
+        Keep each junction's gauge pressure at the output times
+        (``TransientResult.junction_pressures``, see :mod:`.junctions`); off by default, as
+        it costs a head evaluation per output time.
 
     Returns
     -------
@@ -183,5 +188,7 @@ def simulate(
     state = RunState.empty(model.nl, model.nt)
     state.notes.extend(notes)
     run = Run(model, options, state, progress, cancel)
+    if junction_pressures:
+        run.rec.junction_heads.heads_of = run.eq.heads
     outcome = run.execute()
     return finish(model, run, outcome, _time.perf_counter() - wall0)

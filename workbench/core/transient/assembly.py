@@ -17,6 +17,7 @@ from workbench.core.model import Finding, G, restart_level
 from workbench.core.surge import LineSurge, effective_closure_time, screen_line
 from workbench.core.transient import siphon, venting
 from workbench.core.transient.end_states import end_states
+from workbench.core.transient.junctions import junction_pressures
 from workbench.core.transient.loop import Run
 from workbench.core.transient.model import TransientModel
 from workbench.core.transient.results import TransientResult
@@ -81,6 +82,7 @@ def finish(model: TransientModel, run: Run, outcome, wall: float) -> TransientRe
         end_rates=end_rates,
         end_states=states,
         spills=spills,
+        **junction_pressures(model, rec.junction_heads, flows),
         gas_tank_ids=model.gas.ids,
         gas_pressures=gas_p,
         gas_masses=gas_m,

@@ -14,6 +14,7 @@ import numpy as np
 from workbench.core.model import G
 from workbench.core.transient import siphon
 from workbench.core.transient.equations import Equations
+from workbench.core.transient.junctions import JunctionHeads
 from workbench.core.transient.line_ends import line_end_heads
 from workbench.core.transient.model import TransientModel
 from workbench.core.transient.state import RunState
@@ -48,6 +49,8 @@ class Recording:
         """Largest velocity magnitude per line [m/s]."""
         self.closing = np.zeros(nl, bool)
         """Valves shutting at the end of the current segment."""
+        self.junction_heads = JunctionHeads(model)
+        """Junction heads at the output times (:mod:`.junctions`)."""
 
     def record(self, t: float, y: np.ndarray, open_lines: np.ndarray, state: RunState) -> None:
         """Keep the state at time ``t`` (a shut line's round-off is not a flow)."""
@@ -55,6 +58,7 @@ class Recording:
         y = np.array(y, dtype=float)
         y[: self.model.nl][~open_lines] = 0.0
         self.y_out.append(y)
+        self.junction_heads.keep(t, y, open_lines)
         self.drained_out.append(state.drained.copy())
         self.spilling_out.append(state.spilling.copy())
 
@@ -62,6 +66,8 @@ class Recording:
                     state: RunState) -> None:
         """Keep states ``yg`` (state x times) at output times ``tg``."""
         yg[: self.model.nl][~open_lines] = 0.0
+        for k in range(tg.size if self.junction_heads.nj else 0):
+            self.junction_heads.keep(float(tg[k]), yg[:, k], open_lines)
         self.t_out.extend(tg.tolist())
         self.y_out.extend(yg.T)
         self.drained_out.extend([state.drained.copy()] * tg.size)

@@ -98,6 +98,13 @@ class TransientResult:
     """Per tank at the end of the run: ``"steady"`` (level no longer changing: inflows and
     outflows balance), ``"rising"``, ``"falling"``, ``"spilling"``, ``"drained"`` or
     ``"still"`` (nothing flowing in or out)."""
+    junction_ids: tuple[str, ...] = ()
+    """Junctions: the rows of :attr:`junction_pressures` (none unless ``simulate`` was
+    asked for them with ``junction_pressures=True``)."""
+    junction_pressures: np.ndarray = field(default_factory=lambda: np.zeros((0, 0)))
+    """Gauge pressure at each junction, junctions x times [Pa], as the steady solution
+    reports it (the lowest static pressure of the lines meeting there; ``nan`` while no
+    open line joins it to a fixed head; see :mod:`.junctions`)."""
     gas_tank_ids: tuple[str, ...] = ()
     """Tanks with a vent (sealed included): the rows of :attr:`gas_pressures`."""
     gas_pressures: np.ndarray = field(default_factory=lambda: np.zeros((0, 0)))
