@@ -40,6 +40,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from workbench.core.checks import ProfileResult, line_profiles, steady_findings
+from workbench.core.finding_text import slots
 from workbench.core.line import LineSet
 from workbench.core.model import Finding, G, System, receiver_head, reservoir_head
 from workbench.core.siphon import SiphonBreak, broken_profile, find_break, stop_level
@@ -143,6 +144,12 @@ class SteadyResult:
     siphon_breaks: dict[str, SiphonBreak] = field(default_factory=dict)
     """Lines whose column parts at a high point (status ``"siphon_break"``): where, and the
     flow they pass instead of the full-bore one (:mod:`workbench.core.siphon`)."""
+    template: str = ""
+    """:attr:`message` with ``{name}`` slots for :attr:`values`, so that the output layer
+    writes its numbers in the display units (:mod:`workbench.core.finding_text`); "" when
+    the message carries no numbers."""
+    values: tuple = ()
+    """``(name, SI value, quantity kind, digits)`` per slot of :attr:`template`."""
 
 
 def fixed_heads(system: System, topo: Topology, levels: dict[str, float] | None = None):
@@ -577,10 +584,13 @@ def _assemble(system, topo, lines, newton, x, h_fixed, x_open, shut, back, level
     n_passes_note = ""
     if back.any():
         n_passes_note = f"; {int(back.sum())} line(s) set to no flow at an open discharge"
-    msg = (f"converged in {iterations} Newton steps (continuity {residuals['continuity']:.2g} "
-           f"m3/s, energy {residuals['energy']:.2g} m){n_passes_note}")
+    msg, template, values = slots(
+        f"converged in {iterations} Newton steps (continuity {{continuity}}, energy "
+        f"{{energy}}){n_passes_note}", 2, continuity=(residuals["continuity"], "flow"),
+        energy=(residuals["energy"], "head"))
     return SteadyResult(
-        success=True, status=0, message=msg, iterations=iterations, residuals=residuals,
+        success=True, status=0, message=msg, template=template, values=values,
+        iterations=iterations, residuals=residuals,
         lines=line_results, nodes=nodes, profiles=profiles, warnings=findings, flows=q,
         line_ids=topo.line_ids, levels=lv, openings=openings_used,
         solve_time=time.perf_counter() - t0,

@@ -93,6 +93,15 @@ def _q(value: float | None, kind: str, units: str, digits: int = 4) -> str:
     return format_quantity(tidy(float(value), kind), kind, units, digits)
 
 
+def _residual(value: float | None, kind: str, units: str) -> str:
+    """A solver residual in the display units, as it is (no rounding of small values to 0)."""
+    if value is None or not math.isfinite(value):
+        return "-"
+    from workbench.project.units import format_quantity
+
+    return format_quantity(float(value), kind, units, 3)
+
+
 def _num(value: float | None, digits: int = 4) -> str:
     if value is None or (isinstance(value, float) and not math.isfinite(value)):
         return "-"
@@ -384,7 +393,8 @@ def _steady(project: Project, steady: SteadyResult | None) -> list[str]:
         return out + [f"**No steady solution:** {steady.message}", ""]
     res = steady.residuals or {}
     out += [f"Converged in {steady.iterations} Newton iterations; largest continuity residual "
-            f"{_num(res.get('continuity'), 3)} m3/s, energy residual {_num(res.get('energy'), 3)} m.", ""]
+            f"{_residual(res.get('continuity'), 'flow', units)}, energy residual "
+            f"{_residual(res.get('energy'), 'head', units)}.", ""]
     out += ["### Lines", ""]
     out += _table(
         ["Line", "Flow", "Velocity", "Re", "Regime", "f", "f from", "Friction loss", "Minor loss",

@@ -191,7 +191,7 @@ def steady_tables(result: SteadyResult, system: System, unit_system: str = "SI")
     if not result.success:
         out.append(Text(f"No steady solution: {result.message}", style="bold red"))
         return out
-    out.append(Text(f"{system.title}: steady solution {result.message}."))
+    out.append(Text(f"{system.title}: steady solution {finding_message(result, unit_system)}."))
 
     lines = table("Lines")
     for col, just in (("line", "left"), ("flow", "right"), ("velocity", "right"),
