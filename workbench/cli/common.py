@@ -31,7 +31,7 @@ def load_or_report(path: str, units: str | None = None):
     from workbench.project.document import ProjectError, load_project
 
     try:
-        project = load_project(path)
+        project = load_project(path, units)
         if units is not None and units != project.unit_system:
             project = dataclasses.replace(project, unit_system=units)
         return project

@@ -30,6 +30,7 @@ SI_DISPLAY: dict[str, tuple[float, str]] = {
     "pressure": (1e-3, "kPa"),
     "pressure_abs": (1e-3, "kPa abs"),
     "flow": (1000.0, "L/s"),
+    "gas_flow": (3600.0, "m3/h"),
     "velocity": (1.0, "m/s"),
     "time": (1.0, "s"),
     "volume": (1.0, "m3"),

@@ -71,8 +71,8 @@ def gas_table(result: "TransientResult", system: "System", unit_system: str):
         table.add_row(
             tid, span(float(np.min(p)), float(np.max(p))) if p.size else "—",
             span(design_vac, res.design_pressure),
-            q(result.required_inbreathing.get(tid), "flow"),
-            q(result.required_outbreathing.get(tid), "flow"))
+            q(result.required_inbreathing.get(tid), "gas_flow"),
+            q(result.required_outbreathing.get(tid), "gas_flow"))
     return table
 
 
@@ -84,7 +84,7 @@ def vent_words(vent, unit_system: str) -> str:
         return "sealed"
     if vent.diameter is not None:
         return f"{quantity_text(vent.diameter, 'diameter', unit_system, 3)}, K {vent.k:g}"
-    return (f"{quantity_text(vent.rated_flow, 'flow', unit_system, 3)} at "
+    return (f"{quantity_text(vent.rated_flow, 'gas_flow', unit_system, 3)} at "
             f"{quantity_text(vent.rated_pressure_drop, 'pressure', unit_system, 3)}")
 
 
@@ -180,8 +180,8 @@ def record_gas_rows(result: "TransientResult", system: "System", units: str) -> 
                      q(float(np.min(p)) if p.size else None, "pressure"),
                      q(float(np.max(p)) if p.size else None, "pressure"),
                      q(res.design_vacuum, "pressure"), q(res.design_pressure, "pressure"),
-                     q(result.required_inbreathing.get(tid), "flow"),
-                     q(result.required_outbreathing.get(tid), "flow")])
+                     q(result.required_inbreathing.get(tid), "gas_flow"),
+                     q(result.required_outbreathing.get(tid), "gas_flow")])
     return rows
 
 

@@ -195,13 +195,15 @@ def _with_lines(problems: list[Problem], text: str) -> list[Problem]:
 
 
 def project_from_doc(text: str, *, path: Path | None, name: str, loaded_hash: str,
-                     doc: Any = None, data: dict | None = None) -> Project:
-    """Validate text (already parsed when ``doc``/``data`` are given) into a Project."""
+                     doc: Any = None, data: dict | None = None,
+                     units: str | None = None) -> Project:
+    """Validate text (already parsed when ``doc``/``data`` are given) into a Project;
+    ``units`` ("SI"/"US") overrides the file's display units in the problems' numbers."""
     from workbench.project.validate import check_data
 
     if data is None:
         data = parse_data(text, name)
-    system, problems = check_data(data, name)
+    system, problems = check_data(data, name, units)
     if problems or system is None:
         raise ProjectError(_with_lines(problems, text) or [Problem(name, "", "cannot build")])
     units = data.get("project", {}).get("units", "SI")
@@ -209,10 +211,10 @@ def project_from_doc(text: str, *, path: Path | None, name: str, loaded_hash: st
                    loaded_hash=loaded_hash, name=name, _doc=doc)
 
 
-def load_project_text(text: str, name: str = "<text>") -> Project:
+def load_project_text(text: str, name: str = "<text>", units: str | None = None) -> Project:
     """Load a project from TOML text; raises :class:`ProjectError` with every problem."""
     digest = hashlib.sha256(text.encode("utf-8")).hexdigest() if isinstance(text, str) else ""
-    return project_from_doc(text, path=None, name=name, loaded_hash=digest)
+    return project_from_doc(text, path=None, name=name, loaded_hash=digest, units=units)
 
 
 def read_project_bytes(path: Path, name: str) -> bytes:
@@ -253,7 +255,7 @@ def read_project_bytes(path: Path, name: str) -> bytes:
         os.close(fd)
 
 
-def load_project(path) -> Project:
+def load_project(path, units: str | None = None) -> Project:
     """Load a project file; raises :class:`ProjectError` with every problem (never another
     exception for bad input)."""
     path = Path(path)
@@ -268,4 +270,4 @@ def load_project(path) -> Project:
     if text.startswith("\ufeff"):
         text = text[1:]
     return project_from_doc(text, path=path, name=name,
-                            loaded_hash=hashlib.sha256(raw).hexdigest())
+                            loaded_hash=hashlib.sha256(raw).hexdigest(), units=units)

@@ -171,7 +171,7 @@ SECTIONS: dict[str, tuple[FieldSpec, ...]] = {
               example="40"),
         field("k", "number", help="loss coefficient of the vent on its bore's velocity head "
               "(entry, pipe, fittings, cowl and exit together)", minimum=0.0, example="1.5"),
-        field("rated_flow", "flow", help="the vent's stated air flow (air at 20 degC and "
+        field("rated_flow", "gas_flow", help="the vent's stated air flow (air at 20 degC and "
               "1 atm), with rated_pressure_drop", example="300 m3/h"),
         field("rated_pressure_drop", "pressure", help="the pressure drop at the stated flow",
               example="0.5 kPa"),

@@ -156,6 +156,9 @@ QUANTITY_KINDS: dict[str, QuantityKind] = {
     ),
     "modulus": QuantityKind("modulus", "Pa", "GPa", "ksi", "207 GPa"),
     "flow": QuantityKind("flow", "m^3/s", "L/s", "gpm", "12 L/s", "L/s", "gpm"),
+    # Air through a tank's vent: a gas volume flow, shown as vents are rated (m3/h; ft3/min
+    # in US practice), never in liquid units such as gpm.
+    "gas_flow": QuantityKind("gas flow", "m^3/s", "m^3/h", "cfm", "300 m3/h", "m3/h", "ft3/min"),
     # A valve's Kv is the flow [m^3/h] of water at 1 bar drop (IEC 60534); kept in m^3/h on
     # display in both systems because converting its units does not give the US Cv.
     "kv": QuantityKind("flow coefficient", "m^3/s", "m^3/h", "m^3/h", "250 m3/h", "m3/h", "m3/h"),

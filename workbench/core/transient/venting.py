@@ -126,8 +126,8 @@ def _undersized(model, g, res, tid, inb, outb) -> list[Finding]:
                 f"the vent of tank {tid} passes {{cap}} of air at its design {which} of {{d}}, "
                 f"less than the {word} its liquid movement needs, {{need}} (the largest "
                 "liquid flow of the run)", "danger" if inward else "caution",
-                REQUIRED_VENTING_SOURCE, cap=(cap, "flow"), d=(design, "pressure"),
-                need=(need, "flow")))
+                REQUIRED_VENTING_SOURCE, cap=(cap, "gas_flow"), d=(design, "pressure"),
+                need=(need, "gas_flow")))
     return out
 
 

@@ -56,13 +56,21 @@ def did_you_mean(word: str, candidates) -> str:
 class Checker:
     """Collects problems while reading one file's data."""
 
-    def __init__(self, file: str | None):
+    def __init__(self, file: str | None, unit_system: str = "SI"):
         self.file = file
         self.problems: list[Problem] = []
         self.atmosphere = m.P_ATM_SEA_LEVEL
+        self.unit_system = unit_system
+        """Display units ("SI" or "US") that messages write computed numbers in."""
 
     def add(self, key: str, message: str) -> None:
         self.problems.append(Problem(self.file, key, message))
+
+    def shown(self, value_si: float, kind: str, digits: int = 4) -> str:
+        """An SI value as text in the display units, e.g. ``"4.028 in"`` on a US project."""
+        from workbench.project.units import format_quantity
+
+        return format_quantity(value_si, kind, self.unit_system, digits)
 
     # -- structure -------------------------------------------------------------------
     def table(self, value: Any, key: str, what: str = "a table") -> dict | None:
@@ -107,7 +115,8 @@ class Checker:
         if nonnegative and value < 0:
             self.add(key, f"{table[name]!r}: the {QUANTITY_KINDS[kind].name} must not be negative")
             return None
-        implausible = quantity_problem(key, kind, table[name], value, self.atmosphere)
+        implausible = quantity_problem(key, kind, table[name], value, self.atmosphere,
+                                       self.unit_system)
         if implausible:
             self.add(key, implausible)
             return None

@@ -40,12 +40,21 @@ class Plausible:
     why: str = ""
     """What lies beyond the range, in words (optional)."""
 
-    def describe(self) -> str:
+    def describe(self, unit_system: str = "SI", kind: str | None = None) -> str:
+        """The range in words: in :attr:`unit` for SI (or without a quantity ``kind``), in
+        the ``kind``'s US display unit for ``unit_system="US"``."""
+        scale, unit = self.scale, self.unit
+        if unit_system == "US" and kind is not None and unit:
+            from workbench.project.units import display_unit, to_display
+
+            unit = display_unit(kind, "US")
+            scale = 1.0 / float(to_display(1.0, kind, "US"))
+
         def text(x: float) -> str:
-            x = x / self.scale
+            x = float(f"{x / scale:.4g}")
             shown = f"{int(round(x)):,}" if abs(x) >= 1 and abs(x - round(x)) < 1e-9 * abs(x) \
                 else f"{x:g}"
-            return shown + (f" {self.unit}" if self.unit else "")
+            return shown + (f" {unit}" if unit else "")
 
         if self.low is not None and self.high is not None:
             return f"from {text(self.low)} to {text(self.high)}"
@@ -130,7 +139,8 @@ def key_pattern(key: str) -> str:
     return ".".join(parts)
 
 
-def _out_of_range(key: str, raw: object, value: float) -> str | None:
+def _out_of_range(key: str, raw: object, value: float, unit_system: str = "SI",
+                  kind: str | None = None) -> str | None:
     spec = RANGES.get(key_pattern(key))
     if spec is None:
         return None
@@ -138,11 +148,12 @@ def _out_of_range(key: str, raw: object, value: float) -> str | None:
         return None
     why = f" ({spec.why})" if spec.why else ""
     check = "check the number and its unit" if spec.unit else "check the number"
-    return f"{raw!r} is not plausible as {spec.what}{why}: expected {spec.describe()}; {check}"
+    return (f"{raw!r} is not plausible as {spec.what}{why}: expected "
+            f"{spec.describe(unit_system, kind)}; {check}")
 
 
 def quantity_problem(key: str, kind: str, raw: object, value: float,
-                     atmosphere: float) -> str | None:
+                     atmosphere: float, unit_system: str = "SI") -> str | None:
     """Why a quantity read from ``key`` cannot be physical, or ``None``.
 
     Parameters
@@ -157,15 +168,21 @@ def quantity_problem(key: str, kind: str, raw: object, value: float,
         The value in SI units (a ``pressure`` gauge) [SI].
     atmosphere : float
         Absolute atmospheric pressure at the site [Pa].
+    unit_system : {"SI", "US"}
+        The display units the message writes its numbers in.
     """
     if kind == "pressure" and value + atmosphere <= 0.0:
+        from workbench.project.units import format_quantity
+
+        example = "3 psia" if unit_system == "US" else "20 kPa abs"
         return (f"{raw!r} (gauge) is at or below a perfect vacuum: atmospheric pressure at "
-                f"the site is {atmosphere / 1000:,.4g} kPa, so a gauge pressure must be above "
-                f"{-atmosphere / 1000:,.4g} kPa (pressures are gauge unless the unit says "
-                "absolute, e.g. \"20 kPa abs\")")
+                f"the site is {format_quantity(atmosphere, 'pressure', unit_system)}, so a "
+                f"gauge pressure must be above "
+                f"{format_quantity(-atmosphere, 'pressure', unit_system)} (pressures are "
+                f"gauge unless the unit says absolute, e.g. \"{example}\")")
     if kind == "pressure_abs" and value <= 0.0:
         return f"{raw!r}: an absolute pressure must be above zero (a perfect vacuum)"
-    return _out_of_range(key, raw, value)
+    return _out_of_range(key, raw, value, unit_system, kind)
 
 
 def number_problem(key: str, value: float) -> str | None:

@@ -47,7 +47,7 @@ def check_profile_ends(c: Any, parts: Any) -> None:
             if found is None or abs(z - found[0]) <= TOLERANCE:
                 continue
             c.add(f"lines.{lid}.profile[{index}].elevation",
-                  f"the profile {verb} at elevation {z:g} m but the line {joins} '{node}' at "
-                  f"{found[0]:g} m ({found[1]}): the end points must match within "
-                  f"{TOLERANCE:g} m; correct the elevation, or leave the end point out and "
-                  "the node's elevation is used")
+                  f"the profile {verb} at elevation {c.shown(z, 'elevation')} but the line "
+                  f"{joins} '{node}' at {c.shown(found[0], 'elevation')} ({found[1]}): the end "
+                  f"points must match within {c.shown(TOLERANCE, 'elevation', 2)}; correct the "
+                  "elevation, or leave the end point out and the node's elevation is used")

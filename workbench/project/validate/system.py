@@ -71,7 +71,8 @@ FURTHER_CHECKS: list[Callable[[Checker, Parts], None]] = [check_profile_ends,
                                                         _check_measurements]
 
 
-def check_data(data: Any, file: str | None = None) -> tuple[m.System | None, list[Problem]]:
+def check_data(data: Any, file: str | None = None,
+               unit_system: str | None = None) -> tuple[m.System | None, list[Problem]]:
     """Validate a project file's data and build the core model.
 
     Parameters
@@ -80,13 +81,16 @@ def check_data(data: Any, file: str | None = None) -> tuple[m.System | None, lis
         The file as ``tomllib.loads`` returns it.
     file : str, optional
         File name for messages.
+    unit_system : {"SI", "US"}, optional
+        Display units of the numbers the messages compute (a limit, a bore); by default the
+        file's ``[project] units``.
 
     Returns
     -------
     (System or None, list of Problem)
         The system when there are no problems; otherwise ``None`` and every problem found.
     """
-    c = Checker(file)
+    c = Checker(file, unit_system or display_system(data))
     if not isinstance(data, dict):
         c.add("", f"expected a TOML document, got {describe(data)}")
         return None, c.problems
@@ -111,6 +115,13 @@ def check_data(data: Any, file: str | None = None) -> tuple[m.System | None, lis
     )
     _check_topology(c, system, parts.node_ids)
     return (None if c.problems else system), c.problems
+
+
+def display_system(data: Any) -> str:
+    """The file's ``[project] units`` when it is ``"SI"`` or ``"US"``, else ``"SI"``."""
+    project = data.get("project") if isinstance(data, dict) else None
+    units = project.get("units") if isinstance(project, dict) else None
+    return units if units in ("SI", "US") else "SI"
 
 
 def _check_elements(c: Checker, parts: Parts) -> None:

@@ -140,7 +140,7 @@ def _check_heights(c: Checker, t: dict, path: str, dims: dict, level: float | No
     if shape_kind == "cone_bottom" and cone_height is not None and height is not None \
             and height < cone_height:
         c.add(f"{path}.height", f"{t['height']!r} is below the top of the cone "
-              f"({cone_height:.4g} m)")
+              f"({c.shown(cone_height, 'length')})")
     if level is not None and height is not None and level > height * (1 + 1e-9):
         what = "height" if "height" in t else "diameter"
         c.add(f"{path}.level", f"level {t['level']!r} is above the tank's {what} "
@@ -161,7 +161,8 @@ def _restart_level(c: Checker, t: dict, path: str, dims: dict) -> float | None:
     height = dims["height"]
     if restart <= (dims["min_level"] or 0.0):
         c.add(f"{path}.restart_level", f"restart_level {t['restart_level']!r} must be above "
-              f"min_level {t.get('min_level', '0 m')!r}: the outlets start again above the "
+              f"min_level {t.get('min_level', c.shown(0.0, 'length'))!r}: the outlets start "
+              "again above the "
               "drained level")
     elif height is not None and restart >= height:
         c.add(f"{path}.restart_level", f"restart_level {t['restart_level']!r} must be below "
@@ -188,7 +189,7 @@ def check_feeds(c: Checker, t: dict, path: str) -> dict:
                 what = ("a flow taken out of the tank is draw_off" if name == "inflow"
                         else "a feed into the tank is inflow")
                 c.add(f"{path}.{name}", f"{t[name]!r}: the {name.replace('_', '-')} must not be "
-                      f"negative ({what}, e.g. {opposite} = \"{abs(value) * 1000:g} L/s\")")
+                      f"negative ({what}, e.g. {opposite} = \"{c.shown(abs(value), 'flow')}\")")
             elif value is not None:
                 out[name] = value
         elif sched_name in t:

@@ -64,7 +64,8 @@ def check_valve(c: Checker, t: dict, path: str, diameter: float | None,
             k_open = math.inf
         if not (math.isfinite(k_open) and k_open > 0.0):
             c.add(f"{vpath}.kv_open", f"{v['kv_open']!r}: this Kv gives no usable loss "
-                  f"coefficient in a {diameter * 1000:.4g} mm line; check the number and its unit")
+                  f"coefficient in a {c.shown(diameter, 'diameter')} line; check the number and its "
+                  "unit")
             return False, None
     return True, m.Valve(characteristic=characteristic, k_open=float(k_open),
                          opening=float(opening), rangeability=float(rangeability),

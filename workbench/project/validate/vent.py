@@ -50,7 +50,7 @@ def check_vent(c: Checker, t: dict, path: str, dims: dict, surface: float | None
     gas_p = c.quantity(t, "gas_pressure", "pressure", path)
     if gas_p is not None and gas_p <= -c.atmosphere:
         c.add(f"{path}.gas_pressure", f"{t['gas_pressure']!r} is below a perfect vacuum "
-              f"({-c.atmosphere / 1000:.4g} kPa gauge at this site)")
+              f"({c.shown(-c.atmosphere, 'pressure')} gauge at this site)")
     elif gas_p is not None:
         out["gas_pressure"] = gas_p
     process = c.choice(t, field_spec("reservoirs", "gas_process"), path)
@@ -132,7 +132,7 @@ def _rated(c: Checker, value: dict, key: str) -> m.Vent | None:
     if "k" in value:
         c.add(f"{key}.k", "k applies to a vent given by its bore; a rated vent's stated flow "
               "and drop already include its losses")
-    flow = c.quantity(value, "rated_flow", "flow", key, required=True, positive=True)
+    flow = c.quantity(value, "rated_flow", "gas_flow", key, required=True, positive=True)
     drop = c.quantity(value, "rated_pressure_drop", "pressure", key, required=True,
                       positive=True)
     if flow is None or drop is None or "k" in value:
