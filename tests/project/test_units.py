@@ -118,6 +118,9 @@ def test_the_registry_is_built_once_for_the_program():
     ("length", "SI", "m"), ("length", "US", "ft"),
     ("diameter", "SI", "mm"), ("diameter", "US", "in"),
     ("temperature", "SI", "degC"), ("temperature", "US", "degF"),
+    # air through a tank vent: vents are rated in m3/h, and in ft3/min (SCFM) in US practice
+    # (common practice, no source); never a liquid unit such as gpm
+    ("gas_flow", "SI", "m3/h"), ("gas_flow", "US", "ft3/min"),
 ])
 def test_display_units_are_the_trades_usual_units(kind, system, unit):
     assert display_unit(kind, system) == unit
@@ -130,6 +133,8 @@ def test_display_units_are_the_trades_usual_units(kind, system, unit):
     (6894.757293168, "pressure", "US", 1.0, "NIST SP 811: 1 psi = 6894.757 Pa"),
     (373.15, "temperature", "US", 212.0, "water boils at 212 degF at 1 atm (definition)"),
     (0.001, "flow", "SI", 1.0, "1 L/s = 1e-3 m^3/s"),
+    (0.3048 ** 3 / 60, "gas_flow", "US", 1.0, "NIST SP 811: 1 ft = 0.3048 m, so 1 ft3/min"),
+    (1 / 3600, "gas_flow", "SI", 1.0, "1 m3/h = 1/3600 m^3/s"),
 ])
 def test_si_values_convert_to_the_display_unit(value, kind, system, expected, source):
     assert to_display(value, kind, system) == pytest.approx(expected, rel=1e-6)
