@@ -229,11 +229,19 @@ def reverse_findings(model: TransientModel, t: np.ndarray, flows: np.ndarray) ->
 
 
 def overflow_findings(model: TransientModel, run: Run, spills: np.ndarray) -> list[Finding]:
-    """A ``tank.overflow`` danger for every overflow event, with the peak spill."""
+    """A ``tank.overflow`` danger for every overflow that spills, with the peak spill.
+
+    A tank that starts at (or only touches) its overflow level and falls from there at
+    once spills nothing: it gets the lesser ``tank.at_overflow`` (see :func:`_spilled`).
+    """
     out = []
-    for ev in run.state.events:
+    events = run.state.events
+    for i, ev in enumerate(events):
         if ev.code == "tank.overflow":
             k = model.tank_ids.index(ev.element)
+            if not _spilled(events, i, run, spills[k]):
+                out.append(_at_overflow(model, k, ev))
+                continue
             peak = float(np.max(spills[k], initial=0.0))
             values = {name: (v, kind, d) for name, v, kind, d in ev.values}
             surplus = ""
@@ -247,6 +255,43 @@ def overflow_findings(model: TransientModel, run: Run, spills: np.ndarray) -> li
                 f"worst-case inflow{surplus} (defer to local codes)", "danger",
                 "rule of thumb", **values))
     return out
+
+
+def _spilled(events, i: int, run: Run, spill_k: np.ndarray) -> bool:
+    """Whether the overflow ``events[i]`` spilled: its spell at the overflow level (up to the
+    tank's next ``tank.spill_end``, else the end of the run) lasted, or a spill was recorded
+    in it. A spell that ends at the instant it begins (what flows in is already less than
+    what flows out) spilled nothing."""
+    ev = events[i]
+    t = np.asarray(run.rec.t_out, dtype=float)
+    end = float(t[-1]) if t.size else ev.time
+    for later in events[i + 1:]:
+        if later.element == ev.element and later.code == "tank.spill_end":
+            end = later.time
+            break
+    if end > ev.time:
+        return True
+    n = min(t.size, spill_k.size)
+    at = (t[:n] >= ev.time) & (t[:n] <= end)
+    return bool(np.any(spill_k[:n][at] > 0.0))
+
+
+def _at_overflow(model: TransientModel, k: int, ev) -> Finding:
+    """The note for a tank at its overflow level that did not spill (``tank.at_overflow``)."""
+    rid = model.tank_ids[k]
+    level = (float(model.geoms[k].overflow_level), "length", 4)
+    if ev.time <= 0.0:
+        return finding(
+            "tank.at_overflow", rid,
+            f"tank {rid} starts at its overflow level {{level}} but does not spill: its outlets "
+            "and draw-off take more than flows in, so the level falls from the start; with "
+            "less outflow it would spill", "info", "rigid-column flows of the run", level=level)
+    return finding(
+        "tank.at_overflow", rid,
+        f"tank {rid} reaches its overflow level {{level}} at t = {ev.time:.6g} s but does "
+        "not spill: what flows in falls below what flows out as it gets there; there is no "
+        "margin left, so check the overflow capacity under the worst-case inflow (defer to "
+        "local codes)", "caution", "rigid-column flows of the run", level=level)
 
 
 def cycling_findings(model: TransientModel, run: Run) -> list[Finding]:
