@@ -1,17 +1,22 @@
-"""``report`` refuses what ``solve`` and ``simulate`` refuse: the same consistency checks.
+"""``report`` refuses what ``solve`` and ``simulate`` refuse, with the same words.
 
-A record is signed by a checker: it must never publish a result that the other commands
-would call an internal error. Two open discharges joined by one line give a steady answer
-that breaks the energy balance (a 5 m head difference with no flow and no loss); both
-commands must refuse it with the same words and exit status 3.
+A record is signed by a checker: it must never publish a result the other commands refuse.
+Two open discharges joined by one line once gave a steady answer that broke the energy
+balance (a 5 m head difference with no flow and no loss), an invented flow out of an open
+discharge in ``simulate`` and "flowing, 0 L/s" in the record. An open discharge only takes
+liquid out of a system (a free outfall), so such a line has nothing to feed it: every
+command now refuses the file, naming the line and both discharges, and writes no record.
+Where a result itself breaks the physics, ``report`` runs the same consistency checks as
+``solve`` (the second test injects such a result).
 """
 
 from __future__ import annotations
 
-import subprocess
-import sys
+import dataclasses
 
-from tests.hardening.harness import ROOT
+import pytest
+
+from tests.hardening.harness import ROOT, run_cli
 
 TWO_DISCHARGES = """schema = 1
 
@@ -36,21 +41,47 @@ to = "B"
 length = "20 m"
 inner_diameter = "80 mm"
 roughness = "0.045 mm"
+
+[simulation]
+duration = "60 s"
 """
 
 
-def _run(*args):
-    return subprocess.run([sys.executable, "-m", "workbench", *args], capture_output=True,
-                          text=True, cwd=ROOT, timeout=300)
-
-
-def test_report_refuses_a_result_that_solve_refuses_with_the_same_words(tmp_path):
+@pytest.mark.parametrize("command", ["check", "solve", "simulate", "report"])
+def test_a_line_joining_two_open_discharges_is_refused_by_every_command_naming_both(
+        tmp_path, command):
     path = tmp_path / "two_discharges.toml"
     path.write_text(TWO_DISCHARGES)
-    solve = _run("solve", str(path))
     record = tmp_path / "record.md"
-    report = _run("report", str(path), "--output", str(record))
-    assert solve.returncode == report.returncode == 3
-    assert "internal consistency check failed" in report.stderr
+    extra = ["--output", str(record)] if command == "report" else []
+    outcome = run_cli([command, str(path), *extra], project_path=str(path))
+    assert outcome.code == 1, outcome.stderr
+    assert outcome.stderr.startswith(f"{path}: lines.AB.to: line 'AB' joins two open "
+                                     "discharges, from 'A' to 'B'")
+    assert outcome.stdout == "" and not record.exists()
+
+
+def test_report_refuses_a_result_that_breaks_continuity_as_solve_does(tmp_path, monkeypatch):
+    """A steady result with one line's flow raised by 10 % breaks continuity at the
+    junction of the cooling-water demo (sum of flows into a junction = 0): both commands
+    must call it an internal error (exit 3) in the same words and publish nothing."""
+    import workbench.core.network as network
+
+    real = network.solve_steady
+
+    def broken(system, **kw):
+        result = real(system, **kw)
+        lid, lr = next(iter(result.lines.items()))
+        lines = {**result.lines, lid: dataclasses.replace(lr, flow=lr.flow * 1.1)}
+        return dataclasses.replace(result, lines=lines)
+
+    monkeypatch.setattr(network, "solve_steady", broken)
+    path = ROOT / "projects" / "fellgate_cooling_water_network.toml"
+    record = tmp_path / "record.md"
+    solve = run_cli(["solve", str(path)], project_path=str(path))
+    report = run_cli(["report", str(path), "--steady-only", "--output", str(record)],
+                     project_path=str(path))
+    assert solve.code == report.code == 3
+    assert "internal consistency check failed: continuity" in report.stderr
     assert report.stderr.strip() == solve.stderr.strip()
     assert not record.exists()

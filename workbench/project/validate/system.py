@@ -21,6 +21,7 @@ from typing import Any, Callable
 from workbench.core import model as m
 from workbench.project.problems import Problem, ProjectError
 from workbench.project.validate.checker import Checker, describe
+from workbench.project.validate.discharges import check_open_discharge_ends
 from workbench.project.validate.elements import check_junction, check_receiver, element_tables
 from workbench.project.validate.fluid import check_fluid
 from workbench.project.validate.lines import check_line
@@ -68,6 +69,7 @@ def _check_measurements(c: Checker, parts: Parts) -> None:
 
 #: Checks run after the built-in sections, in order, each as ``check(c, parts)``.
 FURTHER_CHECKS: list[Callable[[Checker, Parts], None]] = [check_profile_ends,
+                                                        check_open_discharge_ends,
                                                         _check_measurements]
 
 
