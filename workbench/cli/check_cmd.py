@@ -3,7 +3,12 @@
 Exit status 0 when every file is valid (a one-line summary per file on stdout), 1 when any
 is not (every problem on stderr, as ``FILE: KEY: MESSAGE``), 2 for wrong usage. ``--json``
 prints one object instead: ``{"valid": bool, "files": [{"file", "valid", "summary",
-"problems": [{"key", "line", "column", "message", "text"}], "notes"}]}``.
+"problems": [{"key", "line", "column", "message", "text"}], "notes", "recovery"}]}``.
+
+Unsaved edits kept beside a file by a workbench that ended without saving (a crash, a lost
+session) are noted on stderr with the copy's path, valid file or not (``recovery``:
+``[{"path", "written", "message"}]``); so is a workbench still running with unsaved edits
+of it. The exit status is the file's verdict alone; ``check`` never touches a copy.
 """
 
 from __future__ import annotations
@@ -69,6 +74,8 @@ def run(args: argparse.Namespace) -> ExitCode:
                 print(report["summary"])
             for note in report["notes"]:
                 print(f"{report['file']}: fluid: note: {note}", file=sys.stderr)
+            for copy in report["recovery"]:
+                print(f"{report['file']}: note: {copy['message']}", file=sys.stderr)
     return ExitCode.OK if valid else ExitCode.INVALID
 
 
@@ -78,7 +85,8 @@ def _check(path: str) -> dict:
     fluid's ``notes``."""
     from workbench.project.document import ProjectError, load_project
 
-    report = {"file": str(path), "valid": False, "summary": None, "problems": [], "notes": []}
+    report = {"file": str(path), "valid": False, "summary": None, "problems": [], "notes": [],
+              "recovery": _recovery_notes(path)}
     try:
         project = load_project(path)
         if "measurements" in project.data:  # site tests: their CSV files are read here
@@ -91,3 +99,23 @@ def _check(path: str) -> dict:
         return report
     report.update(valid=True, summary=summary(project), notes=list(project.system.fluid.notes))
     return report
+
+
+def _recovery_notes(path: str) -> list[dict]:
+    """Unsaved edits of the file kept by other workbenches: each copy left by one that
+    ended without saving (``path``, ``written`` as ISO 8601 UTC, ``message``), then each
+    one still running (``path`` and ``written`` ``None``). Changes nothing on disk."""
+    import datetime
+
+    from workbench.project.recovery import scan_recoveries
+
+    scan = scan_recoveries(path, tidy=False)
+    notes = [{"path": str(r.path),
+              "written": datetime.datetime.fromtimestamp(r.written, datetime.timezone.utc)
+              .isoformat(timespec="seconds"),
+              "message": r.describe(full_path=True) + f"; 'workbench open {path}' offers them "
+              "back"} for r in scan.offers]
+    notes += [{"path": None, "written": None,
+               "message": f"the file is open in another workbench ({owner.describe()}) with "
+               "unsaved edits of its own"} for owner in scan.live]
+    return notes

@@ -158,12 +158,14 @@ class Recovery:
         """True when the project file on disk is not the one the edits started from."""
         return self.project_path is not None and self.base_hash != self.disk_hash
 
-    def describe(self) -> str:
-        """One sentence for the offer to the user."""
+    def describe(self, full_path: bool = False) -> str:
+        """One sentence for the offer to the user (``full_path``: the copy's whole path,
+        not only its name beside the project)."""
         when = time.strftime("%Y-%m-%d %H:%M", time.localtime(self.written))
         what = (self.project_path.name if self.project_path is not None
                 else "a new project (never saved)")
-        where = self.path.name if self.project_path is not None else str(self.path)
+        where = (self.path.name if self.project_path is not None and not full_path
+                 else str(self.path))
         text = f"unsaved edits to {what} from {when} were kept in {where}"
         if self.disk_changed:
             text += "; the project file has changed on disk since those edits began"
@@ -309,8 +311,9 @@ def _candidates(project_path: Path | None) -> list[Path]:
 
 
 def _recovery_of(path: Path, project_path: Path | None, on_disk: str | None,
-                 mine: Owner | None) -> Recovery | Owner | None:
-    """One copy as an offer, as a live owner, or ``None`` (not ours, stale, or our own)."""
+                 mine: Owner | None, tidy: bool = True) -> Recovery | Owner | None:
+    """One copy as an offer, as a live owner, or ``None`` (not ours, stale, or our own);
+    a stale copy is removed when ``tidy``."""
     read = _read_copy(path)
     if read is None:
         return None
@@ -324,10 +327,11 @@ def _recovery_of(path: Path, project_path: Path | None, on_disk: str | None,
     if alive:
         return owner
     if on_disk is not None and on_disk.removeprefix("\ufeff") == text:
-        try:  # the edits were saved but the copy was not removed: stale
-            path.unlink()
-        except OSError:
-            pass
+        if tidy:
+            try:  # the edits were saved but the copy was not removed: stale
+                path.unlink()
+            except OSError:
+                pass
         return None
     base = fields.get("base-sha256", "none")
     try:
@@ -340,13 +344,14 @@ def _recovery_of(path: Path, project_path: Path | None, on_disk: str | None,
 
 
 def scan_recoveries(project_path: str | os.PathLike | None,
-                    mine: Owner | None = None) -> RecoveryScan:
+                    mine: Owner | None = None, *, tidy: bool = True) -> RecoveryScan:
     """Every other workbench's copy of a project: the ones to offer, and the live owners.
 
     A copy whose owner still runs is that workbench's live edits: it is listed in
     ``live`` and never offered or touched. A copy whose text equals the project file on
-    disk is stale (the edits were saved but the copy was not removed): it is removed. A
-    file that is not one of our copies, or cannot be read, is left alone.
+    disk is stale (the edits were saved but the copy was not removed): it is removed
+    (left in place with ``tidy=False``, for a look that changes nothing, as ``check``'s).
+    A file that is not one of our copies, or cannot be read, is left alone.
     """
     path = Path(project_path) if project_path is not None else None
     try:
@@ -356,7 +361,7 @@ def scan_recoveries(project_path: str | os.PathLike | None,
     offers: list[Recovery] = []
     live: list[Owner] = []
     for candidate in _candidates(path):
-        found = _recovery_of(candidate, path, on_disk, mine)
+        found = _recovery_of(candidate, path, on_disk, mine, tidy)
         if isinstance(found, Owner):
             live.append(found)
         elif found is not None:
