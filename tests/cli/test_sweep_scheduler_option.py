@@ -49,3 +49,19 @@ def test_the_scheduler_option_is_in_the_sweep_help(capsys) -> None:
     except SystemExit as exc:
         assert exc.code == 0
     assert "--scheduler ADDRESS" in capsys.readouterr().out
+
+
+def test_workers_with_a_scheduler_is_refused_in_words_not_silently_ignored(tmp_path, capsys,
+                                                                            monkeypatch) -> None:
+    """On a cluster the scheduler places the cases on the workers started there
+    (``dask worker --nworkers``): a local process count cannot apply, so the two options
+    together are a usage error (exit 2) said before anything runs or connects."""
+    path = tmp_path / "p.toml"
+    path.write_text(PROJECT)
+    monkeypatch.setitem(sys.modules, "distributed", None)  # a connection attempt would fail
+    code = main(["sweep", str(path), "--vary", "lines.L.length=40 m,60 m", "--json",
+                 "--workers", "4", "--scheduler", "tcp://127.0.0.1:8786"])
+    captured = capsys.readouterr()
+    assert code == 2 and captured.out == ""
+    assert "--workers" in captured.err and "does not apply with --scheduler" in captured.err
+    assert "--nworkers" in captured.err and "needs Dask" not in captured.err

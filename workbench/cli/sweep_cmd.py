@@ -54,7 +54,8 @@ def add_parser(subparsers, name: str, help_text: str) -> None:
                         help="steady flows of a one-line project only, all cases in one vectorised "
                         "solve (for dense sweeps; no profiles, warnings or simulation)")
     parser.add_argument("--workers", type=int, default=None, metavar="N",
-                        help="processes for simulated cases (default: the machine's cores)")
+                        help="processes for simulated cases on this machine (default: its "
+                        "cores); not with --scheduler, where the cluster's workers run them")
     parser.add_argument("--scheduler", metavar="ADDRESS", default=None,
                         help="run the cases on the Dask cluster whose scheduler is at ADDRESS "
                         "(e.g. tcp://10.0.0.5:8786; needs the 'cluster' extra)")
@@ -151,6 +152,12 @@ def run(args: argparse.Namespace) -> ExitCode:
         return ExitCode.USAGE
     if args.workers is not None and args.workers < 1:
         print("workbench sweep: --workers must be at least 1", file=sys.stderr)
+        return ExitCode.USAGE
+    if args.workers is not None and args.scheduler:
+        print("workbench sweep: --workers sets the processes of this machine's pool and does "
+              "not apply with --scheduler: the cluster's workers run the cases; set how many "
+              "where they are started (dask worker ADDRESS --nworkers N --nthreads 1)",
+              file=sys.stderr)
         return ExitCode.USAGE
     from workbench.cli.common import load_or_report
     from workbench.project.sweep_spec import SweepSpecError
