@@ -71,6 +71,6 @@ def print_elastic_tables(console, results: dict, system, unit_system: str) -> No
     from workbench.output.elastic import elastic_findings, elastic_table
 
     console.print(elastic_table(results, system, unit_system))
-    for w in elastic_findings(results):
+    for w in elastic_findings(results, unit_system):
         console.print(f"{w['severity'].upper()}: {w['code']} ({w['element']}): {w['message']}",
                       markup=False, highlight=False)

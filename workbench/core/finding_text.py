@@ -34,6 +34,7 @@ SI_DISPLAY: dict[str, tuple[float, str]] = {
     "velocity": (1.0, "m/s"),
     "time": (1.0, "s"),
     "volume": (1.0, "m3"),
+    "small_volume": (1000.0, "L"),
 }
 
 
@@ -77,6 +78,20 @@ def slots(template: str, digits: int = 3, **values) -> tuple[str, str, tuple]:
         kept.append((name, value, kind, int(spec[2]) if len(spec) > 2 else digits))
     kept_t = tuple(kept)
     return fill(template, kept_t, si_text), template, kept_t
+
+
+class KeptText(str):
+    """A plain message (a note) that is its SI text and keeps its numbers: :attr:`template`
+    and :attr:`values` as a finding's, so the output layer can write it in display units."""
+
+    template: str
+    values: tuple
+
+    def __new__(cls, template: str, digits: int = 3, **values) -> "KeptText":
+        message, template, kept = slots(template, digits, **values)
+        text = super().__new__(cls, message)
+        text.template, text.values = template, kept
+        return text
 
 
 def finding(code: str, element: str, template: str, severity: Severity = "caution",

@@ -59,11 +59,12 @@ def finding_message(finding, unit_system: str = "SI") -> str:
 
     A finding that kept its numbers (``template`` and ``values``, see
     :mod:`workbench.core.finding_text`) is written again in ``unit_system``; any other is
-    returned as it is (its ``message``, SI).
+    returned as it is (its ``message``, SI). A plain note (a ``str``, or a
+    :class:`~workbench.core.finding_text.KeptText`) is its own message.
     """
     template = getattr(finding, "template", "")
     if not template or unit_system == "SI":
-        return finding.message
+        return str(finding) if isinstance(finding, str) else finding.message
     from workbench.core.finding_text import fill
     from workbench.project.units import format_quantity
 

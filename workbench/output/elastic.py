@@ -131,11 +131,18 @@ def elastic_to_json(results: dict[str, ElasticResult]) -> dict[str, dict]:
     return {lid: elastic_line_json(res, lid) for lid, res in results.items()}
 
 
-def elastic_findings(results: dict[str, ElasticResult]) -> list[dict]:
+def elastic_findings(results: dict[str, ElasticResult],
+                     unit_system: str | None = None) -> list[dict]:
     """Findings of the elastic runs as ``warnings`` entries, each chain's once.
 
     A chain that could not be run gives an ``surge.elastic_failed`` entry with its message.
+    Messages are SI (as ``--json`` has them) unless ``unit_system`` asks for display units.
     """
+    from workbench.output.common import finding_message
+
+    def words(item) -> str:
+        return item.message if unit_system is None else finding_message(item, unit_system)
+
     seen: set[int] = set()
     out: list[dict] = []
     for lid, res in results.items():
@@ -144,9 +151,9 @@ def elastic_findings(results: dict[str, ElasticResult]) -> list[dict]:
         seen.add(id(res))
         if not res.success and res.status == -1:
             out.append({"code": "surge.elastic_failed", "element": lid,
-                        "message": res.message, "severity": "caution", "source": ""})
+                        "message": words(res), "severity": "caution", "source": ""})
         for f in res.findings:
-            out.append({"code": f.code, "element": f.element, "message": f.message,
+            out.append({"code": f.code, "element": f.element, "message": words(f),
                         "severity": f.severity, "source": f.source})
     return out
 
@@ -160,6 +167,7 @@ def elastic_table(results: dict[str, ElasticResult], system: System, unit_system
     from rich.table import Table
     from rich.text import Text
 
+    from workbench.output.common import finding_message
     from workbench.project.units import format_quantity
 
     table = Table(title="Elastic surge (method of characteristics)", title_justify="left")
@@ -170,7 +178,7 @@ def elastic_table(results: dict[str, ElasticResult], system: System, unit_system
         env = res.envelopes.get(lid)
         if env is None:
             table.add_row(lid, "", "", "", "", "", "")
-            notes.append(f"{lid}: not run: {res.message}")
+            notes.append(f"{lid}: not run: {finding_message(res, unit_system)}")
             continue
         speed = res.wave_speeds[lid]
         rating = system.lines[lid].pressure_rating
@@ -179,7 +187,8 @@ def elastic_table(results: dict[str, ElasticResult], system: System, unit_system
                          "the common time step")
         if res.column_separation is not None:
             sep = res.column_separation
-            notes.append(f"{lid}: VAPOUR PRESSURE reached on {sep.line} at {sep.distance:.0f} m, "
+            notes.append(f"{lid}: VAPOUR PRESSURE reached on {sep.line} at "
+                         f"{format_quantity(sep.distance, 'length', unit_system, 3)}, "
                          f"t = {sep.time:.2f} s: results after that time are not trustworthy")
             notes.extend(_cavity_notes(res, lid, unit_system))
         over = rating is not None and env.max_pressure.max() > rating
@@ -221,17 +230,20 @@ def _cavity_notes(res: ElasticResult, lid: str, unit_system: str) -> list[str]:
     def p(value):
         return format_quantity(value, "pressure", unit_system)
 
+    def x(value):
+        return format_quantity(value, "length", unit_system, 3)
+
     env = res.envelopes[lid]
     out = []
     for z in res.cavity_zones:
         if z.line != lid:
             continue
-        where = (f"at {z.start:.0f} m" if z.sections == 1
-                 else f"along {z.start:.0f}-{z.end:.0f} m")
+        where = (f"at {x(z.start)}" if z.sections == 1
+                 else f"along {x(z.start)} to {x(z.end)}")
         end = ("open at the end" if z.last_collapse is None
                else f"last collapse {z.last_collapse:.2f} s")
         out.append(f"{lid}: vapour cavities {where}, from {z.first_open:.2f} s, largest "
-                   f"{z.max_volume * 1e3:.3g} L, {end}")
+                   f"{format_quantity(z.max_volume, 'small_volume', unit_system, 3)}, {end}")
     if env.max_head_before_separation is not None and out:
         j = int(env.max_head.argmax())
         rho_g = env.max_pressure[j] / (env.max_head[j] - env.elevation[j])

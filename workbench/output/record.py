@@ -499,7 +499,7 @@ def _all_findings(steady, transient, elastic,
         from workbench.output.elastic import elastic_findings
 
         rows += [(w["severity"], w["code"], w["element"], w["message"], w.get("source", ""))
-                 for w in elastic_findings(dict(elastic))]
+                 for w in elastic_findings(dict(elastic), units)]
     return rows
 
 
@@ -529,6 +529,8 @@ def _elastic(project: Project, elastic: Mapping[str, Any] | None) -> list[str]:
     if not elastic:
         return []
     units = project.unit_system
+    from workbench.output.common import finding_message
+
     out = ["### Elastic surge (method of characteristics)", ""]
     rows = []
     for lid, res in elastic.items():
@@ -548,7 +550,7 @@ def _elastic(project: Project, elastic: Mapping[str, Any] | None) -> list[str]:
                    "Min pressure (gauge)", "Simulated", "Note"], rows, "llrrrrrl")
     for res in _unique(elastic):
         for note in getattr(res, "notes", ()):
-            out.append(f"- {note}")
+            out.append(f"- {finding_message(note, units)}")
     from workbench.output.elastic import cavity_lines, envelope_rows
 
     for lid, res in elastic.items():

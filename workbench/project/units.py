@@ -168,6 +168,8 @@ QUANTITY_KINDS: dict[str, QuantityKind] = {
     "density": QuantityKind("density", "kg/m^3", "kg/m^3", "lb/ft^3", "998 kg/m3", "kg/m3", "lb/ft3"),
     "viscosity": QuantityKind("viscosity", "Pa*s", "mPa*s", "cP", "1.0 mPa*s", "mPa*s", "cP"),
     "volume": QuantityKind("volume", "m^3", "m^3", "gallon", "12 m3", "m3", "gal"),
+    # A small liquid or vapour volume (a vapour cavity), in litres rather than cubic metres.
+    "small_volume": QuantityKind("volume", "m^3", "L", "gallon", "12 L", "L", "gal"),
     "area": QuantityKind("area", "m^2", "m^2", "ft^2", "3 m2", "m2", "ft2"),
     "angle": QuantityKind("angle", "radian", "degree", "degree", "60 deg", "deg", "deg"),
     # Absolute salinity of seawater: mass of dissolved salt per mass of seawater, kept as a

@@ -338,12 +338,13 @@ class SurgePane(Horizontal):
         sep = result.column_separation
         if sep is not None:
             zones = [z for z in getattr(result, "cavity_zones", ()) or () if z.line == self._line]
-            text = (f"DANGER column separation {sep.time:.2f} s at {sep.distance:.0f} m on "
-                    f"{sep.line}")
+            def x(value, kind="length"):
+                return format_quantity(value, kind, units, 3)
+
+            text = f"DANGER column separation {sep.time:.2f} s at {x(sep.distance)} on {sep.line}"
             for z in zones:
-                where = (f"{z.start:.0f} m" if z.sections == 1
-                         else f"{z.start:.0f}-{z.end:.0f} m")
-                text += f"; vapour cavities {where}, largest {z.max_volume * 1e3:.3g} L"
+                where = x(z.start) if z.sections == 1 else f"{x(z.start)} to {x(z.end)}"
+                text += f"; vapour cavities {where}, largest {x(z.max_volume, 'small_volume')}"
             parts.append(text + ": figures after it not reliable, get a specialist surge "
                          "study")
         if env is not None:

@@ -20,6 +20,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from workbench.core.elastic.results import ElasticSetupError, WaveSpeedUse
+from workbench.core.finding_text import finding
 from workbench.core.model import Finding, Line, System
 
 #: Default tolerance on the wave-speed adjustment that makes every Courant number one [-].
@@ -160,11 +161,11 @@ def korteweg_speeds(system: System, lines: list[Line], override: dict[str, float
         speeds.append(ws.speed)
         formulas.append(ws.formula)
         if ws.wall == "rigid":
-            findings.append(Finding(
+            findings.append(finding(
                 "surge.rigid_pipe_speed", line.id,
                 f"line {line.id}: no wall thickness or elastic modulus, so the wave speed is "
-                f"that of a rigid pipe, {ws.speed:.0f} m/s, an upper bound: the surge is "
-                "overstated", "info", "Korteweg formula (Wylie & Streeter 1993)"))
+                "that of a rigid pipe, {a}, an upper bound: the surge is overstated", "info",
+                "Korteweg formula (Wylie & Streeter 1993)", a=(ws.speed, "velocity", 4)))
     return speeds, formulas
 
 

@@ -14,6 +14,7 @@ from workbench.core.elastic.results import (
     failed,
 )
 from workbench.core.elastic.setup import RunSetup
+from workbench.core.finding_text import finding, slots
 from workbench.core.model import Finding, G, System
 
 SEPARATION_SOURCE = "Wylie & Streeter 1993 (column separation)"
@@ -85,13 +86,14 @@ def rating_findings(setup: RunSetup, env: dict[str, Envelope]) -> list[Finding]:
     for ln in setup.lines:
         e = env[ln.id]
         if ln.pressure_rating is not None and e.max_pressure.max() > ln.pressure_rating:
-            found.append(Finding(
+            found.append(finding(
                 "surge.pressure", ln.id,
-                f"line {ln.id}: the elastic surge envelope reaches "
-                f"{e.max_pressure.max() / 1e3:.0f} kPa gauge, above its rating of "
-                f"{ln.pressure_rating / 1e3:.0f} kPa; consider slower closure or surge "
-                "protection, and have it reviewed under local codes",
-                "danger", "method of characteristics (Wylie & Streeter 1993)"))
+                f"line {ln.id}: the elastic surge envelope reaches {{p}} gauge, above its "
+                "rating of {rating}; consider slower closure or surge protection, and have it "
+                "reviewed under local codes",
+                "danger", "method of characteristics (Wylie & Streeter 1993)", digits=4,
+                p=(float(e.max_pressure.max()), "pressure"),
+                rating=(ln.pressure_rating, "pressure")))
     return found
 
 
@@ -99,17 +101,18 @@ def separation_finding(sep: ColumnSeparation, cavities: bool) -> Finding:
     """The DANGER finding of a column separation."""
     if cavities:
         text = (f"line {sep.line}: the liquid column separates (a vapour cavity forms) at "
-                f"{sep.distance:.1f} m from its start, {sep.time:.3f} s into the surge run. "
+                f"{{x}} from its start, {sep.time:.3f} s into the surge run. "
                 "The collapse of a vapour cavity can raise the pressure above the closure's "
                 "own surge; the cavities are modelled, but the figures after that time are "
                 "not trustworthy as design values. Get a specialist surge study.")
     else:
         text = (f"line {sep.line}: the computed pressure reaches vapour pressure at "
-                f"{sep.distance:.1f} m from its start, {sep.time:.3f} s into the surge run. "
+                f"{{x}} from its start, {sep.time:.3f} s into the surge run. "
                 "Column separation is not modelled: the results after that time are not "
                 "trustworthy, and a collapsing vapour cavity can raise the pressure above the "
                 "computed peak. Surge protection needs specialist review.")
-    return Finding("surge.column_separation", sep.line, text, "danger", SEPARATION_SOURCE)
+    return finding("surge.column_separation", sep.line, text, "danger", SEPARATION_SOURCE,
+                   x=(sep.distance, "length", 4))
 
 
 def assemble(setup: RunSetup, out: MarchOutput, steps: int, cancelled: bool,
@@ -145,14 +148,17 @@ def assemble(setup: RunSetup, out: MarchOutput, steps: int, cancelled: bool,
         valve_pressure = rho * G * (valve_head - z_node[setup.valve_node])
     else:
         valve_head = valve_pressure = np.zeros(0)
-    message = STATUS_MESSAGES[status]
+    message, template, values = STATUS_MESSAGES[status], "", ()
     if sep is not None:
-        message += (f" Vapour pressure first reached on line {sep.line} at "
-                    f"{sep.distance:.1f} m, t = {sep.time:.3f} s.")
+        message, template, values = slots(
+            STATUS_MESSAGES[status].replace("{", "{{").replace("}", "}}")
+            + f" Vapour pressure first reached on line {sep.line} at {{x}}, "
+            f"t = {sep.time:.3f} s.", x=(sep.distance, "length", 4))
     g = setup.grid
     i_req = g.line_ids.index(setup.line_id)
     return ElasticResult(
-        success=status >= 0, status=status, message=message, line_ids=g.line_ids, time=times,
+        success=status >= 0, status=status, message=message, template=template,
+        values=values, line_ids=g.line_ids, time=times,
         dt=g.dt, reaches=dict(zip(g.line_ids, g.counts)), wave_speeds=g.speeds,
         friction=setup.friction, initial_flow=float(setup.flows[i_req]),
         valve_line=setup.valve_line, valve_head=valve_head, valve_pressure=valve_pressure,
@@ -184,18 +190,22 @@ def cavity_findings(zones, env: dict[str, Envelope], rho: float) -> list[Finding
         peak = float(e.max_pressure.max())
         pre = e.max_head_before_separation
         before = float((rho * G * (pre - e.elevation)).max()) if pre is not None else peak
-        where = (f"at {z.start:.0f} m" if z.sections == 1
-                 else f"along {z.start:.0f}-{z.end:.0f} m ({z.sections} computing sections)")
+        where = ("at {start}" if z.sections == 1
+                 else f"along {{start}} to {{end}} ({z.sections} computing sections)")
         collapse = ("still open at the end of the run" if z.last_collapse is None
                     else f"the last collapses at {z.last_collapse:.2f} s")
         text = (f"line {z.line}: vapour cavities {where}, the first at {z.first_open:.2f} s, "
-                f"largest {z.max_volume * 1e3:.3g} L at {z.max_volume_at:.0f} m, {collapse}. "
-                f"Highest pressure on the line {peak / 1e3:.0f} kPa gauge with the collapses, "
-                f"{before / 1e3:.0f} kPa before the column first separated. Cavity collapse "
+                f"largest {{volume}} at {{at}}, {collapse}. "
+                "Highest pressure on the line {peak} gauge with the collapses, "
+                "{before} before the column first separated. Cavity collapse "
                 "can burst or move a pipe; these figures are screening estimates, not design "
                 "values: get a specialist surge study.")
         if z.sections >= MANY_SECTIONS:
             text += (" Many small cavities along a reach: the model is known to give "
                      "spurious pressure spikes there; treat the peaks as indicative.")
-        found.append(Finding("surge.cavity_collapse", z.line, text, "danger", CAVITY_SOURCE))
+        found.append(finding(
+            "surge.cavity_collapse", z.line, text, "danger", CAVITY_SOURCE, digits=4,
+            start=(z.start, "length"), end=(z.end, "length"),
+            volume=(z.max_volume, "small_volume", 3), at=(z.max_volume_at, "length"),
+            peak=(peak, "pressure"), before=(before, "pressure")))
     return found

@@ -172,6 +172,11 @@ class ElasticResult:
     """The peaks with twice the reaches, when cavities formed (``None`` otherwise)."""
     vapour_head: dict[str, np.ndarray] = field(default_factory=dict)
     """Per line, the head at which the liquid boils at each node [m]."""
+    template: str = ""
+    """:attr:`message` with ``{name}`` slots for :attr:`values`, written in the display units
+    by the output layer (:mod:`workbench.core.finding_text`); "" without numbers."""
+    values: tuple = ()
+    """``(name, SI value, quantity kind, digits)`` per slot of :attr:`template`."""
 
     @property
     def duration(self) -> float:

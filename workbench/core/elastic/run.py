@@ -17,6 +17,7 @@ from workbench.core.elastic.results import (
 )
 from workbench.core.elastic.setup import prepare
 from workbench.core.elastic.topology import connected_lines
+from workbench.core.finding_text import KeptText
 from workbench.core.model import System
 
 
@@ -142,13 +143,14 @@ def _with_grid_check(res: ElasticResult, system: System, line_id: str, **kw) -> 
         reaches=dict(check.reaches),
         max_head={lid: float(e.max_head.max()) for lid, e in check.envelopes.items()},
         max_pressure={lid: float(e.max_pressure.max()) for lid, e in check.envelopes.items()})
-    parts = []
-    for lid, e in res.envelopes.items():
-        a, b = float(e.max_pressure.max()), gc.max_pressure[lid]
-        parts.append(f"{lid} {a / 1e3:.0f} kPa with {res.reaches[lid]} reaches, "
-                     f"{b / 1e3:.0f} kPa with {gc.reaches[lid]}")
-    note = ("vapour cavities formed; the highest pressure depends on the grid (lumped "
-            "cavities at the computing sections): " + "; ".join(parts))
+    parts, values = [], {}
+    for k, (lid, e) in enumerate(res.envelopes.items()):
+        values[f"a{k}"] = (float(e.max_pressure.max()), "pressure", 4)
+        values[f"b{k}"] = (gc.max_pressure[lid], "pressure", 4)
+        parts.append(f"{lid} {{a{k}}} with {res.reaches[lid]} reaches, {{b{k}}} with "
+                     f"{gc.reaches[lid]}")
+    note = KeptText("vapour cavities formed; the highest pressure depends on the grid (lumped "
+                    "cavities at the computing sections): " + "; ".join(parts), **values)
     return replace(res, grid_check=gc, notes=res.notes + (note,))
 
 

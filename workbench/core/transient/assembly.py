@@ -300,14 +300,14 @@ def cycling_findings(model: TransientModel, run: Run) -> list[Finding]:
     for k, tid in enumerate(model.tank_ids):
         n = int(run.state.drain_count[k])
         if n >= 2:
-            out.append(Finding(
+            out.append(finding(
                 "tank.cycling", tid,
                 f"tank {tid} drained {n} times, refilling in between: "
                 "what flows in is less than its outlets and draw-off take at the drained "
                 "level. In the plant the outlets would run part-full and draw air (vortexing) "
                 "rather than stop and restart; the model stops them at min_level and restarts "
-                f"them at the restart level {restart_level(model.tanks[k]):.4g} m", "caution",
-                "rule of thumb"))
+                "them at the restart level {restart}", "caution", "rule of thumb",
+                restart=(restart_level(model.tanks[k]), "length", 4)))
     return out
 
 
