@@ -123,3 +123,15 @@ def test_the_units_a_command_asks_for_override_the_files_own():
     assert f"{2.2 / FT:.4g} ft" in message
     message = problems("US", end="2.2 m", override="SI")["lines.L1.profile[2].elevation"]
     assert "elevation 2.2 m" in message and "within 0.05 m" in message
+
+
+def test_a_missing_key_is_shown_with_an_example_in_the_display_units():
+    text = BASE.format(units="US", height="5.2 m", tank="", bore="102.3 mm", end="1.2 m")
+    text = text.replace('kind = "open_discharge"\nelevation = "1.2 m"', 'kind = "vessel"')
+    text = text.replace('{ distance = "86 m", elevation = "1.2 m" }', '')
+    with pytest.raises(ProjectError) as info:
+        load_project_text(text, "t.toml")
+    found = {p.key: p.message for p in info.value.problems}
+    # the schema's examples 50 kPa and 2 m in psi and ft (NIST SP 811), to 3 digits
+    assert f'pressure = "{50e3 / PSI:.3g} psi"' in found["receivers.CH.pressure"]
+    assert f'elevation = "{2 / FT:.3g} ft"' in found["receivers.CH.elevation"]

@@ -66,6 +66,16 @@ class Checker:
     def add(self, key: str, message: str) -> None:
         self.problems.append(Problem(self.file, key, message))
 
+    def example(self, text: str, kind: str) -> str:
+        """An example quantity (SI, as the schema writes it) in the display units, e.g.
+        ``example("50 kPa", "pressure") -> "7.25 psi"`` on a US project."""
+        if self.unit_system == "SI" or kind not in QUANTITY_KINDS:
+            return text
+        try:
+            return self.shown(parse_quantity(text, kind), kind, 3)
+        except UnitError:  # pragma: no cover - the schema's examples all read
+            return text
+
     def shown(self, value_si: float, kind: str, digits: int = 4) -> str:
         """An SI value as text in the display units, e.g. ``"4.028 in"`` on a US project."""
         from workbench.project.units import format_quantity
@@ -88,7 +98,10 @@ class Checker:
         for spec in specs:
             if spec.required and spec.name not in table:
                 where = f"{path}.{spec.name}" if path else spec.name
-                example = f", e.g. {spec.name} = {toml_example(spec)}" if spec.example or spec.choices else ""
+                shown = toml_example(spec)
+                if spec.kind in QUANTITY_KINDS and spec.example and not spec.choices:
+                    shown = f"\"{self.example(spec.example, spec.kind)}\""
+                example = f", e.g. {spec.name} = {shown}" if spec.example or spec.choices else ""
                 self.add(where, f"missing required key '{spec.name}' ({spec.help}){example}")
 
     # -- values ----------------------------------------------------------------------
@@ -98,7 +111,7 @@ class Checker:
         if name not in table:
             if required:
                 self.add(key, f"missing required key '{name}' (a {QUANTITY_KINDS[kind].name}, "
-                         f"e.g. {name} = \"{QUANTITY_KINDS[kind].example}\")")
+                         f"e.g. {name} = \"{self.example(QUANTITY_KINDS[kind].example, kind)}\")")
             return None
         try:
             value = parse_quantity(table[name], kind, atmosphere=self.atmosphere)

@@ -59,7 +59,7 @@ def check_receiver(c: Checker, rid: str, t: dict) -> m.Receiver | None:
     pressure = c.quantity(t, "pressure", "pressure", path)
     if kind == "vessel" and "pressure" not in t:
         c.add(f"{path}.pressure", "missing required key 'pressure' for kind = \"vessel\", "
-              "e.g. pressure = \"50 kPa\"")
+              f"e.g. pressure = \"{c.example('50 kPa', 'pressure')}\"")
         return None
     if kind == "open_discharge" and "pressure" in t:
         c.add(f"{path}.pressure", "'pressure' applies only to kind = \"vessel\" (an open "

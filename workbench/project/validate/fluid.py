@@ -44,7 +44,7 @@ def check_fluid(c: Checker, data: dict) -> m.FluidProps | None:
         if temperature is None:
             if "temperature" not in section:
                 c.add("fluid.temperature", f"missing required key 'temperature' for {kind}, "
-                      "e.g. temperature = \"20 degC\"")
+                      f"e.g. temperature = \"{c.example('20 degC', 'temperature')}\"")
             return None
         if kind in solutions and fraction is None:
             return None

@@ -91,7 +91,8 @@ def _bore(c: Checker, t: dict, path: str) -> tuple[float | None, float | None]:
         return diameter, None
     if "nominal_size" not in t:
         c.add(f"{path}.inner_diameter", "missing required key 'inner_diameter' (or "
-              "nominal_size with schedule), e.g. inner_diameter = \"102.26 mm\"")
+              "nominal_size with schedule), e.g. inner_diameter = "
+              f"\"{c.example('102.26 mm', 'diameter')}\"")
         return None, None
     nominal = t["nominal_size"]
     schedule = t.get("schedule", field_spec("lines", "schedule").default)
@@ -136,7 +137,7 @@ def _roughness(c: Checker, t: dict, path: str, diameter: float | None):
             roughness = material.roughness
         elif "material" not in t:
             c.add(f"{path}.roughness", "missing required key 'roughness' (or material), e.g. "
-                  "roughness = \"0.045 mm\"")
+                  f"roughness = \"{c.example('0.045 mm', 'roughness')}\"")
     if roughness is not None and diameter is not None and roughness >= diameter / 2:
         c.add(f"{path}.roughness", f"{t.get('roughness', t.get('material'))!r}: the roughness "
               "must be below the pipe radius")

@@ -204,7 +204,8 @@ def check_flow_schedule(c: Checker, t: dict, name: str, path: str) -> m.FlowSche
     key = f"{path}.{name}"
     items = c.list_of_tables(t, name, path)
     if isinstance(t[name], list) and not t[name]:
-        c.add(key, "the schedule is empty: give at least one { time = \"0 s\", flow = \"10 L/s\" }")
+        c.add(key, "the schedule is empty: give at least one { time = \"0 s\", flow = "
+              f"\"{c.example('10 L/s', 'flow')}\" }}")
         return None
     n0 = len(c.problems)
     times: list[float] = []

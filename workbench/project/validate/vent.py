@@ -31,15 +31,15 @@ def check_vent(c: Checker, t: dict, path: str, dims: dict, surface: float | None
         value = c.quantity(t, key, "pressure", path)
         if value is not None and value <= 0.0:
             c.add(f"{path}.{key}", f"{t[key]!r}: give the design {word} as a positive gauge "
-                  f"figure, e.g. {key} = \"0.5 kPa\"")
+                  f"figure, e.g. {key} = \"{c.example('0.5 kPa', 'pressure')}\"")
         elif value is not None:
             out[key] = value
     if "vent" not in t:
         for key in _NEEDS_VENT:
             if key in t:
                 c.add(f"{path}.{key}", f"'{key}' applies only to a tank with a vent (add "
-                      "vent = { inner_diameter = \"50 mm\", k = 1.5 }, or vent = \"none\" for "
-                      "a sealed tank)")
+                      f"vent = {{ inner_diameter = \"{c.example('50 mm', 'diameter')}\", "
+                      "k = 1.5 }, or vent = \"none\" for a sealed tank)")
         return out
     vent = _vent(c, t["vent"], f"{path}.vent")
     if vent is not None:
@@ -87,11 +87,13 @@ def _vent(c: Checker, value, key: str) -> m.Vent | None:
     if isinstance(value, str):
         if value.strip().lower() == "none":
             return m.Vent(0.0)
-        c.add(key, f"expected a table such as {{ inner_diameter = \"50 mm\", k = 1.5 }} or the "
+        c.add(key, f"expected a table such as {{ inner_diameter = "
+              f"\"{c.example('50 mm', 'diameter')}\", k = 1.5 }} or the "
               f"word \"none\" (a sealed tank), got {describe(value)}")
         return None
     if not isinstance(value, dict):
-        c.add(key, f"expected a table such as {{ inner_diameter = \"50 mm\", k = 1.5 }} or "
+        c.add(key, f"expected a table such as {{ inner_diameter = "
+              f"\"{c.example('50 mm', 'diameter')}\", k = 1.5 }} or "
               f"\"none\", got {describe(value)}")
         return None
     c.known_keys(value, SECTIONS["reservoirs.vent"], key)
