@@ -18,7 +18,7 @@ import subprocess
 import sys
 import textwrap
 
-from tests.hardening.harness import ROOT, run_cli
+from tests.hardening.harness import ROOT, run_cli, run_subprocess
 
 DRAIN = ROOT / "projects" / "fellgate_neutraliser_drain.toml"
 LINE = "210-DR-04"
@@ -127,3 +127,14 @@ def test_check_leaves_a_stale_copy_where_it_is(tmp_path):
     outcome = run_cli(["check", str(path)], project_path=str(path))
     assert outcome.code == 0 and "note:" not in outcome.stderr
     assert _copies(path) == [copy]
+
+
+def test_check_never_reads_a_pipe_or_device_in_the_place_of_a_copy(tmp_path):
+    """A FIFO named like a copy, or a copy that links to /dev/zero, would block the read or
+    never end it (issue: the project path must be a regular file; so must a copy)."""
+    path = tmp_path / "plant.toml"
+    path.write_text(DRAIN.read_text())
+    os.mkfifo(tmp_path / ".plant.recovery.h-1-a.toml")
+    (tmp_path / ".plant.recovery.h-2-b.toml").symlink_to("/dev/zero")
+    outcome = run_subprocess(["check", str(path)], project_path=str(path), limit=20.0)
+    assert outcome.ok and outcome.code == 0 and "note:" not in outcome.stderr

@@ -84,6 +84,17 @@ def test_a_title_with_terminal_sequences_reaches_no_terminal(tmp_path, command):
         assert b"\\x1b]52" in done.stdout + done.stderr  # shown, escaped
 
 
+def test_check_quotes_the_escaped_title_once_not_escaped_twice(tmp_path):
+    """The summary once quoted the already-escaped title with ``repr``, so the user read
+    ``\\x1b`` where the file has ``\x1b``; it must read as ``solve`` writes it."""
+    path = _valid_project(tmp_path)
+    done = _run("check", str(path))
+    assert done.returncode == 0, done.stderr.decode()
+    out = done.stdout.decode()
+    assert f"valid — '{printable(OSC52)} " in out
+    assert "\\\\x1b" not in out
+
+
 def test_the_calculation_record_holds_no_control_characters(tmp_path):
     path = _valid_project(tmp_path)
     record = tmp_path / "record.md"

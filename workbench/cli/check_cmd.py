@@ -47,7 +47,8 @@ def summary(project) -> str:
     parts = [", ".join(counts), fluid]
     if system.simulation is not None:
         parts.append("simulation " + _duration(system.simulation.duration))
-    return f"{project.name}: valid — {system.title!r}: " + "; ".join(parts)
+    # the title is already shown escaped (control characters as \x1b): quote it as it is
+    return f"{project.name}: valid — '{system.title}': " + "; ".join(parts)
 
 
 def _duration(seconds: float) -> str:

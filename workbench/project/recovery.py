@@ -211,8 +211,19 @@ def recovery_path(project_path: str | os.PathLike | None, owner: Owner | None = 
     return path.with_name(f".{path.stem}.recovery.{owner.tag}.toml")
 
 
+def _regular_file(path: Path) -> bool:
+    """Whether ``path`` is a regular file (never read a pipe or a device: the read would
+    block, or never end)."""
+    import stat
+
+    try:
+        return stat.S_ISREG(os.stat(path).st_mode)
+    except (OSError, ValueError):
+        return False
+
+
 def _sha256_of_file(path: Path | None) -> str | None:
-    if path is None:
+    if path is None or not _regular_file(path):
         return None
     try:
         return hashlib.sha256(path.read_bytes()).hexdigest()
@@ -281,6 +292,8 @@ def remove_recovery(project_path: str | os.PathLike | None, owner: Owner | None 
 
 def _read_copy(path: Path) -> tuple[dict[str, str], str] | None:
     """The header fields and the document text of a copy; ``None`` if not one of ours."""
+    if not _regular_file(path):
+        return None
     try:
         raw = path.read_text(encoding="utf-8")
     except (OSError, UnicodeDecodeError):
@@ -355,7 +368,8 @@ def scan_recoveries(project_path: str | os.PathLike | None,
     """
     path = Path(project_path) if project_path is not None else None
     try:
-        on_disk = path.read_text(encoding="utf-8") if path is not None else None
+        on_disk = (path.read_text(encoding="utf-8")
+                   if path is not None and _regular_file(path) else None)
     except (OSError, UnicodeDecodeError):
         on_disk = None
     offers: list[Recovery] = []
