@@ -101,7 +101,7 @@ def test_a_path_that_is_not_a_regular_file_is_refused_at_once(tmp_path, special)
     if special == "fifo":
         special = str(tmp_path / "pipe.toml")
         os.mkfifo(special)
-    for command in ("check", "format"):
+    for command in ("check", "format", "open"):  # open said "no such file" for a pipe
         done = workbench(command, special)
         assert done.returncode == 1
         assert "is not a regular file" in done.stderr

@@ -22,6 +22,11 @@ def add_parser(subparsers, name: str, help_text: str) -> None:
 
 def run(args: argparse.Namespace) -> ExitCode:
     path: Path | None = args.project
+    if path is not None and path.exists() and not path.is_file():  # never read a pipe
+        what = ("is a folder, not a project file" if path.is_dir() else "is not a regular "
+                "file (a pipe, device or socket): give the path of a project file")
+        print(f"{path}: {what}", file=sys.stderr)
+        return ExitCode.INVALID
     if path is not None and not path.is_file():
         print(f"{path}: no such file (use 'workbench new {path}' to start one, or "
               "'workbench open' without a file)", file=sys.stderr)
