@@ -220,3 +220,70 @@ def test_validation_leaves_the_csv_file_to_the_commands_that_read_it(tmp_path):
     (tmp_path / "gone.csv").write_text("t,v\n0,3\n60,2.5\n", encoding="utf-8")
     m = measurements_of(project)["x"]
     assert np.allclose(m.times, [0.0, 60.0]) and math.isclose(m.values[1], 2.5)
+
+
+# --- physically impossible readings and units at fault ------------------------------------
+
+def test_a_negative_level_reading_is_refused_naming_the_key_path():
+    """A level is read above the tank's bottom (the convention of the schema), so it is 0 or
+    more (common practice, no source)."""
+    found = _problems('[measurements.x]\nelement = "T"\nquantity = "level"\n'
+                      'points = [ { time = "0 s", value = "1 m" }, '
+                      '{ time = "60 s", value = "-0.05 m" } ]\n')
+    assert len(found) == 1
+    assert found[0].startswith("measurements.x.points[2].value: '-0.05 m': a level of -0.05 m "
+                               "is below the tank's bottom: expected a level above the bottom")
+
+
+def test_a_negative_level_in_a_csv_file_names_the_file_the_row_and_the_column(tmp_path):
+    (tmp_path / "log.csv").write_text("t,lvl\n0,1.20\n1,0.60\n2,-0.02\n", encoding="utf-8")
+    text = BASE + ('[measurements.x]\nelement = "T"\nquantity = "level"\nfile = "log.csv"\n'
+                   'time_column = "t"\ntime_unit = "min"\nvalue_column = "lvl"\nvalue_unit = "m"\n')
+    path = tmp_path / "plant.toml"
+    path.write_text(text, encoding="utf-8")
+    with pytest.raises(ProjectError) as caught:
+        measurements_of(load_project(path))
+    words = str(caught.value)
+    assert "measurements.x.file: log.csv: row 4, column 'lvl': a level of -0.02 m is below" in words
+
+
+def test_a_gauge_pressure_below_a_perfect_vacuum_is_refused():
+    """Absolute pressure is never negative, so a gauge reading is above minus the site's
+    atmospheric pressure (101.325 kPa here: the standard atmosphere, ISO 2533, at sea
+    level)."""
+    found = _problems('[measurements.p]\nelement = "J"\nquantity = "pressure"\n'
+                      'points = [ { value = "-150 kPa" } ]\n')
+    assert len(found) == 1 and found[0].startswith("measurements.p.points[1].value: '-150 kPa': "
+                                                   "a gauge pressure of -150 kPa is below a "
+                                                   "perfect vacuum")
+    assert _problems('[measurements.p]\nelement = "J"\nquantity = "pressure"\n'
+                     'points = [ { value = "-60 kPa" } ]\n') == []
+
+
+@pytest.mark.parametrize(("key", "unit", "words"), [
+    ("value_unit", "kg", "value_unit: 'kg': expected a length, got a mass; expected a unit of "
+                         "length such as 'm', 'mm' or 'ft'"),
+    ("time_unit", "m", "time_unit: 'm': expected a time, got a length; expected a unit of time"),
+    ("time_unit", "minz", "time_unit: 'minz' is not a time"),
+])
+def test_a_csv_unit_that_cannot_be_used_is_reported_under_its_own_key(key, unit, words):
+    # checked from the text alone: no file needs to be read (validation reads none)
+    table = {"time_unit": "min", "value_unit": "m"}
+    table[key] = unit
+    text = ('[measurements.x]\nelement = "T"\nquantity = "level"\nfile = "log.csv"\n'
+            f'time_column = "t"\ntime_unit = "{table["time_unit"]}"\nvalue_column = "lvl"\n'
+            f'value_unit = "{table["value_unit"]}"\n')
+    import tomllib
+
+    problems = check_measurements(tomllib.loads(BASE + text), "plant.toml", read_files=False)[1]
+    assert [p.key for p in problems] == [f"measurements.x.{key}"]
+    assert f"measurements.x.{words}" in f"{problems[0].key}: {problems[0].message}"
+
+
+def test_a_unit_the_reader_cannot_use_is_blamed_on_its_key_when_read_directly(tmp_path):
+    with pytest.raises(CsvError) as caught:
+        _read(tmp_path, "t,level\n0,1\n", value_unit="kg")
+    assert caught.value.key == "value_unit"
+    with pytest.raises(CsvError) as caught:
+        _read(tmp_path, "t,level\n0,1\n", time_unit="m")
+    assert caught.value.key == "time_unit"

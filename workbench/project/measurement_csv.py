@@ -41,7 +41,15 @@ _NUMBER = re.compile(r"\s*[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?\s*\Z")
 
 
 class CsvError(ValueError):
-    """A CSV file that cannot be read; the message names the file, row and column."""
+    """A CSV file that cannot be read; the message names the file, row and column.
+
+    ``key`` is the measurement table's key the fault belongs to: ``"file"`` (the file
+    itself), ``"time_unit"`` or ``"value_unit"`` (a unit that cannot be used).
+    """
+
+    def __init__(self, message: str, key: str = "file"):
+        super().__init__(message)
+        self.key = key
 
 
 @dataclass(frozen=True)
@@ -52,6 +60,8 @@ class CsvReadings:
     values: tuple[float, ...]
     skipped_rows: tuple[int, ...]
     """Row numbers (1 = the header) skipped for a missing value."""
+    rows: tuple[int, ...] = ()
+    """Row number of each reading (1 = the header)."""
 
 
 @dataclass(frozen=True)
@@ -71,6 +81,28 @@ def _affine(unit: str, kind: str, atmosphere: float) -> tuple[float, float]:
     zero = parse_quantity(f"0 {unit}", kind, atmosphere=atmosphere)
     one = parse_quantity(f"1 {unit}", kind, atmosphere=atmosphere)
     return one - zero, zero
+
+
+def unit_problem(unit: str | None, kind: str, atmosphere: float = 101325.0) -> str | None:
+    """Why ``unit`` cannot be the unit of a column of ``kind`` (``"time"``, ``"length"``,
+    ``"flow"``, ``"pressure"``), in words; ``None`` when it can (or when there is none:
+    each cell then carries its unit)."""
+    from workbench.project.units import UnitError
+
+    if unit is None:
+        return None
+    try:
+        _affine(unit, kind, atmosphere)
+    except UnitError as exc:
+        words = str(exc).replace(f"'0 {unit}'", f"{unit!r}").replace(f"'1 {unit}'", f"{unit!r}")
+        hint = (", or 'iso' for ISO 8601 timestamps" if kind == "time" else "")
+        return f"{words}; expected a unit of {kind} such as {_EXAMPLE[kind]}{hint}"
+    return None
+
+
+#: Example units per column kind, for messages.
+_EXAMPLE = {"time": "'s', 'min' or 'h'", "length": "'m', 'mm' or 'ft'",
+            "flow": "'L/s', 'm3/h' or 'gpm'", "pressure": "'kPa', 'bar' or 'psi'"}
 
 
 def _open_text(path: Path, shown: str) -> str:
@@ -139,6 +171,11 @@ def _timestamp(cell: str, row: int, col: _Column, shown: str) -> datetime:
                        "timestamp such as '2026-11-14T09:30:00'") from None
 
 
+def is_iso(time_unit: str | None) -> bool:
+    """True when ``time_unit`` asks for ISO 8601 timestamps."""
+    return time_unit is not None and time_unit.strip().lower() in ("iso", "iso8601", "iso 8601")
+
+
 def read_readings(path: str | os.PathLike, *, shown: str, time_column: str,
                   time_unit: str | None, value_column: str, value_kind: str,
                   value_unit: str | None, atmosphere: float = 101325.0) -> CsvReadings:
@@ -165,21 +202,21 @@ def read_readings(path: str | os.PathLike, *, shown: str, time_column: str,
     Raises
     ------
     CsvError
-        Naming the file, the row (1 = the header) and the column.
+        Naming the file, the row (1 = the header) and the column; its ``key`` names the
+        table's key at fault (``file``, ``time_unit`` or ``value_unit``).
     """
-    from workbench.project.units import UnitError
-
-    iso = time_unit is not None and time_unit.strip().lower() in ("iso", "iso8601", "iso 8601")
+    iso = is_iso(time_unit)
     tcol = _Column(time_column, "time", None if iso else time_unit)
     vcol = _Column(value_column, value_kind, value_unit)
-    try:
-        if tcol.unit is not None:
-            tcol = _Column(tcol.name, "time", tcol.unit, -1, *_affine(tcol.unit, "time", atmosphere))
-        if vcol.unit is not None:
-            vcol = _Column(vcol.name, value_kind, vcol.unit, -1,
-                           *_affine(vcol.unit, value_kind, atmosphere))
-    except UnitError as exc:
-        raise CsvError(f"{shown}: {exc}") from None
+    for key, unit, kind in (("time_unit", tcol.unit, "time"), ("value_unit", vcol.unit, value_kind)):
+        words = unit_problem(unit, kind, atmosphere)
+        if words:
+            raise CsvError(words, key)
+    if tcol.unit is not None:
+        tcol = _Column(tcol.name, "time", tcol.unit, -1, *_affine(tcol.unit, "time", atmosphere))
+    if vcol.unit is not None:
+        vcol = _Column(vcol.name, value_kind, vcol.unit, -1,
+                       *_affine(vcol.unit, value_kind, atmosphere))
     text = _open_text(Path(path), shown)
     reader = csv.reader(io.StringIO(text, newline=""), _dialect(text))
     try:
@@ -196,6 +233,7 @@ def _rows(reader, tcol: _Column, vcol: _Column, iso: bool, shown: str,
           atmosphere: float) -> CsvReadings:
     times: list[float] = []
     values: list[float] = []
+    rows: list[int] = []
     skipped: list[int] = []
     first: datetime | None = None
     while True:
@@ -232,7 +270,8 @@ def _rows(reader, tcol: _Column, vcol: _Column, iso: bool, shown: str,
                            "(rows must be in time order)")
         times.append(t)
         values.append(_number(wanted[1], vcol, row, shown, atmosphere))
+        rows.append(row)
     if not times:
         raise CsvError(f"{shown}: no readings: every row after the header is empty or "
                        "missing a value")
-    return CsvReadings(tuple(times), tuple(values), tuple(skipped))
+    return CsvReadings(tuple(times), tuple(values), tuple(skipped), tuple(rows))

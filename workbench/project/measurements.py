@@ -265,7 +265,12 @@ def _points(r: _Reader, path: str, t: dict, quantity: str):
         if reading is None or ("value" in item and quantity in item):
             r.add(ik, f"give the reading as value = '...' (or {quantity} = '...'), once")
             continue
-        values.append(r.quantity(reading, kind, f"{ik}.value" if "value" in item else f"{ik}.{quantity}"))
+        vkey = f"{ik}.value" if "value" in item else f"{ik}.{quantity}"
+        value = r.quantity(reading, kind, vkey)
+        words = None if value is None else _impossible(r, quantity, value)
+        if words:
+            r.add(vkey, f"{reading!r}: {words}")
+        values.append(value)
         if "time" in item:
             times.append(r.quantity(item["time"], "time", f"{ik}.time"))
         elif len(items) > 1:
@@ -286,7 +291,7 @@ def _points(r: _Reader, path: str, t: dict, quantity: str):
 
 
 def _csv(r: _Reader, path: str, t: dict, quantity: str):
-    from workbench.project.measurement_csv import CsvError, read_readings
+    from workbench.project.measurement_csv import CsvError, is_iso, read_readings, unit_problem
 
     n0 = len(r.problems)
     for key in ("file", "time_column", "value_column"):
@@ -298,6 +303,13 @@ def _csv(r: _Reader, path: str, t: dict, quantity: str):
     for key in ("time_unit", "value_unit"):
         if key in t and (not isinstance(t[key], str) or not t[key].strip()):
             r.add(f"{path}.{key}", "expected a unit in quotes, e.g. 'min' or 'm'")
+    if len(r.problems) > n0:
+        return None
+    for key, kind in (("time_unit", "time"), ("value_unit", QUANTITY_KIND[quantity])):
+        if key in t and not (key == "time_unit" and is_iso(t[key])):
+            words = unit_problem(t[key], kind, r.atmosphere)
+            if words:
+                r.add(f"{path}.{key}", words)
     if len(r.problems) > n0 or not r.read_files:
         return None
     try:
@@ -307,10 +319,39 @@ def _csv(r: _Reader, path: str, t: dict, quantity: str):
             value_kind=QUANTITY_KIND[quantity], value_unit=t.get("value_unit"),
             atmosphere=r.atmosphere)
     except CsvError as exc:
-        r.add(f"{path}.file", str(exc))
+        r.add(f"{path}.{exc.key}", str(exc))
         return None
+    for row, value in zip(found.rows, found.values):
+        words = _impossible(r, quantity, value)
+        if words:
+            r.add(f"{path}.file", f"{t['file']}: row {row}, column '{t['value_column']}': "
+                  f"{words}")
+            return None
     times = None if len(found.times) == 1 else np.array(found.times)
     return times, np.array(found.values, dtype=float), found.skipped_rows
+
+
+def _impossible(r: _Reader, quantity: str, value: float) -> str | None:
+    """Why a reading [SI] cannot have been read on a plant, in words; ``None`` when it can.
+
+    A level is read above the tank's bottom, so it is not negative; a gauge pressure is not
+    below a perfect vacuum (minus the site's atmospheric pressure).
+    """
+    from workbench.project.units import format_quantity
+
+    units = r.data.get("project", {}).get("units", "SI") if isinstance(
+        r.data.get("project"), dict) else "SI"
+    units = units if units in ("SI", "US") else "SI"
+    if quantity == "level" and value < 0.0:
+        return (f"a level of {format_quantity(value, 'length', units, 3)} is below the tank's "
+                "bottom: expected a level above the bottom, 0 or more (take any zero offset of "
+                "the transmitter off the readings)")
+    if quantity == "pressure" and value < -r.atmosphere:
+        return (f"a gauge pressure of {format_quantity(value, 'pressure', units, 3)} is below a "
+                f"perfect vacuum (the site's atmosphere is "
+                f"{format_quantity(r.atmosphere, 'pressure', units, 3)}): expected a gauge "
+                "pressure above minus the atmospheric pressure")
+    return None
 
 
 def _levels(r: _Reader, path: str, t: dict, element: str, quantity: str) -> dict | None:
