@@ -238,3 +238,30 @@ def test_the_models_time_to_a_level_is_read_from_its_whole_output_not_only_at_th
     t_model = crossing_time(*result.trace_after["lam"], mark)
     assert t_model == pytest.approx(expected, rel=2e-3)
     assert abs(t_model - 0.9 * times[-1]) > 0.01 * times[-1]  # the straight line is 2.4 % off
+
+
+def test_an_interval_reaching_below_zero_is_cut_at_zero_and_says_so():
+    """A nearly smooth pipe (0.5 um, relative roughness 1e-5: the Colebrook friction factor
+    hardly moves below it at these Reynolds numbers) read with 1 cm of noise: the
+    linearised interval x +- t s is symmetric and reaches below zero, where no roughness
+    can be; the interval given is cut there, still holds the roughness that made the
+    readings, and the cut is flagged."""
+    from types import SimpleNamespace
+
+    from workbench.output.calibration import interval_notes
+
+    rough = FitParameter("lines.L.roughness", "roughness", "L", 0.0, 3e-3, 4.5e-5)
+    result = fit([_turbulent_observation(0.01, roughness=0.5e-6)], [rough])
+    assert result.success, result.message
+    assert result.ci95_linear[0, 0] < 0.0  # what the linear theory says
+    assert result.ci95[0, 0] == 0.0 and result.ci95_cut[0].tolist() == [True, False]
+    assert result.ci95[0, 0] <= 0.5e-6 <= result.ci95[0, 1]
+    run = SimpleNamespace(result=result, project=SimpleNamespace(unit_system="SI"))
+    (key, words), = interval_notes(run)
+    assert key == "lines.L.roughness" and "cut at zero" in words and "cannot be negative" in words
+
+
+def test_an_interval_inside_the_range_is_not_cut():
+    result = fit([_turbulent_observation(0.005)], [ROUGH])
+    assert result.success and not result.ci95_cut.any()
+    np.testing.assert_array_equal(result.ci95, result.ci95_linear)

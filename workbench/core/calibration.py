@@ -58,6 +58,7 @@ __all__ = [
     "FitResult",
     "Observation",
     "TARGETS",
+    "cut_interval",
     "fit",
     "predict",
     "series_of",
@@ -144,7 +145,8 @@ class FitResult:
     values: np.ndarray
     """Fitted values [SI]."""
     ci95: np.ndarray
-    """Parameters x 2: the 95 % confidence interval [SI]; ``nan`` where none exists."""
+    """Parameters x 2: the 95 % confidence interval [SI], cut to the range searched (so
+    never below zero, see :attr:`ci95_cut`); ``nan`` where none exists."""
     std_error: np.ndarray
     correlation: np.ndarray
     """Parameters x parameters."""
@@ -166,6 +168,12 @@ class FitResult:
     starting values (between readings too: a crossing time is read from it)."""
     trace_after: dict[str, tuple[np.ndarray, np.ndarray]] = field(default_factory=dict)
     """The same with the fitted values."""
+    ci95_linear: np.ndarray | None = None
+    """Parameters x 2: the linearised interval before it was cut [SI] (it can reach below
+    zero, where no roughness, bore or loss coefficient can be)."""
+    ci95_cut: np.ndarray | None = None
+    """Parameters x 2 of bool: the interval's lower or upper end was cut to the range
+    searched (whose lower end is zero or more: every fitted quantity is)."""
 
 
 # ------------------------------------------------------------------------------------------
@@ -565,7 +573,8 @@ def _summarise(prob: _Problem, sol, jac_u, before, after) -> FitResult:
                     f"(r = {corr[i, j]:+.3f}): these readings cannot tell them apart, only a "
                     "combination of them is fitted; fit one of them, or add a test at other "
                     "conditions", "caution", "linearised regression statistics"))
-    ci = np.column_stack([x - half, x + half])
+    linear = np.column_stack([x - half, x + half])
+    ci, cut = cut_interval(linear, np.maximum(prob.lower, 0.0), prob.upper)
     names = [o.name for o in prob.obs]
     return FitResult(
         success, status, message, tuple(prob.params), x, ci, std, corr,
@@ -574,7 +583,29 @@ def _summarise(prob: _Problem, sol, jac_u, before, after) -> FitResult:
         {o.name: float(np.max(np.abs(p - o.values))) for o, p in zip(prob.obs, before)},
         {o.name: float(np.max(np.abs(p - o.values))) for o, p in zip(prob.obs, after)},
         dict(zip(names, before)), dict(zip(names, after)), tuple(warnings),
-        prob.evaluations, at_bound)
+        prob.evaluations, at_bound, ci95_linear=linear, ci95_cut=cut)
+
+
+def cut_interval(ci: np.ndarray, lower: np.ndarray, upper: np.ndarray
+                 ) -> tuple[np.ndarray, np.ndarray]:
+    r"""A linearised interval cut to the range searched: ``(cut interval, was cut)``.
+
+    The linearised interval :math:`x \pm t s` is symmetric and knows nothing of limits: for
+    a roughness near zero it reaches below zero, where no roughness can be. The fit only
+    looked inside ``[lower, upper]`` (``lower`` >= 0), so the interval is cut there and the
+    cut is reported (``nan`` ends stay ``nan``).
+
+    Examples
+    --------
+    >>> ci, cut = cut_interval(np.array([[-1e-4, 5e-4]]), np.array([0.0]), np.array([3e-3]))
+    >>> ci.tolist(), cut.tolist()
+    ([[0.0, 0.0005]], [[True, False]])
+    """
+    with np.errstate(invalid="ignore"):
+        cut = np.column_stack([ci[:, 0] < lower, ci[:, 1] > upper])
+    out = np.column_stack([np.where(cut[:, 0], lower, ci[:, 0]),
+                           np.where(cut[:, 1], upper, ci[:, 1])])
+    return out, cut
 
 
 def _bound_words(prob: _Problem, key: str, x: np.ndarray) -> str:

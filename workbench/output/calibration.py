@@ -27,7 +27,8 @@ if TYPE_CHECKING:  # pragma: no cover
     from workbench.project.measurements import Measurement
 
 __all__ = ["DISPLAY_KIND", "UNIT_SI", "calibration_plot", "calibration_tables", "calibration_to_json",
-           "caution_text", "crossing_time", "mark_level", "tested_range_text"]
+           "caution_text", "crossing_time", "interval_notes", "interval_text", "mark_level",
+           "tested_range_text"]
 
 #: Measured quantity -> SI unit of its readings and residuals, and its display kind.
 UNIT_SI = {"level": "m", "flow": "m^3/s", "pressure": "Pa"}
@@ -115,6 +116,7 @@ def calibration_to_json(run: "CalibrationRun") -> dict:
             "std_error_si": _num(res.std_error[i]),
             "range_si": [_num(p.lower), _num(p.upper)],
             "at_bound": p.key in res.at_bound,
+            "ci95_cut": [bool(c) for c in _cut(res, i)],
         }
     out["residual_rms_before"] = _num(_overall(run, "before"))
     out["residual_rms_after"] = _num(_overall(run, "after"))
@@ -126,12 +128,63 @@ def calibration_to_json(run: "CalibrationRun") -> dict:
         for i, p in enumerate(res.parameters)}
     out["warnings"] = [{"code": w.code, "element": w.element, "message": w.message,
                         "severity": w.severity, "source": w.source} for w in res.warnings]
+    out["warnings"] += [{"code": "calibration.interval_cut", "element": key,
+                         "severity": "info", "source": "", "message": words}
+                        for key, words in interval_notes(run)]
     out["warnings"].append({
         "code": "calibration.tested_range", "element": "calibration", "severity": "caution",
         "source": "", "message": caution_text(run)})
     out.update({"success": bool(res.success), "status": int(res.status),
                 "message": res.message, "evaluations": int(res.evaluations)})
     return out
+
+
+def _cut(res, i: int) -> tuple[bool, bool]:
+    cut = getattr(res, "ci95_cut", None)
+    return (False, False) if cut is None else (bool(cut[i, 0]), bool(cut[i, 1]))
+
+
+#: Fit target -> what it is, in words.
+_WHAT = {"roughness": "roughness", "diameter": "bore", "friction_factor": "friction factor",
+         "fitting_k": "loss coefficient", "valve_k_open": "loss coefficient",
+         "valve_kv_open": "Kv"}
+
+
+def interval_notes(run: "CalibrationRun") -> list[tuple[str, str]]:
+    """``(key path, words)`` for each 95 % interval cut to the range searched: the
+    linearised interval is symmetric and would reach below zero (or beyond the range)."""
+    from workbench.project.calibration import value_text
+
+    res = run.result
+    units = run.project.unit_system
+    out = []
+    for i, p in enumerate(res.parameters):
+        low, high = _cut(res, i)
+        what = _WHAT.get(p.target, "value")
+        if low and p.lower <= 0.0:
+            out.append((p.key, f"{p.key}: the 95 % interval is cut at zero: the linearised "
+                        f"interval reaches below it, and a {what} cannot be negative; the "
+                        "readings bound it only from above"))
+        elif low:
+            out.append((p.key, f"{p.key}: the 95 % interval is cut at the lower end of the range "
+                        f"searched, {value_text(p, p.lower, units)}: the readings do not bound "
+                        "it from below within the range"))
+        if high:
+            out.append((p.key, f"{p.key}: the 95 % interval is cut at the upper end of the range "
+                        f"searched, {value_text(p, p.upper, units)}: the readings do not bound "
+                        "it from above within the range"))
+    return out
+
+
+def interval_text(p, lo: float, hi: float, cut: tuple[bool, bool], unit_system: str) -> str:
+    """An interval for a table: ``"0.5 mm to 0.7 mm"``, a cut end marked ``*``; ``"—"``
+    without one."""
+    from workbench.project.calibration import value_text
+
+    if not (math.isfinite(lo) and math.isfinite(hi)):
+        return "—"
+    return (f"{value_text(p, lo, unit_system)}{'*' if cut[0] else ''} to "
+            f"{value_text(p, hi, unit_system)}{'*' if cut[1] else ''}")
 
 
 def caution_text(run: "CalibrationRun") -> str:
@@ -198,11 +251,10 @@ def calibration_tables(run: "CalibrationRun") -> list:
         pt.add_column(col, justify="left" if col == "key path" else "right", overflow="fold")
     for i, p in enumerate(res.parameters):
         lo, hi = res.ci95[i]
-        interval = "—" if not (math.isfinite(lo) and math.isfinite(hi)) else \
-            f"{value_text(p, max(lo, 0.0), units)} to {value_text(p, hi, units)}"
         pt.add_row(p.key, value_text(p, p.start, units), value_text(p, float(res.values[i]), units),
-                   interval)
+                   interval_text(p, lo, hi, _cut(res, i), units))
     out.append(pt)
+    out += [Text(f"* {words}.") for _key, words in interval_notes(run)]
     mt = simple_table("Fit to the measurements (model minus reading)")
     for col in ("measurement", "readings", "RMS before", "RMS after", "largest after"):
         mt.add_column(col, justify="left" if col == "measurement" else "right", no_wrap=True)

@@ -45,19 +45,26 @@ def result_text(run: Any, unit_system: str) -> str:
     residuals, the warnings and the tested range."""
     import math
 
-    from workbench.output.calibration import DISPLAY_KIND, caution_text
+    from workbench.output.calibration import (
+        DISPLAY_KIND,
+        caution_text,
+        interval_notes,
+        interval_text,
+    )
     from workbench.project.calibration import value_text
     from workbench.project.units import format_quantity
 
     res = run.result
     lines = [f"Fit {res.message} ({res.evaluations} model runs)."]
+    cut = res.ci95_cut
     for i, p in enumerate(res.parameters):
         lo, hi = res.ci95[i]
-        interval = (f"95 % {value_text(p, max(lo, 0.0), unit_system)} to "
-                    f"{value_text(p, hi, unit_system)}" if math.isfinite(lo) and math.isfinite(hi)
-                    else "no interval")
+        ends = (False, False) if cut is None else (bool(cut[i, 0]), bool(cut[i, 1]))
+        interval = ("95 % " + interval_text(p, lo, hi, ends, unit_system)
+                    if math.isfinite(lo) and math.isfinite(hi) else "no interval")
         lines.append(f"  {p.key}: {value_text(p, p.start, unit_system)} -> "
                      f"{value_text(p, float(res.values[i]), unit_system)} ({interval})")
+    lines += [f"  * {words}." for _key, words in interval_notes(run)]
     for m in run.measurements:
         kind = DISPLAY_KIND[m.quantity]
         before, after = res.rms_before.get(m.name), res.rms_after.get(m.name)
