@@ -310,3 +310,20 @@ def test_a_fitted_bore_replaces_the_nominal_size_and_keeps_the_wall(tmp_path, ca
     assert "nominal_size" not in line and "schedule" not in line
     assert line["wall_thickness"] == "3.91 mm"
     assert "nominal_size 2 in schedule 40" in path.read_text(encoding="utf-8")
+
+
+def test_units_shows_the_fit_in_us_units_and_write_keeps_the_files_own(tmp_path, capsys):
+    """``--units US`` as for solve and simulate: the table in US units (1 in = 25.4 mm
+    exactly, NIST SP 811), the JSON in SI, and ``--write`` in the file's own (SI) units."""
+    path = _small(tmp_path)
+    assert main(["calibrate", str(path), "--fit", "lines.L1.roughness=0.001..2 mm",
+                 "--units", "US", "--json"]) == 0
+    fitted = json.loads(capsys.readouterr().out)["parameters"]["lines.L1.roughness"]
+    assert fitted["value"].endswith(" in") and fitted["start"] == "0.00177 in"
+    assert main(["calibrate", str(path), "--fit", "lines.L1.roughness=0.001..2 mm",
+                 "--units", "US", "--write"]) == 0
+    out = capsys.readouterr().out
+    assert "0.00177 in" in out and " mm" not in out.split("CAUTION")[0].split("Parameters")[1]
+    line = next(x for x in path.read_text(encoding="utf-8").splitlines()
+                if x.startswith("roughness"))
+    assert line.startswith('roughness = "') and ' mm"' in line and "(was 0.045 mm)" in line

@@ -1,5 +1,5 @@
-"""``workbench calibrate PROJECT --fit KEYPATH[=LOW..HIGH] ... [--measurement NAME] [--json]
-[--plot] [--write]``.
+"""``workbench calibrate PROJECT --fit KEYPATH[=LOW..HIGH] ... [--measurement NAME] [--units SI|US]
+[--json] [--plot] [--write]``.
 
 Fits one to three numbers of the project (a line's roughness or bore, a fixed-K fitting, the
 valve's loss or Kv) to the project's site tests (``[measurements.NAME]``) by bounded
@@ -7,7 +7,8 @@ nonlinear least squares, and prints the fitted values with their 95 % confidence
 intervals, the residuals before and after, the correlation between the parameters and a
 plot of the readings against the model. ``--write`` writes the fitted values into the file
 as one edit, each with a comment naming the measurements and the date; without it nothing
-changes.
+changes. ``--units`` shows the result in other display units than the project's (the JSON
+stays SI, and ``--write`` writes in the file's own units).
 
 Progress (model runs and the current residual) goes to stderr. Exit status as for
 ``simulate``: 0 for a fit that converged, 1 for an invalid project or request, or a fit
@@ -34,7 +35,10 @@ def add_parser(subparsers, name: str, help_text: str) -> argparse.ArgumentParser
         name, help=help_text, epilog=_EPILOG,
         description="Fit uncertain numbers of the model (roughness, bore, loss "
         "coefficients) to what was measured on the plant ([measurements.NAME] tables).")
+    from workbench.cli.common import add_units_option
+
     parser.add_argument("project", metavar="PROJECT", help="project file (.toml)")
+    add_units_option(parser)
     parser.add_argument("--fit", metavar="KEYPATH[=LOW..HIGH]", action="append", default=[],
                         help="a number to fit and its range in the file's units, e.g. "
                         "'lines.L1.roughness=0.01..3 mm' (one to three; repeat the option)")
@@ -72,6 +76,11 @@ def run(args: argparse.Namespace) -> ExitCode:
     project = load_or_report(args.project)
     if project is None:
         return ExitCode.INVALID
+    own = project  # --write writes in the file's own units, whatever --units shows
+    if args.units is not None and args.units != project.unit_system:
+        import dataclasses
+
+        project = dataclasses.replace(project, unit_system=args.units)
     from workbench.core.calibration import CalibrationError
     from workbench.project.calibration import FitSpecError, calibrate
     from workbench.project.problems import ProjectError
@@ -117,7 +126,7 @@ def run(args: argparse.Namespace) -> ExitCode:
         print(f"{args.project}: {_failure(calibration)}", file=sys.stderr)
         return ExitCode.INVALID
     if args.write:
-        return _write(args.project, project, calibration)
+        return _write(args.project, own, calibration)
     return ExitCode.OK
 
 
