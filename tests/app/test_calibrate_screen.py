@@ -84,3 +84,37 @@ async def test_a_key_path_that_is_not_a_number_is_refused_in_words(tmp_path):
         status = str(app.screen.query_one("#calib-status").render())
         assert "material is not a number" in status
         assert app.screen.run is None
+
+
+async def test_the_progress_follows_the_real_model_runs_not_a_fixed_count(tmp_path):
+    """While the fit searches the bar has no end (how many runs it needs is not known
+    beforehand) and the status counts the runs against the fit's limit
+    (:func:`workbench.core.calibration.run_limit`); at the end the bar is full at the number
+    of runs the fit really made."""
+    from workbench.core.calibration import run_limit
+
+    app = make(_project(tmp_path))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("f11")
+        await pilot.pause()
+        await _type(pilot, "#calib-fit", FIT)
+        await pilot.press("ctrl+r")
+        screen = app.screen
+        bar = screen.query_one("#calib-progress")
+        seen = []
+        for _ in range(1200):
+            await pilot.pause(0.05)
+            if screen.running and screen.runs:
+                seen.append((bar.total, str(screen.query_one("#calib-status").render())))
+            if not screen.running:
+                break
+        await screen.workers.wait_for_complete()
+        await pilot.pause()
+        assert seen, "no progress was shown while the fit ran"
+        assert all(total is None for total, _ in seen)
+        assert f"(at most {run_limit(1)})" in seen[-1][1]
+        runs = screen.run.result.evaluations
+        assert 3 <= runs <= run_limit(1) and runs != 60
+        assert (bar.total, bar.progress) == (runs, runs)
+        assert f"({runs} model runs)" in str(screen.query_one("#calib-result").render())

@@ -265,3 +265,29 @@ def test_an_interval_inside_the_range_is_not_cut():
     result = fit([_turbulent_observation(0.005)], [ROUGH])
     assert result.success and not result.ci95_cut.any()
     np.testing.assert_array_equal(result.ci95, result.ci95_linear)
+
+
+def test_a_start_far_from_the_answer_is_not_mistaken_for_a_parameter_that_does_not_act():
+    """Hourly readings of the laminar drain (closed form ``laminar_levels``) and a start
+    bore of 60 mm: tau goes as D^-4, so the model drains the tank in (25/60)^4 of the
+    10.9 h, 20 min, before the second reading; a small step of the bore then changes no
+    reading at all. Probed along its range the bore acts, and the fit gives it back."""
+    times = np.linspace(0.0, 10 * 3600.0, 11)
+    system = _drain(VISCOUS, Line("L", "T", "O", LAM_L, 0.060, entrance_k=0.0), times[-1])
+    obs = Observation("lam", "T", "level", times, laminar_levels(times, LAM_D), system)
+    wide = FitParameter("lines.L.inner_diameter", "diameter", "L", 0.015, 0.080, 0.060)
+    result = fit([obs], [wide])
+    assert result.success, result.message
+    assert result.values[0] == pytest.approx(LAM_D, rel=1e-3)
+    assert result.rms_before["lam"] > 1.0 and result.rms_after["lam"] < 1e-3
+
+
+def test_every_fit_keeps_within_its_limit_of_model_runs_and_says_so():
+    """The limit counts every model run (finite differences included); a fit that reaches
+    it stops with its best point so far and says it did not converge."""
+    progress = []
+    result = fit([_turbulent_observation(0.005)], [ROUGH], max_evaluations=4,
+                 progress=lambda n, rms: progress.append(n))
+    assert not result.success and result.status == 0
+    assert "stopped after 4 model runs (the limit)" in result.message
+    assert progress == [1, 2, 3, 4] and result.evaluations == 4

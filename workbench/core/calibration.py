@@ -18,9 +18,19 @@ Each :class:`Observation` carries the system under its test conditions. The pred
 The fit minimises the sum of squared weighted residuals
 :math:`r_i = (y_{model}(t_i; x) - y_i)/w` (``w`` the largest magnitude among the
 observation's readings, so observations of different quantities weigh alike) by bounded
-nonlinear least squares (``scipy.optimize.least_squares``, trust-region reflective) over
-the parameters scaled by their ranges. The Jacobian is a forward difference during the
-search and a central difference at the end.
+nonlinear least squares (``scipy.optimize.least_squares``, trust-region reflective, with
+its own forward-difference Jacobian) over the parameters scaled by their ranges to
+``u = 1 + (x - lower)/(upper - lower)`` in [1, 2]. On that scale scipy's relative step
+``diff_step`` (:data:`_DIFF_STEP`) is 0.1 % to 0.2 % of each range everywhere; on [0, 1] a
+parameter at its lower bound (a roughness range from zero) would get scipy's fallback step
+``sqrt(eps)``, far below the integration error of a run.
+
+A parameter whose Jacobian column is negligible at the end of the search does not change
+the model's values there. That may be the start's fault, not the parameter's: a bore so
+wide that the tank has drained before the second reading leaves every reading unchanged by
+a small step. Such a parameter is probed at five points of its range (the others held);
+if it acts there the search starts again from the best probe, and only a parameter that
+acts nowhere is said not to act.
 
 Confidence intervals follow the linearised theory of nonlinear regression (Bates & Watts,
 *Nonlinear Regression Analysis and Its Applications*, Wiley 1988, ch. 2):
@@ -61,6 +71,7 @@ __all__ = [
     "cut_interval",
     "fit",
     "predict",
+    "run_limit",
     "series_of",
     "with_conditions",
     "with_parameters",
@@ -350,10 +361,32 @@ def _rms(x: np.ndarray) -> float:
 # The fit
 
 
-class _Problem:
-    """Residuals of every observation as a function of the scaled parameters."""
+class _OutOfRuns(Exception):
+    pass
 
-    def __init__(self, observations, parameters, progress, cancel):
+
+#: Relative finite-difference step of the Jacobian (scipy's ``diff_step``) on the scaled
+#: parameters ``u`` in [1, 2]: a step of 0.1 % to 0.2 % of each parameter's range, far above
+#: the runs' integration error (``_RTOL``) and small against the curvature.
+_DIFF_STEP = 1e-3
+
+#: Where along its range a parameter that seems not to act is probed (fractions of the
+#: range), with the others held.
+_PROBES = (0.0, 0.25, 0.5, 0.75, 1.0)
+
+
+def run_limit(n_parameters: int) -> int:
+    """Most model runs a fit of ``n_parameters`` makes (each runs every observation once):
+    the search with its finite differences, the probes of a parameter that seems not to
+    act, and the runs before and after."""
+    return 25 * (n_parameters + 1) + len(_PROBES) * n_parameters + 2
+
+
+class _Problem:
+    """Residuals of every observation as a function of the scaled parameters
+    ``u = 1 + (x - lower)/(upper - lower)``, in [1, 2]."""
+
+    def __init__(self, observations, parameters, progress, cancel, limit):
         self.obs = list(observations)
         self.params = list(parameters)
         self.lower = np.array([p.lower for p in self.params], dtype=float)
@@ -362,14 +395,20 @@ class _Problem:
         self.weights = [max(float(np.max(np.abs(o.values))), 1e-300) for o in self.obs]
         self.progress = progress
         self.cancel = cancel
+        self.limit = limit
         self.evaluations = 0
         self._cache: dict[bytes, tuple[np.ndarray, list[np.ndarray]]] = {}
         self.traces: dict[bytes, dict[str, tuple[np.ndarray, np.ndarray]]] = {}
         """Model traces of the runs kept for the result (the start and the fitted values)."""
         self.keep_traces = False
+        self.best: tuple[float, np.ndarray] | None = None
+        """``(cost, u)`` of the best run so far."""
 
     def to_x(self, u: np.ndarray) -> np.ndarray:
-        return self.lower + u * self.scale
+        return self.lower + (np.asarray(u, dtype=float) - 1.0) * self.scale
+
+    def to_u(self, x: np.ndarray) -> np.ndarray:
+        return 1.0 + np.clip((np.asarray(x, dtype=float) - self.lower) / self.scale, 0.0, 1.0)
 
     def run(self, u: np.ndarray) -> tuple[np.ndarray, list[np.ndarray]]:
         key = np.asarray(u, dtype=float).tobytes()
@@ -377,6 +416,8 @@ class _Problem:
             return self._cache[key]
         if self.cancel is not None and self.cancel():
             raise _Cancelled()
+        if self.evaluations >= self.limit:
+            raise _OutOfRuns()
         x = self.to_x(u)
         preds = []
         traces = {}
@@ -396,6 +437,9 @@ class _Problem:
         r = np.concatenate([(pred - o.values) / w for pred, o, w in
                             zip(preds, self.obs, self.weights)])
         self.evaluations += 1
+        cost = float(r @ r)
+        if self.best is None or cost < self.best[0]:
+            self.best = (cost, np.array(u, dtype=float))
         if self.progress is not None:
             self.progress(self.evaluations, float(np.sqrt(np.mean(r * r))))
         if len(self._cache) > 64:
@@ -420,26 +464,45 @@ class _Problem:
     def residuals(self, u: np.ndarray) -> np.ndarray:
         return self.run(u)[0]
 
-    def jacobian(self, u: np.ndarray, central: bool = False) -> np.ndarray:
+    def search(self, u_start: np.ndarray):
+        """``scipy.optimize.least_squares`` from ``u_start`` with its own forward
+        differences (``diff_step``; on ``u`` in [1, 2] the relative step is a fixed fraction
+        of each range, never the ``sqrt(eps)`` it falls back to at zero)."""
+        from scipy.optimize import least_squares
+
+        budget = max(self.limit - self.evaluations, 1)
+        return least_squares(self.residuals, u_start, jac="2-point", diff_step=_DIFF_STEP,
+                             bounds=(1.0, 2.0), method="trf", x_scale="jac", max_nfev=budget,
+                             xtol=1e-6, ftol=1e-8, gtol=1e-8)
+
+    def inert(self, jac_u: np.ndarray, r: np.ndarray) -> list[int]:
+        """Parameters whose Jacobian column is negligible: they do not change the model's
+        values near this point."""
+        floor = 1e-9 * max(float(np.max(np.abs(r))), 1e-12)
+        return [j for j in range(jac_u.shape[1]) if not np.any(np.abs(jac_u[:, j]) > floor)]
+
+    def probe(self, u: np.ndarray, j: int) -> tuple[bool, np.ndarray | None]:
+        """Parameter ``j`` along its range (:data:`_PROBES`), the others held at ``u``:
+        ``(acts somewhere, the probe point of least cost if below the cost at u)``."""
         r0 = self.residuals(u)
-        jac = np.empty((r0.size, u.size))
-        for j in range(u.size):
-            h = 1e-3 * max(abs(u[j]), 0.05)
-            up, down = u.copy(), u.copy()
-            if central and u[j] - h >= 0.0 and u[j] + h <= 1.0:
-                up[j] += h
-                down[j] -= h
-                jac[:, j] = (self.residuals(up) - self.residuals(down)) / (2.0 * h)
+        floor = 1e-9 * max(float(np.max(np.abs(r0))), 1e-12)
+        acts, best, best_cost = False, None, float(r0 @ r0)
+        for frac in _PROBES:
+            trial = np.array(u, dtype=float)
+            trial[j] = 1.0 + frac
+            if abs(trial[j] - u[j]) < 1e-9:
                 continue
-            step = h if u[j] + h <= 1.0 else -h
-            up[j] += step
-            jac[:, j] = (self.residuals(up) - r0) / step
-        return jac
+            r = self.residuals(trial)
+            acts = acts or bool(np.any(np.abs(r - r0) > floor))
+            if float(r @ r) < best_cost:
+                best, best_cost = trial, float(r @ r)
+        return acts, best
 
 
 def fit(observations: Sequence[Observation], parameters: Sequence[FitParameter], *,
         progress: Callable[[int, float], None] | None = None,
-        cancel: Callable[[], bool] | None = None, max_evaluations: int = 60) -> FitResult:
+        cancel: Callable[[], bool] | None = None,
+        max_evaluations: int | None = None) -> FitResult:
     """Fit parameters to observations by bounded nonlinear least squares.
 
     Parameters
@@ -449,12 +512,13 @@ def fit(observations: Sequence[Observation], parameters: Sequence[FitParameter],
     parameters : sequence of FitParameter
         One to three, with ``lower < upper``.
     progress : callable, optional
-        Called as ``progress(evaluations, rms)`` after each model evaluation (``rms`` of
-        the weighted residuals [-]).
+        Called as ``progress(evaluations, rms)`` after each model run (``rms`` of the
+        weighted residuals [-]); ``evaluations`` never exceeds the limit.
     cancel : callable, optional
         Polled during the runs; when it returns ``True`` the fit stops (status -2).
-    max_evaluations : int
-        Limit on the optimiser's function evaluations.
+    max_evaluations : int, optional
+        Most model runs, finite differences, probes and the runs before and after
+        included; default :func:`run_limit`.
 
     Returns
     -------
@@ -467,40 +531,57 @@ def fit(observations: Sequence[Observation], parameters: Sequence[FitParameter],
 
     Notes
     -----
-    See the module docstring for the weights, the scaling and the confidence intervals
-    (Bates & Watts 1988, ch. 2).
+    See the module docstring for the weights, the scaling, the probing of a parameter that
+    seems not to act, and the confidence intervals (Bates & Watts 1988, ch. 2).
     """
-    from scipy.optimize import least_squares
-
     if not observations or not parameters:
         raise CalibrationError("a fit needs at least one measurement and one parameter")
-    prob = _Problem(observations, parameters, progress, cancel)
+    limit = run_limit(len(parameters)) if max_evaluations is None else int(max_evaluations)
+    prob = _Problem(observations, parameters, progress, cancel, max(limit, 2))
     if np.any(prob.scale <= 0.0):
         bad = next(p.key for p, s in zip(prob.params, prob.scale) if s <= 0.0)
         raise CalibrationError(f"{bad}: the lower bound must be below the upper bound")
-    start = np.array([p.start for p in prob.params], dtype=float)
-    u0 = np.clip((start - prob.lower) / prob.scale, 0.0, 1.0)
+    u0 = prob.to_u(np.array([p.start for p in prob.params], dtype=float))
     try:
         before, trace_before = prob.traced(u0)
     except _Cancelled:
         return _stopped(prob, u0, None, -2, "cancelled before the first model run ended")
     try:
-        sol = least_squares(prob.residuals, u0, jac=prob.jacobian, bounds=(0.0, 1.0),
-                            method="trf", x_scale="jac", max_nfev=max_evaluations,
-                            xtol=1e-6, ftol=1e-8, gtol=1e-8)
-    except _Cancelled:
-        return _stopped(prob, u0, before, -2, "cancelled by the user")
-    except CalibrationError as exc:
-        return _stopped(prob, u0, before, -3, str(exc))
-    try:
-        jac = prob.jacobian(sol.x, central=True)
+        sol, plateau = _search_and_probe(prob, u0)
         after, trace_after = prob.traced(sol.x)
     except _Cancelled:
         return _stopped(prob, u0, before, -2, "cancelled by the user")
+    except _OutOfRuns:
+        best = prob.best[1] if prob.best is not None else u0
+        return _stopped(prob, best, before, 0, f"stopped after {prob.evaluations} model runs "
+                        "(the limit) before converging")
     except CalibrationError as exc:
         return _stopped(prob, u0, before, -3, str(exc))
-    return dataclasses.replace(_summarise(prob, sol, jac, before, after),
-                               trace_before=trace_before, trace_after=trace_after)
+    result = _summarise(prob, sol, sol.jac, before, after, plateau)
+    return dataclasses.replace(result, trace_before=trace_before, trace_after=trace_after)
+
+
+def _search_and_probe(prob: _Problem, u0: np.ndarray):
+    """The search from ``u0``; when a parameter then seems not to act, it is probed along
+    its range and, if it acts elsewhere, the search starts again from the best probe (a
+    poor start value can sit where the readings do not see it: a bore so wide that the tank
+    has drained before the second reading). Returns ``(solution, plateau)``: ``plateau``
+    lists the parameters that act elsewhere in their range but not near the solution."""
+    sol = prob.search(u0)
+    inert = prob.inert(sol.jac, sol.fun)
+    if not inert:
+        return sol, []
+    plateau, restart = [], None
+    for j in inert:
+        acts, best = prob.probe(sol.x, j)
+        if acts and best is not None and restart is None:
+            restart = best
+        elif acts:
+            plateau.append(j)
+    if restart is None:
+        return sol, plateau
+    sol = prob.search(restart)
+    return sol, [j for j in prob.inert(sol.jac, sol.fun) if j in plateau]
 
 
 def _stopped(prob: _Problem, u0, before, status: int, message: str) -> FitResult:
@@ -539,22 +620,27 @@ def _statistics(jac_u: np.ndarray, r: np.ndarray, scale: np.ndarray, k: int):
     return std, half, corr, dof, singular
 
 
-def _summarise(prob: _Problem, sol, jac_u, before, after) -> FitResult:
+def _summarise(prob: _Problem, sol, jac_u, before, after, plateau=()) -> FitResult:
     k = len(prob.params)
     x = prob.to_x(sol.x)
     r = np.concatenate([(p - o.values) / w for p, o, w in zip(after, prob.obs, prob.weights)])
     std, half, corr, dof, singular = _statistics(jac_u, r, prob.scale, k)
     warnings: list[Finding] = []
-    at_bound = tuple(p.key for p, u in zip(prob.params, sol.x) if u <= 1e-6 or u >= 1 - 1e-6)
+    at_bound = tuple(p.key for p, u in zip(prob.params, sol.x)
+                     if u - 1.0 <= 1e-6 or u - 1.0 >= 1 - 1e-6)
     status, success = (1, True) if sol.status > 0 else (0, False)
     message = "converged" if success else "stopped at the evaluation limit before converging"
-    inert = tuple(p.key for j, p in enumerate(prob.params)
-                  if not np.any(np.abs(jac_u[:, j]) > 1e-9 * max(np.max(np.abs(r)), 1e-12)))
+    inert = prob.inert(jac_u, r)
     if inert:
-        return dataclasses.replace(_stopped(prob, sol.x, before, -1, (
-            f"the fit did not converge: {', '.join(inert)} does not change the model's values "
-            "at these readings (it does not act on them: e.g. a roughness in laminar flow)")),
-            at_bound=inert)
+        keys = tuple(prob.params[j].key for j in inert)
+        words = (f"{', '.join(keys)} does not change the model's values at these readings "
+                 "anywhere in its range (it does not act on them: e.g. a roughness in laminar "
+                 "flow)") if not any(j in plateau for j in inert) else (
+                 f"{', '.join(keys)} does not change the model's values near the value the "
+                 "search stopped at, though it does elsewhere in its range: start from another "
+                 "value")
+        return dataclasses.replace(_stopped(prob, sol.x, before, -1,
+                                            f"the fit did not converge: {words}"), at_bound=keys)
     if at_bound:
         status, success = -1, False
         words = "; ".join(_bound_words(prob, key, x) for key in at_bound)

@@ -21,9 +21,6 @@ from textual.suggester import SuggestFromList
 from textual.widgets import Footer, Input, Label, ProgressBar, Static
 from textual.worker import Worker, WorkerState, get_current_worker
 
-#: Most model runs a fit makes before it stops (the progress bar's length).
-RUNS = 60
-
 
 def fit_suggestions(project: Any) -> list[str]:
     """``KEYPATH=`` texts of the numbers a fit can change, for the input's completion."""
@@ -122,6 +119,10 @@ class CalibrateScreen(Screen[None]):
         self.run: Any = None
         """The last fit (a :class:`workbench.project.calibration.CalibrationRun`)."""
         self.running = False
+        self.limit = 0
+        """Most model runs the fit under way may make."""
+        self.runs = 0
+        """Model runs the fit under way has made so far."""
 
     @property
     def project(self) -> Any:
@@ -143,7 +144,7 @@ class CalibrateScreen(Screen[None]):
                  "Esc stops or closes.") if names else \
             "This project has no [measurements.NAME] tables: add the site test's readings first."
         yield Static(words, id="calib-status")
-        yield ProgressBar(id="calib-progress", total=RUNS, show_eta=False)
+        yield ProgressBar(id="calib-progress", total=1, show_eta=False, show_percentage=False)
         yield Static("", id="calib-result", markup=False)
         yield Vertical(id="calib-plot-holder")
         yield Footer()
@@ -161,10 +162,13 @@ class CalibrateScreen(Screen[None]):
         if not fits:
             self._status("Give a number to fit, as KEYPATH=LOW..HIGH.", error=True)
             return
+        from workbench.core.calibration import run_limit
+
         self.running = True
         self.run = None
+        self.limit = run_limit(len(fits))
         self._status("fitting… (each model run is a simulation of the test)")
-        self.query_one("#calib-progress", ProgressBar).update(total=RUNS, progress=0)
+        self.query_one("#calib-progress", ProgressBar).update(total=None, progress=0)
         self.fit_worker(self.project, fits, names or None)
 
     @work(thread=True, exclusive=True, exit_on_error=False, group="calibrate")
@@ -184,12 +188,15 @@ class CalibrateScreen(Screen[None]):
         self.post_message(self.Finished(run, None))
 
     def on_calibrate_screen_progressed(self, message: Progressed) -> None:
-        self.query_one("#calib-progress", ProgressBar).update(progress=min(message.runs, RUNS))
-        self._status(f"fitting… model run {message.runs}, relative RMS residual {message.rms:.3g}")
+        self.runs = message.runs
+        self._status(f"fitting… model run {message.runs} (at most {self.limit}), relative RMS "
+                     f"residual {message.rms:.3g}")
 
     def on_calibrate_screen_finished(self, message: Finished) -> None:
         self.running = False
-        self.query_one("#calib-progress", ProgressBar).update(progress=RUNS)
+        runs = message.run.result.evaluations if message.run is not None else self.runs
+        self.query_one("#calib-progress", ProgressBar).update(total=max(runs, 1),
+                                                              progress=max(runs, 1))
         if message.error is not None:
             self._status(message.error, error=True)
             return
