@@ -86,13 +86,23 @@ async def test_a_key_path_that_is_not_a_number_is_refused_in_words(tmp_path):
         assert app.screen.run is None
 
 
-async def test_the_progress_follows_the_real_model_runs_not_a_fixed_count(tmp_path):
+async def test_the_progress_follows_the_real_model_runs_not_a_fixed_count(tmp_path, monkeypatch):
     """While the fit searches the bar has no end (how many runs it needs is not known
     beforehand) and the status counts the runs against the fit's limit
     (:func:`workbench.core.calibration.run_limit`); at the end the bar is full at the number
     of runs the fit really made."""
+    from workbench.app.screens.calibrate import CalibrateScreen
     from workbench.core.calibration import run_limit
 
+    seen = []
+    shown = CalibrateScreen.on_calibrate_screen_progressed
+
+    def watched(screen, message):  # what the view shows after each model run
+        shown(screen, message)
+        seen.append((message.runs, screen.query_one("#calib-progress").total,
+                     str(screen.query_one("#calib-status").render())))
+
+    monkeypatch.setattr(CalibrateScreen, "on_calibrate_screen_progressed", watched)
     app = make(_project(tmp_path))
     async with app.run_test(size=SIZE) as pilot:
         await settle(pilot)
@@ -100,21 +110,13 @@ async def test_the_progress_follows_the_real_model_runs_not_a_fixed_count(tmp_pa
         await pilot.pause()
         await _type(pilot, "#calib-fit", FIT)
         await pilot.press("ctrl+r")
+        await _wait_for_fit(pilot)
         screen = app.screen
-        bar = screen.query_one("#calib-progress")
-        seen = []
-        for _ in range(1200):
-            await pilot.pause(0.05)
-            if screen.running and screen.runs:
-                seen.append((bar.total, str(screen.query_one("#calib-status").render())))
-            if not screen.running:
-                break
-        await screen.workers.wait_for_complete()
-        await pilot.pause()
-        assert seen, "no progress was shown while the fit ran"
-        assert all(total is None for total, _ in seen)
-        assert f"(at most {run_limit(1)})" in seen[-1][1]
         runs = screen.run.result.evaluations
+        assert [n for n, _, _ in seen] == list(range(1, runs + 1))
+        assert all(total is None for _, total, _ in seen)
+        assert f"model run {runs} (at most {run_limit(1)})" in seen[-1][2]
         assert 3 <= runs <= run_limit(1) and runs != 60
+        bar = screen.query_one("#calib-progress")
         assert (bar.total, bar.progress) == (runs, runs)
         assert f"({runs} model runs)" in str(screen.query_one("#calib-result").render())
