@@ -21,6 +21,7 @@ from workbench.cli import main
 ROOT = Path(__file__).resolve().parents[2]
 DEMOS = sorted((ROOT / "projects").glob("*.toml"))
 TRANSFER = ROOT / "projects" / "fellgate_process_water_transfer.toml"
+VENT = ROOT / "projects" / "fellgate_condensate_tank_vent.toml"
 
 #: A number followed by an SI unit (the symbols the SI display uses).
 SI_UNIT = re.compile(r"\d\s?(m|mm|kPa|kPa abs|Pa|bar|GPa|L/s|L|m3/s|m3/h|m3|m/s|degC|"
@@ -42,6 +43,15 @@ def fast_closure_text() -> str:
     return text
 
 
+def sealed_vent_text() -> str:
+    """The vent demo with its vent blanked: the drain stops against the vacuum
+    (``tank.sealed_stop``, an event and a warning with a level and a vacuum)."""
+    text = VENT.read_text(encoding="utf-8")
+    old = 'vent = { nominal_size = "1 in", schedule = "40", k = 1.8 }'
+    assert old in text
+    return text.replace(old, 'vent = "none"')
+
+
 @pytest.fixture(scope="module")
 def runs():
     """Per case: the project and its steady, transient and elastic results (computed once)."""
@@ -52,6 +62,7 @@ def runs():
 
     projects = {p.stem: load_project(p) for p in DEMOS}
     projects["fast_closure"] = load_project_text(fast_closure_text(), "fast_closure.toml")
+    projects["sealed_vent"] = load_project_text(sealed_vent_text(), "sealed_vent.toml")
     out = {}
     for name, project in projects.items():
         system = project.system
@@ -95,7 +106,7 @@ def record_results(run, units: str) -> str:
     return body.replace("2L/a", "")  # a closure time in wave round trips, not a unit
 
 
-CASES = [p.stem for p in DEMOS] + ["fast_closure"]
+CASES = [p.stem for p in DEMOS] + ["fast_closure", "sealed_vent"]
 
 
 @pytest.mark.parametrize("units", ["US", "SI"])
@@ -135,3 +146,10 @@ def test_solve_prints_no_unit_of_the_other_system(demo, units, capsys):
     out = capsys.readouterr().out
     found = [m.group(0) for m in WRONG[units].finditer(out)]
     assert not found, found
+
+
+def test_the_sealed_tank_stops_at_a_level_written_in_feet(runs):
+    _, _, transient, _ = runs["sealed_vent"]
+    assert any(e.code == "tank.sealed_stop" for e in transient.events)
+    us = " ".join(messages(runs["sealed_vent"], "US"))
+    assert re.search(r"(stops|comes to rest) at a level of [0-9.]+ ft", us), us

@@ -135,3 +135,14 @@ def test_a_missing_key_is_shown_with_an_example_in_the_display_units():
     # the schema's examples 50 kPa and 2 m in psi and ft (NIST SP 811), to 3 digits
     assert f'pressure = "{50e3 / PSI:.3g} psi"' in found["receivers.CH.pressure"]
     assert f'elevation = "{2 / FT:.3g} ft"' in found["receivers.CH.elevation"]
+
+
+def test_a_site_above_the_troposphere_gives_its_limits_in_feet():
+    text = BASE.format(units="US", height="5.2 m", tank="", bore="102.3 mm", end="1.2 m")
+    text = text.replace('units = "US"', 'units = "US"\nsite_elevation = "15 km"')
+    with pytest.raises(ProjectError) as info:
+        load_project_text(text, "t.toml")
+    message = {p.key: p.message for p in info.value.problems}["project.site_elevation"]
+    # the troposphere's top, 11019 m (ISO 2533), in feet (NIST SP 811)
+    assert f"{11019 / FT:.0f} ft above sea level" in message
+    assert not SI_UNIT.search(computed_part(message)), message

@@ -362,7 +362,10 @@ class WorkbenchApp(App[int]):
             self.steady_message = f"{getattr(result, 'iterations', '?')} iterations"
         else:
             self.steady_status = "failed"
-            self.steady_message = str(getattr(result, "message", "no solution"))
+            from workbench.output.common import finding_message
+
+            self.steady_message = (finding_message(result, self.unit_system)
+                                   if hasattr(result, "message") else "no solution")
 
     # --- simulation --------------------------------------------------------------------
     def action_simulate(self) -> None:

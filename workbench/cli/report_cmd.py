@@ -44,7 +44,10 @@ def run(args: argparse.Namespace) -> ExitCode:
     system = project.system
     steady = solve_steady(system)
     if not steady.success:
-        print(f"{args.project}: no steady solution: {steady.message}", file=sys.stderr)
+        from workbench.output.common import finding_message
+
+        print(f"{args.project}: no steady solution: "
+              f"{finding_message(steady, project.unit_system)}", file=sys.stderr)
     broken = check_steady(system, steady)
     if broken:  # the same refusal as solve's: a result that breaks the physics is a bug
         print(f"{args.project}: internal consistency check failed: {describe(broken)}; "

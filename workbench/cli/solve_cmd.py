@@ -43,7 +43,9 @@ def run(args: argparse.Namespace) -> ExitCode:
     system = project.system
     result = solve_steady(system)
     if not result.success:
-        print(f"{args.project}: {result.message}", file=sys.stderr)
+        from workbench.output.common import finding_message
+
+        print(f"{args.project}: {finding_message(result, project.unit_system)}", file=sys.stderr)
         return ExitCode.INVALID
     from workbench.core.sanity import check_steady, describe
 

@@ -421,14 +421,14 @@ def solve_steady(system: System, *, levels: dict[str, float] | None = None,
         "energy": float(np.max(np.abs(fe))) if fe is not None and fe.size else 0.0,
     }
     if status != 0:
-        msg = (
+        msg, template, values = slots(
             f"no steady solution found: {STATUS_MESSAGES[status]} after {total_it} Newton "
-            f"steps (largest continuity error {residuals['continuity']:.3g} m3/s, energy "
-            f"error {residuals['energy']:.3g} m); check for lines with almost no resistance, "
-            "valves nearly shut or inconsistent levels"
-        )
-        return SteadyResult(False, status, msg, total_it, residuals,
-                            line_ids=topo.line_ids, solve_time=time.perf_counter() - t0)
+            "steps (largest continuity error {continuity}, energy error {energy}); check for "
+            "lines with almost no resistance, valves nearly shut or inconsistent levels",
+            continuity=(residuals["continuity"], "flow"), energy=(residuals["energy"], "head"))
+        return SteadyResult(False, status, msg, total_it, residuals, template=template,
+                            values=values, line_ids=topo.line_ids,
+                            solve_time=time.perf_counter() - t0)
     return _assemble(system, topo, lines, newton, x, h_fixed, x_open, shut, back, levels,
                      total_it, residuals, t0, cut & ~shut & ~back)
 

@@ -390,7 +390,9 @@ def _steady(project: Project, steady: SteadyResult | None) -> list[str]:
     if steady is None:
         return out + ["Not computed.", ""]
     if not steady.success:
-        return out + [f"**No steady solution:** {steady.message}", ""]
+        from workbench.output.common import finding_message
+
+        return out + [f"**No steady solution:** {finding_message(steady, units)}", ""]
     res = steady.residuals or {}
     out += [f"Converged in {steady.iterations} Newton iterations; largest continuity residual "
             f"{_residual(res.get('continuity'), 'flow', units)}, energy residual "

@@ -189,7 +189,8 @@ def steady_tables(result: SteadyResult, system: System, unit_system: str = "SI")
 
     out: list = []
     if not result.success:
-        out.append(Text(f"No steady solution: {result.message}", style="bold red"))
+        out.append(Text(f"No steady solution: {finding_message(result, unit_system)}",
+                        style="bold red"))
         return out
     out.append(Text(f"{system.title}: steady solution {finding_message(result, unit_system)}."))
 

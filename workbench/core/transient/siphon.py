@@ -25,7 +25,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from workbench.core.finding_text import finding, slots
+from workbench.core.finding_text import KeptText, finding, slots
 from workbench.core.fittings import exit_k
 from workbench.core.model import G
 
@@ -263,8 +263,8 @@ def siphon_findings(model, state, levels: np.ndarray):
         if stop is not None and nid in model.tank_ids and nid not in state.drain_times:
             k = model.tank_ids.index(nid)
             level = float(levels[k, -1]) if levels.size else float("nan")
-            notes[nid] = (f"does not drain: the siphon over line {lid} breaks and stops at "
-                          f"level {level:.4g} m")
+            notes[nid] = KeptText(f"does not drain: the siphon over line {lid} breaks and "
+                                  "stops at level {level}", level=(level, "length", 4))
             after = (f"; tank {nid} does not drain: the siphon over line {lid} breaks and "
                      f"stops at level {{stop_level}} (t = {stop.time:.4g} s)")
             vals["stop_level"] = (level, "length", 4)

@@ -11,7 +11,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from workbench.core.finding_text import finding
+from workbench.core.finding_text import finding, slots
 from workbench.core.model import Finding
 from workbench.core.transient.model import TransientModel
 from workbench.core.transient.results import Event
@@ -152,10 +152,10 @@ def stopped_drains(model: TransientModel, state, t, ys, p_gauge):
                 j = len(low) - int(np.argmin(low[::-1])) if not low.all() else 0
                 when = float(t[min(j, len(t) - 1)])
                 level = model.geoms[k].level_extrapolated(float(ys[nl + k, j]))
-                events.append(Event(when, "tank.sealed_stop", tid,
-                                    f"the drain of tank {tid} comes to rest at a level of "
-                                    f"{level:.4g} m: the vacuum in its gas space balances "
-                                    "the head over its outlets"))
+                events.append(Event(when, "tank.sealed_stop", tid, *slots(
+                    f"the drain of tank {tid} comes to rest at a level of {{level}}: the "
+                    "vacuum in its gas space balances the head over its outlets",
+                    level=(level, "length", 4))))
         if when is not None:
             findings.append(finding(
                 "tank.sealed_stop", tid,

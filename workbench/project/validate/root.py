@@ -34,11 +34,16 @@ def check_project(c: Checker, data: dict) -> tuple[str, str, float]:
     units = c.choice(section, field_spec("project", "units"), "project") or "SI"
     site = c.quantity(section, "site_elevation", "elevation", "project")
     site = 0.0 if site is None else site
-    from workbench.core.atmosphere import AtmosphereError, atmospheric_pressure
+    from workbench.core.atmosphere import ELEVATION_RANGE, AtmosphereError, atmospheric_pressure
 
     try:
         c.atmosphere = atmospheric_pressure(site)
     except (AtmosphereError, ValueError) as exc:
-        c.add("project.site_elevation", str(exc))
+        lo, hi = ELEVATION_RANGE
+        words = str(exc) if not isinstance(exc, AtmosphereError) else (
+            f"site elevation {section.get('site_elevation')!r} is outside the standard "
+            f"atmosphere's troposphere ({c.shown(lo, 'elevation')} to "
+            f"{c.shown(hi, 'elevation')} above sea level)")
+        c.add("project.site_elevation", words)
     return title, units, site
 
