@@ -16,7 +16,8 @@ Rules, chosen so that nothing a file says is misread silently:
 
 One pint registry serves the whole program; it is built on first use because building it
 costs a few tenths of a second (the terminal app must paint before that), from pint's cache
-in the user's cache folder when there is one.
+in the user's cache folder when there is one. pint is imported without its optional Dask
+support (:func:`import_pint`), which would otherwise import Dask whenever it is installed.
 """
 
 from __future__ import annotations
@@ -24,6 +25,7 @@ from __future__ import annotations
 import math
 import os
 import re
+import sys
 from dataclasses import dataclass
 from functools import lru_cache
 from pathlib import Path
@@ -42,6 +44,7 @@ __all__ = [
     "display_unit",
     "format_quantity",
     "get_registry",
+    "import_pint",
     "parse_pressure",
     "parse_quantity",
     "parse_value",
@@ -74,6 +77,30 @@ _EXTRA_DEFINITIONS = (
 )
 
 
+def import_pint():
+    """The ``pint`` module, imported without its optional Dask support.
+
+    ``pint.compat`` imports ``dask.base`` at import time whenever Dask is installed (it is,
+    with the ``cluster`` and ``test`` extras), which about doubles the cost of
+    ``import pint``; pint has no switch for it and the program never gives pint Dask arrays.
+    While pint is imported, ``sys.modules["dask"]`` is ``None``, the documented marker for
+    a module that is not there (``importlib.util.find_spec`` then returns ``None``), and
+    the marker is taken away at once, so a later ``import dask`` (a sweep on a cluster)
+    imports the real package. If Dask or pint is already loaded nothing is changed.
+    """
+    if "pint" in sys.modules or "dask" in sys.modules:
+        import pint
+
+        return pint
+    sys.modules["dask"] = None  # type: ignore[assignment]
+    try:
+        import pint
+    finally:
+        if "dask" in sys.modules and sys.modules["dask"] is None:
+            del sys.modules["dask"]
+    return pint
+
+
 @lru_cache(maxsize=1)
 def get_registry() -> "pint.UnitRegistry":
     """The program's one pint registry, built on first use, with the trade units added.
@@ -83,8 +110,7 @@ def get_registry() -> "pint.UnitRegistry":
     about a sixth of the time of parsing the files again. Without a usable folder, or if
     the cache cannot be read, the registry is built without it.
     """
-    import pint
-
+    pint = import_pint()
     folder = registry_cache_folder(pint.__version__)
     try:
         ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True, cache_folder=folder)
