@@ -254,11 +254,11 @@ class _Newton:
         Laplacian system ``(A W A^T) dH = F_c + A W F_e + A_b dq_b``, symmetric positive
         definite when every junction reaches a fixed head, of junction size only.
         """
-        from scipy.sparse.linalg import spsolve
-
         w = np.where(self.blocked, 0.0, 1.0 / np.maximum(dh, self._dh_floor))
         dq_blocked = np.where(self.blocked, -fe, 0.0)
         if self.nj:
+            from scipy.sparse.linalg import spsolve  # about 0.1 s to import: only with junctions
+
             lap = self._laplacian(w)
             rhs = fc + self._net_inflow(w * fe + dq_blocked)
             if self._any_isolated:
