@@ -106,7 +106,7 @@ def find_break(system: System, lines, i: int, lid: str, q_all: np.ndarray, x_ope
     m_full, prof_full = margin(abs(q_full))
     if not m_full.size or float(m_full.min()) >= -tol_pa:
         return None
-    from scipy.optimize import brentq
+    from workbench.core.brent import brentq
 
     tiny = 1e-9 * abs(q_full)
     m0, _ = margin(tiny)

@@ -147,7 +147,7 @@ def quasi_steady_pressure(effective_area: float, outflow: float, p_atm: float,
     Returns ``nan`` when no pressure does (a sealed tank with a flow, or a vent choked
     below the flow).
     """
-    from scipy.optimize import brentq
+    from workbench.core.brent import brentq
 
     if outflow == 0.0:
         return p_atm
