@@ -614,7 +614,7 @@ def _statistics(jac_u: np.ndarray, r: np.ndarray, scale: np.ndarray, k: int):
     std = np.sqrt(np.clip(np.diag(cov), 0.0, None))
     half = float(stats.t.ppf(0.975, dof)) * std
     with np.errstate(invalid="ignore", divide="ignore"):
-        corr = cov / np.outer(std, std)
+        corr = np.clip(cov / np.outer(std, std), -1.0, 1.0)  # round-off gave 1 + 2e-16
     if singular:
         corr = np.where(np.eye(k, dtype=bool), 1.0, np.where(np.isfinite(corr), corr, 1.0))
     return std, half, corr, dof, singular
