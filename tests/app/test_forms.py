@@ -116,3 +116,33 @@ async def test_enter_on_a_heading_folds_its_fields_and_down_skips_them(project_f
         await pilot.press("up", "enter")
         await pilot.pause()
         assert field_input(app, f"lines.{LINE}.roughness").parent.display
+
+
+async def test_a_quick_burst_of_down_presses_lands_on_the_field_as_many_steps_on(project_file):
+    """Keys sent to the terminal all at once, before any focus change has run (Textual
+    moves the focus after the key that asked for it): N presses of Down from the first
+    field must land on field N+1, none lost."""
+    from textual import events
+
+    from workbench.app.panes.form import FieldForm, FieldInput
+
+    app = make(project_file(TRANSFER))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await choose_entry(pilot, f"lines:{LINE}")
+        await pilot.press("enter")
+        await pilot.pause()
+        form = app.screen.query_one(FieldForm)
+        items = form.focusables()
+        start = items.index(app.focused)
+        for steps, key in ((5, "down"), (3, "up"), (7, "down")):
+            for _ in range(steps):  # all queued before the app handles the first one
+                event = events.Key(key, None)
+                event.set_sender(app)
+                app._driver.send_message(event)
+            await pilot.pause()
+            await pilot.pause()
+            start += steps if key == "down" else -steps
+            assert app.focused is items[start], (key, steps, app.focused)
+        assert isinstance(app.focused, FieldInput)
+        assert _inside(app.focused.region, form.region)

@@ -297,6 +297,8 @@ class FieldForm(VerticalScroll):
         self.entry: Entry | None = None
         self._building = asyncio.Lock()
         self._rows: dict[str, list[FieldRow]] = {}
+        self._focus_chain: list = []
+        """Widgets :meth:`step_focus` asked to focus that have not got the focus yet."""
 
     async def show(self, entry: Entry | None, data: dict, unit_system: str) -> None:
         """Build the form for ``entry`` (or refresh values when it is already shown)."""
@@ -367,13 +369,27 @@ class FieldForm(VerticalScroll):
         return found
 
     def step_focus(self, widget, step: int) -> None:
-        """Up/Down: the previous or next heading or field (stays put at either end)."""
+        """Up/Down: the previous or next heading or field (stays put at either end).
+
+        Textual moves the focus after the key that asked for it, so keys typed quickly
+        still reach the widget being left: each step starts from the last target asked
+        for and not yet reached (:attr:`_focus_chain`), so no press is lost."""
         items = self.focusables()
-        if widget not in items:
+        chain = [w for w in self._focus_chain if w in items]
+        start = chain[-1] if chain else widget
+        if start not in items:
             return
-        index = items.index(widget) + step
+        index = items.index(start) + step
         if 0 <= index < len(items):
+            self._focus_chain = [*chain, items[index]]
             items[index].focus()
+
+    def on_descendant_focus(self, event) -> None:
+        """A focus asked for by :meth:`step_focus` arrived (drop it and those before it
+        from the chain), or the focus went elsewhere (Tab, a click: forget the chain)."""
+        widget = event.widget
+        chain = self._focus_chain
+        self._focus_chain = chain[chain.index(widget) + 1:] if widget in chain else []
 
     def fold(self, heading: GroupHeading, folded: bool) -> None:
         """Hide or show the fields under ``heading``."""
