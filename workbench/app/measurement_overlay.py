@@ -29,16 +29,24 @@ def _measurements(project: Any) -> list:
     return _CACHE["found"]
 
 
-def draw_readings(plt: Any, project: Any, chosen: set[str], x_scale: float, units: str) -> None:
-    """Scatter each shown series' readings on ``plt`` (times divided by ``x_scale``)."""
+def draw_readings(plt: Any, project: Any, chosen: set[str], x_scale: float,
+                  units: str) -> list[tuple[str, str]]:
+    """Scatter each shown series' readings on ``plt`` (times divided by ``x_scale``).
+
+    Returns:
+        The legend items ``(marker, words)`` of what was drawn, for the legend line
+        under the plot (plotext's own legend would sit on the data).
+    """
     from workbench.project.units import display_unit, to_display
 
+    items: list[tuple[str, str]] = []
     for m in _measurements(project):
         key = f"{'level' if m.quantity == 'level' else 'flow'}:{m.element}"
         if key not in chosen:
             continue
         kind = "length" if m.quantity == "level" else "flow"
         values = [float(v) for v in to_display(m.values, kind, units)]
-        plt.scatter((m.times / x_scale).tolist(), values, marker="o",
-                    label=f"{m.name} measured [{display_unit(kind, units)}]",
-                    yside="left" if kind == "length" else "right")
+        side = "left" if kind == "length" else "right"
+        plt.scatter((m.times / x_scale).tolist(), values, marker="◆", yside=side)
+        items.append(("◆", f"{m.name} measured [{display_unit(kind, units)}, {side}]"))
+    return items

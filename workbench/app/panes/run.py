@@ -178,7 +178,7 @@ class RunPane(Vertical):
             items.append((marker, f"{label} [{display_unit(kind, units)}, {axis}]"))
         from workbench.app.measurement_overlay import draw_readings  # site tests, as points
 
-        draw_readings(plt, self.app.project, self._chosen or set(), divisor, units)
+        items += draw_readings(plt, self.app.project, self._chosen or set(), divisor, units)
         if len(x):
             ticks = plotaxes.nice_ticks(float(x[0]), float(x[-1]))
             plt.xticks(ticks, plotaxes.tick_labels(ticks))

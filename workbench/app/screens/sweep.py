@@ -17,8 +17,10 @@ from textual.containers import Horizontal, Vertical
 from textual.message import Message
 from textual.screen import Screen
 from textual.suggester import SuggestFromList
-from textual.widgets import Checkbox, DataTable, Footer, Input, Label, ProgressBar, Select, Static
+from textual.widgets import Checkbox, DataTable, Input, Label, ProgressBar, Select, Static
 from textual.worker import Worker, WorkerState, get_current_worker
+
+from workbench.app.widgets.keyfooter import KeyFooter
 
 _LEADING_NUMBER = re.compile(r"\s*([+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?)")
 
@@ -86,14 +88,17 @@ class SweepScreen(Screen[None]):
     SweepScreen .sweep-row { height: 1; margin-bottom: 0; }
     SweepScreen .sweep-row Label { width: 10; }
     SweepScreen #sweep-status.-error { color: $error; }
-    SweepScreen #sweep-status { height: 1; padding: 0 1; }
-    SweepScreen #sweep-progress { padding: 0 1; }
+    SweepScreen #sweep-head { height: auto; }
+    SweepScreen #sweep-status { width: 1fr; height: auto; max-height: 2; padding: 0 1; }
+    SweepScreen #sweep-progress { width: 22; padding: 0 1; }
+    SweepScreen #sweep-progress Bar { width: 12; }
     SweepScreen #sweep-results { height: 1fr; }
     SweepScreen #sweep-table-box { width: 1fr; height: 1fr; }
     SweepScreen #sweep-table { width: 1fr; height: 1fr; }
-    SweepScreen #sweep-detail { height: auto; max-height: 6; padding: 0 1; color: $text-muted; }
+    SweepScreen #sweep-detail { height: auto; max-height: 5; padding: 0 1; color: $text-muted; }
     SweepScreen #sweep-plot-box { width: 1fr; }
     SweepScreen #sweep-plot-box Select { width: 1fr; }
+    SweepScreen #sweep-plot-holder { height: 1fr; }
     """
 
     class Progressed(Message):
@@ -143,16 +148,21 @@ class SweepScreen(Screen[None]):
             with Horizontal(classes="sweep-row"):
                 yield Checkbox("steady only", id="sweep-steady-only")
                 yield Checkbox("quick (one line, flows only, vectorised)", id="sweep-quick")
-        yield Static("Ctrl+R runs the sweep; Esc stops it or closes this screen.", id="sweep-status")
-        yield ProgressBar(id="sweep-progress", show_eta=False)
+        with Horizontal(id="sweep-head"):
+            yield Static("Ctrl+R runs the sweep; Esc stops it or closes this screen.",
+                         id="sweep-status")
+            yield ProgressBar(id="sweep-progress", show_eta=False)
         with Horizontal(id="sweep-results"):
             with Vertical(id="sweep-table-box"):
                 yield DataTable(id="sweep-table", zebra_stripes=True, cursor_type="row")
-                yield Static("", id="sweep-detail", markup=False)
             with Vertical(id="sweep-plot-box"):
-                yield Select([], prompt="result to plot", id="sweep-plot-choice", allow_blank=True)
+                yield Select([], prompt="result to plot", id="sweep-plot-choice", allow_blank=True,
+                             compact=True)
                 yield Vertical(id="sweep-plot-holder")
-        yield Footer()
+                yield Static("", id="sweep-legend", classes="plot-legend", markup=False)
+        # the highlighted case across the whole width, so its every column reads whole
+        yield Static("", id="sweep-detail", markup=False)
+        yield KeyFooter(compact=True, show_command_palette=False)
 
     def on_mount(self) -> None:
         self.query_one("#sweep-vary-1", Input).focus()
@@ -345,15 +355,36 @@ class SweepScreen(Screen[None]):
         plt = plot.plt
         plt.clear_data()
         plt.clear_figure()
+        legend = self.query_one("#sweep-legend", Static)
         key = self.query_one("#sweep-plot-choice", Select).value
         if not self.sweep or not isinstance(key, str):
             plt.title("run a sweep to plot its results")
+            legend.update("")
             plot.refresh()
             return
+        from workbench.app import plotaxes
+
         x_label, y_label, series = self.plot_series(key)
         markers = "•+ox*#@%&"
+        items = []
+        xs_all: list[float] = []
+        # a grid's series are "KEY = value": the key once, then each value with its marker
+        heads = {label.partition(" = ")[0] for label, _xs, _ys in series}
+        common = heads.pop() if len(heads) == 1 and len(series) > 1 else ""
         for n, (label, xs, ys) in enumerate(series):
-            plt.plot(xs, ys, label=label, marker=markers[n % len(markers)])
-        plt.xlabel(x_label)
-        plt.ylabel(y_label)
+            marker = markers[n % len(markers)]
+            plt.plot(xs, ys, marker=marker)  # no label: plotext would draw it on the data
+            items.append((marker, label.partition(" = ")[2] if common else label))
+            xs_all += xs
+        if xs_all:
+            ticks = plotaxes.nice_ticks(min(xs_all), max(xs_all))
+            plt.xticks(ticks, plotaxes.tick_labels(ticks))
+        # the legend and both axis names, outside the plot (at 40 columns plotext drops
+        # an axis name that does not fit beside the other)
+        if len(items) == 1:
+            words = f"{items[0][0]} {y_label} against {x_label}"
+        else:
+            lead = f"{common}: " if common else ""
+            words = f"{lead}{plotaxes.legend_text(items)} · y: {y_label} · x: {x_label}"
+        legend.update(words)
         plot.refresh()
