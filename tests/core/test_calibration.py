@@ -291,3 +291,13 @@ def test_every_fit_keeps_within_its_limit_of_model_runs_and_says_so():
     assert not result.success and result.status == 0
     assert "stopped after 4 model runs (the limit)" in result.message
     assert progress == [1, 2, 3, 4] and result.evaluations == 4
+
+
+def test_readings_beyond_the_longest_simulated_span_are_refused_in_words():
+    """1e9 s is the longest run (workbench.core.transient.options.MAX_DURATION): a reading
+    after it cannot be compared, and the fit says so instead of failing inside the run."""
+    obs = _laminar_observation(0.0)
+    late = Observation("lam", "T", "level", np.array([0.0, 2e9]), np.array([3.0, 0.0]),
+                       obs.system)
+    with pytest.raises(CalibrationError, match="beyond the longest span a run simulates"):
+        predict(late)

@@ -287,3 +287,25 @@ def test_a_unit_the_reader_cannot_use_is_blamed_on_its_key_when_read_directly(tm
     with pytest.raises(CsvError) as caught:
         _read(tmp_path, "t,level\n0,1\n", time_unit="m")
     assert caught.value.key == "time_unit"
+
+
+def test_a_reading_beyond_the_longest_simulated_span_is_refused_naming_its_time():
+    """Times outside what a run can simulate (1e9 s, workbench.core.transient.options) are
+    refused where they are written: 40 years is 40 x 3.15576e7 s (Julian year, IAU)."""
+    found = _problems('[measurements.x]\nelement = "T"\nquantity = "level"\n'
+                      'points = [ { time = "0 s", value = "1 m" }, '
+                      '{ time = "40 year", value = "0.5 m" } ]\n')
+    assert found == ["measurements.x.points[2].time: the reading is more than 32 years after "
+                     "the start of the test, beyond the longest span a run simulates: check "
+                     "the time and its unit"]
+
+
+def test_a_csv_reading_beyond_the_longest_simulated_span_names_its_row(tmp_path):
+    (tmp_path / "log.csv").write_text("t,lvl\n0,1.2\n1e10,0.6\n", encoding="utf-8")
+    text = BASE + ('[measurements.x]\nelement = "T"\nquantity = "level"\nfile = "log.csv"\n'
+                   'time_column = "t"\ntime_unit = "s"\nvalue_column = "lvl"\nvalue_unit = "m"\n')
+    path = tmp_path / "plant.toml"
+    path.write_text(text, encoding="utf-8")
+    with pytest.raises(ProjectError, match=r"measurements.x.file: log.csv: row 3, column 't': "
+                                           "the reading is more than 32 years"):
+        measurements_of(load_project(path))

@@ -298,10 +298,17 @@ def model_trace(obs: Observation, system: System, *, cancel: Callable[[], bool] 
     last reading on a grid of :data:`_GRID` intervals (see :func:`predict`)."""
     from workbench.core.transient import simulate
 
+    from workbench.core.transient.options import MAX_DURATION
+
     span = float(np.max(obs.times))
     if not span > 0.0:
         raise CalibrationError(f"measurement {obs.name}: the readings span no time; give a "
                                "steady reading (one point) or readings at different times")
+    if span > MAX_DURATION:
+        raise CalibrationError(f"measurement {obs.name}: the last reading is "
+                               f"{span / 3.15576e7:.3g} years after the start, beyond the "
+                               f"longest span a run simulates ({MAX_DURATION / 3.15576e7:.0f} "
+                               "years); check the times and their unit")
     result = simulate(system, duration=span, stop_when=None, output_interval=span / _GRID,
                       rtol=rtol, cancel=cancel, junction_pressures=obs.quantity == "pressure")
     if result.status == 2:

@@ -284,6 +284,9 @@ def _points(r: _Reader, path: str, t: dict, quantity: str):
     if times and min(times) < 0.0:
         r.add(f"{key}[1].time", "a time must not be negative (times count from the start of "
               "the test)")
+    late = _too_late(times)
+    if late is not None:
+        r.add(f"{key}[{late + 1}].time", _LATE)
     if len(r.problems) > n0:
         return None
     steady = len(items) == 1
@@ -321,6 +324,11 @@ def _csv(r: _Reader, path: str, t: dict, quantity: str):
     except CsvError as exc:
         r.add(f"{path}.{exc.key}", str(exc))
         return None
+    late = _too_late(found.times)
+    if late is not None:
+        r.add(f"{path}.file", f"{t['file']}: row {found.rows[late]}, column "
+              f"'{t['time_column']}': {_LATE}")
+        return None
     for row, value in zip(found.rows, found.values):
         words = _impossible(r, quantity, value)
         if words:
@@ -329,6 +337,17 @@ def _csv(r: _Reader, path: str, t: dict, quantity: str):
             return None
     times = None if len(found.times) == 1 else np.array(found.times)
     return times, np.array(found.values, dtype=float), found.skipped_rows
+
+
+_LATE = ("the reading is more than 32 years after the start of the test, beyond the longest "
+         "span a run simulates: check the time and its unit")
+
+
+def _too_late(times) -> int | None:
+    """Index of the first time beyond the longest simulated span, or ``None``."""
+    from workbench.core.transient.options import MAX_DURATION
+
+    return next((i for i, t in enumerate(times) if t is not None and t > MAX_DURATION), None)
 
 
 def _impossible(r: _Reader, quantity: str, value: float) -> str | None:
