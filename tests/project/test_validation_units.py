@@ -146,3 +146,28 @@ def test_a_site_above_the_troposphere_gives_its_limits_in_feet():
     # the troposphere's top, 11019 m (ISO 2533), in feet (NIST SP 811)
     assert f"{11019 / FT:.0f} ft above sea level" in message
     assert not SI_UNIT.search(computed_part(message)), message
+
+
+def test_a_fluid_outside_its_fits_is_refused_with_its_range_in_fahrenheit():
+    text = BASE.format(units="US", height="5.2 m", tank="", bore="102.3 mm", end="1.2 m")
+    text = text.replace('kind = "water"\ntemperature = "20 degC"',
+                        'kind = "seawater"\nsalinity = "35 g/kg"\ntemperature = "130 degC"')
+    with pytest.raises(ProjectError) as info:
+        load_project_text(text, "t.toml")
+    message = {p.key: p.message for p in info.value.problems}["fluid.temperature"]
+    # 130 degC and the fit's top, 120 degC, in degF: F = 9/5 C + 32 (NIST SP 811)
+    assert "at 266 degF" in message and "to 248 degF" in message
+    assert "degC" not in message
+
+
+def test_a_hot_waters_note_gives_its_temperature_and_pressures_in_us_units():
+    from workbench.output.common import finding_message
+
+    text = BASE.format(units="US", height="5.2 m", tank="", bore="102.3 mm", end="1.2 m")
+    project = load_project_text(text.replace('temperature = "20 degC"',
+                                             'temperature = "101 degC"'), "t.toml")
+    notes = [finding_message(n, "US") for n in project.system.fluid.notes]
+    # 101 degC = 213.8 degF; 1 atm = 14.7 psia (ISO 2533, NIST SP 811)
+    boiling = [n for n in notes if "boiling point" in n]
+    assert boiling and "214 degF" in boiling[0] and "at 14.7 psia" in boiling[0], notes
+    assert "kPa" not in boiling[0] and "degC" not in boiling[0]

@@ -98,7 +98,10 @@ def _check(path: str) -> dict:
         report["problems"] = [{"key": p.key, "line": p.line, "column": p.column,
                                "message": p.message, "text": str(p)} for p in exc.problems]
         return report
-    report.update(valid=True, summary=summary(project), notes=list(project.system.fluid.notes))
+    from workbench.output.common import finding_message
+
+    report.update(valid=True, summary=summary(project),
+                  notes=[finding_message(n, project.unit_system) for n in project.system.fluid.notes])
     return report
 
 

@@ -34,8 +34,13 @@ SI_DISPLAY: dict[str, tuple[float, str]] = {
     "velocity": (1.0, "m/s"),
     "time": (1.0, "s"),
     "volume": (1.0, "m3"),
+    "temperature": (1.0, "degC"),
     "small_volume": (1000.0, "L"),
 }
+
+
+#: Quantity kind -> offset added after the factor (a temperature [K] in degC).
+SI_OFFSET: dict[str, float] = {"temperature": -273.15}
 
 
 def number_text(x: float, digits: int) -> str:
@@ -58,7 +63,7 @@ def si_text(value: float, kind: str, digits: int = 3) -> str:
     """An SI value in the SI display unit of ``kind``, e.g. ``si_text(-1200.0, "pressure")
     -> "-1.2 kPa"``."""
     factor, label = SI_DISPLAY[kind]
-    return f"{number_text(value * factor, digits)} {label}"
+    return f"{number_text(value * factor + SI_OFFSET.get(kind, 0.0), digits)} {label}"
 
 
 def fill(template: str, values, text_of) -> str:

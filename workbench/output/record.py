@@ -242,8 +242,10 @@ def _fluid(project: Project) -> list[str]:
          + " (standard atmosphere, ISO 2533)"],
     ]
     out += _table(["Property", "Value"], rows)
+    from workbench.output.common import finding_message
+
     for note in fluid.notes:
-        out.append(f"- Note: {note}")
+        out.append(f"- Note: {finding_message(note, units)}")
     if fluid.notes:
         out.append("")
     return out

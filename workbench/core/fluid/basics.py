@@ -20,6 +20,17 @@ def celsius(temperature_k: float) -> str:
     return f"{temperature_k - T_ZERO_CELSIUS:.1f} degC"
 
 
+def water_boils_note(t: float, p: float, psat: float):
+    """The note for a solution whose water (an upper bound of its vapour pressure) boils at
+    ``t`` [K] and ``p`` [Pa abs], with its numbers kept for the display units."""
+    from workbench.core.finding_text import KeptText
+
+    return KeptText("at {t} water's vapour pressure ({psat}) reaches {p}: the solution may "
+                    "boil (its boiling point is higher than water's, by an amount not "
+                    "computed here)", t=(t, "temperature", 3), psat=(psat, "pressure_abs", 4),
+                    p=(p, "pressure_abs"))
+
+
 def check_temperature(temperature_k: float) -> float:
     """``temperature_k`` as a float [K]; refuses a non-number, a non-finite or a
     non-positive value."""

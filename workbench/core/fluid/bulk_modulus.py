@@ -5,7 +5,7 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING
 
-from workbench.core.fluid.basics import celsius
+from workbench.core.finding_text import KeptText
 
 if TYPE_CHECKING:
     from workbench.core.fluid.catalogue import LiquidEntry
@@ -52,20 +52,19 @@ def eos_bulk_modulus(entry: LiquidEntry, t: float, p: float) -> tuple[float | No
     table = TABLES[entry.eos]
     no_value = "give [fluid] bulk_modulus for surge wave speeds"
     if not (table.t_triple <= t < table.t_critical):
-        return None, (
-            f"no bulk modulus for {entry.name} at {celsius(t)}: its equation of state covers "
-            f"liquid from the triple point {celsius(table.t_triple)} to the critical point "
-            f"{celsius(table.t_critical)}; {no_value}"
-        )
+        return None, KeptText(
+            f"no bulk modulus for {entry.name} at {{t}}: its equation of state covers liquid "
+            f"from the triple point {{triple}} to the critical point {{critical}}; {no_value}",
+            3, t=(t, "temperature"), triple=(table.t_triple, "temperature"),
+            critical=(table.t_critical, "temperature"))
     for nodes, values, slopes in table.segments:
         if nodes[0] <= t <= nodes[-1]:
             break
     else:
-        return None, (
-            f"no bulk modulus for {entry.name} at {celsius(t)}: it is tabulated from its "
-            f"equation of state up to {celsius(table.segments[-1][0][-1])}, the end of "
-            f"the correlations' range; {no_value}"
-        )
+        return None, KeptText(
+            f"no bulk modulus for {entry.name} at {{t}}: it is tabulated from its equation "
+            f"of state up to {{end}}, the end of the correlations' range; {no_value}", 3,
+            t=(t, "temperature"), end=(table.segments[-1][0][-1], "temperature"))
     i = min(bisect_right(nodes, t), len(nodes) - 1) - 1
     h = nodes[i + 1] - nodes[i]
     s = (t - nodes[i]) / h

@@ -15,7 +15,12 @@ import re
 from dataclasses import dataclass
 from functools import lru_cache
 
-from workbench.core.fluid.basics import FluidPropertyError, celsius, check_temperature
+from workbench.core.finding_text import KeptText
+from workbench.core.fluid.basics import (
+    FluidPropertyError,
+    check_temperature,
+    water_boils_note,
+)
 from workbench.core.fluid.bulk_modulus import (
     EOS_DODECANE,
     EOS_ETHANOL,
@@ -176,11 +181,11 @@ def _entry(name: str) -> LiquidEntry:
 
 def _refuse_supercritical(entry: LiquidEntry, t: float, t_critical: float) -> None:
     if t >= t_critical:
-        raise FluidPropertyError(
-            f"{entry.name} at {celsius(t)} is above its critical temperature "
-            f"({celsius(t_critical)}): there is no liquid; its correlations hold from "
-            f"{celsius(entry.t_min)} to {celsius(entry.t_max)}"
-        )
+        raise FluidPropertyError(KeptText(
+            f"{entry.name} at {{t}} is above its critical temperature ({{critical}}): there "
+            "is no liquid; its correlations hold from {low} to {high}", 3,
+            t=(t, "temperature"), critical=(t_critical, "temperature"),
+            low=(entry.t_min, "temperature"), high=(entry.t_max, "temperature")))
 
 
 def _perry_dippr(entry: LiquidEntry, t: float) -> tuple[float, float, float | None]:
@@ -221,31 +226,29 @@ def _liquid_cached(key: str, t: float, p: float) -> FluidProps:
         # Far outside their range the equations overflow (or meet a pole): no value.
         rho = mu = math.nan
     if not all(math.isfinite(v) and v > 0.0 for v in (rho, mu)):
-        raise FluidPropertyError(
-            f"{entry.name}: no physical values at {celsius(t)}; its correlations hold from "
-            f"{celsius(entry.t_min)} to {celsius(entry.t_max)} ({entry.source})"
-        )
+        raise FluidPropertyError(KeptText(
+            f"{entry.name}: no physical values at {{t}}; its correlations hold from {{low}} "
+            f"to {{high}} ({entry.source})", 3, t=(t, "temperature"),
+            low=(entry.t_min, "temperature"), high=(entry.t_max, "temperature")))
     notes: list[str] = []
     if not (entry.t_min <= t <= entry.t_max):
-        notes.append(
-            f"{celsius(t)} is outside the range of the {entry.name} correlations "
-            f"({celsius(entry.t_min)} to {celsius(entry.t_max)}): values are extrapolated"
-        )
+        notes.append(KeptText(
+            f"{{t}} is outside the range of the {entry.name} correlations ({{low}} to "
+            "{high}): values are extrapolated", t=(t, "temperature", 3),
+            low=(entry.t_min, "temperature", 3), high=(entry.t_max, "temperature", 3)
+        ))
     if psat is None:
         notes.append(f"no vapour pressure for {entry.name}: vapour checks are skipped")
     elif entry.method != "laliberte" and psat >= p:
-        notes.append(
-            f"{entry.name} at {celsius(t)} is at or above its boiling point at "
-            f"{p / 1000:.3g} kPa abs (vapour pressure {psat / 1000:.4g} kPa)"
-        )
+        notes.append(KeptText(
+            f"{entry.name} at {{t}} is at or above its boiling point at {{p}} (vapour "
+            "pressure {psat})", t=(t, "temperature", 3), p=(p, "pressure_abs"),
+            psat=(psat, "pressure_abs", 4)
+        ))
     if entry.method == "laliberte":
         notes.append("vapour pressure is pure water's: an upper bound for the solution")
         if psat is not None and psat >= p:
-            notes.append(
-                f"at {celsius(t)} water's vapour pressure ({psat / 1000:.4g} kPa) reaches "
-                f"{p / 1000:.3g} kPa abs: the solution may boil (its boiling point is higher "
-                "than water's, by an amount not computed here)"
-            )
+            notes.append(water_boils_note(t, p, psat))
     formulation = entry.source
     if entry.mass_fraction is not None:
         formulation = f"{entry.name}: {entry.source}"

@@ -8,7 +8,12 @@ import math
 from dataclasses import dataclass
 from functools import lru_cache
 
-from workbench.core.fluid.basics import FluidPropertyError, celsius, check_temperature
+from workbench.core.finding_text import KeptText
+from workbench.core.fluid.basics import (
+    FluidPropertyError,
+    check_temperature,
+    water_boils_note,
+)
 from workbench.core.fluid.incompressible_fits import incomp_values
 from workbench.core.fluid.water import water_vapour_pressure
 from workbench.core.model import FluidProps
@@ -160,17 +165,18 @@ def _solution_cached(kind: str, t: float, x: float, p: float) -> FluidProps:
     t_freeze = fit["freezing"]
     freezes = math.isfinite(t_freeze) and t_freeze > entry.t_min
     if freezes and t < t_freeze:
-        raise FluidPropertyError(
-            f"{what} at {celsius(t)} is below its freezing point {celsius(t_freeze)}: ice "
-            f"forms; its fits hold from the freezing point to {celsius(entry.t_max)} "
-            f"({entry.source})"
-        )
+        raise FluidPropertyError(KeptText(
+            f"{what} at {{t}} is below its freezing point {{freeze}}: ice forms; its fits "
+            f"hold from the freezing point to {{high}} ({entry.source})", 3,
+            t=(t, "temperature"), freeze=(t_freeze, "temperature"),
+            high=(entry.t_max, "temperature")))
     if not (entry.t_min <= t <= entry.t_max):
-        low = f"the freezing point {celsius(t_freeze)}" if freezes else celsius(entry.t_min)
-        raise FluidPropertyError(
-            f"{what} at {celsius(t)} is outside the range of its fits, from {low} to "
-            f"{celsius(entry.t_max)} ({entry.source})"
-        )
+        low = "the freezing point {low}" if freezes else "{low}"
+        raise FluidPropertyError(KeptText(
+            f"{what} at {{t}} is outside the range of its fits, from {low} to {{high}} "
+            f"({entry.source})", 3, t=(t, "temperature"),
+            low=(t_freeze if freezes else entry.t_min, "temperature"),
+            high=(entry.t_max, "temperature")))
     notes: list[str] = []
     if entry.vapor_pressure_from_source:
         psat = fit["vapor_pressure"]
@@ -178,25 +184,22 @@ def _solution_cached(kind: str, t: float, x: float, p: float) -> FluidProps:
         if psat >= p:
             # The fits do not depend on pressure: the values are those of liquid just
             # above its saturation pressure.
-            notes.append(
-                f"{entry.name} at {celsius(t)} is at or above its boiling point at "
-                f"{p / 1000:.3g} kPa abs (vapour pressure {psat / 1000:.4g} kPa): values are "
-                "for liquid just above its saturation pressure"
-            )
+            notes.append(KeptText(
+                f"{entry.name} at {{t}} is at or above its boiling point at {{p}} (vapour "
+                "pressure {psat}): values are for liquid just above its saturation pressure",
+                t=(t, "temperature", 3), p=(p, "pressure_abs"), psat=(psat, "pressure_abs", 4)
+            ))
     else:
         psat = water_vapour_pressure(t)
         formulation = (f"{what}: {entry.source}; vapour pressure: pure water's (IAPWS), an "
                        "upper bound for the solution")
         notes.append("vapour pressure is pure water's: an upper bound for the solution")
         if psat >= p:
-            notes.append(
-                f"at {celsius(t)} water's vapour pressure ({psat / 1000:.4g} kPa) reaches "
-                f"{p / 1000:.3g} kPa abs: the solution may boil (its boiling point is higher "
-                "than water's, by an amount not computed here)"
-            )
+            notes.append(water_boils_note(t, p, psat))
     rho, mu = fit["density"], fit["viscosity"]
     if not all(math.isfinite(v) and v > 0.0 for v in (rho, mu)):
-        raise FluidPropertyError(f"{what}: no physical values at {celsius(t)} ({entry.source})")
+        raise FluidPropertyError(KeptText(f"{what}: no physical values at {{t}} ({entry.source})",
+                                          3, t=(t, "temperature")))
     return FluidProps(
         name=what,
         density=rho,

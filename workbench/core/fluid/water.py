@@ -7,10 +7,10 @@ from __future__ import annotations
 import math
 from functools import lru_cache
 
+from workbench.core.finding_text import KeptText
 from workbench.core.fluid.basics import (
     T_ZERO_CELSIUS,
     FluidPropertyError,
-    celsius,
     check_temperature,
 )
 from workbench.core.model import FluidProps
@@ -41,19 +41,19 @@ def _water_cached(temperature_k: float, pressure_pa: float) -> FluidProps:
     if t < T_ZERO_CELSIUS:
         # IF97's saturation equation is not meant for supercooled liquid; IAPWS-95's is.
         psat = iapws95_Psat(t)
-        notes.append(
-            f"{celsius(t)} is below 0 degC: water freezes; the values are IAPWS-95 "
-            "extrapolations for supercooled liquid"
-        )
+        notes.append(KeptText(
+            "{t} is below {zero}: water freezes; the values are IAPWS-95 extrapolations for "
+            "supercooled liquid", t=(t, "temperature", 3), zero=(T_ZERO_CELSIUS, "temperature")
+        ))
     else:
         psat = Psat_IAPWS(t)
     p_eval = p
     if psat >= p:
-        notes.append(
-            f"{celsius(t)} is at or above the boiling point at {p / 1000:.3g} kPa abs "
-            f"(vapour pressure {psat / 1000:.4g} kPa): the liquid flashes; values are for "
-            "liquid just above its saturation pressure"
-        )
+        notes.append(KeptText(
+            "{t} is at or above the boiling point at {p} (vapour pressure {psat}): the liquid "
+            "flashes; values are for liquid just above its saturation pressure",
+            t=(t, "temperature", 3), p=(p, "pressure_abs"), psat=(psat, "pressure_abs", 4)
+        ))
         # Evaluate the liquid branch: IAPWS-95 decides the phase by its own saturation
         # pressure, which differs from IF97's in the fifth digit.
         p_eval = 1.0001 * max(psat, iapws95_Psat(t))
@@ -122,11 +122,10 @@ def water_properties(temperature_k: float, pressure_pa: float = 101325.0) -> Flu
     if not math.isfinite(p) or p <= 0.0:
         raise FluidPropertyError(f"expected a positive absolute pressure [Pa], got {pressure_pa!r}")
     if not (WATER_T_MIN <= t < WATER_T_CRITICAL):
-        raise FluidPropertyError(
-            f"water at {celsius(t)} ({t:g} K) is outside the liquid range the IAPWS "
-            f"formulations cover here ({WATER_T_MIN:g} K to the critical point "
-            f"{WATER_T_CRITICAL:g} K)"
-        )
+        raise FluidPropertyError(KeptText(
+            "water at {t} is outside the liquid range the IAPWS formulations cover here "
+            "({low} to the critical point {critical})", 3, t=(t, "temperature"),
+            low=(WATER_T_MIN, "temperature"), critical=(WATER_T_CRITICAL, "temperature")))
     return _water_cached(t, p)
 
 

@@ -66,6 +66,17 @@ class Checker:
     def add(self, key: str, message: str) -> None:
         self.problems.append(Problem(self.file, key, message))
 
+    def words(self, text: object) -> str:
+        """A core message in the display units: a
+        :class:`~workbench.core.finding_text.KeptText` is written again from its template and
+        SI values (any other text is returned as it is)."""
+        template = getattr(text, "template", "")
+        if not template or self.unit_system == "SI":
+            return str(text)
+        from workbench.core.finding_text import fill
+
+        return fill(template, text.values, lambda v, kind, digits: self.shown(v, kind, digits))
+
     def example(self, text: str, kind: str) -> str:
         """An example quantity (SI, as the schema writes it) in the display units, e.g.
         ``example("50 kPa", "pressure") -> "7.25 psi"`` on a US project."""

@@ -56,7 +56,7 @@ def check_fluid(c: Checker, data: dict) -> m.FluidProps | None:
             else:
                 props = core_fluid.liquid_properties(kind, temperature, c.atmosphere)
         except ValueError as exc:
-            c.add("fluid.temperature", str(exc))
+            c.add("fluid.temperature", c.words(exc.args[0] if exc.args else exc))
             return None
         if bulk is not None:  # the user's bulk modulus overrides (or supplies a missing one)
             import dataclasses
