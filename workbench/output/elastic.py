@@ -138,7 +138,7 @@ def elastic_findings(results: dict[str, ElasticResult],
     A chain that could not be run gives an ``surge.elastic_failed`` entry with its message.
     Messages are SI (as ``--json`` has them) unless ``unit_system`` asks for display units.
     """
-    from workbench.output.common import finding_message
+    from workbench.output.common import finding_message, finding_values
 
     def words(item) -> str:
         return item.message if unit_system is None else finding_message(item, unit_system)
@@ -154,7 +154,8 @@ def elastic_findings(results: dict[str, ElasticResult],
                         "message": words(res), "severity": "caution", "source": ""})
         for f in res.findings:
             out.append({"code": f.code, "element": f.element, "message": words(f),
-                        "severity": f.severity, "source": f.source})
+                        "severity": f.severity, "source": f.source,
+                        **({"values": finding_values(f)} if f.values else {})})
     return out
 
 
