@@ -35,7 +35,8 @@ CAUTIONS: tuple[Caution, ...] = (
     ),
     Caution(
         "Vacuum on tanks and tank vents",
-        "Atmospheric storage tanks are built for a few hundred pascals of vacuum; a drain or "
+        "Atmospheric storage tanks are built for a few hundred pascals (a few hundredths of "
+        "a psi) of vacuum; a drain or "
         "pump-out through a vent that is too small, iced, fouled with polymer or blanked "
         "after maintenance pulls them in. The vent model is an ideal-gas air space: a "
         "nitrogen or other inert blanket changes the gas, and its blanketing regulator (not "
