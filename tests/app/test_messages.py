@@ -41,3 +41,42 @@ async def test_the_highlighted_warning_is_shown_whole_in_the_detail_pane_of_both
         assert len(run_text) > 80  # longer than a table row can show
         assert run_text in " ".join(str(detail.render()).split())
         assert _whole_on_screen(detail)
+
+
+async def test_notices_never_cover_the_status_line_the_keys_or_a_detail_pane(project_file):
+    """Saved, undid and an error notice stacked at once, on the System view (help line
+    under the form) and on Flows and Events (detail panes at the foot of the view)."""
+    from textual.widgets._toast import Toast
+
+    from tests.app.conftest import choose_entry, type_into
+    from workbench.app.widgets.keyfooter import KeyFooter
+
+    app = make(project_file(DRAIN))
+    async with app.run_test(size=SIZE, notifications=True) as pilot:
+        await settle(pilot)
+        await pilot.press("ctrl+r")
+        await pilot.pause()
+        await app.workers.wait_for_complete()
+        await choose_entry(pilot, "lines:210-DR-04")
+        await type_into(pilot, "lines.210-DR-04.length", "90 m")
+        await settle(pilot)
+        for view, guarded in (("f2", "#field-help"), ("f3", "#finding-detail"),
+                              ("f6", "#event-detail")):
+            await pilot.press(view)
+            await pilot.pause()
+            await pilot.press("ctrl+z", "ctrl+s")  # "undid: …" and "saved /tmp/…"
+            app.notify("a problem written at length " * 4, title="Simulation",
+                       severity="error", timeout=30)
+            await pilot.pause()
+            await pilot.pause()
+            toasts = [t.region for t in app.screen.query(Toast)]
+            assert len(toasts) >= 2, view  # the short-lived "undid" may be gone already
+            keep = [app.screen.query_one("#status").region,
+                    app.screen.query_one(KeyFooter).region,
+                    app.screen.query_one(guarded).region]
+            assert all(region.height for region in keep)
+            for toast in toasts:
+                for region in keep:
+                    assert not toast.overlaps(region), (view, toast, region)
+            app.clear_notifications()
+            await pilot.press("ctrl+y")

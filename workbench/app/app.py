@@ -271,7 +271,8 @@ class WorkbenchApp(App[int]):
 
     def on_workbench_app_project_loaded(self, message: ProjectLoaded) -> None:
         self.adopt(message.project, message.path)
-        self.notify(f"opened {message.path}" if message.path else "new project from the starter")
+        self.notify(f"opened {message.path}" if message.path else "new project from the starter",
+                    timeout=3)
         # the System view releases the keys typed ahead once it shows the project
 
     def adopt(self, project: Any, path: Path | None, *, saved: bool = True,
