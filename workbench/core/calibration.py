@@ -32,6 +32,12 @@ a small step. Such a parameter is probed at five points of its range (the others
 if it acts there the search starts again from the best probe, and only a parameter that
 acts nowhere is said not to act.
 
+Every fit has a limit of model runs (:func:`run_limit`, finite differences included). A
+search cut short there does not converge; its best point still gets scipy's Jacobian (one
+more ``least_squares`` call with ``max_nfev=1``), so its intervals and the correlation of
+its parameters are reported: two parameters the readings cannot tell apart are the usual
+reason a search creeps along a valley until the limit.
+
 Confidence intervals follow the linearised theory of nonlinear regression (Bates & Watts,
 *Nonlinear Regression Analysis and Its Applications*, Wiley 1988, ch. 2):
 
@@ -297,7 +303,6 @@ def model_trace(obs: Observation, system: System, *, cancel: Callable[[], bool] 
     """The model's output for a reading in time, ``(t [s], series [SI])``, from zero to the
     last reading on a grid of :data:`_GRID` intervals (see :func:`predict`)."""
     from workbench.core.transient import simulate
-
     from workbench.core.transient.options import MAX_DURATION
 
     span = float(np.max(obs.times))
@@ -384,9 +389,10 @@ _PROBES = (0.0, 0.25, 0.5, 0.75, 1.0)
 
 def run_limit(n_parameters: int) -> int:
     """Most model runs a fit of ``n_parameters`` makes (each runs every observation once):
-    the search with its finite differences, the probes of a parameter that seems not to
-    act, and the runs before and after."""
-    return 25 * (n_parameters + 1) + len(_PROBES) * n_parameters + 2
+    the search with its finite differences and the run at the start, the probes of a
+    parameter that seems not to act, and a reserve for the end (the Jacobian at the best
+    point of a search cut short, the run at the fitted values)."""
+    return 25 * (n_parameters + 1) + len(_PROBES) * n_parameters + n_parameters + 1
 
 
 class _Problem:
@@ -471,13 +477,14 @@ class _Problem:
     def residuals(self, u: np.ndarray) -> np.ndarray:
         return self.run(u)[0]
 
-    def search(self, u_start: np.ndarray):
+    def search(self, u_start: np.ndarray, budget: int | None = None):
         """``scipy.optimize.least_squares`` from ``u_start`` with its own forward
         differences (``diff_step``; on ``u`` in [1, 2] the relative step is a fixed fraction
-        of each range, never the ``sqrt(eps)`` it falls back to at zero)."""
+        of each range, never the ``sqrt(eps)`` it falls back to at zero). ``budget=1``
+        gives the Jacobian at ``u_start`` and stops."""
         from scipy.optimize import least_squares
 
-        budget = max(self.limit - self.evaluations, 1)
+        budget = budget or max(self.limit - self.evaluations, 1)
         return least_squares(self.residuals, u_start, jac="2-point", diff_step=_DIFF_STEP,
                              bounds=(1.0, 2.0), method="trf", x_scale="jac", max_nfev=budget,
                              xtol=1e-6, ftol=1e-8, gtol=1e-8)
@@ -543,8 +550,11 @@ def fit(observations: Sequence[Observation], parameters: Sequence[FitParameter],
     """
     if not observations or not parameters:
         raise CalibrationError("a fit needs at least one measurement and one parameter")
-    limit = run_limit(len(parameters)) if max_evaluations is None else int(max_evaluations)
-    prob = _Problem(observations, parameters, progress, cancel, max(limit, 2))
+    k = len(parameters)
+    limit = run_limit(k) if max_evaluations is None else int(max_evaluations)
+    # the search may use all but the reserve: a Jacobian at its best point if it is cut
+    # short (k runs) and the run at the fitted values
+    prob = _Problem(observations, parameters, progress, cancel, max(limit - k - 1, 1))
     if np.any(prob.scale <= 0.0):
         bad = next(p.key for p, s in zip(prob.params, prob.scale) if s <= 0.0)
         raise CalibrationError(f"{bad}: the lower bound must be below the upper bound")
@@ -553,18 +563,26 @@ def fit(observations: Sequence[Observation], parameters: Sequence[FitParameter],
         before, trace_before = prob.traced(u0)
     except _Cancelled:
         return _stopped(prob, u0, None, -2, "cancelled before the first model run ended")
+    cut_short = False
     try:
-        sol, plateau = _search_and_probe(prob, u0)
+        try:
+            sol, plateau = _search_and_probe(prob, u0)
+        except _OutOfRuns:  # the best point so far, with its Jacobian: intervals, correlation
+            cut_short, prob.limit = True, max(limit, prob.evaluations + k + 1)
+            sol, plateau = prob.search(prob.best[1], budget=1), []
         after, trace_after = prob.traced(sol.x)
     except _Cancelled:
         return _stopped(prob, u0, before, -2, "cancelled by the user")
     except _OutOfRuns:
-        best = prob.best[1] if prob.best is not None else u0
-        return _stopped(prob, best, before, 0, f"stopped after {prob.evaluations} model runs "
-                        "(the limit) before converging")
+        return _stopped(prob, prob.best[1], before, 0, f"stopped after {prob.evaluations} "
+                        "model runs (the limit) before converging")
     except CalibrationError as exc:
         return _stopped(prob, u0, before, -3, str(exc))
     result = _summarise(prob, sol, sol.jac, before, after, plateau)
+    if result.status == 0 or (cut_short and result.status > 0):
+        result = dataclasses.replace(result, success=False, status=0, message=(
+            f"stopped after {prob.evaluations} model runs (the limit) before converging; "
+            "the values are the best found"))
     return dataclasses.replace(result, trace_before=trace_before, trace_after=trace_after)
 
 

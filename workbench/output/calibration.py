@@ -243,8 +243,8 @@ def calibration_tables(run: "CalibrationRun") -> list:
 
     res = run.result
     units = run.project.unit_system
-    out: list = [Text(f"{run.project.system.title}: calibration: {res.message} "
-                      f"({res.evaluations} model runs).",
+    runs = "" if "model runs" in res.message else f" ({res.evaluations} model runs)"
+    out: list = [Text(f"{run.project.system.title}: calibration: {res.message}{runs}.",
                       style="" if res.success else "bold red")]
     pt = simple_table("Parameters")
     for col in ("key path", "was", "fitted", "95 % interval"):

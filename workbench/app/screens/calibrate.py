@@ -52,7 +52,8 @@ def result_text(run: Any, unit_system: str) -> str:
     from workbench.project.units import format_quantity
 
     res = run.result
-    lines = [f"Fit {res.message} ({res.evaluations} model runs)."]
+    runs = "" if "model runs" in res.message else f" ({res.evaluations} model runs)"
+    lines = [f"Fit {res.message}{runs}."]
     cut = res.ci95_cut
     for i, p in enumerate(res.parameters):
         lo, hi = res.ci95[i]
