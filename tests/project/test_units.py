@@ -152,3 +152,16 @@ def test_formatting_rounds_to_significant_digits():
     assert format_quantity(0.0125, "flow", "SI") == "12.5 L/s"
     assert format_quantity(0.10226, "diameter", "SI", digits=4) == "102.3 mm"
     assert format_quantity(101325.0, "pressure", "SI", digits=4) == "101.3 kPa"
+
+
+@pytest.mark.parametrize("text, kind, system, expected, source", [
+    ("50 kPa", "pressure", "US", f"{50e3 / 6894.757293168:.3g} psi", "NIST SP 811: 1 psi = 6894.757 Pa"),
+    ("2 m", "elevation", "US", f"{2 / 0.3048:.3g} ft", "NIST SP 811: 1 ft = 0.3048 m"),
+    ("20 degC", "temperature", "US", "68 degF", "F = 9/5 C + 32 (definition)"),
+    ("50 kPa", "pressure", "SI", "50 kPa", "SI: as the schema writes it"),
+    ("40", "number", "US", "40", "a plain number has no units"),
+])
+def test_an_example_is_shown_in_the_display_units(text, kind, system, expected, source):
+    from workbench.project.units import example_text
+
+    assert example_text(text, kind, system) == expected

@@ -42,6 +42,7 @@ __all__ = [
     "QuantityKind",
     "UnitError",
     "display_unit",
+    "example_text",
     "format_quantity",
     "get_registry",
     "import_pint",
@@ -479,6 +480,18 @@ def to_display(value_si, kind: str, unit_system: str):
         return value_si
     ureg = get_registry()
     return ureg.Quantity(value_si, spec.si_unit).to(unit).magnitude
+
+
+def example_text(text: str, kind: str, unit_system: str) -> str:
+    """An example quantity as the schema writes it (SI) in the display units, to 3 digits,
+    e.g. ``example_text("50 kPa", "pressure", "US") -> "7.25 psi"``; as it is in SI, for a
+    kind without units, or when it does not read."""
+    if unit_system == "SI" or kind not in QUANTITY_KINDS:
+        return text
+    try:
+        return format_quantity(parse_quantity(text, kind), kind, unit_system, 3)
+    except UnitError:
+        return text
 
 
 def format_quantity(value_si: float, kind: str, unit_system: str = "SI", digits: int = 4) -> str:

@@ -95,7 +95,9 @@ class SystemPane(Horizontal):
         shown = hint(message.field, row.stored, self.app.unit_system)
         text = f"{message.field.keypath}{' ' + shown if shown else ''}: {spec.help}"
         if spec.example:
-            text += f" · example: {spec.example}"
+            from workbench.project.units import example_text
+
+            text += f" · example: {example_text(spec.example, spec.kind, self.app.unit_system)}"
         if row.choices:
             text += " · one of: " + ", ".join(row.choices)
         if spec.kind == "list":
