@@ -34,7 +34,8 @@ class Plausible:
     what: str
     """The quantity in the user's words, for the message ("a pipe bore")."""
     unit: str = ""
-    """Unit the limits are written in, in the message."""
+    """Unit the limits are written in, in the message, on an SI display (a US display
+    writes them in the US display unit of the key's quantity kind)."""
     scale: float = 1.0
     """SI value of one ``unit``."""
     why: str = ""
