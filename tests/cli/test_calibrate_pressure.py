@@ -115,3 +115,26 @@ def test_a_pressure_trace_is_compared_over_its_own_span_when_the_run_ends_earlie
     m = json.loads(capsys.readouterr().out)["measurements"]["gauge"]
     # the project's own run keeps no junction pressures: a run over the test's span is used
     assert m["compared"] == 7 and m["compared_on"] == "a run at the test's conditions"
+
+
+def _steady_project(bore2_mm: float) -> str:
+    """One steady gauge reading at the start level (the closed form at t = 0)."""
+    text = project(bore2_mm)
+    start = text.index("points = [")
+    end = text.index("\n", start)
+    return text[:start] + f'points = [ {{ value = "{gauge(0.0) / 1000:.4f} kPa" }} ]' + text[end:]
+
+
+def test_a_steady_gauge_reading_at_a_junction_is_still_compared_and_fitted(tmp_path, capsys):
+    path = _write(tmp_path, _steady_project(25.0))
+    assert main(["simulate", path, "--json"]) == 0
+    m = json.loads(capsys.readouterr().out)["measurements"]["gauge"]
+    assert m["compared_on"] == "the steady solution" and m["compared"] == 1
+    assert m["max_abs"] < 30.0  # the velocity heads the closed form leaves out, 24 Pa at most
+    path = _write(tmp_path, _steady_project(31.0))
+    code = main(["calibrate", path, "--fit", "lines.L2.inner_diameter=15..34 mm", "--json"])
+    out = json.loads(capsys.readouterr().out)
+    assert code == 0, out["message"]
+    assert out["parameters"]["lines.L2.inner_diameter"]["value_si"] == pytest.approx(D, rel=2e-3)
+    # one reading, one parameter: no interval, and the fit says so
+    assert "calibration.no_interval" in [w["code"] for w in out["warnings"]]
