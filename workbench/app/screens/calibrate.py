@@ -52,8 +52,9 @@ def result_text(run: Any, unit_system: str) -> str:
     from workbench.project.units import format_quantity
 
     res = run.result
-    runs = "" if "model runs" in res.message else f" ({res.evaluations} model runs)"
-    lines = [f"Fit {res.message}{runs}."]
+    # the status line above says why a fit failed; here only that it did
+    lines = [f"Fit {'converged' if res.success else 'did not succeed'} "
+             f"({res.evaluations} model runs)."]
     cut = res.ci95_cut
     for i, p in enumerate(res.parameters):
         lo, hi = res.ci95[i]
@@ -62,7 +63,9 @@ def result_text(run: Any, unit_system: str) -> str:
                     if math.isfinite(lo) and math.isfinite(hi) else "no interval")
         lines.append(f"  {p.key}: {value_text(p, p.start, unit_system)} -> "
                      f"{value_text(p, float(res.values[i]), unit_system)} ({interval})")
-    lines += [f"  * {words}." for _key, words in interval_notes(run)]
+    if interval_notes(run):  # the full words are in calibrate's table; the view is small
+        lines.append("  * cut at zero or at the range searched: the readings bound it on one "
+                     "side only")
     for m in run.measurements:
         kind = DISPLAY_KIND[m.quantity]
         before, after = res.rms_before.get(m.name), res.rms_after.get(m.name)
@@ -94,7 +97,7 @@ class CalibrateScreen(Screen[None]):
     CalibrateScreen #calib-status { height: auto; max-height: 3; padding: 0 1; }
     CalibrateScreen #calib-status.-error { color: $error; }
     CalibrateScreen #calib-progress { padding: 0 1; }
-    CalibrateScreen #calib-result { height: auto; max-height: 8; padding: 0 1; overflow-y: auto; }
+    CalibrateScreen #calib-result { height: auto; max-height: 10; padding: 0 1; overflow-y: auto; }
     CalibrateScreen #calib-plot-holder { height: 1fr; min-height: 6; }
     """
 
