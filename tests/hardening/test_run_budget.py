@@ -29,3 +29,20 @@ def test_a_run_that_spends_its_step_budget_stops_with_its_results_kept(monkeypat
     common = np.searchsorted(whole.t, cut.t[-1])
     assert np.allclose(np.interp(cut.t, whole.t[:common + 1], whole.levels[0][:common + 1]),
                        cut.levels[0], rtol=1e-3, atol=1e-6)
+
+
+def test_report_of_a_run_that_stops_short_writes_the_record_and_exits_1_as_simulate_does(
+        tmp_path, monkeypatch):
+    """README, *Exit status* and *Solving and simulating*: a run that stops short is shown,
+    marked incomplete, with exit status 1. ``report`` exited 0 on such a run, so a script
+    took the record of a partial run for a complete one."""
+    from tests.hardening.harness import run_cli
+
+    monkeypatch.setattr(loop, "STEP_BUDGET", 10)
+    path = ROOT / "projects" / "fellgate_neutraliser_drain.toml"
+    record = tmp_path / "record.md"
+    simulated = run_cli(["simulate", str(path)], project_path=str(path))
+    reported = run_cli(["report", str(path), "--output", str(record)], project_path=str(path))
+    assert simulated.code == reported.code == 1
+    assert f"{path}: simulation: integration stopped" in reported.stderr
+    assert "after 10 integration steps" in record.read_text()  # kept, with its outcome

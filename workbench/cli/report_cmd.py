@@ -54,6 +54,7 @@ def run(args: argparse.Namespace) -> ExitCode:
               "please report", file=sys.stderr)
         return ExitCode.INTERNAL
     transient = None
+    incomplete = False  # the simulation failed or stopped short: exit 1, as simulate does
     if system.simulation is not None and not args.steady_only:
         from workbench.cli.common import terminal_progress
         from workbench.core.transient import simulate
@@ -63,9 +64,11 @@ def run(args: argparse.Namespace) -> ExitCode:
                 transient = simulate(system, progress=progress)
         except ValueError as exc:
             print(f"{args.project}: simulation not run: {exc}", file=sys.stderr)
+            incomplete = True
         else:
             if not transient.success:
                 print(f"{args.project}: simulation: {transient.message}", file=sys.stderr)
+                incomplete = True
             if not transient.success and len(transient.t) < 2:
                 transient = None  # it never started (no steady start): nothing to record
             elif check_transient(system, transient):
@@ -100,4 +103,4 @@ def run(args: argparse.Namespace) -> ExitCode:
             print(f"{args.csv_dir}: cannot write: {exc.strerror or exc}", file=sys.stderr)
             return ExitCode.INVALID
         print(f"wrote {len(written)} CSV files to {args.csv_dir}", file=sys.stderr)
-    return ExitCode.OK if steady.success else ExitCode.INVALID
+    return ExitCode.OK if steady.success and not incomplete else ExitCode.INVALID
