@@ -153,3 +153,14 @@ def test_the_sealed_tank_stops_at_a_level_written_in_feet(runs):
     assert any(e.code == "tank.sealed_stop" for e in transient.events)
     us = " ".join(messages(runs["sealed_vent"], "US"))
     assert re.search(r"(stops|comes to rest) at a level of [0-9.]+ ft", us), us
+
+
+def test_a_sweep_cases_refusal_follows_the_units_the_command_asks_for(capsys):
+    # the neutraliser demo is SI; --units US must reach the refusal of a swept value:
+    # 1 mm and 20 m in inches (NIST SP 811: 1 in = 25.4 mm)
+    demo = ROOT / "projects" / "fellgate_neutraliser_drain.toml"
+    main(["sweep", str(demo), "--units", "US", "--steady-only", "--workers", "1",
+          "--vary", "lines.210-DR-04.inner_diameter=100 mm,0.1 mm"])
+    captured = capsys.readouterr()
+    text = " ".join((captured.out + captured.err).split())
+    assert f"expected from {1 / 25.4:.4g} in to {20 / 0.0254:.4g} in" in text, text

@@ -71,7 +71,8 @@ def _finish(project: Project, doc) -> Project:
     except tomllib.TOMLDecodeError as exc:  # a bug in the edit, not the user's input
         raise ProjectError(Problem(project.name, "", f"the edit produced invalid TOML: {exc}")) from None
     return project_from_doc(text, path=project.path, name=project.name,
-                            loaded_hash=project.loaded_hash, doc=doc, data=data)
+                            loaded_hash=project.loaded_hash, doc=doc, data=data,
+                            units=project.unit_system)
 
 
 def _element_section(project: Project, element_id: str) -> str | None:

@@ -39,6 +39,8 @@ class SweepTask:
     """The case's ``(keypath, value)`` settings, as in :class:`~workbench.project.sweep_spec.Case`."""
     simulate: bool
     """Simulate the case as well as solving it steadily."""
+    units: str | None = None
+    """Display units of the case's messages ("SI"/"US"); ``None``: the file's own."""
 
 
 #: Base projects a worker keeps loaded (a worker serves one sweep at a time; a few allow for
@@ -49,22 +51,22 @@ _PROJECTS: OrderedDict[tuple[str, str], Project] = OrderedDict()
 _PROJECTS_LOCK = threading.Lock()
 
 
-def _key(text: str, name: str) -> tuple[str, str]:
-    return hashlib.sha256(text.encode("utf-8")).hexdigest(), name
+def _key(text: str, name: str, units: str | None = None) -> tuple[str, str]:
+    return hashlib.sha256(text.encode("utf-8")).hexdigest(), f"{name}\0{units or ''}"
 
 
 def remember_project(project: Project) -> None:
     """Put an already loaded project in this process's cache (under its own text)."""
     with _PROJECTS_LOCK:
-        _PROJECTS[_key(project.text, project.name)] = project
+        _PROJECTS[_key(project.text, project.name, project.unit_system)] = project
         while len(_PROJECTS) > PROJECT_CACHE_SIZE:
             _PROJECTS.popitem(last=False)
 
 
-def cached_project(text: str, name: str) -> Project:
+def cached_project(text: str, name: str, units: str | None = None) -> Project:
     """The project of ``text``, loaded once per process and kept (least recently used
-    dropped beyond :data:`PROJECT_CACHE_SIZE`)."""
-    key = _key(text, name)
+    dropped beyond :data:`PROJECT_CACHE_SIZE`); ``units`` overrides its display units."""
+    key = _key(text, name, units)
     with _PROJECTS_LOCK:
         project = _PROJECTS.get(key)
         if project is not None:
@@ -72,14 +74,23 @@ def cached_project(text: str, name: str) -> Project:
             return project
     from workbench.project.document import load_project_text
 
-    project = load_project_text(text, name)
-    remember_project(project)
+    if units is None:
+        project = load_project_text(text, name)
+    else:
+        import dataclasses
+
+        project = dataclasses.replace(load_project_text(text, name, units), unit_system=units)
+    with _PROJECTS_LOCK:
+        _PROJECTS[key] = project
+        while len(_PROJECTS) > PROJECT_CACHE_SIZE:
+            _PROJECTS.popitem(last=False)
     return project
 
 
 def run_task(task: SweepTask) -> Solved:
     """Solve one task: what :func:`solve_case` returns. Runs on any worker."""
-    return solve_case(cached_project(task.text, task.name), task.settings, task.simulate)
+    return solve_case(cached_project(task.text, task.name, task.units), task.settings,
+                      task.simulate)
 
 
 def _unexpected(exc: Exception) -> str:

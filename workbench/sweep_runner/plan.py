@@ -6,7 +6,7 @@ from __future__ import annotations
 
 import math
 from collections.abc import Sequence
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from typing import TYPE_CHECKING, Any
 
 from workbench.project.sweep_spec import (
@@ -146,7 +146,9 @@ def prepared_base(project: Project, axes: Sequence[Axis]) -> Project:
         for key in drop:
             del table[key]
         table[parts[2]] = axis.values[0]
-        project = load_project_text(tomlkit.dumps(doc), project.name)
+        units = project.unit_system  # the display units asked for (--units), kept
+        project = replace(load_project_text(tomlkit.dumps(doc), project.name, units),
+                          unit_system=units)
     return project
 
 

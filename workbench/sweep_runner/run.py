@@ -109,7 +109,7 @@ def _run_on(executor: Executor, project: Project, cases, simulate: bool, solved:
 
     pending = {
         executor.submit(run_task, SweepTask(project.text, project.name, tuple(c.settings),
-                                            simulate)): c.index
+                                            simulate, project.unit_system)): c.index
         for c in cases
     }
     while pending:
