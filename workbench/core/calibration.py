@@ -66,6 +66,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from workbench.core.model import Finding, System
+from workbench.core.regression import cut_interval, linearised_statistics
 
 __all__ = [
     "CORRELATION_LIMIT",
@@ -622,34 +623,11 @@ def _stopped(prob: _Problem, u0, before, status: int, message: str) -> FitResult
                      {}, evaluations=prob.evaluations)
 
 
-def _statistics(jac_u: np.ndarray, r: np.ndarray, scale: np.ndarray, k: int):
-    """Standard errors, 95 % half-widths and correlation [SI] from the Jacobian."""
-    from scipy import stats
-
-    n = r.size
-    dof = n - k
-    jac = jac_u / scale  # d r / d x
-    nan = np.full(k, np.nan)
-    if dof <= 0:
-        return nan, nan, np.full((k, k), np.nan), dof, False
-    s2 = float(r @ r) / dof
-    jtj = jac.T @ jac
-    singular = np.linalg.matrix_rank(jtj, tol=1e-12 * max(np.max(np.abs(jtj)), 1e-300)) < k
-    cov = np.linalg.pinv(jtj) * s2
-    std = np.sqrt(np.clip(np.diag(cov), 0.0, None))
-    half = float(stats.t.ppf(0.975, dof)) * std
-    with np.errstate(invalid="ignore", divide="ignore"):
-        corr = np.clip(cov / np.outer(std, std), -1.0, 1.0)  # round-off gave 1 + 2e-16
-    if singular:
-        corr = np.where(np.eye(k, dtype=bool), 1.0, np.where(np.isfinite(corr), corr, 1.0))
-    return std, half, corr, dof, singular
-
-
 def _summarise(prob: _Problem, sol, jac_u, before, after, plateau=()) -> FitResult:
     k = len(prob.params)
     x = prob.to_x(sol.x)
     r = np.concatenate([(p - o.values) / w for p, o, w in zip(after, prob.obs, prob.weights)])
-    std, half, corr, dof, singular = _statistics(jac_u, r, prob.scale, k)
+    std, half, corr, dof, singular = linearised_statistics(jac_u, r, prob.scale, k)
     warnings: list[Finding] = []
     at_bound = tuple(p.key for p, u in zip(prob.params, sol.x)
                      if u - 1.0 <= 1e-6 or u - 1.0 >= 1 - 1e-6)
@@ -695,28 +673,6 @@ def _summarise(prob: _Problem, sol, jac_u, before, after, plateau=()) -> FitResu
         {o.name: float(np.max(np.abs(p - o.values))) for o, p in zip(prob.obs, after)},
         dict(zip(names, before)), dict(zip(names, after)), tuple(warnings),
         prob.evaluations, at_bound, ci95_linear=linear, ci95_cut=cut)
-
-
-def cut_interval(ci: np.ndarray, lower: np.ndarray, upper: np.ndarray
-                 ) -> tuple[np.ndarray, np.ndarray]:
-    r"""A linearised interval cut to the range searched: ``(cut interval, was cut)``.
-
-    The linearised interval :math:`x \pm t s` is symmetric and knows nothing of limits: for
-    a roughness near zero it reaches below zero, where no roughness can be. The fit only
-    looked inside ``[lower, upper]`` (``lower`` >= 0), so the interval is cut there and the
-    cut is reported (``nan`` ends stay ``nan``).
-
-    Examples
-    --------
-    >>> ci, cut = cut_interval(np.array([[-1e-4, 5e-4]]), np.array([0.0]), np.array([3e-3]))
-    >>> ci.tolist(), cut.tolist()
-    ([[0.0, 0.0005]], [[True, False]])
-    """
-    with np.errstate(invalid="ignore"):
-        cut = np.column_stack([ci[:, 0] < lower, ci[:, 1] > upper])
-    out = np.column_stack([np.where(cut[:, 0], lower, ci[:, 0]),
-                           np.where(cut[:, 1], upper, ci[:, 1])])
-    return out, cut
 
 
 def _bound_words(prob: _Problem, key: str, x: np.ndarray) -> str:
