@@ -309,3 +309,14 @@ def test_a_csv_reading_beyond_the_longest_simulated_span_names_its_row(tmp_path)
     with pytest.raises(ProjectError, match=r"measurements.x.file: log.csv: row 3, column 't': "
                                            "the reading is more than 32 years"):
         measurements_of(load_project(path))
+
+
+def test_an_impossible_reading_is_said_in_the_display_units_asked_for():
+    """1 ft = 0.3048 m exactly (NIST SP 811): -0.05 m is -0.164 ft."""
+    import tomllib
+
+    data = tomllib.loads(BASE + '[measurements.x]\nelement = "T"\nquantity = "level"\n'
+                         'points = [ { time = "0 s", value = "1 m" }, '
+                         '{ time = "60 s", value = "-0.05 m" } ]\n')
+    (problem,) = check_measurements(data, "plant.toml", unit_system="US")[1]
+    assert "a level of -0.164 ft is below the tank's bottom" in problem.message

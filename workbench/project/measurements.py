@@ -112,6 +112,8 @@ class _Reader:
         self.file = file
         self.atmosphere = atmosphere
         self.problems: list[Problem] = []
+        self.unit_system: str | None = None
+        """Display units of messages (``None``: the file's own)."""
 
     def add(self, key: str, message: str) -> None:
         self.problems.append(Problem(self.file, key, message))
@@ -135,7 +137,8 @@ class _Reader:
 
 
 def check_measurements(data: Any, file: str | None = None, *, atmosphere: float = 101325.0,
-                       read_files: bool = True) -> tuple[dict[str, Measurement], list[Problem]]:
+                       read_files: bool = True, unit_system: str | None = None,
+                       ) -> tuple[dict[str, Measurement], list[Problem]]:
     """Check the ``[measurements]`` tables of a file's data and read them to SI.
 
     Parameters
@@ -146,6 +149,8 @@ def check_measurements(data: Any, file: str | None = None, *, atmosphere: float 
         The project file's name: messages name it, and a CSV file is looked for beside it.
     atmosphere : float
         Site atmospheric pressure [Pa], for readings in absolute pressure units.
+    unit_system : {"SI", "US"}, optional
+        Display units of the numbers in messages; default the file's ``[project] units``.
     read_files : bool
         Read the CSV files. Validation does not: a project's text is checked wherever it
         is (a copy, a sweep case, the app's edits), while its CSV files are read when a
@@ -157,6 +162,7 @@ def check_measurements(data: Any, file: str | None = None, *, atmosphere: float 
         The measurements by name (those without problems) and every problem found.
     """
     r = _Reader(data if isinstance(data, dict) else {}, file, atmosphere, read_files)
+    r.unit_system = unit_system
     raw = r.data.get("measurements")
     if raw is None:
         return {}, []
@@ -358,8 +364,8 @@ def _impossible(r: _Reader, quantity: str, value: float) -> str | None:
     """
     from workbench.project.units import format_quantity
 
-    units = r.data.get("project", {}).get("units", "SI") if isinstance(
-        r.data.get("project"), dict) else "SI"
+    units = r.unit_system or (r.data.get("project", {}).get("units", "SI") if isinstance(
+        r.data.get("project"), dict) else "SI")
     units = units if units in ("SI", "US") else "SI"
     if quantity == "level" and value < 0.0:
         return (f"a level of {format_quantity(value, 'length', units, 3)} is below the tank's "
@@ -435,7 +441,8 @@ def measurements_of(project) -> dict[str, Measurement]:
         When a measurement cannot be read (its CSV file changed or went since loading).
     """
     found, problems = check_measurements(project.data, project.name,
-                                         atmosphere=project.system.atmospheric_pressure)
+                                         atmosphere=project.system.atmospheric_pressure,
+                                         unit_system=project.unit_system)
     if problems:
         raise ProjectError(problems)
     return found

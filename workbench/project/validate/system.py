@@ -64,7 +64,7 @@ def _check_measurements(c: Checker, parts: Parts) -> None:
         from workbench.project.measurements import check_measurements
 
         c.problems.extend(check_measurements(parts.data, c.file, atmosphere=c.atmosphere,
-                                             read_files=False)[1])
+                                             read_files=False, unit_system=c.unit_system)[1])
 
 
 #: Checks run after the built-in sections, in order, each as ``check(c, parts)``.
