@@ -114,7 +114,7 @@ def test_a_pressure_trace_is_compared_over_its_own_span_when_the_run_ends_earlie
     assert main(["simulate", _write(tmp_path, text), "--json"]) == 0
     m = json.loads(capsys.readouterr().out)["measurements"]["gauge"]
     # the project's own run keeps no junction pressures: a run over the test's span is used
-    assert m["compared"] == 7 and m["compared_on"] == "a run at the test's conditions"
+    assert m["compared"] == 7 and m["compared_on"] == "a run over the test's span"
 
 
 def _steady_project(bore2_mm: float) -> str:

@@ -42,7 +42,9 @@ class Comparison:
 
     measurement: "Measurement"
     compared_on: str
-    """``"this run"``, ``"a run at the test's conditions"`` or ``"the steady solution"``."""
+    """``"this run"``, ``"a run at the test's conditions"``, ``"a run over the test's
+    span"`` (a junction's pressure under the project's conditions) or ``"the steady
+    solution"``."""
     times: np.ndarray | None = None
     """Times of the compared readings [s] (``None`` for a steady reading)."""
     readings: np.ndarray = field(default_factory=lambda: np.zeros(0))
@@ -88,11 +90,11 @@ def _on_run(m: "Measurement", result) -> Comparison:
                       np.interp(times, result.t, series), outside, note)
 
 
-def _own(m: "Measurement", system) -> Comparison:
+def _own(m: "Measurement", system, where: str | None = None) -> Comparison:
     from workbench.core.calibration import CalibrationError, predict
     from workbench.project.measurements import observation
 
-    where = "the steady solution" if m.steady else "a run at the test's conditions"
+    where = where or ("the steady solution" if m.steady else "a run at the test's conditions")
     try:
         model = predict(observation(m, system), rtol=1e-6)
     except CalibrationError as exc:
@@ -116,8 +118,10 @@ def compare_measurements(project: "Project", result=None) -> list[Comparison]:
     for m in measurements_of(project).values():
         shown = result is not None and (m.quantity != "pressure"
                                         or m.element in getattr(result, "junction_ids", ()))
-        if m.steady or m.differs_from(project.system) or not shown:
+        if m.steady or m.differs_from(project.system) or result is None:
             out.append(_own(m, project.system))
+        elif not shown:  # the run shown keeps no junction pressures: one over the test's span
+            out.append(_own(m, project.system, "a run over the test's span"))
         else:
             out.append(_on_run(m, result))
     return out
