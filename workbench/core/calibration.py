@@ -507,7 +507,10 @@ class _Problem:
             trial[j] = 1.0 + frac
             if abs(trial[j] - u[j]) < 1e-9:
                 continue
-            r = self.residuals(trial)
+            try:
+                r = self.residuals(trial)
+            except CalibrationError:  # the model cannot be run there: probe elsewhere
+                continue
             acts = acts or bool(np.any(np.abs(r - r0) > floor))
             if float(r @ r) < best_cost:
                 best, best_cost = trial, float(r @ r)
