@@ -39,9 +39,9 @@ async def test_the_sweep_plot_names_its_series_under_the_plot_not_on_the_data() 
 
 
 async def test_site_test_readings_on_the_run_trends_are_named_under_the_plot(project_file):
-    from textual_plotext import PlotextPlot
-
     import shutil
+
+    from textual_plotext import PlotextPlot
 
     from tests.app.conftest import PROJECTS
 

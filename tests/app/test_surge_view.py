@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import pytest
 
+from tests.core.elastic_systems import WATER, closing, reservoir_line
 from workbench.app.panes.surge import (
     axis_range,
     envelope_series,
@@ -17,27 +18,15 @@ from workbench.app.panes.surge import (
     time_scale,
 )
 from workbench.core.elastic import simulate_elastic
-from workbench.core.model import (
-    FluidProps,
-    Line,
-    Receiver,
-    Reservoir,
-    SurgeSettings,
-    System,
-    Valve,
-    ValveSchedule,
-)
+from workbench.core.model import System
 
-WATER = FluidProps("water", 998.207, 1.0016e-3, 2339.2, 2.19e9, 293.15)
 P_ATM = 101325.0
 
 
 def separating_line() -> System:
-    shut = Valve("linear", 62.0, opening=1.0, schedule=ValveSchedule((0.0, 1e-6), (1.0, 0.0)))
-    line = Line("L1", "R1", "OUT", 600.0, 0.3, friction_factor=0.0, entrance_k=0.0,
-                valve=shut, surge=SurgeSettings("elastic", 20))
-    return System("sep", WATER, {"R1": Reservoir("R1", "constant_level", 0.0, 20.0)}, {},
-                  {"OUT": Receiver("OUT", "open_discharge", 0.0)}, {"L1": line})
+    """Reservoir (20 m) -> 600 m frictionless line -> valve shut at once -> free discharge:
+    the downsurge reaches the vapour head (tests/core/elastic_systems.py)."""
+    return reservoir_line(valve=closing(1e-6), friction_factor=0.0, entrance_k=0.0, name="sep")
 
 
 @pytest.mark.parametrize("cavities", [True, False])

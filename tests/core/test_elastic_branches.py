@@ -13,6 +13,7 @@ import math
 import numpy as np
 import pytest
 
+from tests.core.elastic_systems import WATER, WATER_WHOLE
 from workbench.core.elastic import (
     ElasticSetupError,
     connected_lines,
@@ -20,7 +21,6 @@ from workbench.core.elastic import (
     simulate_elastic,
 )
 from workbench.core.model import (
-    FluidProps,
     Junction,
     Line,
     Receiver,
@@ -31,18 +31,10 @@ from workbench.core.model import (
     ValveSchedule,
 )
 
-
-@pytest.fixture(autouse=True, params=["numpy", "compiled"])
-def kernel(request, monkeypatch):
-    """Every check runs on both time-stepping kernels (workbench.core.elastic.kernel)."""
-    monkeypatch.setenv("WORKBENCH_KERNEL", request.param)
-    return request.param
+#: Every check runs on both time-stepping kernels (the ``kernel`` fixture, tests/core/conftest.py).
+pytestmark = pytest.mark.usefixtures("kernel")
 
 
-# Water at 20 degC (HYDRAULICS.md table; bulk modulus 2.19 GPa, common practice, no source);
-# without a vapour pressure where a check needs the liquid to stay whole.
-WATER = FluidProps("water", 998.207, 1.0016e-3, 2339.2, 2.19e9, 293.15)
-WATER_WHOLE = FluidProps("water", 998.207, 1.0016e-3, None, 2.19e9, 293.15)
 
 
 def tee(diameters=(0.3, 0.3, 0.3), fluid=WATER_WHOLE, friction=0.0) -> System:

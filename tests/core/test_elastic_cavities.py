@@ -15,9 +15,9 @@ import math
 import numpy as np
 import pytest
 
+from tests.core.elastic_systems import WATER, closing, reservoir_line
 from workbench.core.elastic import simulate_elastic
 from workbench.core.model import (
-    FluidProps,
     G,
     Line,
     Receiver,
@@ -28,17 +28,11 @@ from workbench.core.model import (
     ValveSchedule,
 )
 
-
-@pytest.fixture(autouse=True, params=["numpy", "compiled"])
-def kernel(request, monkeypatch):
-    """Every check runs on both time-stepping kernels (workbench.core.elastic.kernel)."""
-    monkeypatch.setenv("WORKBENCH_KERNEL", request.param)
-    return request.param
+#: Every check runs on both time-stepping kernels (the ``kernel`` fixture, tests/core/conftest.py).
+pytestmark = pytest.mark.usefixtures("kernel")
 
 
-# Water at 20 degC: density IAPWS-95, vapour pressure IAPWS IF97 (HYDRAULICS.md table);
-# bulk modulus 2.19 GPa (common practice, no source). Atmosphere 101325 Pa (ISA sea level).
-WATER = FluidProps("water", 998.207, 1.0016e-3, 2339.2, 2.19e9, 293.15)
+# Water at 20 degC: tests/core/elastic_systems.py. Atmosphere 101325 Pa (ISA sea level).
 P_ATM = 101325.0
 A_WAVE = 1000.0
 LENGTH = 500.0
@@ -55,14 +49,10 @@ def instant_closure(reaches: int = 50, k_open: float = 1900.0) -> System:
     0 m -> valve shutting at once -> free discharge. The line rises towards the valve, so
     the vapour head is highest at the valve: during the first low-pressure phase, whose
     head is uniform along the line, only the valve section can reach it."""
-    shut = Valve("linear", k_open, opening=1.0, position="to",
-                 schedule=ValveSchedule((0.0, 1e-9), (1.0, 0.0)))
-    line = Line("L1", "R1", "OUT", LENGTH, DIAMETER, friction_factor=0.0, entrance_k=0.0,
-                valve=shut, profile=((0.0, -10.0), (LENGTH, 0.0)),
-                surge=SurgeSettings("elastic", reaches))
-    return System("cavity", WATER, {"R1": Reservoir("R1", "constant_level", 0.0,
-                                                     RESERVOIR_HEAD)}, {},
-                  {"OUT": Receiver("OUT", "open_discharge", 0.0)}, {"L1": line})
+    return reservoir_line(length=LENGTH, diameter=DIAMETER, head=RESERVOIR_HEAD,
+                          valve=closing(1e-9, k_open=k_open), reaches=reaches,
+                          friction_factor=0.0, entrance_k=0.0,
+                          profile=((0.0, -10.0), (LENGTH, 0.0)), name="cavity")
 
 
 def run(system, duration, **kw):

@@ -13,11 +13,12 @@ import math
 import numpy as np
 import pytest
 
+from tests.core.elastic_systems import WATER, reservoir_line
+from tests.core.elastic_systems import closing as shared_closing
 from workbench.core.elastic import kernel as elastic_kernel
 from workbench.core.elastic import simulate_elastic
 from workbench.core.friction import friction_re_product
 from workbench.core.model import (
-    FluidProps,
     Junction,
     Line,
     Receiver,
@@ -31,9 +32,6 @@ from workbench.core.model import (
 needs_compiled = pytest.mark.skipif(
     not elastic_kernel.compiled_available(), reason="numba is not installed here")
 
-# Water at 20 degC (HYDRAULICS.md table: IAPWS-95 density and viscosity, IF97 vapour
-# pressure); bulk modulus 2.19 GPa (common practice, no source).
-WATER = FluidProps("water", 998.207, 1.0016e-3, 2339.2, 2.19e9, 293.15)
 
 
 @needs_compiled
@@ -55,8 +53,7 @@ def test_scalar_friction_equals_the_array_form_and_colebrook(re, rr):
 
 
 def closing(t_close, k_open=3.0, position="to", start=1.0):
-    return Valve("linear", k_open=k_open, opening=1.0, position=position,
-                 schedule=ValveSchedule((start, start + t_close), (1.0, 0.0)))
+    return shared_closing(t_close, k_open=k_open, position=position, start=start)
 
 
 def reversing_chain() -> System:
@@ -75,15 +72,9 @@ def reversing_chain() -> System:
 
 
 def single(valve, fluid=WATER, downstream="air", head=80.0, f=None):
-    line = Line("L1", "R1", "OUT", 1200.0, 0.3, roughness=4.5e-5, friction_factor=f,
-                valve=valve, surge=SurgeSettings("elastic", 40))
-    reservoirs = {"R1": Reservoir("R1", "constant_level", 0.0, head)}
-    receivers = {}
-    if downstream == "air":
-        receivers["OUT"] = Receiver("OUT", "open_discharge", 0.0)
-    else:
-        reservoirs["OUT"] = Reservoir("OUT", "constant_level", 0.0, 10.0)
-    return System("single", fluid, reservoirs, {}, receivers, {"L1": line})
+    return reservoir_line(length=1200.0, diameter=0.3, head=head, valve=valve, reaches=40,
+                          fluid=fluid, downstream=downstream, tail=10.0, roughness=4.5e-5,
+                          friction_factor=f, name="single")
 
 
 def opening_to_the_air() -> System:

@@ -13,6 +13,7 @@ import math
 import numpy as np
 import pytest
 
+from tests.core.elastic_systems import WATER, WATER_WHOLE, closing, reservoir_line
 from workbench.core.elastic import (
     FRICTION_MODELS,
     ElasticSetupError,
@@ -33,42 +34,17 @@ from workbench.core.model import (
     ValveSchedule,
 )
 
-
-@pytest.fixture(autouse=True, params=["numpy", "compiled"])
-def kernel(request, monkeypatch):
-    """Every check runs on both time-stepping kernels (workbench.core.elastic_kernel)."""
-    monkeypatch.setenv("WORKBENCH_KERNEL", request.param)
-    return request.param
+#: Every check runs on both time-stepping kernels (the ``kernel`` fixture, tests/core/conftest.py).
+pytestmark = pytest.mark.usefixtures("kernel")
 
 
-# Water at 20 degC: density and viscosity IAPWS-95 / IAPWS 2008, vapour pressure IF97
-# (HYDRAULICS.md table); bulk modulus 2.19 GPa (common practice, no source).
-WATER = FluidProps("water", 998.207, 1.0016e-3, 2339.2, 2.19e9, 293.15)
-WATER_NO_VAPOUR = FluidProps("water", 998.207, 1.0016e-3, None, 2.19e9, 293.15)
+WATER_NO_VAPOUR = WATER_WHOLE
 
 
-def closing(t_close: float, k_open: float = 62.0, position: str = "to") -> Valve:
-    """A linear-characteristic valve closing linearly from fully open in ``t_close``.
-
-    With ``c(x) = x`` the valve's effective area falls linearly in time (K = K0/tau^2).
-    """
-    return Valve("linear", k_open=k_open, opening=1.0, position=position,
-                 schedule=ValveSchedule((0.0, t_close), (1.0, 0.0)))
-
-
-def single_line(*, length=600.0, diameter=0.3, f=0.0, head=20.0, valve=None, reaches=20,
-                fluid=WATER, downstream="air", tail=0.0, rating=None) -> System:
-    """Reservoir -> line -> valve -> free discharge (or a downstream reservoir)."""
-    line = Line("L1", "R1", "OUT", length, diameter, friction_factor=f, entrance_k=0.0,
-                valve=valve, pressure_rating=rating,
-                surge=SurgeSettings("elastic", reaches))
-    reservoirs = {"R1": Reservoir("R1", "constant_level", 0.0, head)}
-    receivers = {}
-    if downstream == "air":
-        receivers["OUT"] = Receiver("OUT", "open_discharge", 0.0)
-    else:
-        reservoirs["OUT"] = Reservoir("OUT", "constant_level", 0.0, tail)
-    return System("surge test", fluid, reservoirs, {}, receivers, {"L1": line})
+def single_line(*, f=0.0, rating=None, **kw) -> System:
+    """Reservoir -> frictionless (or fixed-``f``) line without entrance loss -> valve -> free
+    discharge (or a downstream reservoir): 600 m, 300 mm, 20 m head, 20 reaches unless told."""
+    return reservoir_line(friction_factor=f, entrance_k=0.0, pressure_rating=rating, **kw)
 
 
 def run(system, a=1300.0, **kw):

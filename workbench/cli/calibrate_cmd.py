@@ -31,21 +31,19 @@ _EPILOG = (
 
 
 def add_parser(subparsers, name: str, help_text: str) -> argparse.ArgumentParser:
-    parser = subparsers.add_parser(
-        name, help=help_text, epilog=_EPILOG,
+    from workbench.cli.common import add_json_option, add_project_command, add_units_option
+
+    parser = add_project_command(
+        subparsers, name, help_text, epilog=_EPILOG,
         description="Fit uncertain numbers of the model (roughness, bore, loss "
         "coefficients) to what was measured on the plant ([measurements.NAME] tables).")
-    from workbench.cli.common import add_units_option
-
-    parser.add_argument("project", metavar="PROJECT", help="project file (.toml)")
     add_units_option(parser)
     parser.add_argument("--fit", metavar="KEYPATH[=LOW..HIGH]", action="append", default=[],
                         help="a number to fit and its range in the file's units, e.g. "
                         "'lines.L1.roughness=0.01..3 mm' (one to three; repeat the option)")
     parser.add_argument("--measurement", metavar="NAME", action="append", default=None,
                         help="fit to this measurement only (repeatable; default: all)")
-    parser.add_argument("--json", action="store_true",
-                        help="print the result as JSON (SI units) instead of tables")
+    add_json_option(parser)
     parser.add_argument("--plot", action="store_true",
                         help="plot the readings against the model before and after the fit")
     parser.add_argument("--write", action="store_true",

@@ -8,6 +8,22 @@ import os
 import sys
 
 
+def add_project_command(subparsers, name: str, help_text: str, description: str,
+                        epilog: str | None = None):
+    """A subcommand's parser with the argument every such command takes first: the
+    project file."""
+    parser = subparsers.add_parser(name, help=help_text, epilog=epilog,
+                                   description=description)
+    parser.add_argument("project", metavar="PROJECT", help="project file (.toml)")
+    return parser
+
+
+def add_json_option(parser) -> None:
+    """``--json``: the documented SI object on stdout instead of the tables."""
+    parser.add_argument("--json", action="store_true",
+                        help="print the result as JSON (SI units) instead of tables")
+
+
 def add_units_option(parser) -> None:
     """``--units SI|US``: the display units of this run, over the project's preference."""
     parser.add_argument("--units", choices=("SI", "US"), default=None,

@@ -32,19 +32,17 @@ _EPILOG = (
 
 
 def add_parser(subparsers, name: str, help_text: str) -> argparse.ArgumentParser:
-    parser = subparsers.add_parser(
-        name, help=help_text, epilog=_EPILOG,
+    from workbench.cli.common import add_json_option, add_project_command, add_units_option
+
+    parser = add_project_command(
+        subparsers, name, help_text, epilog=_EPILOG,
         description="Simulate a project in time: tank levels, line flows, valve moves, "
         "events (drained, overflow, reversal, valve closed) and surge screening.")
-    parser.add_argument("project", metavar="PROJECT", help="project file (.toml)")
-    from workbench.cli.common import add_units_option
-
     add_units_option(parser)
     parser.add_argument("--duration", metavar="D",
                         help="simulated time, with units ('2 h', '90 min'; a plain number is "
                         "seconds); default: the project's [simulation] duration")
-    parser.add_argument("--json", action="store_true",
-                        help="print the result as JSON (SI units) instead of tables")
+    add_json_option(parser)
     parser.add_argument("--csv", metavar="PATH",
                         help="write the time series (flows, levels; SI units) as CSV")
     parser.add_argument("--plot", action="store_true",
