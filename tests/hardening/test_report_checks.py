@@ -85,3 +85,30 @@ def test_report_refuses_a_result_that_breaks_continuity_as_solve_does(tmp_path, 
     assert "internal consistency check failed: continuity" in report.stderr
     assert report.stderr.strip() == solve.stderr.strip()
     assert not record.exists()
+
+
+def test_report_exits_1_like_simulate_when_the_elastic_analysis_could_not_run(
+        tmp_path, monkeypatch):
+    """The transfer demo asks for the elastic analysis of its line (``surge.model``). When
+    that cannot be set up (here injected: status -1, as the model reports heads that stop
+    being finite), ``simulate`` says so and exits 1; ``report`` wrote the record and exited
+    0, so a script took it for complete. Both now say it and exit 1; the record keeps it."""
+    import workbench.core.elastic as elastic
+
+    real = elastic.run_elastic
+
+    def failing(system, ids, **kw):
+        return {lid: dataclasses.replace(res, success=False, status=-1,
+                                         message="injected set-up failure")
+                for lid, res in real(system, ids, **kw).items()}
+
+    monkeypatch.setattr(elastic, "run_elastic", failing)
+    path = ROOT / "projects" / "fellgate_process_water_transfer.toml"
+    record = tmp_path / "record.md"
+    simulated = run_cli(["simulate", str(path)], project_path=str(path), limit=120)
+    reported = run_cli(["report", str(path), "--output", str(record)], project_path=str(path),
+                       limit=120)
+    said = f"{path}: elastic surge, line 310-PW-12: injected set-up failure"
+    assert simulated.code == reported.code == 1
+    assert said in simulated.stderr and said in reported.stderr
+    assert "injected set-up failure" in record.read_text()

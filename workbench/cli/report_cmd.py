@@ -86,6 +86,11 @@ def run(args: argparse.Namespace) -> ExitCode:
 
             with terminal_progress("elastic surge") as progress:
                 elastic = run_elastic(system, ids, progress=progress)
+            for lid, res in elastic.items():
+                if res.status == -1:  # as simulate: said, kept in the record, exit 1
+                    print(f"{args.project}: elastic surge, line {lid}: {res.message}",
+                          file=sys.stderr)
+                    incomplete = True
     text = calculation_record(project, steady, transient, elastic=elastic)
     if args.output is None:
         sys.stdout.write(text)
