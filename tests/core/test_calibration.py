@@ -198,6 +198,9 @@ def test_an_optimum_outside_the_range_is_a_fit_that_ran_to_its_bound():
     assert result.status == -1 and not result.success
     assert result.at_bound == ("lines.L.roughness",)
     assert result.values[0] == pytest.approx(1e-4)
+    # the linearised interval assumes an optimum inside the range (Bates & Watts 1988,
+    # ch. 2): a value on its bound gets none
+    assert np.all(np.isnan(result.ci95[0]))
 
 
 def test_a_steady_flow_reading_is_predicted_by_the_steady_solution():

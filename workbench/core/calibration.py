@@ -667,6 +667,9 @@ def _summarise(prob: _Problem, sol, jac_u, before, after, plateau=()) -> FitResu
                     "conditions", "caution", "linearised regression statistics"))
     linear = np.column_stack([x - half, x + half])
     ci, cut = cut_interval(linear, np.maximum(prob.lower, 0.0), prob.upper)
+    on_bound = np.array([p.key in at_bound for p in prob.params])
+    ci[on_bound] = np.nan  # the linear theory needs an optimum inside the range: none here
+    cut[on_bound] = False
     names = [o.name for o in prob.obs]
     return FitResult(
         success, status, message, tuple(prob.params), x, ci, std, corr,
