@@ -4,6 +4,7 @@ with brentq, continuity on a looped network, reversal, shut valves and open disc
 from __future__ import annotations
 
 import math
+import warnings
 
 import numpy as np
 import pytest
@@ -447,3 +448,38 @@ def test_lines_among_junctions_cut_off_by_shut_valves_carry_no_flow():
     assert result.success, result.message
     assert result.lines["L2"].flow == 0.0 and result.lines["L2"].status == "isolated"
     assert {w.element for w in result.warnings if w.code == "node.isolated"} == {"J1", "J2"}
+
+
+@pytest.mark.parametrize("size", [6, 10])  # 36 junctions: the dense LU; 100: scipy's SuperLU
+def test_the_dense_and_the_sparse_junction_solve_reach_the_same_steady_state(monkeypatch, size):
+    """The junction-head systems are solved dense up to DENSE_JUNCTIONS_MAX junctions and by
+    scipy's spsolve beyond: both are exact direct solves, so Newton converges to the same
+    flows (to its tolerance) whichever one does the steps."""
+    from workbench.core import network
+
+    system = _looped_network(size)
+    assert (len(system.junctions) <= network.DENSE_JUNCTIONS_MAX) == (size == 6)
+    native = solve_steady(system)
+    monkeypatch.setattr(network, "DENSE_JUNCTIONS_MAX",
+                        0 if size == 6 else 10 * len(system.junctions))  # the other solver
+    other = solve_steady(system)
+    assert native.success and other.success
+    for lid in system.lines:
+        assert other.lines[lid].flow == pytest.approx(native.lines[lid].flow, rel=1e-9, abs=1e-12)
+
+
+@pytest.mark.parametrize("dense_max", [0, 64])
+def test_a_singular_junction_system_gives_nan_from_either_solver(monkeypatch, dense_max):
+    """A path graph's Laplacian without a fixed head is singular (its rows sum to zero):
+    both solvers answer with nan, which the Newton loop reports as status 2."""
+    import scipy.sparse
+
+    from workbench.core import network
+
+    monkeypatch.setattr(network, "DENSE_JUNCTIONS_MAX", dense_max)
+    lap = scipy.sparse.csc_matrix(np.array([[1.0, -1.0, 0.0], [-1.0, 2.0, -1.0],
+                                            [0.0, -1.0, 1.0]]))
+    with np.errstate(all="ignore"), warnings.catch_warnings():
+        warnings.simplefilter("ignore")  # spsolve's MatrixRankWarning
+        x = network._solve_laplacian(lap, np.array([1.0, 0.0, -1.0]))
+    assert x.shape == (3,) and not np.all(np.isfinite(x))

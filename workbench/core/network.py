@@ -10,8 +10,9 @@ Unknowns: the head ``H`` of every junction and the flow ``q`` of every line. Equ
 
 Newton's method with the analytic sparse Jacobian ``[[0, A], [-A^T, -diag(dh/dq)]]``
 (``scipy.sparse``), each step solved through its Schur complement: eliminating the flows
-leaves a weighted graph Laplacian ``A W A^T`` over the junction heads only (``spsolve``),
-started from a linearisation of every line at a
+leaves a weighted graph Laplacian ``A W A^T`` over the junction heads only (numpy's dense
+LU up to ``DENSE_JUNCTIONS_MAX`` junctions, ``spsolve`` beyond), started from a
+linearisation of every line at a
 velocity its end heads could drive, with a backtracking line search on the scaled residual.
 ``h`` is continuously differentiable through zero flow and reversal (laminar friction is
 linear in ``q``); where ``dh/dq`` vanishes at ``q = 0`` (lines with a fixed friction factor
@@ -165,6 +166,24 @@ def fixed_heads(system: System, topo: Topology, levels: dict[str, float] | None 
     return out
 
 
+#: Largest junction count whose Laplacian is solved dense (numpy's LU): below it that is
+#: quicker than a sparse factorisation and needs no ``scipy.sparse.linalg`` (0.1 s to import).
+DENSE_JUNCTIONS_MAX = 64
+
+
+def _solve_laplacian(lap, rhs: np.ndarray) -> np.ndarray:
+    """``lap x = rhs`` for the junction heads: dense LU for a few junctions, else SuperLU
+    (``spsolve``, minimum-degree ordering); ``nan`` where the matrix is singular."""
+    if lap.shape[0] <= DENSE_JUNCTIONS_MAX:
+        try:
+            return np.linalg.solve(lap.toarray(), rhs)
+        except np.linalg.LinAlgError:
+            return np.full(rhs.shape, np.nan)
+    from scipy.sparse.linalg import spsolve
+
+    return np.atleast_1d(spsolve(lap, rhs, permc_spec="MMD_AT_PLUS_A"))
+
+
 class _Newton:
     """Newton iteration on ``x = [H_junctions, q]`` for a fixed set of blocked lines."""
 
@@ -257,13 +276,11 @@ class _Newton:
         w = np.where(self.blocked, 0.0, 1.0 / np.maximum(dh, self._dh_floor))
         dq_blocked = np.where(self.blocked, -fe, 0.0)
         if self.nj:
-            from scipy.sparse.linalg import spsolve  # about 0.1 s to import: only with junctions
-
             lap = self._laplacian(w)
             rhs = fc + self._net_inflow(w * fe + dq_blocked)
             if self._any_isolated:
                 rhs = np.where(self.isolated, -fc, rhs)
-            d_h = np.atleast_1d(spsolve(lap, rhs, permc_spec="MMD_AT_PLUS_A"))
+            d_h = _solve_laplacian(lap, rhs)
             d_full = np.concatenate([d_h, np.zeros(self.topo.n_fixed)])
             d_q = np.where(self.blocked, dq_blocked,
                            w * (fe - (d_full[self._to] - d_full[self._from])))
@@ -294,11 +311,9 @@ class _Newton:
         drive = fixed_only[self._to] - fixed_only[self._from]  # (Af^T H_f) per line
         hj = np.zeros(self.nj)
         if self.nj:
-            from scipy.sparse.linalg import spsolve
-
             rhs = -self._net_inflow(g * drive)
             rhs = np.where(self.isolated, self.pin, rhs)
-            hj = np.atleast_1d(spsolve(self._laplacian(g), rhs, permc_spec="MMD_AT_PLUS_A"))
+            hj = _solve_laplacian(self._laplacian(g), rhs)
         node_h = np.concatenate([hj, self.h_fixed])
         q = np.where(self.blocked, 0.0, g * (node_h[self._from] - node_h[self._to]))
         return np.concatenate([hj, q])
