@@ -18,6 +18,9 @@ One pint registry serves the whole program; it is built on first use because bui
 costs a few tenths of a second (the terminal app must paint before that), from pint's cache
 in the user's cache folder when there is one. pint is imported without its optional Dask
 support (:func:`import_pint`), which would otherwise import Dask whenever it is installed.
+What pint answered (texts read, conversion factors) is kept between runs by
+:mod:`workbench.project.unit_memo`, so a run that meets only known texts and units does not
+import pint at all.
 """
 
 from __future__ import annotations
@@ -50,6 +53,7 @@ __all__ = [
     "parse_quantity",
     "parse_value",
     "to_display",
+    "unit_memo",
 ]
 
 #: Standard atmospheric pressure at sea level [Pa] (ISO 2533); the default site atmosphere.
@@ -129,21 +133,35 @@ def registry_cache_folder(pint_version: str) -> Path | None:
     ``~/.cache`` (``%LOCALAPPDATA%`` on Windows), then ``gravity-workbench/pint-VERSION``:
     one folder per pint version, so a new pint never reads an older pint's cache.
     """
-    override = os.environ.get("WORKBENCH_CACHE_DIR")
-    if override is not None:
-        if not override:
-            return None
-        base = Path(override)
-    elif os.name == "nt" and os.environ.get("LOCALAPPDATA"):
-        base = Path(os.environ["LOCALAPPDATA"]) / "gravity-workbench"
-    else:
-        base = Path(os.environ.get("XDG_CACHE_HOME") or Path.home() / ".cache") / "gravity-workbench"
+    base = _cache_base()
+    if base is None:
+        return None
     folder = base / f"pint-{pint_version}"
     try:
         folder.mkdir(parents=True, exist_ok=True)
     except OSError:
         return None
     return folder if os.access(folder, os.W_OK | os.X_OK) else None
+
+
+def _cache_base() -> Path | None:
+    """The program's cache folder (see :func:`registry_cache_folder`), ``None`` when off."""
+    override = os.environ.get("WORKBENCH_CACHE_DIR")
+    if override is not None:
+        return Path(override) if override else None
+    if os.name == "nt" and os.environ.get("LOCALAPPDATA"):
+        return Path(os.environ["LOCALAPPDATA"]) / "gravity-workbench"
+    return Path(os.environ.get("XDG_CACHE_HOME") or Path.home() / ".cache") / "gravity-workbench"
+
+
+@lru_cache(maxsize=1)
+def unit_memo():
+    """The process's :class:`~workbench.project.unit_memo.UnitMemo`, read on first use."""
+    from workbench.project.unit_memo import UnitMemo, memo_key, memo_path
+
+    base = _cache_base()
+    key = memo_key(Path(__file__))
+    return UnitMemo(None if base is None else memo_path(base, key), key)
 
 
 class UnitError(ValueError):
@@ -382,7 +400,18 @@ def parse_value(text: object, kind: str) -> ParsedQuantity:
 
 @lru_cache(maxsize=4096)
 def _parse_text(text: str, kind: str) -> ParsedQuantity:
-    """Parse one quantity text (cached: sweeps and edits re-read the same texts)."""
+    """Parse one quantity text (cached: sweeps and edits re-read the same texts; and
+    between runs, what pint read, in the unit memo)."""
+    memo = unit_memo()
+    kept = memo.parsed(kind, text)
+    if kept is not None:
+        return ParsedQuantity(*kept)
+    parsed = _parse_with_pint(text, kind)
+    memo.keep_parsed(kind, text, parsed.value, parsed.reference)
+    return parsed
+
+
+def _parse_with_pint(text: str, kind: str) -> ParsedQuantity:
     spec = QUANTITY_KINDS[kind]
     what = spec.name
     value, unit_text = _split_number(text, what)
@@ -478,8 +507,30 @@ def to_display(value_si, kind: str, unit_system: str):
     spec = QUANTITY_KINDS[kind]
     if unit == spec.si_unit:
         return value_si
+    factor = _display_factor(spec.si_unit, unit)
+    if factor is None:  # an offset unit (temperature): pint converts
+        return get_registry().Quantity(value_si, spec.si_unit).to(unit).magnitude
+    if isinstance(value_si, (list, tuple)):  # as pint takes a sequence
+        import numpy as np
+
+        value_si = np.asarray(value_si)
+    return value_si * factor  # what pint computes for a plain factor, to the last bit
+
+
+@lru_cache(maxsize=256)
+def _display_factor(si_unit: str, unit: str) -> float | None:
+    """The factor from ``si_unit`` to ``unit`` (kept in the unit memo), ``None`` when the
+    conversion is not a plain factor."""
+    memo = unit_memo()
+    factor = memo.factor(si_unit, unit)
+    if factor is not None:
+        return factor
     ureg = get_registry()
-    return ureg.Quantity(value_si, spec.si_unit).to(unit).magnitude
+    if ureg.Quantity(0.0, si_unit).to(unit).magnitude != 0.0:
+        return None
+    factor = float(ureg.Quantity(1.0, si_unit).to(unit).magnitude)
+    memo.keep_factor(si_unit, unit, factor)
+    return factor
 
 
 def example_text(text: str, kind: str, unit_system: str) -> str:
