@@ -92,9 +92,11 @@ def find_break(system: System, lines, i: int, lid: str, q_all: np.ndarray, x_ope
     The parting point is the one that limits the flow most: for each interior profile
     point the flow that puts it exactly at the vapour pressure, the smallest of them.
     """
+    from workbench.core.checks import profile_points
+
     q_full = float(q_all[i])
-    if q_full == 0.0:
-        return None
+    if q_full == 0.0 or len(profile_points(system, lid)[0]) <= 2:
+        return None  # a straight run has no high point between its ends
     sign = 1.0 if q_full > 0.0 else -1.0
 
     def margin(qmag: float) -> np.ndarray:

@@ -73,7 +73,9 @@ def transient_to_json(result: TransientResult, system: System, include_series: b
     every event), and its feed and draw-off: ``inflow_m3_s`` [...] and
     ``draw_off_m3_s`` [...] (the draw-off delivered: zero while the tank is drained) over
     ``time_s``, zeros for a tank without them; ``inflow_volume_m3`` and
-    ``draw_off_volume_m3`` (what they moved over the run), ``end_state`` (``"steady"``,
+    ``draw_off_volume_m3`` (what they moved over the run), ``spill_volume_m3`` and
+    ``line_net_inflow_volume_m3`` (what spilled and what its lines brought in, net; with the
+    feed and draw-off they close the tank's volume balance), ``end_state`` (``"steady"``,
     ``"rising"``, ``"falling"``, ``"spilling"``, ``"drained"`` or ``"still"``),
     ``end_net_inflow_m3_s`` and ``end_level_rate_m_s`` (positive rising); and what spills
     over its overflow, ``spill_m3_s`` [...] and ``peak_spill_m3_s``.
@@ -165,6 +167,8 @@ def _tank_json(result: TransientResult, system: System, k: int, external: tuple,
     entry.update({
         "inflow_volume_m3": _num(_total(result, "feed_volumes", k, feed)),
         "draw_off_volume_m3": _num(_total(result, "draw_off_volumes", k, draw)),
+        "spill_volume_m3": _num(_total(result, "spill_volumes", k, spill)),
+        "line_net_inflow_volume_m3": _num(_run_total(result, "line_volumes", k)),
         "end_state": result.end_states.get(tid),
         "end_net_inflow_m3_s": _num(result.end_rates.get(tid)),
         "end_level_rate_m_s": _num(_level_rate(result, system, k)),
@@ -214,6 +218,12 @@ def _total(result: TransientResult, name: str, k: int, flow: np.ndarray) -> floa
     if totals.size > k:
         return float(totals[k])
     return _moved(result.t, flow)
+
+
+def _run_total(result: TransientResult, name: str, k: int) -> float | None:
+    """A total the run kept for tank ``k`` [m^3], or ``None`` when it kept none."""
+    totals = np.asarray(getattr(result, name, ()), dtype=float)
+    return float(totals[k]) if totals.size > k else None
 
 
 def _moved(t: np.ndarray, flow: np.ndarray) -> float | None:

@@ -32,7 +32,14 @@ junction gives the linear system ``(M diag(a) M^T) H_J = -M diag(a) (F^T H_F + h
 solution enters the right-hand side as a projection ``dQ/dt = -S (F^T H_F + h)``,
 ``S = diag(a) (I - M^T L^+ M diag(a))``, formed once per configuration of open lines (the
 pseudo-inverse also covers a group of junctions cut off by shut valves) so every call is
-one matrix product; junction heads for pressures are recovered from the same factors.
+one matrix product; junction heads for pressures are recovered from the same factors. From
+150 lines the matrices are sparse (:mod:`.sparse`: SuperLU instead of the pseudo-inverse, a
+sparse Jacobian), so 10,000 parallel lines take seconds and megabytes, not gigabytes.
+
+The state ends with two volume accumulators per tank, integrated with the flows: the net
+volume in through its lines, and the volume spilled (the surplus while it is held at its
+overflow). With the feed and draw-off totals they close each tank's balance to round-off
+however fast it cycles between output samples (``spill_volumes``, ``line_volumes``).
 
 Integration is implicit (Radau by default, BDF or LSODA by name) with the analytic
 Jacobian ``-S diag(dh/dQ)`` and ``-S F^T diag(1/A(h))``, driven step by step through
@@ -77,7 +84,8 @@ Modules
 Jacobian, heads), ``state`` (the switched state), ``events`` (event functions and their
 location), ``handlers`` (what each event does), ``loop`` (segments, steps, restarts),
 ``recording`` (series and pressure envelopes), ``assembly`` (the result and its findings),
-``submergence`` and ``end_states`` (post-processing), ``options`` (checked arguments),
+``sparse`` (the matrices of a large system), ``submergence`` and ``end_states``
+(post-processing), ``options`` (checked arguments),
 ``results`` (the result types).
 """
 
@@ -99,6 +107,9 @@ from workbench.core.transient.options import (
 )
 from workbench.core.transient.results import STATUS, Event, TransientResult
 from workbench.core.transient.state import RunState
+
+#: Most lines simulated with LSODA, whose Jacobian is dense (8 bytes times lines squared).
+LSODA_LINES = 2_000
 
 __all__ = [
     "MAX_DURATION",
@@ -185,6 +196,9 @@ def simulate(
         system, duration=duration, method=method, rtol=rtol, atol=atol,
         output_interval=output_interval, initial_state=initial_state, stop_when=stop_when)
     model = TransientModel(system)
+    if method == "LSODA" and model.nl > LSODA_LINES:
+        raise ValueError(f"LSODA keeps a dense Jacobian: with {model.nl:,} lines choose Radau "
+                         f"or BDF (sparse), or simulate at most {LSODA_LINES:,} lines")
     state = RunState.empty(model.nl, model.nt)
     state.notes.extend(notes)
     run = Run(model, options, state, progress, cancel)

@@ -35,7 +35,7 @@ def finish(model: TransientModel, run: Run, outcome, wall: float) -> TransientRe
     state, rec = run.state, run.rec
     nl = model.nl
     t = np.array(rec.t_out)
-    ys = np.array(rec.y_out).T if rec.y_out else np.zeros((nl + model.nt + model.ng, 0))
+    ys = np.array(rec.y_out).T if rec.y_out else np.zeros((model.n_state, 0))
     flows = ys[:nl]
     volumes = ys[nl:nl + model.nt]
     levels = np.array([[g.level_extrapolated(v) for v in row]
@@ -79,6 +79,8 @@ def finish(model: TransientModel, run: Run, outcome, wall: float) -> TransientRe
         draw_offs=draw_offs,
         feed_volumes=run.fed.copy(),
         draw_off_volumes=run.drawn.copy(),
+        spill_volumes=run.spilled.copy(),
+        line_volumes=run.line_volumes.copy(),
         end_rates=end_rates,
         end_states=states,
         spills=spills,

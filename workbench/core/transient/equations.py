@@ -10,6 +10,11 @@ With ``y = [Q, V]``, ``g = F^T H_F(V) + h(Q, t)`` on open lines,
 spilling tanks' rows cleared, ``e`` the feed less the delivered draw-off), and the
 Jacobian ``[[-S diag(dh/dQ), -S F_T^T diag(1/A(h))], [T, 0]]``. Heads are gauge-based
 piezometric heads [m] (see :mod:`workbench.core.model`).
+
+The state ends with volume accumulators ``W = [U, P]`` per tank: ``dU/dt = T_0 Q`` (the
+lines' net inflow, rows never cleared) and ``dP/dt = T_0 Q + e`` while the tank spills, else
+0. They feed nothing back (zero columns), and ``V + P - U`` changes by ``e`` alone, so the
+volume balance closes to round-off however the tank cycles between output times.
 """
 
 from __future__ import annotations
@@ -67,7 +72,7 @@ class Equations:
         if c is not None and c[0] == t and np.array_equal(c[1], y):
             return c[2]
         nl = self.model.nl
-        hf, levels = self.model.fixed_heads(y[nl:])  # [V, X]
+        hf, levels = self.model.fixed_heads(y[nl:self.model.ne])  # [V, X]
         h, dh = self.model.lines.head_loss(y[:nl], self._openings(t))
         if self.state.siphon_broken.any():
             h, dh = siphon.broken_losses(self.model, self.state, y[:nl], hf, h, dh)
@@ -87,17 +92,21 @@ class Equations:
         nl = model.nl
         hf, _, h, _ = self.losses(t, y)
         g = (model.ft @ hf + h) * cfg.open_f
-        nv = nl + model.nt
-        out = np.empty(nv + model.ng)
+        nv, ne = nl + model.nt, model.ne
+        out = np.empty(model.n_state)
         out[:nl] = cfg.s @ g
         out[:nl] *= -1.0
-        out[nl:nv] = cfg.t_rows @ y[:nl]
-        if model.has_ext:  # independent of the state: the Jacobian is unchanged
-            out[nl:nv] += cfg.ext_on * self.external_net(t)
+        lines_in = model.t_rows @ y[:nl]
+        net = lines_in + self.external_net(t) if model.has_ext else lines_in
+        # a spilling tank's rows are cleared: its surplus leaves it (and is counted in W)
+        out[nl:nv] = np.where(cfg.spilling, 0.0, net)
         if model.ng:  # dX/dt = mdot(p) + rho_atm dV/dt (see workbench.core.transient.gas)
             gas = model.gas
-            p, rho, _ = gas.state(y[nl:nv], y[nv:])
-            out[nv:] = gas.inflow(p, rho) + gas.rho_atm * out[nl + gas.tank]
+            p, rho, _ = gas.state(y[nl:nv], y[nv:ne])
+            out[nv:ne] = gas.inflow(p, rho) + gas.rho_atm * out[nl + gas.tank]
+        if model.nw:  # the volume accumulators: lines' net inflow, and the spill
+            out[ne:ne + model.nt] = lines_in
+            out[ne + model.nt:] = np.where(cfg.spilling, net, 0.0)
         return out
 
     def jac(self, t, y):
@@ -107,15 +116,23 @@ class Equations:
         _, _, _, dh = self.losses(t, y)
         dh = dh * cfg.open_f
         nv = nl + nt
-        j = np.zeros((nv + model.ng, nv + model.ng))
+        levels = model.tank_levels(y[nl:nv])
+        inv_a = np.array([1.0 / g.area_floor(lv, 1e-9) for g, lv in zip(model.geoms, levels)])
+        if model.sparse:
+            from workbench.core.transient.sparse import sparse_jacobian
+
+            return sparse_jacobian(self, y, dh, inv_a)
+        j = np.zeros((model.n_state, model.n_state))
         j[:nl, :nl] = -cfg.s * dh[None, :]
         if nt:
-            levels = model.tank_levels(y[nl:nv])
-            inv_a = np.array([1.0 / g.area_floor(lv, 1e-9) for g, lv in zip(model.geoms, levels)])
             if model.ng:
-                return self._jac_gas(y, j, inv_a)
-            j[:nl, nl:] = -cfg.s_tank * inv_a[None, :]
-            j[nl:, :nl] = cfg.t_rows
+                self._jac_gas(y, j, inv_a)
+            else:
+                j[:nl, nl:nv] = -cfg.s_tank * inv_a[None, :]
+                j[nl:nv, :nl] = cfg.t_rows
+            ne = model.ne
+            j[ne:ne + nt, :nl] = model.t_rows
+            j[ne + nt:, :nl] = model.t_rows * cfg.spilling[:, None]
         return j
 
     def _jac_gas(self, y, j, inv_a):
@@ -126,25 +143,24 @@ class Equations:
         nl, nt = model.nl, model.nt
         nv = nl + nt
         gas = model.gas
-        dp_dv, dp_dx, dm_dp = gas.derivatives(y[nl:nv], y[nv:])
+        dp_dv, dp_dx, dm_dp = gas.derivatives(y[nl:nv], y[nv:model.ne])
         rg = model.rho * G
         dh_dv = inv_a.copy()
         dh_dv[gas.tank] += dp_dv / rg
         j[:nl, nl:nv] = -cfg.s_tank * dh_dv[None, :]
-        j[:nl, nv:] = -cfg.s_tank[:, gas.tank] * (dp_dx / rg)[None, :]
+        j[:nl, nv:model.ne] = -cfg.s_tank[:, gas.tank] * (dp_dx / rg)[None, :]
         j[nl:nv, :nl] = cfg.t_rows
         rows = np.arange(nv, nv + model.ng)
         j[rows, :] = gas.rho_atm * j[nl + gas.tank, :]
         j[rows, nl + gas.tank] += dm_dp * dp_dv
         j[rows, rows] += dm_dp * dp_dx
-        return j
 
     def heads(self, t, y):
         """Junction heads then fixed-node heads at a state [m] (the topology's node order)."""
         model, cfg = self.model, self.cfg
         hf, levels, h, _ = self.losses(t, y)
         g = model.ft @ hf + h * cfg.open_f
-        hj = -(cfg.w @ g) if cfg.w.shape[0] else np.zeros(0)
+        hj = cfg.junction_heads(g)
         return np.concatenate([hj, hf])
 
     def discharge_drive(self, t, y):

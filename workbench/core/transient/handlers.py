@@ -188,7 +188,7 @@ def sealed_stop(model: TransientModel, state: RunState, i: int, t: float,
     if not model.ng:
         return
     gas, nl, nt = model.gas, model.nl, model.nt
-    p = gas.gauge(y[nl:nl + nt], y[nl + nt:])
+    p = gas.gauge(y[nl:nl + nt], y[nl + nt:model.ne])
     for g, k in enumerate(gas.tank.tolist()):
         tid = gas.ids[g]
         if model.t_rows[k, i] == 0.0 or p[g] >= -1.0 or tid in state.sealed_stops:

@@ -19,7 +19,7 @@ import numpy as np
 from workbench.core.transient import handlers, siphon
 from workbench.core.transient.equations import Equations
 from workbench.core.transient.events import EventSet, arm, find_events, first_terminal
-from workbench.core.transient.model import Configuration, TransientModel
+from workbench.core.transient.model import TransientModel
 from workbench.core.transient.options import RunOptions
 from workbench.core.transient.recording import Recording
 from workbench.core.transient.results import STATUS
@@ -56,6 +56,11 @@ class Run:
         """Volume drawn off each tank so far [m^3]."""
         self.last_progress = -1.0
         self.t_final = 0.0
+        self.line_volumes = np.zeros(model.nt)
+        """Net volume into each tank through its lines over the run [m^3] (the state's
+        accumulator, integrated with the flows: see :mod:`.equations`)."""
+        self.spilled = np.zeros(model.nt)
+        """Volume spilled over each tank's overflow over the run [m^3], likewise."""
         self.grid = np.zeros(0)
         self.grid_i = 0
 
@@ -77,9 +82,8 @@ class Run:
         p0 = model.gas.p0.copy()
         if self.options.initial_state == "steady":
             q0, p0 = self._steady_start(p0)
-        if not model.ng:
-            return np.concatenate([q0, v0])
-        return np.concatenate([q0, v0, model.gas.excess(v0, p0)])
+        x0 = model.gas.excess(v0, p0) if model.ng else np.zeros(0)
+        return np.concatenate([q0, v0, x0, np.zeros(model.nw)])
 
     def _steady_start(self, p0: np.ndarray):
         """Steady flows at the initial levels and openings [m^3/s], and the gas spaces'
@@ -151,13 +155,12 @@ class Run:
         else:
             scale_v = np.zeros(0)
         q_scale = max(float(np.max(np.abs(y[:nl]), initial=0.0)), 1e-4)
-        atol = np.concatenate([np.full(nl, 1e-6 * q_scale), np.maximum(1e-9 * scale_v, 1e-9)])
-        if not model.ng:
-            return atol
+        v_tol = np.maximum(1e-9 * scale_v, 1e-9)
         gas = model.gas
         # gas state X to a thousandth of a pascal of gauge pressure: X ~ V_g p_gauge/(R T)
-        x_tol = 1e-3 * gas.v_shell * gas.rho_atm / gas.p_atm
-        return np.concatenate([atol, x_tol])
+        x_tol = 1e-3 * gas.v_shell * gas.rho_atm / gas.p_atm if model.ng else np.zeros(0)
+        # the volume accumulators as the volumes
+        return np.concatenate([np.full(nl, 1e-6 * q_scale), v_tol, x_tol, v_tol, v_tol])
 
     def segment_breaks(self) -> list[float]:
         """Segment ends: valve, feed and draw-off schedule break points, then the end."""
@@ -189,7 +192,7 @@ class Run:
         for _ in range(model.nl + model.nt + 1):
             open_lines = ~valve_shut & ~state.blocked & ~state.backstopped & ~state.siphon_stopped
             y[: model.nl][~open_lines] = 0.0
-            self.eq.reset(Configuration(model, open_lines, state.spilling), floor)
+            self.eq.reset(model.configuration(open_lines, state.spilling), floor)
             y[: model.nl] = self.eq.cfg.project(y[: model.nl])
             if handlers.end_spills_in_deficit(self.eq, t_a, y):
                 continue  # a tank no longer held at its overflow: configure again
@@ -266,6 +269,9 @@ class Run:
             self.rec.record(t, y, self.eq.cfg.open, self.state)
         self.report_progress(t, force=True)
         self.t_final = t
+        ne, nt = self.model.ne, self.model.nt
+        self.line_volumes = np.array(y[ne:ne + nt], dtype=float)
+        self.spilled = np.array(y[ne + nt:ne + 2 * nt], dtype=float)
         return status, message
 
     def _record_start(self, y: np.ndarray) -> None:
@@ -278,7 +284,9 @@ class Run:
 
         solver_cls = getattr(integrate, self.options.method)
         kwargs = dict(rtol=self.options.rtol, atol=atol)
-        if self.options.method != "RK45":
+        if self.options.method == "LSODA" and self.model.sparse:  # ODEPACK: dense or banded
+            kwargs["jac"] = lambda t, y: self.eq.jac(t, y).toarray()
+        elif self.options.method != "RK45":
             kwargs["jac"] = self.eq.jac
         return solver_cls(self.eq.rhs, t, y, t_end, **kwargs)
 

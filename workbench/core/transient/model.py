@@ -5,7 +5,9 @@
 ``a = rho g/I = g A/L`` per line, the tanks' geometry and limit volumes, and the *stations*
 (line ends and profile points) where pressure is tracked. :class:`Configuration` holds the
 matrices of one configuration of open lines and spilling tanks (see the package docstring
-for the projection ``S``). The state vector is ``y = [Q (lines), V (tanks)]``.
+for the projection ``S``); :class:`~workbench.core.transient.sparse.SparseConfiguration` the
+same for a large system. The state vector is ``y = [Q (lines), V (tanks), X (gas spaces),
+W (volume accumulators)]``.
 """
 
 from __future__ import annotations
@@ -23,6 +25,7 @@ from workbench.core.model import (
 )
 from workbench.core.tank import TankGeometry, tank_geometry
 from workbench.core.transient.gas import GasSpaces
+from workbench.core.transient.sparse import SPARSE_LINES
 
 
 class Configuration:
@@ -52,6 +55,10 @@ class Configuration:
         self.t_rows = t_rows
         self.ext_on = (~spilling).astype(float)  # a spilling tank's surplus leaves it
 
+    def junction_heads(self, g: np.ndarray) -> np.ndarray:
+        """Junction heads [m] for ``g = F^T H_F + h`` on the open lines."""
+        return -(self.w @ g) if self.w.shape[0] else np.zeros(0)
+
     def project(self, q: np.ndarray) -> np.ndarray:
         """Flows made to satisfy continuity at every junction after lines were stopped.
 
@@ -72,6 +79,8 @@ class TransientModel:
     """Everything constant over a run: arrays built once from the system."""
 
     def __init__(self, system: System):
+        from scipy import sparse
+
         from workbench.core.line import LineSet
         from workbench.core.topology import build_topology
 
@@ -84,10 +93,17 @@ class TransientModel:
         self.rho = rho
         # rho*g/I = g*A/L [m^2/s^2]: the rate of change of flow per metre of head
         self.alpha = G * self.lines.area / self.lines.length
-        self.m_dense = np.asarray(topo.incidence.toarray(), dtype=float)
-        f_dense = np.asarray(topo.fixed_incidence.toarray(), dtype=float)
-        self.f_dense = f_dense
-        self.ft = np.ascontiguousarray(f_dense.T)
+        self.sparse = self.nl >= SPARSE_LINES
+        if self.sparse:  # see workbench.core.transient.sparse
+            self.m_sparse = sparse.csr_matrix(topo.incidence, dtype=float)
+            f_sparse = sparse.csr_matrix(topo.fixed_incidence, dtype=float)
+            self.ft = sparse.csr_matrix(f_sparse.T)
+            self.touches_fixed = np.asarray(abs(f_sparse).sum(axis=0)).ravel() > 0.0
+        else:
+            self.m_dense = np.asarray(topo.incidence.toarray(), dtype=float)
+            f_sparse = None
+            f_dense = np.asarray(topo.fixed_incidence.toarray(), dtype=float)
+            self.ft = np.ascontiguousarray(f_dense.T)
         # fixed heads: constant part
         h_fixed = np.zeros(topo.n_fixed)
         tank_ids: list[str] = []
@@ -111,8 +127,12 @@ class TransientModel:
         self.tank_head_offset = np.array(
             [r.bottom_elevation + r.surface_pressure / (rho * G) for r in self.tanks]
         )
-        self.ft_tank = f_dense[self.tank_fixed, :].T if self.nt else np.zeros((self.nl, 0))
-        self.t_rows = f_dense[self.tank_fixed, :] if self.nt else np.zeros((0, self.nl))
+        if self.sparse:
+            self.t_rows = f_sparse[self.tank_fixed, :].toarray()
+            self.ft_tank_sparse = sparse.csc_matrix(f_sparse[self.tank_fixed, :].T)
+        else:
+            self.t_rows = f_dense[self.tank_fixed, :]
+            self.ft_tank = self.t_rows.T
         self.v_min = np.array([g.volume(r.min_level) for g, r in zip(self.geoms, self.tanks)])
         self.v_over = np.array(
             [g.capacity if g.overflow_level is not None else np.inf for g in self.geoms]
@@ -121,6 +141,12 @@ class TransientModel:
                                    for g, r in zip(self.geoms, self.tanks)])
         self.gas = GasSpaces(system, self.tanks, self.geoms)
         self.ng = self.gas.ng
+        self.ne = self.nl + self.nt + self.ng
+        """Where the volume accumulators start in the state (after ``[Q, V, X]``)."""
+        self.nw = 2 * self.nt
+        """Volume accumulators: per tank the net volume in through its lines, then the
+        volume spilled over its overflow [m^3] (see :mod:`workbench.core.transient`)."""
+        self.n_state = self.ne + self.nw
         self.ext_tanks = [k for k, r in enumerate(self.tanks) if r.has_external_flow]
         self.has_ext = bool(self.ext_tanks)
         self.valve_lines = np.flatnonzero(self.lines.has_valve)
@@ -130,6 +156,14 @@ class TransientModel:
         self.discharge_sign = np.where(rec_to, 1.0, np.where(rec_from, -1.0, 0.0))
         self.is_discharge = self.discharge_sign != 0.0
         self._stations()
+
+    def configuration(self, open_lines: np.ndarray, spilling: np.ndarray):
+        """The matrices of a configuration: dense, or sparse for a large system."""
+        if self.sparse:
+            from workbench.core.transient.sparse import SparseConfiguration
+
+            return SparseConfiguration(self, open_lines, spilling)
+        return Configuration(self, open_lines, spilling)
 
     # ------------------------------------------------------------------ feeds
     def external(self, t: float) -> tuple[np.ndarray, np.ndarray]:

@@ -88,6 +88,13 @@ class TransientResult:
     draw_off_volumes: np.ndarray = field(default_factory=lambda: np.zeros(0))
     """Volume drawn off each tank over the run [m^3], integrated like ``feed_volumes``
     (nothing while the tank stood drained, however fast it cycled)."""
+    spill_volumes: np.ndarray = field(default_factory=lambda: np.zeros(0))
+    """Volume spilled over each tank's overflow over the run [m^3], integrated with the
+    flows as a state of the run (not from the output samples): with :attr:`line_volumes`,
+    ``initial + fed + lines = final + drawn off + spilled`` to round-off."""
+    line_volumes: np.ndarray = field(default_factory=lambda: np.zeros(0))
+    """Net volume into each tank through its lines over the run [m^3] (negative: net
+    outflow), integrated like :attr:`spill_volumes`."""
     end_rates: dict[str, float] = field(default_factory=dict)
     """Per tank, the rate of change of volume at the end of the run [m^3/s] (zero while it
     spills or stands drained)."""

@@ -36,7 +36,7 @@ def gas_series(model: TransientModel, ys: np.ndarray):
     p = np.zeros((gas.ng, n))
     mass = np.zeros((gas.ng, n))
     for j in range(n):
-        pj, rho, vg = gas.state(ys[nl:nl + nt, j], ys[nl + nt:, j])
+        pj, rho, vg = gas.state(ys[nl:nl + nt, j], ys[nl + nt:model.ne, j])
         p[:, j] = pj - gas.p_atm
         mass[:, j] = rho * vg
     return p, mass
