@@ -313,3 +313,57 @@ def test_a_wide_sweep_prints_in_blocks_of_cases_that_fit_80_columns(capsys, monk
     blocks = out.count("Sweep of ")
     assert blocks >= 2 and out.count("max_level(CW-501)") == blocks  # one row in each block
     assert "First passing case in sweep order: #2" in out
+
+
+def test_a_refused_first_value_of_a_swapped_size_fails_its_case_and_the_sweep_goes_on(project_file, capsys) -> None:
+    """The line is given by inner_diameter; sweeping nominal_size drops it. '2.2 in' is no NPS
+    (ASME B36.10M lists 2 and 2-1/2), so case 0 fails naming the key path and the value; case 1
+    runs on NPS 3 Schedule 40, bore 3.068 in (ASME B36.10M), and its flow at the starting
+    level is the quasi-steady reference flow of this module (brentq on the energy equation)."""
+    code = main(["sweep", str(project_file), "--vary", "lines.L1.nominal_size=2.2 in,3 in",
+                 "--steady-only", "--json"])
+    captured = capsys.readouterr()
+    assert code == 0, captured.err
+    assert "internal error" not in captured.err
+    first, second = json.loads(captured.out)["cases"]
+    assert "lines.L1.nominal_size" in first["error"] and "'2.2 in'" in first["error"]
+    assert first["steady"] is None
+    assert second["error"] is None
+    flow = second["steady"]["lines"]["L1"]["flow_m3_s"]
+    assert flow == pytest.approx(_quasi_steady_flow(LEVEL, SCH40_ID_IN["3 in"] * INCH), rel=5e-3)
+    assert "case 0 (lines.L1.nominal_size = 2.2 in)" in captured.err
+
+
+@pytest.mark.parametrize("values", ["0.1 mm,-5 mm", "0.1 mm"])
+def test_a_swapped_size_whose_every_value_is_refused_is_a_usage_error_naming_key_and_value(
+        tmp_path, capsys, values) -> None:
+    """A line given by nominal_size swept over bores none of which is plausible (a bore below
+    1 mm: the plausibility range of README): refused before any case runs, exit 2, no
+    internal error."""
+    path = tmp_path / "sized.toml"
+    path.write_text(PROJECT.replace('inner_diameter = "52.5 mm"', 'nominal_size = "2 in"'),
+                    encoding="utf-8")
+    code = main(["sweep", str(path), "--vary", f"lines.L1.inner_diameter={values}", "--steady-only"])
+    err = capsys.readouterr().err
+    assert code == 2, err
+    assert "internal error" not in err
+    assert "lines.L1.inner_diameter" in err and "'0.1 mm'" in err
+
+
+def test_a_refused_first_bore_in_a_grid_of_two_keys_fails_only_its_own_cases(tmp_path, capsys) -> None:
+    """Two axes, the first a swapped bore whose first value is refused: the two cases with it
+    fail, the two with 52.5 mm (the bore of this module's file) run, and
+    a larger level gives a larger flow (more head, Bernoulli)."""
+    path = tmp_path / "sized.toml"
+    path.write_text(PROJECT.replace('inner_diameter = "52.5 mm"', 'nominal_size = "2 in"'),
+                    encoding="utf-8")
+    code = main(["sweep", str(path), "--vary", "lines.L1.inner_diameter=0.1 mm,52.5 mm",
+                 "--vary", "reservoirs.T1.level=1 m,3 m", "--steady-only", "--json"])
+    captured = capsys.readouterr()
+    assert code == 0, captured.err
+    cases = json.loads(captured.out)["cases"]
+    assert [c["error"] is None for c in cases] == [False, False, True, True]
+    assert all("'0.1 mm'" in c["error"] for c in cases[:2])
+    flows = [c["steady"]["lines"]["L1"]["flow_m3_s"] for c in cases[2:]]
+    assert flows[1] > flows[0]
+    assert flows[1] == pytest.approx(_quasi_steady_flow(3.0, 0.0525), rel=5e-3)

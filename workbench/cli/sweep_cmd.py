@@ -185,6 +185,9 @@ def run(args: argparse.Namespace) -> ExitCode:
         except _ClusterUnusable as exc:
             print(f"workbench sweep: --scheduler: {exc}", file=sys.stderr)
             return ExitCode.USAGE
+        except SweepSpecError as exc:
+            print(f"{args.project}: {exc}", file=sys.stderr)
+            return ExitCode.USAGE
     if plan.criteria:
         sweep["criteria"] = [c.text for c in plan.criteria]
 

@@ -127,7 +127,14 @@ def prepared_base(project: Project, axes: Sequence[Axis]) -> Project:
 
     Sweeping ``lines.L1.nominal_size`` over a line given by ``inner_diameter`` means "size
     the line by nominal size": the inner diameter is dropped (and the other way round),
-    with the key set to the axis' first value so the base stays valid.
+    with the key set to the first of the axis' values the project accepts, so the base
+    stays valid; a value refused there fails its own cases, as anywhere in the list.
+
+    Raises
+    ------
+    SweepSpecError
+        When the project refuses every value of such an axis, naming the key path and the
+        first value's reason.
     """
     for axis in axes:
         parts = axis.keypath.split(".")
@@ -135,23 +142,38 @@ def prepared_base(project: Project, axes: Sequence[Axis]) -> Project:
             continue
         line = project.data.get("lines", {}).get(parts[1], {})
         drop = [k for k in _SWAPS[parts[2]] if k in line]
-        if not drop:
-            continue
-        import tomlkit
-
-        from workbench.project.document import load_project_text
-
-        doc = tomlkit.parse(project.text)
-        table = doc["lines"][parts[1]]
-        for key in drop:
-            del table[key]
-        table[parts[2]] = axis.values[0]
-        units = project.unit_system  # the display units asked for (--units), kept
-        project = replace(load_project_text(tomlkit.dumps(doc), project.name, units),
-                          unit_system=units)
+        if drop:
+            project = _swapped(project, axis, parts[1], drop)
     return project
 
 
+def _swapped(project: Project, axis: Axis, line_id: str, drop: Sequence[str]) -> Project:
+    """The project with ``drop`` removed from the line and the axis' key set to the first of
+    its values that loads."""
+    import tomlkit
+
+    from workbench.project.document import ProjectError, load_project_text
+    from workbench.project.sweep_spec import SweepSpecError
+
+    doc = tomlkit.parse(project.text)
+    table = doc["lines"][line_id]
+    for key in drop:
+        del table[key]
+    key = axis.keypath.split(".")[2]
+    units = project.unit_system  # the display units asked for (--units), kept
+    first_refusal: ProjectError | None = None
+    for value in axis.values:
+        table[key] = value
+        try:
+            loaded = load_project_text(tomlkit.dumps(doc), project.name, units)
+        except ProjectError as exc:
+            first_refusal = first_refusal or exc
+            continue
+        return replace(loaded, unit_system=units)
+    reasons = "; ".join(f"{p.key}: {p.message}" if p.key else p.message
+                        for p in (first_refusal.problems if first_refusal else ()))
+    raise SweepSpecError(f"--vary {axis.keypath}: the project accepts none of the values "
+                         f"({', '.join(axis.texts)}): {reasons}")
 
 
 def outcome(case: Case, solved, criteria) -> CaseOutcome:
