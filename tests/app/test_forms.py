@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from tests.app.conftest import SIZE, TRANSFER, choose_entry, field_input, make, settle
+from tests.app.conftest import SIZE, TRANSFER, choose_entry, field_input, make, settle, type_into
 
 LINE = "310-PW-12"
 
@@ -146,3 +146,69 @@ async def test_a_quick_burst_of_down_presses_lands_on_the_field_as_many_steps_on
             assert app.focused is items[start], (key, steps, app.focused)
         assert isinstance(app.focused, FieldInput)
         assert _inside(app.focused.region, form.region)
+
+
+async def _every_form_whole(pilot) -> list[str]:
+    """Each element's form in turn: names and empty-field placeholders that do not fit."""
+    from textual.widgets import Label
+
+    from workbench.app.outline import entries
+    from workbench.app.panes.form import FieldForm, FieldInput
+
+    app = pilot.app
+    cut = []
+    for entry in entries(app.project.data):
+        await choose_entry(pilot, entry.key)
+        await pilot.pause()
+        form = app.screen.query_one(FieldForm)
+        for row in form.current_rows():
+            name = row.query_one(".field-name", Label)
+            editor = row.editor
+            if len(str(name.render())) + 1 > name.region.width:  # a space before the value
+                cut.append(f"{entry.key} name {name.render()}")
+            if (isinstance(editor, FieldInput) and not editor.value
+                    and len(editor.placeholder) > editor.region.width):
+                cut.append(f"{entry.key} {row.field.keypath} placeholder {editor.placeholder!r}")
+    return cut
+
+
+async def test_no_name_or_placeholder_is_cut_in_any_form_of_the_demos(project_file):
+    """The drain (a line without a valve: the valve keys' placeholder), the vented tank
+    (the longest key names) and the transfer (a line with a valve)."""
+    for demo in ("fellgate_neutraliser_drain.toml", "fellgate_condensate_tank_vent.toml",
+                 TRANSFER):
+        app = make(project_file(demo))
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(pilot)
+            cut = await _every_form_whole(pilot)
+        assert cut == [], (demo, cut)
+
+
+async def test_a_tank_vent_can_be_set_to_none_from_the_form_and_saved(project_file):
+    """vent = "none" seals the tank (the project file's own word); clearing the key opens
+    it; the vent's keys below then read "no vent yet"."""
+    from workbench.project.document import load_project
+
+    path = project_file("fellgate_condensate_tank_vent.toml")
+    tank = "reservoirs.TK-118"
+    app = make(path)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await choose_entry(pilot, "reservoirs:TK-118")
+        vent = field_input(app, f"{tank}.vent")
+        assert "nominal_size" in vent.value  # the vent as it stands, as inline TOML
+        await type_into(pilot, f"{tank}.vent", "none")
+        await settle(pilot)
+        assert vent.parent.problem == ""
+        assert app.project.data["reservoirs"]["TK-118"]["vent"] == "none"
+        assert field_input(app, f"{tank}.vent.k").placeholder == "(no vent yet)"
+        await pilot.press("ctrl+s")
+        await pilot.pause()
+        await type_into(pilot, f"{tank}.vent", "sealed")  # not a word the file takes
+        refused = vent.parent.problem
+        await type_into(pilot, f"{tank}.vent", "")
+        await settle(pilot)
+        opened = app.project.data["reservoirs"]["TK-118"].get("vent")
+    assert load_project(path).data["reservoirs"]["TK-118"]["vent"] == "none"
+    assert "none" in refused and "sealed" in refused
+    assert opened is None

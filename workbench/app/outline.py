@@ -78,6 +78,18 @@ LINE_HEADINGS: tuple[tuple[str, tuple[str, ...]], ...] = (
 )
 
 
+#: Sub-tables whose key may hold a word instead of a table: the key gets a field of its
+#: own above the table's keys (a tank's ``vent = "none"`` seals it; no vent key leaves it
+#: open to the air, its gas space not modelled).
+TABLE_WORDS: dict[str, FieldSpec] = {
+    "reservoirs.vent": FieldSpec(
+        "vent", "choice", False,
+        "'none' for a sealed tank (no vent); empty for a tank open to the air (its gas "
+        "space not modelled); a vent's keys typed below give it a vent",
+        choices=("none",)),
+}
+
+
 def form_fields(entry: Entry) -> list[Field]:
     """Every editable key of an entry, with its key path; a line's in :data:`LINE_HEADINGS`
     order, other sections in schema order (a sub-table's keys under its name)."""
@@ -87,6 +99,9 @@ def form_fields(entry: Entry) -> list[Field]:
     fields = [Field(f"{base}.{s.name}", s) for s in SECTIONS[entry.section] if s.kind != "table"]
     for sub in (s for s in SECTIONS[entry.section] if s.kind == "table"):
         sub_specs = SECTIONS.get(f"{entry.section}.{sub.name}", ())
+        word = TABLE_WORDS.get(f"{entry.section}.{sub.name}")
+        if word is not None:  # the key itself first: a word in the table's stead
+            fields.append(Field(f"{base}.{sub.name}", word, "", sub.name))
         fields += [Field(f"{base}.{sub.name}.{s.name}", s, sub.name, sub.name)
                    for s in sub_specs]
     if entry.section == "lines":
@@ -133,6 +148,8 @@ def value_text(value: Any) -> str:
         return printable(value)  # control characters from the file shown, never sent
     if isinstance(value, (list, tuple)):
         return "[" + ", ".join(_inline(v) for v in value) + "]"
+    if isinstance(value, dict):
+        return _inline(value)
     return str(value)
 
 
@@ -249,7 +266,7 @@ def edit_target(data: dict, field: Field, value: Any) -> tuple[str, Any]:
     if not field.group:
         return field.keypath, value
     base = field.keypath.rsplit(".", 1)[0]
-    if lookup(data, base) is None:
+    if not isinstance(lookup(data, base), dict):  # absent, or a word ("none") in its stead
         if value is None:
             return field.keypath, None
         fields = dict(SUB_TABLE_START.get(field.group, {}))

@@ -176,6 +176,8 @@ def _apply(project: Project, doc, keypath: str, value: Any) -> bool:
             if key not in container:
                 return False
             del container[key]
+        elif spec.kind == "table" and isinstance(value, str):
+            _set(container, key, value)  # a word in the table's stead (vent = "none"): validated
         elif spec.kind == "table":
             if not isinstance(value, dict):
                 raise _fail(project, keypath, f"expected a table of keys, got {value!r}")

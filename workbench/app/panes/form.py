@@ -28,6 +28,8 @@ from workbench.app.outline import (
 from workbench.project.units import QUANTITY_KINDS
 
 NODE_SECTIONS = ("reservoirs", "junctions", "receivers")
+#: Columns of a key's name in a form, at least (the style sheet's .field-name width).
+NAME_WIDTH = 18
 
 
 class FieldInput(Input):
@@ -174,6 +176,9 @@ class FieldRow(Horizontal):
         self.problem = ""
         self.heading = ""
         """The form heading this row sits under."""
+        self.name_width = 0
+        """Columns for the key's name (0: the style sheet's), so the longest name of the
+        form shows whole."""
         self._hint_text = ""
         self._editor: Input | Select | None = None
         self._note: Static | None = None
@@ -181,7 +186,10 @@ class FieldRow(Horizontal):
     def compose(self) -> ComposeResult:
         spec = self.field.spec
         mark = "*" if spec.required else " "
-        yield Label(f"{spec.name}{mark}", classes="field-name")
+        label = Label(f"{spec.name}{mark}", classes="field-name")
+        if self.name_width:
+            label.styles.width = self.name_width
+        yield label
         # Choices are typed, with the rest of a matching word suggested (Right accepts);
         # a plain input is far lighter to build than a drop-down, which keeps forms fast.
         self._editor = FieldInput(self.field, value_text(self.stored), self.choices)
@@ -325,6 +333,8 @@ class FieldForm(VerticalScroll):
         if not holders:
             rows: list = []
             group = ""
+            # the longest key name of the section, its required mark and a space
+            width = max([NAME_WIDTH, *(len(f.spec.name) + 2 for f in fields)])
             for field in fields:
                 heading = field.heading or field.group
                 if heading != group:
@@ -333,6 +343,7 @@ class FieldForm(VerticalScroll):
                     rows.append(GroupHeading(heading, count))
                 row = FieldRow(field, lookup(data, field.keypath), choices_for(field, data))
                 row.heading = heading
+                row.name_width = width
                 rows.append(row)
             holder = Vertical(*rows, id=holder_id, classes="form-section")
             holder.display = not hidden
@@ -414,8 +425,9 @@ class FieldForm(VerticalScroll):
             field = row.field
             if field.group and isinstance(row.editor, Input):
                 # a sub-table that is absent: its keys are not "required" until it exists
-                absent = lookup(data, field.keypath.rsplit(".", 1)[0]) is None
-                row.editor.placeholder = (f"(no {field.group}: typing adds one)" if absent
+                absent = not isinstance(lookup(data, field.keypath.rsplit(".", 1)[0]), dict)
+                # short enough for the field; the help line says typing adds one
+                row.editor.placeholder = (f"(no {field.group} yet)" if absent
                                           else _placeholder(field))
 
     def focus_first(self) -> None:
@@ -465,6 +477,9 @@ class FieldForm(VerticalScroll):
         """Apply ``text`` to ``row``'s key; False (with the reason shown) when refused."""
         if self.app.project is None:
             return False
+        if text == value_text(row.stored):  # as shown: nothing to apply (a table as text)
+            row.show_problem("")
+            return True
         try:
             value = typed_value(text, row.field.spec)
         except EntryError as error:

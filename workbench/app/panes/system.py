@@ -102,4 +102,11 @@ class SystemPane(Horizontal):
             text += " · one of: " + ", ".join(row.choices)
         if spec.kind == "list":
             text += " · Enter or Ctrl+T edits it as a table"
+        editor = row.editor
+        group = message.field.group
+        if group and row.stored is None and getattr(editor, "placeholder", "").startswith("(no "):
+            text += f" · no {group} yet: a value typed here adds one"
         self.query_one("#field-help", Static).update(text)
+        # a longer help line takes rows from the form: keep the field in sight after it
+        form = self.query_one(FieldForm)
+        self.call_after_refresh(form.scroll_to_widget, row, animate=False)
