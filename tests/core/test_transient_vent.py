@@ -210,3 +210,38 @@ def test_a_sealed_tank_draining_into_a_lower_reservoir_settles_at_the_boyle_bala
     assert res.levels[0, -1] == pytest.approx(h_eq, rel=1e-6)
     assert [e.code for e in res.events].count("tank.sealed_stop") == 1
     assert [w.code for w in res.warnings].count("tank.sealed_stop") == 1
+
+
+def test_a_sealed_tank_gets_the_sealed_tank_finding_not_an_undersized_vent():
+    """vent = "none" with design figures: there is no vent to size, so no
+    ``tank.vent_undersized`` ("passes 0 L/s" before); the drain that stops against the
+    vacuum is reported as ``tank.sealed_stop`` (Boyle's law and the head balance, as in
+    the test above)."""
+    system = _drain(Vent(0.0), d_line=0.02, length=1.0, duration=20_000.0, stop=None,
+                    design_vacuum=500.0, design_pressure=500.0)
+    res = simulate(system)
+    assert res.success, res.message
+    codes = [w.code for w in res.warnings]
+    assert "tank.vent_undersized" not in codes
+    assert "tank.sealed_stop" in codes and "tank.sealed" not in codes
+    assert "tank.vacuum" in codes  # far beyond its 0.5 kPa design vacuum
+
+
+def test_a_sealed_tank_whose_liquid_moves_without_stopping_is_named_sealed():
+    """A sealed tank drawn off and fed (the mass-balance case above): no vent finding; one
+    ``tank.sealed`` caution with the lowest and highest gas pressure of the run, which
+    Boyle's law gives from the gas volumes: p = p_atm V_g0 / V_g (isothermal)."""
+    schedule_out = FlowSchedule((0.0, 100.0, 100.0 + 1e-9, 300.0), (0.01, 0.01, 0.0, 0.0))
+    schedule_in = FlowSchedule((0.0, 150.0, 150.0 + 1e-9, 300.0), (0.0, 0.0, 0.01, 0.01))
+    system = _drain(Vent(0.0), duration=300.0, stop=None, draw_off_schedule=schedule_out,
+                    inflow_schedule=schedule_in, design_vacuum=500.0)
+    res = simulate(system)
+    assert res.success, res.message
+    assert not [w for w in res.warnings if w.code == "tank.vent_undersized"]
+    (sealed,) = [w for w in res.warnings if w.code == "tank.sealed"]
+    area = math.pi * 1.0 ** 2
+    vg = area * 4.0 - res.volumes[0]
+    boyle = P_ATM * (area * 1.0) / vg - P_ATM
+    low = dict((name, v) for name, v, _, _ in sealed.values)["low"]
+    assert low == pytest.approx(float(np.min(boyle)), rel=1e-6)
+    assert low < -500.0

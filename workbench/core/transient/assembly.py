@@ -55,6 +55,7 @@ def finish(model: TransientModel, run: Run, outcome, wall: float) -> TransientRe
     warnings.extend(venting.vent_findings(model, t, gas_p, inb, outb))
     stop_events, stop_findings = venting.stopped_drains(model, state, t, ys, gas_p)
     warnings.extend(stop_findings)
+    warnings.extend(venting.sealed_findings(model, t, gas_p, inb, outb, stop_findings))
     warnings.extend(reverse_findings(model, t, flows))
     warnings.extend(laminar_findings(model, flows))
     siphon_warnings, drain_notes = siphon.siphon_findings(model, state, levels)

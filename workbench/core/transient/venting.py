@@ -114,6 +114,8 @@ def _undersized(model, g, res, tid, inb, outb) -> list[Finding]:
     gas = model.gas
     area, n = float(gas.area[g]), float(gas.exponent[g])
     out = []
+    if area <= 0.0:  # a sealed tank has no vent to size: see sealed_findings
+        return out
     for need, design, inward, word in ((inb, res.design_vacuum, True, "inbreathing"),
                                        (outb, res.design_pressure, False, "outbreathing")):
         if need <= 0.0 or design is None:
@@ -128,6 +130,32 @@ def _undersized(model, g, res, tid, inb, outb) -> list[Finding]:
                 "liquid flow of the run)", "danger" if inward else "caution",
                 REQUIRED_VENTING_SOURCE, cap=(cap, "gas_flow"), d=(design, "pressure"),
                 need=(need, "gas_flow")))
+    return out
+
+
+def sealed_findings(model: TransientModel, t, p_gauge, inb, outb, reported) -> list[Finding]:
+    """``tank.sealed`` (caution) for a sealed tank (``vent = "none"``) whose liquid moved
+    and whose drain did not stop against its vacuum (``reported``: the findings so far, a
+    ``tank.sealed_stop`` among them says that already): its gas space alone takes up the
+    liquid movement, with the gauge pressures it reached."""
+    out: list[Finding] = []
+    gas = model.gas
+    stopped = {f.element for f in reported if f.code == "tank.sealed_stop"}
+    for g, tid in enumerate(gas.ids):
+        if gas.area[g] > 0.0 or tid in stopped or not p_gauge.shape[1]:
+            continue
+        if inb[tid] <= 0.0 and outb[tid] <= 0.0:
+            continue
+        j_min, j_max = int(np.argmin(p_gauge[g])), int(np.argmax(p_gauge[g]))
+        out.append(finding(
+            "tank.sealed", tid,
+            f"tank {tid} is sealed (no vent): its gas space alone takes up the liquid "
+            "moving out and in, and its pressure goes from {low} (at "
+            f"t = {float(t[j_min]):.4g} s) to {{high}} gauge (at t = {float(t[j_max]):.4g} s); "
+            "check that the tank is built for both, or give it a vent (API 2000 / ISO 28300)",
+            "caution", "ideal gas (Boyle's law) in the gas space",
+            low=(float(p_gauge[g, j_min]), "pressure"),
+            high=(float(p_gauge[g, j_max]), "pressure")))
     return out
 
 
