@@ -11,7 +11,7 @@ from __future__ import annotations
 from pathlib import Path
 from typing import Any, ClassVar
 
-from textual import events, work
+from textual import work
 from textual.app import App
 from textual.binding import Binding
 from textual.message import Message
@@ -21,6 +21,7 @@ from textual.worker import Worker, WorkerState, get_current_worker
 from workbench.app import jobs
 from workbench.app.history import History
 from workbench.app.recovery_copy import RecoveryKeeper
+from workbench.app.typeahead import TypeAhead
 
 #: Seconds between the last edit and the start of a steady solve.
 DEBOUNCE = 0.3
@@ -35,7 +36,7 @@ def _palette_commands():
     return WorkbenchCommands
 
 
-class WorkbenchApp(App[int]):
+class WorkbenchApp(TypeAhead, App[int]):
     """A gravity-system workbench around one project file."""
 
     CSS_PATH = "workbench.tcss"
@@ -99,12 +100,14 @@ class WorkbenchApp(App[int]):
 
     # --- messages posted by the workers ------------------------------------------------
     class ProjectLoaded(Message):
-        """A project file was read and validated."""
+        """A project file was read and validated (``steady``: its steady result, when it
+        was solved beside the load)."""
 
-        def __init__(self, project: Any, path: Path | None) -> None:
+        def __init__(self, project: Any, path: Path | None, steady: Any = None) -> None:
             super().__init__()
             self.project = project
             self.path = path
+            self.steady = steady
 
     class SteadySolved(Message):
         """A steady solve finished for the edit numbered ``generation``."""
@@ -157,8 +160,11 @@ class WorkbenchApp(App[int]):
         unit_system: str | None = None,
         debounce: float = DEBOUNCE,
         prebuild_forms: bool = True,
+        ahead: Any = None,
     ) -> None:
         super().__init__()
+        self._ahead = ahead
+        """The child process loading and solving ``path`` (``workbench.app.solve_ahead``)."""
         self._initial_project = project
         self._initial_path = Path(path) if path is not None else None
         self._offer_new = offer_new
@@ -174,9 +180,6 @@ class WorkbenchApp(App[int]):
         """The line of the elastic run asked for from the Surge view (running or last)."""
         self._generation = 0
         self._steady_timer = None
-        self._held_keys: list | None = None
-        """Keys typed while the screen is not ready for them (``None``: not holding)."""
-        self._hold_timer = None
         self.recovery = RecoveryKeeper()
         """This workbench's copy of unsaved edits, and the offers of others' copies."""
         self._loading_path: Path | None = None
@@ -189,38 +192,6 @@ class WorkbenchApp(App[int]):
 
         super().notify(printable(message, keep_lines=True), title=title, severity=severity,
                        timeout=timeout, markup=markup)
-
-    # --- keys typed before the screen is ready ----------------------------------------
-    def hold_keys(self, limit: float = 5.0) -> None:
-        """Hold typed keys until :meth:`release_keys` (or ``limit`` seconds): used while
-        the project loads and while a form is being shown, so no key lands in a widget
-        about to lose the focus or is dropped."""
-        if self._held_keys is None:
-            self._held_keys = []
-        if self._hold_timer is not None:
-            self._hold_timer.stop()
-        self._hold_timer = self.set_timer(limit, self.release_keys)
-
-    def release_keys(self) -> None:
-        """Replay the held keys, in order, to whatever has the focus now."""
-        held, self._held_keys = self._held_keys, None
-        if self._hold_timer is not None:
-            self._hold_timer.stop()
-            self._hold_timer = None
-        for event in held or []:
-            key = events.Key(event.key, event.character)
-            # as from the terminal: no sender, so the key bubbles back up to the app's
-            # bindings (a message is never bubbled to the pump that sent it)
-            key._sender = None
-            self.post_message(key)
-
-    async def on_event(self, event: events.Event) -> None:
-        # only keys as typed: a key bubbling back up from a widget is being handled
-        if (isinstance(event, events.Key) and self._held_keys is not None
-                and not event.is_forwarded and event.key != "ctrl+q"):
-            self._held_keys.append(event)
-            return
-        await super().on_event(event)
 
     # --- start-up ----------------------------------------------------------------------
     def get_default_screen(self):
@@ -242,6 +213,8 @@ class WorkbenchApp(App[int]):
             self.recovery.offer_new(self, then=self._ask_new)
 
     def on_unmount(self) -> None:
+        if self._ahead is not None:
+            self._ahead.stop()
         self.recovery.close()
 
     def _ask_new(self) -> None:
@@ -266,18 +239,28 @@ class WorkbenchApp(App[int]):
     @work(thread=True, exclusive=True, exit_on_error=False, group="load")
     def load_worker(self, path: Path | None) -> None:
         self._loading_path = path
+        ahead = self._ahead  # stopped by on_unmount while it works; used once
+        taken = ahead.take() if ahead is not None and ahead.path == path else None
+        self._ahead = None
+        if get_current_worker().is_cancelled:
+            return  # the app is closing
+        if taken is not None:  # read and solved in the child while the frame was drawn
+            project, steady = taken
+            self.post_message(self.ProjectLoaded(project, path, steady))
+            return
         project = jobs.load_starter() if path is None else jobs.load(path)
         self.post_message(self.ProjectLoaded(project, path))
 
     def on_workbench_app_project_loaded(self, message: ProjectLoaded) -> None:
-        self.adopt(message.project, message.path)
+        self.adopt(message.project, message.path, solved=message.steady)
         self.notify(f"opened {message.path}" if message.path else "new project from the starter",
                     timeout=3)
         # the System view releases the keys typed ahead once it shows the project
 
     def adopt(self, project: Any, path: Path | None, *, saved: bool = True,
-              offer_recovery: bool = True) -> None:
-        """Make ``project`` the open document with a fresh history (``saved``: as on disk)."""
+              offer_recovery: bool = True, solved: Any = None) -> None:
+        """Make ``project`` the open document with a fresh history (``saved``: as on disk;
+        ``solved``: its steady result, already computed)."""
         self.history = History.start(project, saved=saved and path is not None)
         self.path = Path(path) if path is not None else None
         self.disk_hash = getattr(project, "loaded_hash", None) if path is not None else None
@@ -292,7 +275,7 @@ class WorkbenchApp(App[int]):
         self.run_status = "idle"
         self.run_progress = 0.0
         self.steady = None
-        self._set_project(project, at_once=True)  # the first result without the pause
+        self._set_project(project, at_once=True, solved=solved)  # no pause for the first
         if offer_recovery:
             self.recovery.offer(self, self.path)  # unsaved edits of a session that died
 
@@ -321,16 +304,17 @@ class WorkbenchApp(App[int]):
         self.set_reactive(WorkbenchApp.project, project)
         self.refresh_bindings()
 
-    def _set_project(self, project: Any, *, at_once: bool = False) -> None:
+    def _set_project(self, project: Any, *, at_once: bool = False, solved: Any = None) -> None:
         self.project = project
         self.modified = self.history.modified if self.history else False
         self.recovery.keep(self)  # unsaved edits kept beside the project until saved
-        self.schedule_steady(at_once=at_once)
+        self.schedule_steady(at_once=at_once, solved=solved)
         self.refresh_bindings()
 
-    def schedule_steady(self, *, at_once: bool = False) -> None:
+    def schedule_steady(self, *, at_once: bool = False, solved: Any = None) -> None:
         """Mark results stale and solve again once edits pause (newer edits win);
-        ``at_once`` (a project just opened) starts without the pause."""
+        ``at_once`` (a project just opened) starts without the pause; ``solved`` is the
+        result of this very project, computed already (posted as a worker would)."""
         if self.project is None:
             return
         self._generation += 1
@@ -338,6 +322,9 @@ class WorkbenchApp(App[int]):
         if self._steady_timer is not None:
             self._steady_timer.stop()
         self.steady_status = "stale"
+        if solved is not None:
+            self.post_message(self.SteadySolved(self._generation, solved))
+            return
         self._steady_timer = self.set_timer(0.001 if at_once else self.debounce,
                                             self._start_steady)
 
@@ -533,7 +520,11 @@ class WorkbenchApp(App[int]):
         from workbench.app.screens.desk import DeskScreen
 
         if isinstance(self.screen, DeskScreen):
-            await self.screen.show_view(name)
+            self.hold_keys(limit=10.0)  # keys typed meanwhile belong to the view shown
+            try:
+                await self.screen.show_view(name)
+            finally:
+                self.call_after_refresh(self.release_keys)
 
     def action_keys(self) -> None:
         from workbench.app.screens.keys import KeysScreen, key_contexts

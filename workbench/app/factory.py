@@ -14,6 +14,7 @@ def make_app(
     unit_system: str | None = None,
     debounce: float | None = None,
     prebuild_forms: bool = True,
+    solve_ahead: bool = False,
 ):
     """Build the workbench around a project.
 
@@ -25,7 +26,16 @@ def make_app(
         debounce: seconds between an edit and its steady solve (tests may shorten it).
         prebuild_forms: build every section's form in idle time after loading, so that
             moving through the element list is quick (tests skip it to run faster).
+        solve_ahead: with ``path``, load and solve the file in a child process on the
+            other core while Textual is imported here and the first frame drawn
+            (:mod:`workbench.app.solve_ahead`; the CLI asks for it). Started before the
+            app module is imported, so the two overlap from the start.
     """
+    ahead = None
+    if solve_ahead and project is None and path is not None:
+        from workbench.app.solve_ahead import SolveAhead
+
+        ahead = SolveAhead.start(Path(path))
     from workbench.app.app import DEBOUNCE, WorkbenchApp
 
     return WorkbenchApp(
@@ -35,4 +45,5 @@ def make_app(
         unit_system=unit_system,
         debounce=DEBOUNCE if debounce is None else debounce,
         prebuild_forms=prebuild_forms,
+        ahead=ahead,
     )

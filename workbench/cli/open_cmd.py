@@ -33,7 +33,8 @@ def run(args: argparse.Namespace) -> ExitCode:
         return ExitCode.INVALID
     from workbench.app.factory import make_app
 
-    app = make_app(path=path, offer_new=path is None, unit_system=args.units)
+    # the file is read and solved on the other core while Textual loads here
+    app = make_app(path=path, offer_new=path is None, unit_system=args.units, solve_ahead=True)
     result = app.run()
     return exit_status(result, app.return_code)
 

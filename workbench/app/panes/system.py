@@ -40,7 +40,8 @@ class SystemPane(Horizontal):
         if not self._prebuilt:
             self._prebuilt = True
             if getattr(self.app, "prebuild_forms", True):
-                self.set_timer(0.3, self._prebuild)
+                # once the first result is on screen: sooner would delay it
+                self.app.after_first_result(lambda: self.set_timer(0.3, self._prebuild))
             else:
                 self.prebuilt = True
 

@@ -131,9 +131,8 @@ class DeskScreen(Screen):
     def on_mount(self) -> None:
         self.query_one(ElementList).focus()
         self.views_built = False
-        # After the first frame is on screen (call_after_refresh), with a pause for the
-        # file to load: building views sooner would delay the first paint.
-        self.call_after_refresh(self.set_timer, 1.0, self._build_views)
+        # once the first result is on screen: building views sooner would delay it
+        self.app.after_first_result(lambda: self.set_timer(0.1, self._build_views))
 
     async def _build_views(self) -> None:
         """Build the other views once the first frame is up, so switching is instant."""
