@@ -65,7 +65,9 @@ class KeyCap(Widget):
 
     def __init__(self, key: str, key_display: str, description: str, action: str = "", *,
                  disabled: bool = False, tooltip: str = "") -> None:
-        super().__init__(classes="-disabled" if disabled else "")
+        # born compact (the usual case), so binding ``compact`` restyles nothing: a style
+        # update per key made every redraw of the footer cost a large part of start-up
+        super().__init__(classes="-compact -disabled" if disabled else "-compact")
         self.key = key
         self.action = action
         self.key_display = key_display
