@@ -28,7 +28,7 @@ async def test_the_app_built_as_the_cli_builds_it_opens_a_demo_and_solves_it(dem
         if source.is_file():
             (tmp_path / source.name).write_bytes(source.read_bytes())
     path = tmp_path / demo.name
-    app = make_app(path=path, debounce=0.05, prebuild_forms=False)
+    app = make_app(path=path, debounce=0.05, prebuild_forms=False, solve_ahead=True)
     async with app.run_test(size=SIZE) as pilot:
         await settle(pilot, timeout=120.0)
         status = app.steady_status

@@ -59,8 +59,9 @@ class SolveAhead:
         if not second_core():
             return None
         try:
+            # -P: like the ``workbench`` script, never a package from the working folder
             process = subprocess.Popen(
-                [sys.executable, "-m", "workbench.app.solve_ahead", os.fspath(path)],
+                [sys.executable, "-P", "-m", "workbench.app.solve_ahead", os.fspath(path)],
                 stdin=subprocess.DEVNULL, stdout=subprocess.PIPE, stderr=subprocess.DEVNULL,
             )
         except (OSError, ValueError):
