@@ -142,3 +142,29 @@ def test_solve_says_a_sealed_tank_has_no_steady_outflow(tmp_path, capsys):
     assert json.loads(capsys.readouterr().out)["nodes"]["TK"]["gas_pressure_pa"] is None
     assert main(["solve", str(_write(tmp_path, 'vent = "none"'))]) == 0
     assert "cannot pass the air" in " ".join(capsys.readouterr().out.split())
+
+
+@pytest.mark.parametrize("units", ["SI", "US"])
+def test_the_gas_spaces_table_fits_80_columns_with_ids_and_titles_whole(tmp_path, capsys, monkeypatch, units):
+    """An 80-column terminal (common practice, no source): the table's lines fit, the tank id
+    (a long one, as plants name tanks) and the column titles appear whole, nothing is cut
+    with an ellipsis, and the lowest gas pressure is the JSON's minimum in the display unit."""
+    from workbench.project.units import format_quantity
+
+    long_id = "TK-118-CONDENSATE"
+    path = tmp_path / "tk.toml"
+    path.write_text(TEXT.format(vent=VENT + '\ndesign_pressure = "2 kPa"')
+                    .replace("reservoirs.TK", f"reservoirs.{long_id}")
+                    .replace('from = "TK"', f'from = "{long_id}"'), encoding="utf-8")
+    monkeypatch.setenv("COLUMNS", "80")
+    assert main(["simulate", str(path), "--units", units]) == 0
+    out = capsys.readouterr().out
+    table = out[out.index("Tank gas spaces"):out.index("\nLines")]
+    assert max(len(line.rstrip()) for line in table.splitlines()) <= 80
+    assert "…" not in table
+    assert long_id in table
+    for word in ("gas pressure", "design", "inbreathing", "outbreathing"):
+        assert word in table
+    assert main(["simulate", str(path), "--json"]) == 0
+    low = json.loads(capsys.readouterr().out)["levels"][long_id]["min_gas_pressure_pa"]
+    assert format_quantity(low, "pressure", units, 3) in table

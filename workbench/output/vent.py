@@ -53,17 +53,21 @@ def gas_table(result: "TransientResult", system: "System", unit_system: str):
         return quantity_text(value, kind, unit_system, 3)
 
     def span(low, high):
+        # the range on two rows, low over high, so that the table fits 80 columns
         if low is None and high is None:
             return "—"
         low_text = q(low, "pressure") if low is not None else "—"
         high_text = q(high, "pressure") if high is not None else "—"
-        return f"{low_text} to {high_text}"
+        return f"{low_text}\n{high_text}"
 
     table = simple_table("Tank gas spaces (gauge)")
     table.caption = ("venting for liquid movement, API 2000 / ISO 28300 (thermal breathing "
                      "not included)")
-    for col in ("tank", "gas pressure", "design", "inbreathing", "outbreathing"):
-        table.add_column(col, justify="left" if col == "tank" else "right", no_wrap=True)
+    table.caption_justify = "left"
+    table.add_column("tank", overflow="fold")  # an id is folded, never cut
+    for col in ("gas pressure\nlow / high", "design\nlimits", "inbreathing\nneeded",
+                "outbreathing\nneeded"):
+        table.add_column(col, justify="right", no_wrap=True)
     for g, tid in enumerate(result.gas_tank_ids):
         res = system.reservoirs[tid]
         p = result.gas_pressures[g]
