@@ -24,6 +24,9 @@ def add_parser(subparsers, name: str, help_text: str) -> argparse.ArgumentParser
         name, help=help_text, description="Validate project files. Every problem is reported, "
         "each with its file, key path, what was found and what was expected.")
     parser.add_argument("projects", nargs="+", metavar="PROJECT", help="project file (.toml)")
+    from workbench.cli.common import add_units_option
+
+    add_units_option(parser)
     parser.add_argument("--json", action="store_true",
                         help="print one JSON object: every file, whether it is valid, its "
                         "problems (file, key path, line, message) and notes")
@@ -60,7 +63,7 @@ def _duration(seconds: float) -> str:
 
 
 def run(args: argparse.Namespace) -> ExitCode:
-    reports = [_check(path) for path in args.projects]
+    reports = [_check(path, args.units) for path in args.projects]
     valid = all(r["valid"] for r in reports)
     if args.json:
         import json
@@ -80,16 +83,21 @@ def run(args: argparse.Namespace) -> ExitCode:
     return ExitCode.OK if valid else ExitCode.INVALID
 
 
-def _check(path: str) -> dict:
+def _check(path: str, units: str | None = None) -> dict:
     """One file's verdict: ``file``, ``valid``, ``summary`` (or ``None``), ``problems``
     (each with ``key``, ``line``, ``column``, ``message`` and the one-line ``text``) and the
-    fluid's ``notes``."""
+    fluid's ``notes``; numbers in the display units ``units`` ("SI"/"US", default the
+    file's own)."""
     from workbench.project.document import ProjectError, load_project
 
     report = {"file": str(path), "valid": False, "summary": None, "problems": [], "notes": [],
               "recovery": _recovery_notes(path)}
     try:
-        project = load_project(path)
+        project = load_project(path, units)
+        if units is not None and units != project.unit_system:
+            import dataclasses
+
+            project = dataclasses.replace(project, unit_system=units)
         if "measurements" in project.data:  # site tests: their CSV files are read here
             from workbench.project.measurements import measurements_of
 
