@@ -94,31 +94,34 @@ def vent_words(vent, unit_system: str) -> str:
 
 def steady_gas_pressures(system: "System", result) -> dict[str, float | None]:
     """Per tank with a vent, the gauge pressure [Pa] at which its vent passes the air that
-    the steady ``result``'s net outflow makes room for (``None`` when no pressure does: a
-    sealed tank with an outflow, or a choked vent); 0 without net flow.
+    its steady outflow makes room for (``None`` when no pressure does: a sealed tank with an
+    outflow, or a choked vent); a sealed tank at rest keeps its initial gas pressure.
 
-    The steady flows are those of the open tank: the vacuum lowers them by ``p/(rho g)``
-    of head, which a simulation with ``initial_state = "steady"`` takes into account.
+    Computed by the core (:func:`workbench.core.steady_vent.vented_steady`, the same fixed
+    point a simulation's steady start uses): the vacuum lowers the steady outflow by
+    ``p/(rho g)`` of head, so the pressure is the one at that lowered outflow, while
+    ``result`` holds the open tank's flows.
     """
-    from workbench.core.atmosphere import R_AIR
-    from workbench.core.model import draw_off_at, inflow_at
-    from workbench.core.vent import GAMMA_AIR, quasi_steady_pressure
+    from workbench.core.network import solve_steady
+    from workbench.core.steady_vent import vented_steady
 
-    p_atm = system.atmospheric_pressure
-    rho_atm = p_atm / (R_AIR * (system.fluid.temperature or 293.15))
+    def solve(vented_system):
+        res = solve_steady(vented_system)
+        if not res.success:
+            raise ValueError(res.message)
+        return res
+
+    tanks = [tid for tid, r in system.reservoirs.items() if r.vent is not None]
+    try:
+        state = vented_steady(system, solve, first=result)
+    except ValueError:
+        return {tid: None for tid in tanks}
     out: dict[str, float | None] = {}
-    for tid, res in system.reservoirs.items():
-        if res.vent is None:
-            continue
-        outflow = draw_off_at(res, 0.0) - inflow_at(res, 0.0)
-        for lid, line in system.lines.items():
-            flow = result.lines[lid].flow
-            outflow += flow if line.from_node == tid else -flow if line.to_node == tid else 0.0
-        n = GAMMA_AIR if res.gas_process == "adiabatic" else 1.0
-        p = quasi_steady_pressure(res.vent.effective_area, outflow, p_atm, rho_atm, n)
-        # never below the liquid's vapour pressure: the liquid boils into the gas space
-        p = max(p, system.fluid.vapor_pressure or 0.0) if np.isfinite(p) else p
-        out[tid] = None if not np.isfinite(p) else p - p_atm
+    for tid in tanks:
+        p = state.pressures[tid]
+        sealed = system.reservoirs[tid].vent.effective_area <= 0.0
+        moving = state.outflows.get(tid, 0.0) != 0.0
+        out[tid] = None if not np.isfinite(p) or (sealed and moving) else p
     return out
 
 

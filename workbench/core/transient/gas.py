@@ -114,51 +114,33 @@ class GasSpaces:
         return dp_dv, dp_dx, dm_dp
 
 
-def _with_gas_pressures(system: System, gas: GasSpaces, p_gauge: np.ndarray) -> System:
-    """``system`` with each gas space's gauge pressure as its tank's surface pressure."""
-    from dataclasses import replace
-
-    reservoirs = dict(system.reservoirs)
-    for tid, p in zip(gas.ids, p_gauge.tolist()):
-        reservoirs[tid] = replace(reservoirs[tid], surface_pressure=p)
-    return replace(system, reservoirs=reservoirs)
-
-
 def steady_gas_pressures(model, solve, p0: np.ndarray, max_iterations: int = 100):
     """The steady state with each vented tank's gas space at the pressure its vent needs to
     pass the air its steady outflow makes room for; sealed tanks keep ``p0``.
 
-    A fixed point of ``Q = steady(p)`` and ``p = quasi_steady_pressure(Q)``
-    (:func:`workbench.core.vent.quasi_steady_pressure`), damped after ten sweeps. The
-    vacuum changes the head by ``p/(rho g)``, usually a small part of it, so a few sweeps
-    suffice. ``solve(system)`` returns a steady result with ``lines[id].flow``.
+    The fixed point of :func:`workbench.core.steady_vent.vented_steady` (the one `solve`
+    reports too). ``solve(system)`` returns a steady result with ``lines[id].flow``.
 
     Returns the steady result and the gauge pressures [Pa]; raises ``ValueError`` when a
     vent cannot pass the flow or the iteration does not settle.
     """
-    from workbench.core.vent import quasi_steady_pressure
+    from dataclasses import replace
+
+    from workbench.core.steady_vent import vented_steady
 
     gas = model.gas
-    p = p0.astype(float).copy()
-    vented = gas.area > 0.0
-    feed, draw = model.external(0.0)
-    for sweep in range(max_iterations):
-        res = solve(_with_gas_pressures(model.system, gas, p))
-        if not vented.any():
-            return res, p
-        q = np.array([res.lines[lid].flow for lid in model.topo.line_ids], dtype=float)
-        out = -(model.t_rows @ q) - feed + draw if model.nt else np.zeros(0)
-        p_new = p.copy()
-        for i, k in enumerate(gas.tank.tolist()):
-            if vented[i]:
-                pa = quasi_steady_pressure(float(gas.area[i]), float(out[k]), gas.p_atm,
-                                           gas.rho_atm, float(gas.exponent[i]))
-                if not np.isfinite(pa):
-                    raise ValueError(f"tank {gas.ids[i]}: its vent cannot pass the air for "
-                                     f"its steady outflow of {out[k] * 1000:.4g} L/s")
-                p_new[i] = max(pa, gas.p_floor) - gas.p_atm
-        if np.all(np.abs(p_new - p) <= 1e-7 * (1.0 + np.abs(p_new))):
-            return res, p
-        weight = 1.0 if sweep < 10 else 0.5
-        p = p + weight * (p_new - p)
-    raise ValueError("the gas-space pressures at the steady outflow did not settle")
+    system = model.system
+    if gas.ng:  # the run's initial gas pressures (p0) as the sealed tanks' ones
+        reservoirs = dict(system.reservoirs)
+        for tid, p in zip(gas.ids, np.asarray(p0, dtype=float).tolist()):
+            reservoirs[tid] = replace(reservoirs[tid], gas_pressure=p)
+        system = replace(system, reservoirs=reservoirs)
+    state = vented_steady(system, solve, max_iterations=max_iterations)
+    p = np.array([state.pressures[tid] for tid in gas.ids], dtype=float)
+    bad = [tid for tid in gas.ids if not np.isfinite(state.pressures[tid])]
+    if bad:
+        raise ValueError(f"tank {bad[0]}: its vent cannot pass the air for its steady "
+                         f"outflow of {state.outflows[bad[0]] * 1000:.4g} L/s")
+    if not state.settled:
+        raise ValueError("the gas-space pressures at the steady outflow did not settle")
+    return state.result, p
