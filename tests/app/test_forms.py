@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import pytest
+
 from tests.app.conftest import SIZE, TRANSFER, choose_entry, field_input, make, settle, type_into
 
 LINE = "310-PW-12"
@@ -12,6 +14,7 @@ def _inside(inner, outer) -> bool:
             and inner.x >= outer.x and inner.right <= outer.right)
 
 
+@pytest.mark.slow  # about 30 key presses, each laying the whole form out again: 15 s of CPU
 async def test_down_visits_every_field_of_a_line_form_and_each_is_inside_the_visible_form(
         project_file):
     from workbench.app.outline import Entry, form_fields

@@ -222,6 +222,7 @@ def test_a_broken_project_gets_messages_not_a_record(tmp_path, capsys) -> None:
     assert "lines.L7.length" in err and "mmm" in err
 
 
+@pytest.mark.slow  # two elastic runs of the hill line (the record's and the reference): 9 s of CPU
 def test_lines_marked_elastic_get_the_elastic_surge_run_and_its_findings(tmp_path) -> None:
     # A near-instant closure (3 s) on the hill line, run by the method of characteristics:
     # the crest reaches vapour pressure, and the elastic run's own finding must be recorded.

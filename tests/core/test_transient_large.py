@@ -16,8 +16,8 @@ import numpy as np
 import pytest
 
 from workbench.core.model import (
-    G,
     FluidProps,
+    G,
     Junction,
     Line,
     Receiver,

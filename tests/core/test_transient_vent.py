@@ -188,7 +188,8 @@ def test_a_sealed_gas_space_never_falls_below_the_vapour_pressure():
 
 
 @pytest.mark.parametrize(("fluid", "friction", "duration"), [
-    (WATER, 0.02, 20_000.0),  # turbulent: the column rings down through reversals
+    pytest.param(WATER, 0.02, 20_000.0,  # turbulent: the column rings down through reversals
+                 marks=pytest.mark.slow),  # 7 s of CPU
     (FluidProps("oil", 900.0, 0.5, None, None, 293.15), None, 200_000.0),  # laminar, creeping
 ])
 def test_a_sealed_tank_draining_into_a_lower_reservoir_settles_at_the_boyle_balance(
