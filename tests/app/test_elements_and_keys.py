@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from tests.app.conftest import NETWORK, SIZE, TRANSFER, choose_entry, make, settle
+from tests.app.conftest import NETWORK, SIZE, TRANSFER, choose_entry, field_input, make, settle
 
 
 async def answer_text(pilot, text: str) -> None:
@@ -195,3 +195,42 @@ async def test_the_fluid_kind_suggests_every_liquid_the_project_layer_accepts(pr
     assert offered is not None
     assert set(offered) == set(choices_for("fluid", "kind"))
     assert {"water", "ethanol", "ethylene_glycol_water", "seawater", "custom"} <= set(offered)
+
+
+async def test_a_new_line_and_tank_on_a_us_project_get_us_sizes(project_file):
+    """On a US-units project (the network demo) the starting values of new elements are in
+    feet and a nominal pipe size: 30 ft (9.144 m, 1 ft = 0.3048 m exact) for the SI 10 m, NPS
+    2 (Schedule 40 bore 2.067 in = 52.5 mm, ASME B36.10M) for the SI 50 mm bore; the system
+    they make still solves, and the line's form at 80x24 shows the feet."""
+    from workbench.project.units import parse_quantity
+
+    app = make(project_file(NETWORK))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        assert app.project.data["project"]["units"] == "US"
+        await choose_entry(pilot, "reservoirs:TK-410")
+        await pilot.press("a")
+        await pilot.pause()
+        await pilot.press("r")
+        await pilot.pause()
+        await answer_text(pilot, "TK-9")
+        await settle(pilot)
+        await pilot.press("a")
+        await pilot.pause()
+        await pilot.press("l")
+        await pilot.pause()
+        await answer_text(pilot, "L9")
+        await settle(pilot)
+        line = dict(app.project.data["lines"]["L9"])
+        tank = dict(app.project.data["reservoirs"]["TK-9"])
+        shown = field_input(app, "lines.L9.length")
+        shown_length, shown_visible = shown.value, shown.region.height > 0
+        steady_status = app.steady_status
+    assert tank["level"] == "3 ft" and tank["bottom_elevation"] == "0 ft"
+    assert line["length"] == "30 ft" and line["nominal_size"] == "2 in"
+    assert "inner_diameter" not in line
+    assert abs(parse_quantity(line["length"], "length") - 10.0) < 1.0
+    assert abs(2.067 * 0.0254 - 0.050) < 0.003  # NPS 2 Sch 40 bore near the SI default
+    assert line["roughness"] == "0.0018 in"
+    assert steady_status == "fresh"
+    assert shown_length == "30 ft" and shown_visible

@@ -236,19 +236,34 @@ def suggest_id(data: dict, stem: str) -> str:
 STEMS = {"reservoirs": "T", "junctions": "J", "receivers": "OUT", "lines": "L"}
 
 
+#: A new element's sizes in the project's units: the same physical size rounded to a value
+#: the trade uses (10 m about 30 ft; a 50 mm bore about an NPS 2 line; commercial steel
+#: roughness 0.045 mm, 0.0018 in). Common practice, no source.
+STARTING_SIZES = {
+    "SI": {"zero": "0 m", "level": "1 m", "length": "10 m", "bore": ("inner_diameter", "50 mm"),
+           "roughness": "0.045 mm"},
+    "US": {"zero": "0 ft", "level": "3 ft", "length": "30 ft", "bore": ("nominal_size", "2 in"),
+           "roughness": "0.0018 in"},
+}
+
+
 def starting_fields(data: dict, section: str) -> dict[str, Any]:
-    """Fields of a new element: valid as they stand, for the user to edit next."""
+    """Fields of a new element: valid as they stand, for the user to edit next, in the
+    project's own units (``[project] units``)."""
+    units = (data.get("project") or {}).get("units", "SI")
+    size = STARTING_SIZES.get(units, STARTING_SIZES["SI"])
     if section == "reservoirs":
-        return {"kind": "constant_level", "bottom_elevation": "0 m", "level": "1 m"}
+        return {"kind": "constant_level", "bottom_elevation": size["zero"], "level": size["level"]}
     if section == "junctions":
-        return {"elevation": "0 m"}
+        return {"elevation": size["zero"]}
     if section == "receivers":
-        return {"kind": "open_discharge", "elevation": "0 m"}
+        return {"kind": "open_discharge", "elevation": size["zero"]}
     nodes = [e for s in ("reservoirs", "junctions", "receivers") for e in (data.get(s) or {})]
     start = nodes[0] if nodes else ""
     end = next((n for n in reversed(nodes) if n != start), start)
-    return {"from": start, "to": end, "length": "10 m", "inner_diameter": "50 mm",
-            "roughness": "0.045 mm"}
+    bore_key, bore = size["bore"]
+    return {"from": start, "to": end, "length": size["length"], bore_key: bore,
+            "roughness": size["roughness"]}
 
 
 #: Keys a sub-table gets when a form creates it, so it is valid from the first edit:
