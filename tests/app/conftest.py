@@ -104,3 +104,13 @@ async def type_into(pilot, keypath: str, text: str, enter: bool = True) -> None:
     if enter:
         await pilot.press("enter")
         await pilot.pause()
+
+
+async def run_elastic_in_the_surge_view(pilot, *keys: str) -> None:
+    """F10 (the Surge view), then ``keys`` (``"down", "e"``: the next line, run it), and
+    wait until the elastic run's worker is done."""
+    await pilot.press("f10")
+    await pilot.pause()
+    await pilot.press(*keys)
+    await pilot.app.workers.wait_for_complete()
+    await pilot.pause()

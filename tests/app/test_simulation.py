@@ -168,16 +168,12 @@ async def test_e_in_the_surge_view_runs_the_highlighted_line_and_marks_it(projec
 
 
 async def test_e_on_a_branched_line_runs_the_whole_connected_part(project_file):
-    from tests.app.conftest import NETWORK
+    from tests.app.conftest import NETWORK, run_elastic_in_the_surge_view
 
     app = make(project_file(NETWORK))
     async with app.run_test(size=SIZE) as pilot:
         await settle(pilot)
-        await pilot.press("f10")
-        await pilot.pause()
-        await pilot.press("down", "e")
-        await app.workers.wait_for_complete()
-        await pilot.pause()
+        await run_elastic_in_the_surge_view(pilot, "down", "e")
         title = str(app.screen.query_one("#surge-title").render())
         note = str(app.screen.query_one("#surge-note").render())
         listed = [str(o.prompt) for o in app.screen.query_one("#surge-lines").options]

@@ -87,16 +87,12 @@ async def test_elastic_danger_findings_reach_the_events_view(project_file):
 async def test_v_steps_from_the_envelope_through_the_valve_and_junction_traces(project_file):
     # A branched project: e runs the whole part joined through junctions; v shows the
     # envelope, then each valve's and junction's pressure in time, then the envelope again.
-    from tests.app.conftest import NETWORK, SIZE, make, settle
+    from tests.app.conftest import NETWORK, SIZE, make, run_elastic_in_the_surge_view, settle
 
     app = make(project_file(NETWORK))
     async with app.run_test(size=SIZE) as pilot:
         await settle(pilot)
-        await pilot.press("f10")
-        await pilot.pause()
-        await pilot.press("down", "e")
-        await app.workers.wait_for_complete()
-        await pilot.pause()
+        await run_elastic_in_the_surge_view(pilot, "down", "e")
         pane = app.screen.query_one("SurgePane")
         pictures = pane._pictures()
         titles = []

@@ -31,6 +31,14 @@ class KeptCopies:
         return "".join(p.read_text() for p in self.files())
 
 
+async def edit_the_length(pilot, text: str) -> None:
+    """Once the app has settled, choose the transfer line and type its length (an edit
+    that is not saved)."""
+    await settle(pilot)
+    await choose_entry(pilot, f"lines:{LINE}")
+    await type_into(pilot, f"lines.{LINE}.length", text)
+
+
 @pytest.mark.slow
 async def test_edits_survive_a_session_that_dies_and_come_back_on_the_next_open(project_file):
     from workbench.app.screens.dialogs import AskScreen
@@ -74,9 +82,7 @@ async def test_a_clean_quit_after_discarding_leaves_no_copy(project_file):
     copy_ = KeptCopies(path)
     app = make(path)
     async with app.run_test(size=SIZE) as pilot:
-        await settle(pilot)
-        await choose_entry(pilot, f"lines:{LINE}")
-        await type_into(pilot, f"lines.{LINE}.length", "270 m")
+        await edit_the_length(pilot, "270 m")
         assert copy_.exists()
         await pilot.press("ctrl+q")
         await pilot.pause()
@@ -90,9 +96,7 @@ async def test_undo_back_to_the_saved_state_removes_the_copy(project_file):
     copy_ = KeptCopies(path)
     app = make(path)
     async with app.run_test(size=SIZE) as pilot:
-        await settle(pilot)
-        await choose_entry(pilot, f"lines:{LINE}")
-        await type_into(pilot, f"lines.{LINE}.length", "275 m")
+        await edit_the_length(pilot, "275 m")
         assert copy_.exists()
         await pilot.press("ctrl+z")
         await pilot.pause()
