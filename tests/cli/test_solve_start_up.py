@@ -110,3 +110,37 @@ def test_pint_imported_after_dask_keeps_its_dask_support() -> None:
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
                          check=True).stdout.strip()
     assert out == "True"
+
+
+def _command_parsers(parser) -> dict:
+    import argparse
+
+    action = next(a for a in parser._actions if isinstance(a, argparse._SubParsersAction))
+    return action.choices
+
+
+def test_a_parser_built_for_one_command_reads_it_as_the_full_parser_does() -> None:
+    """``main`` builds the options of the command it runs only; the help of every command,
+    and the top-level help, are those of the parser with every command built."""
+    from workbench.cli import COMMANDS, build_parser
+
+    full = build_parser()
+    for name in COMMANDS:
+        one = build_parser(only=name)
+        assert one.format_help() == full.format_help()
+        assert _command_parsers(one)[name].format_help() == _command_parsers(full)[name].format_help()
+        assert set(_command_parsers(one)) == set(COMMANDS)
+
+
+def test_solving_imports_no_other_commands_module() -> None:
+    code = (
+        "import contextlib, io, sys\n"
+        "from workbench.cli import main\n"
+        "with contextlib.redirect_stdout(io.StringIO()):\n"
+        f"    main(['solve', '--json', {SINGLE_LINE_DEMO!r}])\n"
+        "print(','.join(sorted(m for m in sys.modules if m.startswith('workbench.cli.')\n"
+        "                      and m.endswith('_cmd'))))\n"
+    )
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                         cwd=ROOT).stdout.strip()
+    assert out == "workbench.cli.solve_cmd"
