@@ -105,3 +105,79 @@ async def test_the_sweep_is_listed_in_the_tab_bar_like_the_other_views_and_its_t
         opened = isinstance(app.screen, SweepScreen)
     assert "F9 Sweep" in titles
     assert opened
+
+
+async def test_f9_sweep_is_in_the_key_footer_of_every_view_and_every_key_shows_whole(
+        project_file):
+    from workbench.app.widgets.keyfooter import KeyCap, KeyFooter
+
+    app = make(project_file(DRAIN))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        seen = {}
+        for view in ("f2", "f3", "f4", "f5", "f6", "f10"):
+            await pilot.press(view)
+            await pilot.pause()
+            await pilot.pause()
+            footer = app.screen.query_one(KeyFooter)
+            caps = list(footer.query(KeyCap))
+            sweep = [c for c in caps if c.key == "f9"]
+            seen[view] = bool(sweep) and all(
+                c.region.right <= SIZE[0] and footer.region.contains_region(c.region)
+                for c in caps)
+    assert all(seen.values()), seen
+
+
+async def test_a_sweep_run_before_an_undo_says_it_is_stale_and_redo_makes_it_current(
+        project_file):
+    from workbench.app.screens.sweep import SweepScreen
+
+    app = make(project_file(DRAIN))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await choose_entry(pilot, f"lines:{LINE}")
+        await type_into(pilot, f"lines.{LINE}.length", "90 m")
+        await settle(pilot)
+        await pilot.press("f9")
+        await pilot.pause()
+        screen = app.screen
+        assert isinstance(screen, SweepScreen)
+        screen.query_one("#sweep-vary-1").value = f"reservoirs.TK-210.level=1 m,2 m"
+        screen.query_one("#sweep-steady-only").value = True
+        await pilot.press("ctrl+r")
+        for _ in range(600):
+            await pilot.pause(0.05)
+            await screen.workers.wait_for_complete()
+            if not screen.running:
+                break
+        await pilot.pause()
+        fresh = text(app, "#sweep-status")
+        await pilot.press("ctrl+z")  # undo works on this screen: the sweep is now of another state
+        await pilot.pause()
+        stale = text(app, "#sweep-status")
+        await pilot.press("ctrl+y")
+        await pilot.pause()
+        again = text(app, "#sweep-status")
+    assert "2 cases" in fresh and "STALE" not in fresh
+    assert "STALE" in stale and "2 cases" in stale
+    assert "STALE" not in again
+
+
+async def test_the_run_summary_on_the_events_view_reads_whole_at_80_columns(project_file):
+    app = make(project_file(DRAIN))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("ctrl+r")
+        await pilot.pause()
+        await app.workers.wait_for_complete()
+        await pilot.pause()
+        await pilot.press("f6")
+        await pilot.pause()
+        summary = app.screen.query_one("#run-summary")
+        lines = summary.render_lines(summary.region.reset_offset)
+        shown = " ".join("".join(s.text for s in line).strip() for line in lines)
+        whole = " ".join(str(summary.render()).split())
+        drained = list(app.transient.drain_times)
+    assert len(whole) > SIZE[0]  # longer than one row: it must wrap, not be cut
+    assert drained and all(tank in shown for tank in drained)
+    assert " ".join(shown.split()) == whole

@@ -87,6 +87,8 @@ class RunPane(Vertical):
         self.query_one("#run-status", Static).update(f"Run: {RUN_WORDS.get(status, status)}")
         self.set_class(status == "running", "-running")
         self._show_stale()
+        if self.app.transient is None:
+            self._redraw()  # the empty plot's title follows the run's state
 
     def _show_stale(self, _value=None) -> None:
         stale = self.app.run_is_stale() and self.app.run_status != "running"
@@ -153,7 +155,9 @@ class RunPane(Vertical):
         legend = self.query_one("#run-legend", Static)
         result = self.app.transient
         if result is None:
-            plt.title("no simulation yet: Ctrl+R runs one")
+            running = self.app.run_status == "running"
+            plt.title("the trends show when the run ends" if running
+                      else "no simulation yet: Ctrl+R runs one")
             legend.update("")
             self._plot.refresh()
             return

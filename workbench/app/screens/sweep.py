@@ -125,6 +125,9 @@ class SweepScreen(Screen[None]):
         """The last outcome, as the ``sweep --json`` object."""
         self.keypaths: list[str] = []
         self.running = False
+        self._ran_on: Any = None
+        """The project the shown sweep was run on (an edit or undo since makes it stale)."""
+        self._words = ""
 
     @property
     def project(self) -> Any:
@@ -166,6 +169,19 @@ class SweepScreen(Screen[None]):
 
     def on_mount(self) -> None:
         self.query_one("#sweep-vary-1", Input).focus()
+        from textual.reactive import Reactive
+
+        if isinstance(getattr(type(self.app), "project", None), Reactive):
+            self.watch(self.app, "project", self._show_stale, init=False)
+
+    def is_stale(self) -> bool:
+        """True when the table shows a sweep of another state of the project than the
+        open one (Ctrl+Z or Ctrl+Y work on this screen too)."""
+        return self.sweep is not None and self._ran_on is not self.project
+
+    def _show_stale(self, _project=None) -> None:
+        if self.sweep is not None and not self.running:
+            self._status(self._words)
 
     # --- running ---------------------------------------------------------------------
     def _texts(self) -> tuple[list[str], list[str]]:
@@ -181,6 +197,7 @@ class SweepScreen(Screen[None]):
             self._status("Give at least one key to vary, as KEYPATH=VALUES.", error=True)
             return
         self.running = True
+        self._ran_on = self.project
         self._status("running…")
         self.query_one("#sweep-progress", ProgressBar).update(total=None, progress=0)
         self.run_worker_sweep(self.project, vary, require,
@@ -231,7 +248,8 @@ class SweepScreen(Screen[None]):
         if self.sweep.get("criteria"):
             words.append("no case passes" if first is None else f"first passing: #{first} "
                          + ", ".join(f"{k} = {v}" for k, v in cases[first]["values"].items()))
-        self._status("; ".join(words))
+        self._words = "; ".join(words)
+        self._status(self._words)
         self.query_one("#sweep-progress", ProgressBar).update(total=max(len(cases), 1), progress=len(cases))
         self._fill_table()
         self._fill_plot_choices()
@@ -252,6 +270,8 @@ class SweepScreen(Screen[None]):
 
     def _status(self, text: str, *, error: bool = False) -> None:
         status = self.query_one("#sweep-status", Static)
+        if not error and not self.running and self.is_stale():
+            text = "◌ STALE: run before the latest edits (Ctrl+R runs again) · " + text
         status.update(("✖ " if error else "") + text)
         status.set_class(error, "-error")
 
