@@ -2,12 +2,13 @@
 
 Prints, per size, the CPU and wall time and the peak memory (resident set) of the core run
 and of ``workbench simulate --json`` on a generated project file, each in a fresh process,
-with the integrator's steps and the final levels. From 150 lines the transient model keeps
+with the integrator's steps and the final levels. From 100 lines the transient model keeps
 its matrices sparse (``workbench/core/transient/sparse.py``); before, 10,000 lines needed a
 dense 10,002 x 10,002 complex matrix (about 1.6 GB) in every Radau step.
 
 Run: ``.venv/bin/python tests/benchmarks/bench_transient_large.py [--sizes 100,1000,10000]
-[--no-cli]``. A script that prints figures, not a timed test.
+[--no-cli]``; ``--threshold`` compares the dense and the sparse matrices at 20-400 lines
+(where ``SPARSE_LINES`` is set). A script that prints figures, not a timed test.
 
 The plant (our own invention): two vertical tanks 20 m across, the upper one with its bottom
 10 m higher, joined by N lines of 50 mm bore, 50-56 m long; ten minutes of the upper tank
@@ -127,12 +128,35 @@ def _cli(n: int, workdir: Path) -> dict:
     return {"cpu": cpu, "wall": wall, "rss_mb": rss, "exit": code, "json_mb": len(text) / 1e6}
 
 
+def threshold() -> None:
+    """CPU time of the same runs with dense and with sparse matrices (mean of 3)."""
+    from workbench.core.transient import model as model_module
+    from workbench.core.transient import simulate
+
+    for n in (20, 60, 90, 110, 150, 400):
+        system = plant(n)
+        row = []
+        for limit in (10**9, 1):
+            model_module.SPARSE_LINES = limit
+            simulate(system)
+            c0 = time.process_time()
+            for _ in range(3):
+                simulate(system)
+            row.append((time.process_time() - c0) / 3)
+        print(f"{n:>5} lines: dense {row[0]:.3f} s, sparse {row[1]:.3f} s CPU")
+
+
 def main(argv=None) -> int:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--sizes", default="100,1000,10000")
     parser.add_argument("--no-cli", action="store_true", help="time the core run only")
     parser.add_argument("--one", type=int, help=argparse.SUPPRESS)
+    parser.add_argument("--threshold", action="store_true",
+                        help="compare dense and sparse matrices at 20-400 lines")
     args = parser.parse_args(argv)
+    if args.threshold:
+        threshold()
+        return 0
     if args.one:
         print(json.dumps(_one(args.one)))
         return 0

@@ -33,7 +33,7 @@ solution enters the right-hand side as a projection ``dQ/dt = -S (F^T H_F + h)``
 ``S = diag(a) (I - M^T L^+ M diag(a))``, formed once per configuration of open lines (the
 pseudo-inverse also covers a group of junctions cut off by shut valves) so every call is
 one matrix product; junction heads for pressures are recovered from the same factors. From
-150 lines the matrices are sparse (:mod:`.sparse`: SuperLU instead of the pseudo-inverse, a
+100 lines the matrices are sparse (:mod:`.sparse`: SuperLU instead of the pseudo-inverse, a
 sparse Jacobian), so 10,000 parallel lines take seconds and megabytes, not gigabytes.
 
 The state ends with two volume accumulators per tank, integrated with the flows: the net
