@@ -120,3 +120,60 @@ async def test_the_progress_follows_the_real_model_runs_not_a_fixed_count(tmp_pa
         bar = screen.query_one("#calib-progress")
         assert (bar.total, bar.progress) == (runs, runs)
         assert f"({runs} model runs)" in str(screen.query_one("#calib-result").render())
+
+
+async def test_keys_typed_at_once_after_f11_land_in_the_view(tmp_path):
+    """F11 then the fit's text typed straight on, faster than the view is built (the keys
+    are queued before the app has handled F11, as from a quick typist or a slow link):
+    every key reaches the view's first field, none goes to the screen underneath."""
+    from textual import events
+
+    from workbench.app.screens.calibrate import CalibrateScreen
+
+    app = make(_project(tmp_path))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        typed = "lines.L1"
+        for key in ["f11", *typed]:
+            app.post_message(events.Key(key, None if len(key) > 1 else key))
+        for _ in range(100):
+            await pilot.pause(0.05)
+            if isinstance(app.screen, CalibrateScreen) and app.screen.query("KeyFooter"):
+                break
+        await pilot.pause()
+        assert isinstance(app.screen, CalibrateScreen)
+        assert app.screen.query_one("#calib-fit").value == typed
+        assert app.project.text == SMALL  # nothing typed reached the project underneath
+
+
+async def test_the_fits_modules_load_in_the_worker_not_on_the_screen(tmp_path, monkeypatch):
+    """Neither opening the view nor starting a fit runs an import of the fitting modules
+    (the least-squares search, the calibration layers) on the UI thread: they load in the
+    worker, so the view answers keys while they load. (Showing the finished fit may use
+    them: they are loaded by then.)"""
+    import builtins
+    import threading
+
+    heavy = ("scipy.optimize", "workbench.core.calibration", "workbench.project.calibration")
+    on_screen: list[str] = []
+    real_import = builtins.__import__
+
+    def watched(name, *args, **kwargs):
+        if (threading.current_thread() is threading.main_thread() and name.startswith(heavy)
+                and getattr(app.screen, "run", None) is None):  # before the fit's end
+            on_screen.append(name)
+        return real_import(name, *args, **kwargs)
+
+    app = make(_project(tmp_path))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        monkeypatch.setattr(builtins, "__import__", watched)
+        await pilot.press("f11")
+        await pilot.pause()
+        await _type(pilot, "#calib-fit", FIT)
+        await pilot.press("ctrl+r")
+        await pilot.pause()
+        monkeypatch.setattr(builtins, "__import__", real_import)
+        await _wait_for_fit(pilot)
+        assert app.screen.run is not None and app.screen.run.result.success
+    assert on_screen == []

@@ -61,8 +61,9 @@ class WorkbenchApp(TypeAhead, App[int]):
         Binding("f7", "toggle_units", "SI/US", key_display="F7", id="app.units"),
         Binding("f8", "cautions", "Cautions", key_display="F8", id="app.cautions"),
         Binding("f9", "sweep", "Sweep", key_display="F9", id="run.sweep"),
+        # priority: run at once, so the keys typed right after it are held for the view
         Binding("f11", "calibrate", "Calibrate", key_display="F11", id="run.calibrate",
-                show=False),
+                show=False, priority=True),
         Binding("ctrl+s", "save", "Save", id="file.save"),
         Binding("ctrl+z", "undo", "Undo", id="edit.undo"),
         Binding("ctrl+y", "redo", "Redo", id="edit.redo"),
@@ -544,7 +545,8 @@ class WorkbenchApp(TypeAhead, App[int]):
     def action_calibrate(self) -> None:
         from workbench.app.screens.calibrate import CalibrateScreen
 
-        if self.project is not None:
+        if self.project is not None and not isinstance(self.screen, CalibrateScreen):
+            self.hold_keys()  # keys typed while the view is built go to it (it releases them)
             self.push_screen(CalibrateScreen())
 
     def action_toggle_units(self) -> None:

@@ -18,7 +18,7 @@ from textual.containers import Horizontal, Vertical
 from textual.message import Message
 from textual.screen import Screen
 from textual.suggester import SuggestFromList
-from textual.widgets import Footer, Input, Label, ProgressBar, Static
+from textual.widgets import Input, Label, ProgressBar, Static
 from textual.worker import Worker, WorkerState, get_current_worker
 
 
@@ -102,12 +102,14 @@ class CalibrateScreen(Screen[None]):
     """
 
     class Progressed(Message):
-        """A model run ended; ``rms`` is the relative residual so far."""
+        """A model run ended; ``rms`` is the relative residual so far, ``limit`` the most
+        model runs the fit may make."""
 
-        def __init__(self, runs: int, rms: float) -> None:
+        def __init__(self, runs: int, rms: float, limit: int = 0) -> None:
             super().__init__()
             self.runs = runs
             self.rms = rms
+            self.limit = limit
 
     class Finished(Message):
         """The fit ended: ``run`` (a CalibrationRun), or ``error`` in words."""
@@ -151,10 +153,20 @@ class CalibrateScreen(Screen[None]):
         yield ProgressBar(id="calib-progress", total=1, show_eta=False, show_percentage=False)
         yield Static("", id="calib-result", markup=False)
         yield Vertical(id="calib-plot-holder")
-        yield Footer()
+        # the key footer (a widget per key, most of the view's cost) comes after the form
+        # has the focus: see on_mount
 
     def on_mount(self) -> None:
         self.query_one("#calib-fit", Input).focus()
+        release = getattr(self.app, "release_keys", None)
+        if release is not None:  # keys typed since F11, held by the app: to the form now
+            release()
+        self.call_after_refresh(self._mount_footer)
+
+    def _mount_footer(self) -> None:
+        from workbench.app.widgets.keyfooter import KeyFooter
+
+        self.mount(KeyFooter(compact=True, show_command_palette=False))
 
     # --- running ---------------------------------------------------------------------
     def action_run_fit(self) -> None:
@@ -166,25 +178,25 @@ class CalibrateScreen(Screen[None]):
         if not fits:
             self._status("Give a number to fit, as KEYPATH=LOW..HIGH.", error=True)
             return
-        from workbench.core.calibration import run_limit
-
         self.running = True
         self.run = None
-        self.limit = run_limit(len(fits))
+        self.limit = 0  # the worker says (the fit's modules load there, not here)
         self._status("fitting… (each model run is a simulation of the test)")
         self.query_one("#calib-progress", ProgressBar).update(total=None, progress=0)
         self.fit_worker(self.project, fits, names or None)
 
     @work(thread=True, exclusive=True, exit_on_error=False, group="calibrate")
     def fit_worker(self, project: Any, fits: list[str], names: list[str] | None) -> None:
-        from workbench.core.calibration import CalibrationError
+        # the fit's modules (scipy.optimize among them) load here, off the UI thread
+        from workbench.core.calibration import CalibrationError, run_limit
         from workbench.project.calibration import FitSpecError, calibrate
         from workbench.project.problems import ProjectError
 
         worker = get_current_worker()
+        limit = run_limit(len(fits))
         try:
             run = calibrate(project, fits, names,
-                            progress=lambda n, rms: self.post_message(self.Progressed(n, rms)),
+                            progress=lambda n, rms: self.post_message(self.Progressed(n, rms, limit)),
                             cancel=lambda: worker.is_cancelled)
         except (FitSpecError, ProjectError, CalibrationError) as exc:
             self.post_message(self.Finished(None, str(exc)))
@@ -193,6 +205,7 @@ class CalibrateScreen(Screen[None]):
 
     def on_calibrate_screen_progressed(self, message: Progressed) -> None:
         self.runs = message.runs
+        self.limit = message.limit or self.limit
         self._status(f"fitting… model run {message.runs} (at most {self.limit}), relative RMS "
                      f"residual {message.rms:.3g}")
 
