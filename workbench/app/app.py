@@ -362,11 +362,13 @@ class WorkbenchApp(TypeAhead, App[int]):
         self.run_status = "running"
         self.run_progress = 0.0
         self.call_later(self.action_view, "run")
-        self.simulation_worker(self.project.system)
+        from workbench.app.measurement_overlay import gauged_junctions
+
+        self.simulation_worker(self.project.system, bool(gauged_junctions(self.project)))
         self.refresh_bindings()
 
     @work(thread=True, exclusive=True, exit_on_error=False, group="simulation")
-    def simulation_worker(self, system: Any) -> None:
+    def simulation_worker(self, system: Any, junction_pressures: bool = False) -> None:
         worker = get_current_worker()
         last = [-1.0]
 
@@ -375,7 +377,8 @@ class WorkbenchApp(TypeAhead, App[int]):
                 last[0] = fraction
                 self.post_message(self.SimulationProgressed(float(fraction)))
 
-        result, elastic = jobs.simulate(system, progress, lambda: worker.is_cancelled)
+        result, elastic = jobs.simulate(system, progress, lambda: worker.is_cancelled,
+                                        junction_pressures)
         self.post_message(self.SimulationFinished(result, elastic, system, worker.is_cancelled))
 
     def on_workbench_app_simulation_progressed(self, message: SimulationProgressed) -> None:

@@ -48,8 +48,12 @@ def simulate(
     system: Any,
     progress: Callable[[float], None],
     cancel: Callable[[], bool],
+    junction_pressures: bool = False,
 ) -> tuple[Any, dict[str, Any]]:
     """Run the time simulation, then the elastic surge run of lines that ask for one.
+
+    ``junction_pressures`` keeps each junction's pressure in time (for a site test's
+    pressure readings).
 
     Returns the ``TransientResult`` and a dict line id -> ``ElasticResult`` (empty when no
     line has ``surge.model = "elastic"``). Progress is the fraction of the whole work: the
@@ -60,7 +64,8 @@ def simulate(
 
     elastic_ids = elastic_line_ids(system)
     share = 0.5 if elastic_ids else 1.0
-    result = run_rigid(system, progress=lambda f: progress(share * f), cancel=cancel)
+    result = run_rigid(system, progress=lambda f: progress(share * f), cancel=cancel,
+                       junction_pressures=junction_pressures)
     from workbench.core.sanity import check_transient
 
     _refuse_if_broken(check_transient(system, result))

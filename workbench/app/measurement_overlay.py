@@ -1,8 +1,10 @@
 """Site-test readings drawn over the Run view's trends (F5), as points.
 
-A measurement in time of a tank level or a line flow, taken under the project's own
-conditions, is drawn on the plot of the run when its series is shown. The readings are read
-once per project (a loaded project never changes; an edit makes a new one).
+A measurement in time of a tank level, a line flow or a junction's gauge pressure, taken
+under the project's own conditions, is drawn on the plot of the run when its series is
+shown, with its residuals (model minus reading, RMS and largest) in the legend. The app's
+run keeps the junction pressures such a test needs (:func:`gauged_junctions`). The readings
+are read once per project (a loaded project never changes; an edit makes a new one).
 """
 
 from __future__ import annotations
@@ -10,6 +12,8 @@ from __future__ import annotations
 from typing import Any
 
 _CACHE: dict[str, Any] = {"project": None, "found": []}
+#: The Run view's series key prefix and display kind of each quantity.
+_KEY = {"level": ("level", "length"), "flow": ("flow", "flow"), "pressure": ("pressure", "pressure")}
 
 
 def _measurements(project: Any) -> list:
@@ -21,7 +25,7 @@ def _measurements(project: Any) -> list:
 
             try:
                 found = [m for m in measurements_of(project).values()
-                         if m.times is not None and m.quantity in ("level", "flow")
+                         if m.times is not None and m.quantity in _KEY
                          and not m.differs_from(project.system)]
             except ProjectError:  # an unreadable CSV file: `workbench check` names it
                 found = []
@@ -29,24 +33,53 @@ def _measurements(project: Any) -> list:
     return _CACHE["found"]
 
 
+def gauged_junctions(project: Any) -> set[str]:
+    """Junctions whose gauge pressure a site test read in time under the project's own
+    conditions: the app's run keeps their pressures to compare."""
+    return {m.element for m in _measurements(project) if m.quantity == "pressure"}
+
+
+def _residuals(m: Any, result: Any, key: str) -> Any:
+    """Model minus reading at the readings inside the run's span [SI], or ``None``."""
+    import numpy as np
+
+    from workbench.app.panes.run import trend_series
+
+    t = np.asarray(getattr(result, "t", ()), dtype=float) if result is not None else np.zeros(0)
+    series = next((v for k, _l, _kind, v in trend_series(result) if k == key), None) \
+        if len(t) else None
+    if series is None or len(series) != len(t):
+        return None
+    inside = m.times <= t[-1] * (1 + 1e-9)
+    return np.interp(m.times[inside], t, np.asarray(series, dtype=float)) - m.values[inside]
+
+
 def draw_readings(plt: Any, project: Any, chosen: set[str], x_scale: float,
-                  units: str) -> list[tuple[str, str]]:
+                  units: str, result: Any = None) -> list[tuple[str, str]]:
     """Scatter each shown series' readings on ``plt`` (times divided by ``x_scale``).
 
     Returns:
         The legend items ``(marker, words)`` of what was drawn, for the legend line
-        under the plot (plotext's own legend would sit on the data).
+        under the plot (plotext's own legend would sit on the data); with ``result`` (the
+        run shown) each says the residuals, model minus reading, in the display unit.
     """
-    from workbench.project.units import display_unit, to_display
+    import numpy as np
+
+    from workbench.project.units import display_unit, format_quantity, to_display
 
     items: list[tuple[str, str]] = []
     for m in _measurements(project):
-        key = f"{'level' if m.quantity == 'level' else 'flow'}:{m.element}"
+        prefix, kind = _KEY[m.quantity]
+        key = f"{prefix}:{m.element}"
         if key not in chosen:
             continue
-        kind = "length" if m.quantity == "level" else "flow"
         values = [float(v) for v in to_display(m.values, kind, units)]
         side = "left" if kind == "length" else "right"
         plt.scatter((m.times / x_scale).tolist(), values, marker="◆", yside=side)
-        items.append(("◆", f"{m.name} measured [{display_unit(kind, units)}, {side}]"))
+        words = f"{m.name} measured [{display_unit(kind, units)}, {side}]"
+        r = _residuals(m, result, key)
+        if r is not None and r.size:
+            words += (f"; RMS residual {format_quantity(float(np.sqrt(np.mean(r * r))), kind, units, 3)}"
+                      f", largest {format_quantity(float(np.max(np.abs(r))), kind, units, 3)}")
+        items.append(("◆", words))
     return items

@@ -48,6 +48,11 @@ def trend_series(result: Any) -> list[tuple[str, str, str, Any]]:
     for tank, values in zip(_get(result, "gas_tank_ids", default=()) or (),
                             _get(result, "gas_pressures", default=()) if result is not None else ()):
         found.append((f"gas:{tank}", f"gas pressure {tank}", "pressure", values))
+    # a junction's gauge pressure (kept when a site test reads one)
+    for junction, values in zip(_get(result, "junction_ids", default=()) or (),
+                                _get(result, "junction_pressures", default=()) if result is not None
+                                else ()):
+        found.append((f"pressure:{junction}", f"pressure {junction}", "pressure", values))
     return found
 
 
@@ -182,16 +187,18 @@ class RunPane(Vertical):
             items.append((marker, f"{label} [{display_unit(kind, units)}, {axis}]"))
         from workbench.app.measurement_overlay import draw_readings  # site tests, as points
 
-        items += draw_readings(plt, self.app.project, self._chosen or set(), divisor, units)
+        items += draw_readings(plt, self.app.project, self._chosen or set(), divisor, units,
+                               result)
         if len(x):
             ticks = plotaxes.nice_ticks(float(x[0]), float(x[-1]))
             plt.xticks(ticks, plotaxes.tick_labels(ticks))
         plt.xlabel(f"time [{time_unit}]")
         plt.ylabel(f"level [{display_unit('length', units)}]", yside="left")
-        right = sorted({kind for key, _l, kind, _v in self._series
-                        if kind != "length" and key in (self._chosen or set())}) or ["flow"]
-        plt.ylabel(", ".join(f"{'gas' if k == 'pressure' else k} [{display_unit(k, units)}]"
-                             for k in right), yside="right")
+        right = sorted({("gas" if key.startswith("gas:") else kind, kind)
+                        for key, _l, kind, _v in self._series
+                        if kind != "length" and key in (self._chosen or set())}) or [("flow", "flow")]
+        plt.ylabel(", ".join(f"{word} [{display_unit(k, units)}]" for word, k in right),
+                   yside="right")
         legend.update(plotaxes.legend_text(items) or "no series shown: Space shows one")
         self._plot.refresh()
 
