@@ -148,8 +148,12 @@ def find_events(eq: Equations, events: EventSet, sol, t_old, y_old, t_new, y_new
     hits = np.flatnonzero((up | down) & events.armed)
     found = []
     for k in hits:
-        def fun(t, k=k):
-            return event_values(eq, t, sol(t))[k]
+        if events.kind_of[k] == REVERSAL:  # the flow itself: no need for the other components
+            def fun(t, i=int(events.index_of[k])):
+                return sol(t)[i]
+        else:
+            def fun(t, k=k):
+                return event_values(eq, t, sol(t))[k]
         try:
             te = brentq(fun, t_old, t_new, xtol=4 * np.finfo(float).eps * max(1.0, abs(t_new)),
                         rtol=4 * np.finfo(float).eps)
