@@ -181,3 +181,37 @@ async def test_the_run_summary_on_the_events_view_reads_whole_at_80_columns(proj
     assert len(whole) > SIZE[0]  # longer than one row: it must wrap, not be cut
     assert drained and all(tank in shown for tank in drained)
     assert " ".join(shown.split()) == whole
+
+
+async def test_the_events_view_shows_its_first_event_row_with_the_stale_mark_at_80x24(
+        project_file):
+    app = make(project_file(DRAIN), debounce=30.0)
+    async with app.run_test(size=SIZE) as pilot:
+        app.debounce = 0.05
+        await settle(pilot)
+        await pilot.press("ctrl+r")
+        await pilot.pause()
+        await app.workers.wait_for_complete()
+        await pilot.pause()
+        await choose_entry(pilot, f"lines:{LINE}")
+        app.debounce = 30.0
+        await type_into(pilot, f"lines.{LINE}.length", "90 m")  # the run is now stale
+        await pilot.press("f6")
+        await pilot.pause()
+        await pilot.pause()
+        table = app.screen.query_one("#event-table")
+        first = [str(c) for c in table.get_row_at(0)]
+        shown = [
+            "".join(s.text for s in line)
+            for line in table.render_lines(table.region.reset_offset)
+        ]
+        warnings = app.screen.query_one("#run-finding-table")
+        warnings_height = warnings.region.height
+        # rows the table can show, less a sideways scroll bar: its header and an event
+        room = table.scrollable_content_region.height
+        stale = text(app, "#events-stale")
+    assert "STALE" in stale
+    # the header and the first event's time and code are drawn inside the table
+    assert any(first[0] in row and first[1] in row for row in shown), shown
+    assert warnings_height >= 3
+    assert room >= 2
