@@ -215,3 +215,19 @@ async def test_the_events_view_shows_its_first_event_row_with_the_stale_mark_at_
     assert any(first[0] in row and first[1] in row for row in shown), shown
     assert warnings_height >= 3
     assert room >= 2
+
+
+async def test_the_run_view_never_says_no_simulation_while_one_runs(project_file):
+    app = make(project_file(DRAIN))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("f5")
+        await pilot.pause()
+        await pilot.pause()
+        plot = app.screen.query_one("#run-plot")
+        idle = plot.render().plain.splitlines()[0]
+        app.run_status = "running"  # as Ctrl+R sets it, before the first result arrives
+        await pilot.pause()
+        running = plot.render().plain.splitlines()[0]
+    assert "Ctrl+R runs one" in idle
+    assert "no simulation" not in running and "when the run ends" in running
