@@ -17,7 +17,7 @@ from pathlib import Path
 
 import numpy as np
 import pytest
-from hypothesis import given, settings
+from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from workbench.project import units
@@ -60,6 +60,52 @@ def test_kept_readings_come_back_from_the_file_as_pint_read_them(tmp_path) -> No
     assert again.parsed("pressure", "14.7 psia")[1] == "absolute"
 
 
+@pytest.fixture
+def fresh_memo(tmp_path, monkeypatch):
+    """An empty memo in a temporary folder as the process's memo, parse caches cleared."""
+    memo = UnitMemo(memo_path(tmp_path, KEY), KEY)
+    monkeypatch.setattr(units, "unit_memo", lambda: memo)
+    units._parse_text.cache_clear()
+    yield memo
+    units._parse_text.cache_clear()
+
+
+#: (kind, unit text) pairs whose conversion is a plain factor, gauge and absolute included.
+PLAIN_UNITS = [("length", "ft"), ("length", "m"), ("diameter", "in"), ("diameter", "mm"),
+               ("flow", "gpm"), ("flow", "m3/h"), ("flow", "L/s"), ("pressure", "barg"),
+               ("pressure", "psia"), ("pressure", "kPa(g)"), ("pressure", "kPa abs"),
+               ("pressure_abs", "kPa"), ("viscosity", "cP"), ("density", "lb/ft3"),
+               ("temperature", "K"), ("temperature", "degR"), ("angle", "deg"), ("volume", "gal"),
+               ("time", "min"), ("salinity", "g/kg"), ("kv", "m3/h")]
+
+
+@settings(max_examples=60, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
+@given(unit=st.sampled_from(PLAIN_UNITS), value=st.floats(0.0, 1e6, allow_nan=False))
+def test_a_new_number_with_a_kept_unit_reads_as_pint_reads_it(fresh_memo, unit, value) -> None:
+    kind, unit_text = unit
+    units._parse_text.cache_clear()  # the memo may hold more units: that is what it is for
+    units._parse_text(f"1 {unit_text}", kind)  # pint reads it and the unit is kept
+    assert fresh_memo.unit(kind, unit_text) is not None
+    text = f"{value!r} {unit_text}"
+    assert units._parse_text(text, kind) == units._parse_with_pint(text, kind)
+
+
+def test_what_a_kept_unit_cannot_take_is_refused_in_pints_words(fresh_memo) -> None:
+    units._parse_text("1 km", "length")
+    units._parse_text("300 K", "temperature")
+    with pytest.raises(units.UnitError, match="finite"):
+        units._parse_text("1e306 km", "length")
+    with pytest.raises(units.UnitError, match="below absolute zero"):
+        units._parse_text("-5 K", "temperature")
+
+
+def test_an_offset_unit_keeps_the_text_not_the_unit(fresh_memo) -> None:
+    """20 degC is 293.15 K by definition of the Celsius scale (SI Brochure, 9th ed.)."""
+    assert units._parse_text("20 degC", "temperature").value == pytest.approx(293.15, abs=1e-12)
+    assert fresh_memo.unit("temperature", "degC") is None
+    assert fresh_memo.parsed("temperature", "20 degC")[0] == pytest.approx(293.15, abs=1e-12)
+
+
 @settings(max_examples=40, deadline=None)
 @given(kind=st.sampled_from(sorted(QUANTITY_KINDS)), system=st.sampled_from(["SI", "US"]),
        value=st.floats(-1e6, 1e6, allow_nan=False))
@@ -82,23 +128,21 @@ def test_exact_factors_by_definition() -> None:
     assert to_display(293.15, "temperature", "SI") == pytest.approx(20.0, abs=1e-12)
 
 
-def test_a_refused_text_is_not_kept_and_is_refused_again(tmp_path, monkeypatch) -> None:
-    memo = UnitMemo(memo_path(tmp_path, KEY), KEY)
-    monkeypatch.setattr(units, "unit_memo", lambda: memo)
+def test_a_refused_text_is_not_kept_and_is_refused_again(fresh_memo) -> None:
+    with pytest.raises(units.UnitError, match="unknown unit"):
+        units.parse_value("12 cubits", "length")
+    units.parse_value("12 m", "length")
+    assert fresh_memo.unit("length", "cubits") is None
+    assert fresh_memo.unit("length", "m") == (1.0, None)
     units._parse_text.cache_clear()
-    try:
-        with pytest.raises(units.UnitError, match="unknown unit"):
-            units.parse_value("12 cubits", "length")
-        units.parse_value("12 m", "length")
-        assert memo.parsed("length", "12 cubits") is None
-        assert memo.parsed("length", "12 m") == (12.0, None)
-    finally:
-        units._parse_text.cache_clear()
+    with pytest.raises(units.UnitError, match="unknown unit"):
+        units.parse_value("12 cubits", "length")
 
 
 @pytest.mark.parametrize("content", [
     "half a file {",
-    json.dumps({"key": "another pint", "parsed": {"length\t1 m": [5.0, None]}, "factors": {}}),
+    json.dumps({"key": "another pint", "parsed": {"length\t1 m": [5.0, None]}, "units": {},
+                "factors": {}}),
     json.dumps(["not", "a", "memo"]),
 ])
 def test_a_damaged_file_or_another_key_is_passed_over(tmp_path, content) -> None:
@@ -112,10 +156,10 @@ def test_entries_of_the_wrong_type_are_passed_over(tmp_path) -> None:
     path = memo_path(tmp_path, KEY)
     path.write_text(json.dumps({"key": KEY, "parsed": {"length\t1 m": ["1", None],
                                                        "length\t2 m": [2.0, "sideways"]},
-                                "factors": {"m\tft": "3.28"}}))
+                                "units": {"length\tft": [0.3048]}, "factors": {"m\tft": "3.28"}}))
     memo = UnitMemo(path, KEY)
     assert memo.parsed("length", "1 m") is None and memo.parsed("length", "2 m") is None
-    assert memo.factor("m", "ft") is None
+    assert memo.unit("length", "ft") is None and memo.factor("m", "ft") is None
 
 
 def test_the_memo_stops_growing_at_its_limit(tmp_path) -> None:
@@ -163,3 +207,18 @@ def test_with_the_cache_turned_off_every_run_asks_pint(tmp_path) -> None:
     first, second = _solve_twice("")
     assert first.startswith("True\n") and second.startswith("True\n")
     assert first == second
+
+
+def test_an_edited_number_with_a_known_unit_needs_no_pint(tmp_path) -> None:
+    def run(text: str) -> str:
+        code = ("import sys\n"
+                "from workbench.project.units import parse_quantity\n"
+                f"print(parse_quantity({text!r}, 'flow'), 'pint' in sys.modules)\n")
+        env = dict(os.environ, WORKBENCH_CACHE_DIR=str(tmp_path))
+        return subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                              env=env, check=True).stdout.split()
+
+    assert run("120 gpm")[1] == "True"
+    value, pint_loaded = run("90 gpm")
+    assert pint_loaded == "False"
+    assert float(value) == pytest.approx(90 * 3.785411784e-3 / 60, rel=1e-14)  # 1 US gal

@@ -6,10 +6,16 @@ of its definition files; 0.3 s or more without it), a fifth of a ``workbench sol
 demo, while a project holds a few dozen quantity texts that are the same from one run to
 the next. The memo keeps, in one small JSON file in the user's cache folder:
 
-* each quantity text pint has read: ``(kind, text) -> (SI value, pressure reference)``
-  (texts that were refused are not kept: their message is made afresh);
+* each unit pint has read for a kind whose conversion is a plain factor:
+  ``(kind, unit text) -> (factor to SI, pressure reference)``, so a new number with a known
+  unit (an edited value) needs no pint either: pint's conversion is ``value * factor``
+  too, the same float;
+* each quantity text pint has read with a unit that is not a plain factor (an offset:
+  degC, degF): ``(kind, text) -> (SI value, pressure reference)``;
 * each conversion factor from an SI unit to a display unit that pint found to be a plain
   factor (``Quantity(v, si).to(unit)`` is then ``v * factor`` in pint too, the same float).
+
+Texts that were refused are not kept: their message is made afresh.
 
 The file is valid only for the pint installation and the reading rules it was made with:
 its key names pint's location and installed version and a hash of
@@ -68,6 +74,7 @@ class UnitMemo:
         self.path = path if key else None
         self.key = key
         self._parsed: dict[str, object] = {}
+        self._units: dict[str, object] = {}
         self._factors: dict[str, object] = {}
         self._dirty = False
         if self.path is not None:
@@ -78,17 +85,17 @@ class UnitMemo:
             data = json.loads(self.path.read_text(encoding="utf-8"))
         except (OSError, ValueError):
             return
-        if (isinstance(data, dict) and data.get("key") == self.key
-                and isinstance(data.get("parsed"), dict) and isinstance(data.get("factors"), dict)):
-            self._parsed, self._factors = data["parsed"], data["factors"]
+        if isinstance(data, dict) and data.get("key") == self.key and all(
+                isinstance(data.get(name), dict) for name in ("parsed", "units", "factors")):
+            self._parsed, self._units, self._factors = data["parsed"], data["units"], data["factors"]
 
     def parsed(self, kind: str, text: str) -> tuple[float, str | None] | None:
         """The kept reading of ``text`` as a ``kind``: (SI value, reference), or ``None``."""
-        entry = self._parsed.get(f"{kind}\t{text}")
-        if (isinstance(entry, list) and len(entry) == 2 and type(entry[0]) is float
-                and entry[1] in (None, "gauge", "absolute")):
-            return entry[0], entry[1]
-        return None
+        return _pair(self._parsed.get(f"{kind}\t{text}"))
+
+    def unit(self, kind: str, unit_text: str) -> tuple[float, str | None] | None:
+        """The kept factor to SI of ``unit_text`` as a ``kind``, and its reference."""
+        return _pair(self._units.get(f"{kind}\t{unit_text}"))
 
     def factor(self, si_unit: str, unit: str) -> float | None:
         """The kept factor from ``si_unit`` to ``unit``, or ``None``."""
@@ -98,11 +105,14 @@ class UnitMemo:
     def keep_parsed(self, kind: str, text: str, value: float, reference: str | None) -> None:
         self._keep(self._parsed, f"{kind}\t{text}", [float(value), reference])
 
+    def keep_unit(self, kind: str, unit_text: str, factor: float, reference: str | None) -> None:
+        self._keep(self._units, f"{kind}\t{unit_text}", [float(factor), reference])
+
     def keep_factor(self, si_unit: str, unit: str, factor: float) -> None:
         self._keep(self._factors, f"{si_unit}\t{unit}", float(factor))
 
     def _keep(self, table: dict, key: str, value) -> None:
-        if self.path is None or len(self._parsed) + len(self._factors) >= MAX_ENTRIES:
+        if self.path is None or len(self._parsed) + len(self._units) + len(self._factors) >= MAX_ENTRIES:
             return
         table[key] = value
         if not self._dirty:
@@ -114,7 +124,8 @@ class UnitMemo:
         if self.path is None or not self._dirty:
             return
         self._dirty = False
-        text = json.dumps({"key": self.key, "parsed": self._parsed, "factors": self._factors},
+        text = json.dumps({"key": self.key, "parsed": self._parsed, "units": self._units,
+                           "factors": self._factors},
                           ensure_ascii=False, allow_nan=False, separators=(",", ":"))
         tmp = self.path.with_name(f".{self.path.name}.{os.getpid()}.tmp")
         try:
@@ -126,3 +137,11 @@ class UnitMemo:
                 tmp.unlink()
             except OSError:
                 pass
+
+
+def _pair(entry) -> tuple[float, str | None] | None:
+    """A kept ``[float, reference]``, or ``None`` for anything else."""
+    if (isinstance(entry, list) and len(entry) == 2 and type(entry[0]) is float
+            and entry[1] in (None, "gauge", "absolute")):
+        return entry[0], entry[1]
+    return None

@@ -406,15 +406,21 @@ def _parse_text(text: str, kind: str) -> ParsedQuantity:
     kept = memo.parsed(kind, text)
     if kept is not None:
         return ParsedQuantity(*kept)
-    parsed = _parse_with_pint(text, kind)
-    memo.keep_parsed(kind, text, parsed.value, parsed.reference)
-    return parsed
+    value, unit_text = _split_number(text, QUANTITY_KINDS[kind].name)
+    unit = memo.unit(kind, unit_text)
+    if unit is not None:
+        si = value * unit[0]  # what pint computes for a plain factor, to the last bit
+        if math.isfinite(si) and not (kind == "temperature" and si < 0.0):
+            return ParsedQuantity(si, unit[1])
+    return _parse_with_pint(text, kind)  # pint's words for what is wrong
 
 
 def _parse_with_pint(text: str, kind: str) -> ParsedQuantity:
+    """:func:`_parse_text` by pint; what it read is kept in the unit memo."""
     spec = QUANTITY_KINDS[kind]
     what = spec.name
     value, unit_text = _split_number(text, what)
+    as_written = unit_text
     if not unit_text:
         raise UnitError(f"{text!r} is not {_a(what)}: a unit is needed, e.g. {spec.example!r}")
     reference: Reference | None = None
@@ -444,6 +450,11 @@ def _parse_with_pint(text: str, kind: str) -> ParsedQuantity:
         raise UnitError(f"{text!r} is not {_a(what)}: the value must be a finite number")
     if kind == "temperature" and si < 0.0:
         raise UnitError(f"{text!r} is below absolute zero")
+    if ureg.Quantity(0.0, units).to(target).magnitude == 0.0:  # a plain factor
+        factor = float(ureg.Quantity(1.0, units).to(target).magnitude)
+        unit_memo().keep_unit(kind, as_written, factor, reference)
+    else:
+        unit_memo().keep_parsed(kind, text, si, reference)
     return ParsedQuantity(si, reference)
 
 
