@@ -45,7 +45,7 @@ async def test_the_run_keeps_the_gauged_junction_and_f5_shows_its_readings_and_r
         (found,) = compare_measurements(load_project(path), app.transient)
         assert found.compared_on == "this run"
         rms = format_quantity(found.rms, "pressure", "SI", 3)
-        assert f"gauge measured [kPa, right]; RMS residual {rms}" in legend
+        assert f"gauge measured [kPa, right], residual RMS {rms}" in legend
         # against the closed form: the model follows the readings to well under 1 %
         assert found.rms < 0.01 * float(np.max(gauge(found.times)))
 

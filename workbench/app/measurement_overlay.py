@@ -68,18 +68,26 @@ def draw_readings(plt: Any, project: Any, chosen: set[str], x_scale: float,
     from workbench.project.units import display_unit, format_quantity, to_display
 
     items: list[tuple[str, str]] = []
-    for m in _measurements(project):
+    for n, m in enumerate(_measurements(project)):
         prefix, kind = _KEY[m.quantity]
         key = f"{prefix}:{m.element}"
         if key not in chosen:
             continue
         values = [float(v) for v in to_display(m.values, kind, units)]
         side = "left" if kind == "length" else "right"
-        plt.scatter((m.times / x_scale).tolist(), values, marker="◆", yside=side)
-        words = f"{m.name} measured [{display_unit(kind, units)}, {side}]"
+        marker = READING_MARKERS[n % len(READING_MARKERS)]  # one per test, told apart
+        plt.scatter((m.times / x_scale).tolist(), values, marker=marker, yside=side)
+        words = f"{m.name} measured"
         r = _residuals(m, result, key)
+        if r is not None and r.size < m.values.size:  # as simulate: none after the run's end
+            words += f" {r.size}/{m.values.size}"
+        words += f" [{display_unit(kind, units)}, {side}]"
         if r is not None and r.size:
-            words += (f"; RMS residual {format_quantity(float(np.sqrt(np.mean(r * r))), kind, units, 3)}"
-                      f", largest {format_quantity(float(np.max(np.abs(r))), kind, units, 3)}")
-        items.append(("◆", words))
+            words += (f", residual RMS {format_quantity(float(np.sqrt(np.mean(r * r))), kind, units, 3)}"
+                      f" largest {format_quantity(float(np.max(np.abs(r))), kind, units, 3)}")
+        items.append((marker, words))
     return items
+
+
+#: One plot marker per site test, unlike the series' markers.
+READING_MARKERS = "◆▲■▼"
