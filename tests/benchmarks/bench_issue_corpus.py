@@ -41,8 +41,9 @@ def main() -> None:
                          ["report", str(path), "--output", str(path.with_suffix(".md"))]):
                 outcome = run_subprocess(argv, project_path=str(path), limit=600.0)
                 ended[(argv[0], outcome.code if outcome.ok else "FAILED")] += 1
-                if not outcome.ok:
-                    failures.append((case.name, argv[0], outcome.problems))
+                if not outcome.ok:  # with how it ended, so the cause can be told
+                    failures.append((case.name, argv[0],
+                                     outcome.problems + [outcome.stderr.strip()[-400:]]))
                 if outcome.seconds > slowest.get(argv[0], (0.0, ""))[0]:
                     slowest[argv[0]] = (outcome.seconds, case.name)
     calls = sum(ended.values())
