@@ -116,15 +116,34 @@ class KeyFooter(Footer):
     def bindings_changed(self, screen) -> None:
         self._bindings_ready = True
         if self.is_attached and screen is self.screen:
-            self.call_after_refresh(self.recompose)
+            self.call_after_refresh(self._recompose_if_changed)
 
-    def compose(self) -> ComposeResult:
-        if not self._bindings_ready:
-            return
+    def _shown_keys(self) -> dict[str, tuple]:
+        """Action -> (binding, enabled, tooltip) of every key to show now."""
         seen: dict[str, tuple] = {}
         for _node, binding, enabled, tooltip in self.screen.active_bindings.values():
             if binding.show and binding.action not in seen:
                 seen[binding.action] = (binding, enabled, tooltip)
+        return seen
+
+    def _signature(self, seen: dict[str, tuple]) -> tuple:
+        return (max(self.app.size.width, 40),
+                tuple((b.key, b.description, a, e, t) for a, (b, e, t) in seen.items()))
+
+    async def _recompose_if_changed(self) -> None:
+        """Rebuild the keys only when what they show changed: the focus moving between
+        widgets with the same keys (field to field) rebuilds nothing (a rebuild restyles
+        every key, a large part of start-up and of a Tab)."""
+        if not self.is_attached:
+            return
+        if self._signature(self._shown_keys()) != getattr(self, "_shown", None):
+            await self.recompose()
+
+    def compose(self) -> ComposeResult:
+        if not self._bindings_ready:
+            return
+        seen = self._shown_keys()
+        self._shown = self._signature(seen)
         width = max(self.app.size.width, 40)
         rows: list[list[KeyCap]] = [[], []]
         used = [0, 0]
