@@ -224,3 +224,29 @@ async def test_ctrl_r_typed_while_loading_is_answered_before_the_views_are_built
         run_status = app.run_status
     assert seen == [(False, False)]
     assert active == "run" and run_status == "done"
+
+
+async def test_keys_typed_in_a_burst_as_the_first_result_shows_reach_the_field_they_lead_to(
+        project_file, two_cores):
+    """Typed faster than the screen follows, right as the first result is painted (the
+    first form still being built): each key lands where the keys before it led, Enter's
+    form included, as if typed slowly."""
+    from textual import events
+
+    from workbench.app.factory import make_app
+    from workbench.app.panes.form import FieldInput
+
+    app = make_app(path=project_file(DRAIN), debounce=0.05, prebuild_forms=False,
+                   solve_ahead=True)
+    async with app.run_test(size=SIZE) as pilot:
+        while app.steady_status != "fresh":
+            await pilot.pause(0.01)
+        for key in ["down"] * 5 + ["enter"] + ["down"] * 3:  # one burst, as from a terminal
+            app.post_message(events.Key(key, "\r" if key == "enter" else None))
+        await settle(pilot)
+        while app._held_keys is not None:
+            await pilot.pause(0.05)
+        await settle(pilot)
+        focused = app.focused
+    assert isinstance(focused, FieldInput)
+    assert focused.field.keypath == f"lines.{LINE}.nominal_size"

@@ -76,14 +76,16 @@ class TypeAhead:
         self._held_keys = None
         self._start_deferred()
 
-    async def _settle_key(self, hops: int = 6) -> None:
-        """Wait while a key travels: from the app to the focused widget, its own messages,
-        then up through its parents (each hop a round of every queue on that path). Stops
-        early when a new hold starts; a widget removed meanwhile is not waited for."""
+    async def _settle_key(self, hops: int = 5) -> None:
+        """Wait while a key travels: from the app through the screen to the focused widget,
+        then the messages that widget sends itself (each hop a round of those queues). A widget whose key
+        moves the focus holds the keys itself (Enter on the element list); the parents'
+        slower work (a form being built) is not waited for. Stops early when a new hold
+        starts; a widget removed meanwhile is not waited for."""
         for _ in range(hops):
             if self._holding:
                 return
-            path = [self, *(self.focused.ancestors_with_self if self.focused else [self.screen])]
+            path = [self, self.screen, self.focused or self.screen]
             rounds = {}
             for node in dict.fromkeys(path):
                 event = asyncio.Event()

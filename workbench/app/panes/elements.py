@@ -75,7 +75,7 @@ class ElementList(OptionList):
 
     def on_option_list_option_selected(self, event: OptionList.OptionSelected) -> None:
         event.stop()
-        self.post_message(self.EditRequested())
+        self._edit_requested()
 
     def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
         if action in {"duplicate", "rename", "delete"}:
@@ -85,9 +85,17 @@ class ElementList(OptionList):
             return self.app.project is not None or None
         return True
 
+    def _edit_requested(self) -> None:
+        # the keys typed after Enter belong to the form it opens: hold them from here on
+        # (the System view shows the form and releases them)
+        hold = getattr(self.app, "hold_keys", None)
+        if hold is not None:
+            hold()
+        self.post_message(self.EditRequested())
+
     # --- actions -----------------------------------------------------------------------
     def action_edit(self) -> None:
-        self.post_message(self.EditRequested())
+        self._edit_requested()
 
     def action_add(self, section: str | None = None) -> None:
         if section is None:
