@@ -6,7 +6,7 @@ from pathlib import Path
 
 import numpy as np
 
-from workbench.app.panes.run import trend_series
+from workbench.app.trends import trend_series
 
 DEMO = Path(__file__).resolve().parents[2] / "projects" / "fellgate_condensate_tank_vent.toml"
 

@@ -142,7 +142,7 @@ async def test_a_sweep_run_before_an_undo_says_it_is_stale_and_redo_makes_it_cur
         await pilot.pause()
         screen = app.screen
         assert isinstance(screen, SweepScreen)
-        screen.query_one("#sweep-vary-1").value = f"reservoirs.TK-210.level=1 m,2 m"
+        screen.query_one("#sweep-vary-1").value = "reservoirs.TK-210.level=1 m,2 m"
         screen.query_one("#sweep-steady-only").value = True
         await pilot.press("ctrl+r")
         for _ in range(600):

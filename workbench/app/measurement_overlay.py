@@ -43,7 +43,7 @@ def _residuals(m: Any, result: Any, key: str) -> Any:
     """Model minus reading at the readings inside the run's span [SI], or ``None``."""
     import numpy as np
 
-    from workbench.app.panes.run import trend_series
+    from workbench.app.trends import trend_series
 
     t = np.asarray(getattr(result, "t", ()), dtype=float) if result is not None else np.zeros(0)
     series = next((v for k, _l, _kind, v in trend_series(result) if k == key), None) \

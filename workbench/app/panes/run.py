@@ -14,6 +14,7 @@ from textual.containers import Horizontal, Vertical
 from textual.widgets import ProgressBar, SelectionList, Static
 
 from workbench.app.results import SCREENING, STALE_RUN, _get, decimate
+from workbench.app.trends import trend_series
 
 RUN_WORDS = {
     "idle": "not run yet: Ctrl+R simulates",
@@ -22,38 +23,6 @@ RUN_WORDS = {
     "cancelled": "stopped by the user (partial results)",
     "failed": "FAILED",
 }
-
-
-def trend_series(result: Any) -> list[tuple[str, str, str, Any]]:
-    """``(key, label, kind, values SI)`` for every tank level and line flow of a run, and
-    every tank's feed, draw-off and spill that is not zero throughout.
-
-    Levels and flows are arrays (tanks x times, lines x times) named by ``tank_ids`` and
-    ``line_ids``; so are ``feeds``, ``draw_offs`` and ``spills``.
-    """
-    found: list[tuple[str, str, str, list[float]]] = []
-    for tank, values in zip(_get(result, "tank_ids", default=()) or (),
-                            _get(result, "levels", default=()) if result is not None else ()):
-        found.append((f"level:{tank}", f"level {tank}", "length", values))
-    for line, values in zip(_get(result, "line_ids", default=()) or (),
-                            _get(result, "flows", default=()) if result is not None else ()):
-        found.append((f"flow:{line}", f"flow {line}", "flow", values))
-    # a tank's feed, draw-off and overflow spill, where the run has any
-    for name, word in (("feeds", "feed"), ("draw_offs", "draw-off"), ("spills", "spill")):
-        table = _get(result, name, default=()) if result is not None else ()
-        for tank, values in zip(_get(result, "tank_ids", default=()) or (), table):
-            if any(v != 0.0 for v in values):
-                found.append((f"{name}:{tank}", f"{word} {tank}", "flow", values))
-    # the gauge pressure of each tank's gas space (tanks with a vent)
-    for tank, values in zip(_get(result, "gas_tank_ids", default=()) or (),
-                            _get(result, "gas_pressures", default=()) if result is not None else ()):
-        found.append((f"gas:{tank}", f"gas pressure {tank}", "pressure", values))
-    # a junction's gauge pressure (kept when a site test reads one)
-    for junction, values in zip(_get(result, "junction_ids", default=()) or (),
-                                _get(result, "junction_pressures", default=()) if result is not None
-                                else ()):
-        found.append((f"pressure:{junction}", f"pressure {junction}", "pressure", values))
-    return found
 
 
 class RunPane(Vertical):
