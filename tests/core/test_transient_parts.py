@@ -265,3 +265,24 @@ def test_the_jacobian_with_a_gas_space_matches_a_finite_difference():
             ym[j] -= h
             fd[:, j] = (eq.rhs(0.0, yp) - eq.rhs(0.0, ym)) / (2 * h)
         assert np.allclose(jac, fd, rtol=1e-4, atol=1e-6 * np.abs(jac).max())
+
+
+@pytest.mark.parametrize("seconds, words", [
+    (42.1, "42.1 s"), (1452.27, "24 min 12 s"), (7260.0, "2 h 01 min"), (5.0, "5 s")])
+def test_a_time_span_reads_in_seconds_minutes_or_hours_by_its_size(seconds, words):
+    """How an operator reads a stopwatch (common practice, no source)."""
+    from workbench.core.finding_text import duration_text
+
+    assert duration_text(seconds) == words
+
+
+def test_a_run_that_drains_every_tank_says_when_in_minutes_not_raw_seconds():
+    """The run's closing message names the end time as the events do (not ``t = 1452.27 s``);
+    the time is the run's own last output time."""
+    from workbench.core.finding_text import duration_text
+    from workbench.core.transient import simulate
+
+    result = simulate(_tank_drain(level=2.0, duration=3600.0), stop_when="drained")
+    assert result.status == 1
+    assert result.message == f"every draining tank drained by {duration_text(result.t[-1])}"
+    assert "t =" not in result.message

@@ -8,6 +8,8 @@ from __future__ import annotations
 import math
 from typing import Any
 
+from workbench.core.finding_text import duration_text  # noqa: F401 (the views' time spans)
+
 #: severity -> (symbol, word) shown in every findings table.
 SEVERITY = {
     "danger": ("‼", "DANGER"),
@@ -154,19 +156,6 @@ def finding_text(f: Any, units: str = "SI") -> str:
 def sorted_findings(findings: Any) -> list[Any]:
     rank = {"danger": 0, "caution": 1, "info": 2}
     return sorted(list(findings or []), key=lambda f: rank.get(_get(f, "severity"), 3))
-
-
-def duration_text(seconds: float) -> str:
-    """A time span as an engineer reads it: ``42.1 s``, ``12 min 30 s``, ``2 h 05 min``."""
-    if seconds is None or not math.isfinite(seconds):
-        return "—"
-    if abs(seconds) < 120:
-        return f"{seconds:.3g} s" if abs(seconds) < 10 else f"{seconds:.1f} s"
-    minutes, sec = divmod(round(seconds), 60)
-    if minutes < 120:
-        return f"{minutes} min {sec:02d} s"
-    hours, minutes = divmod(minutes, 60)
-    return f"{hours} h {minutes:02d} min"
 
 
 def decimate(x, y, buckets: int = 300) -> tuple[list[float], list[float]]:

@@ -117,3 +117,17 @@ def finding(code: str, element: str, template: str, severity: Severity = "cautio
     """
     message, template, kept = slots(template, digits, **values)
     return Finding(code, element, message, severity, source, template=template, values=kept)
+
+
+def duration_text(seconds: float) -> str:
+    """A time span as an engineer reads it: ``42.1 s``, ``12 min 30 s``, ``2 h 05 min``
+    (the same in both unit systems)."""
+    if seconds is None or not math.isfinite(seconds):
+        return "—"
+    if abs(seconds) < 120:
+        return f"{seconds:.3g} s" if abs(seconds) < 10 else f"{seconds:.1f} s"
+    minutes, sec = divmod(round(seconds), 60)
+    if minutes < 120:
+        return f"{minutes} min {sec:02d} s"
+    hours, minutes = divmod(minutes, 60)
+    return f"{hours} h {minutes:02d} min"

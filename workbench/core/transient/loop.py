@@ -16,6 +16,7 @@ import time
 
 import numpy as np
 
+from workbench.core.finding_text import duration_text
 from workbench.core.transient import handlers, siphon
 from workbench.core.transient.equations import Equations
 from workbench.core.transient.events import EventSet, arm, find_events, first_terminal
@@ -311,7 +312,7 @@ class Run:
         event; returns ``(status, message, t, y, restarted)``."""
         while solver.status == "running":
             if self.cancel is not None and self.cancel():
-                return 2, f"cancelled at t = {t:.6g} s", t, y, False
+                return 2, f"cancelled at {duration_text(t)}", t, y, False
             t_old, y_old = solver.t, solver.y.copy()
             msg = solver.step()
             self.nsteps += 1
@@ -331,7 +332,7 @@ class Run:
                 if self.rec.t_out[-1] != t:
                     self.rec.record(t, y, self.eq.cfg.open, self.state)
                 if stop:
-                    return 1, f"every draining tank drained by t = {t:.6g} s", t, y, False
+                    return 1, f"every draining tank drained by {duration_text(t)}", t, y, False
                 y = self.configure(t, seg_end, y)
                 return 0, STATUS[0], t, y, True
         return 0, STATUS[0], t, y, False
