@@ -80,3 +80,18 @@ async def test_notices_never_cover_the_status_line_the_keys_or_a_detail_pane(pro
                     assert not toast.overlaps(region), (view, toast, region)
             app.clear_notifications()
             await pilot.press("ctrl+y")
+
+
+async def test_ctrl_c_says_how_to_quit_in_plain_words_without_markup(project_file):
+    """Ctrl+C does not quit (Textual binds it to a reminder); the reminder is shown with
+    the app's markup-free notices, so it must carry no markup tags such as '[b]'
+    (common practice, no source: a notice is read as words)."""
+    app = make(project_file(DRAIN))
+    async with app.run_test(size=SIZE, notifications=True) as pilot:
+        await settle(pilot)
+        await pilot.press("ctrl+c")
+        await pilot.pause()
+        messages = [n.message for n in app._notifications]
+        assert any("Ctrl+Q" in m for m in messages), messages
+        assert not any("[b]" in m or "[/b]" in m for m in messages), messages
+        assert app.is_running

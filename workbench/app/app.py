@@ -193,6 +193,11 @@ class WorkbenchApp(TypeAhead, App[int]):
         super().notify(printable(message, keep_lines=True), title=title, severity=severity,
                        timeout=timeout, markup=markup)
 
+    def action_help_quit(self) -> None:
+        """Ctrl+C: say how to quit in plain words (Textual's own reminder is markup, and
+        notices here carry none, so it showed '[b]ctrl+q[/b]')."""
+        self.notify("Press Ctrl+Q to quit the workbench", title="Do you want to quit?")
+
     # --- start-up ----------------------------------------------------------------------
     def get_default_screen(self):
         from workbench.app.screens.desk import DeskScreen
