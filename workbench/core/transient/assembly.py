@@ -20,7 +20,7 @@ from workbench.core.transient.end_states import end_states
 from workbench.core.transient.junctions import junction_pressures
 from workbench.core.transient.loop import Run
 from workbench.core.transient.model import TransientModel
-from workbench.core.transient.results import TransientResult
+from workbench.core.transient.results import Event, TransientResult
 from workbench.core.transient.submergence import submergence
 
 #: Kept for importers: a run's minimum now counts as sub-atmospheric only below
@@ -70,7 +70,8 @@ def finish(model: TransientModel, run: Run, outcome, wall: float) -> TransientRe
         tank_ids=model.tank_ids,
         levels=levels,
         volumes=volumes,
-        events=tuple(sorted([*state.events, *vortex_events, *stop_events],
+        events=tuple(sorted([*overflow_events(model, run, spills), *vortex_events,
+                             *stop_events],
                             key=lambda e: e.time)),
         **pressures,
         warnings=tuple(warnings),
@@ -257,6 +258,39 @@ def overflow_findings(model: TransientModel, run: Run, spills: np.ndarray) -> li
                 f"{template} at t = {ev.time:.6g} s: check the overflow capacity under the "
                 f"worst-case inflow{surplus} (defer to local codes)", "danger",
                 "rule of thumb", **values))
+    return out
+
+
+def overflow_events(model: TransientModel, run: Run, spills: np.ndarray) -> list[Event]:
+    """The run's events, where an overflow that spilled nothing (see :func:`_spilled`) and
+    its ``tank.spill_end`` at the same instant are one ``tank.at_overflow`` event: a tank
+    that only touches its overflow level never "starts spilling" nor "stops spilling"."""
+    from workbench.core.finding_text import slots
+
+    events = list(run.state.events)
+    out: list[Event] = []
+    dropped: set[int] = set()
+    for i, ev in enumerate(events):
+        if i in dropped:
+            continue
+        if ev.code != "tank.overflow":
+            out.append(ev)
+            continue
+        k = model.tank_ids.index(ev.element)
+        if _spilled(events, i, run, spills[k]):
+            out.append(ev)
+            continue
+        for j in range(i + 1, len(events)):
+            later = events[j]
+            if later.element == ev.element and later.code == "tank.spill_end":
+                dropped.add(j)
+                break
+        verb = "starts at" if ev.time <= 0.0 else "reaches"
+        message, template, kept = slots(
+            f"tank {ev.element} {verb} its overflow level {{level}} and falls at once: more "
+            "flows out than in, so it does not spill", 4,
+            level=(float(model.geoms[k].overflow_level), "length"))
+        out.append(Event(ev.time, "tank.at_overflow", ev.element, message, template, kept))
     return out
 
 
