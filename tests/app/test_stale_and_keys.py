@@ -231,3 +231,43 @@ async def test_the_run_view_never_says_no_simulation_while_one_runs(project_file
         running = plot.render().plain.splitlines()[0]
     assert "Ctrl+R runs one" in idle
     assert "no simulation" not in running and "when the run ends" in running
+
+
+async def test_keys_typed_while_a_broken_file_loads_do_not_answer_the_dialog_that_says_why(
+        project_file, monkeypatch):
+    """Enter typed during the load was meant for the element list; when the file does not
+    open it must not pick the Problems dialog's first answer ('open another file'), so the
+    TOML syntax error stays on screen to be read (common practice, no source: a message
+    the user has not seen is not an answer)."""
+    import threading
+
+    from workbench.app import jobs
+    from workbench.app.factory import make_app
+    from workbench.app.screens.dialogs import AskScreen
+
+    path = project_file(DRAIN)
+    path.write_text('title = "x"\n[lines.L1\nlength = "3 m"\n', encoding="utf-8")
+    typed = threading.Event()
+    real_load = jobs.load
+
+    def load_after_the_keys(p):  # the read ends only once the keys were typed
+        typed.wait(30)
+        return real_load(p)
+
+    monkeypatch.setattr(jobs, "load", load_after_the_keys)
+    app = make_app(path=path, debounce=0.05, prebuild_forms=False)
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.press("enter", "down")
+        typed.set()
+        for _ in range(600):  # the load fails in its worker; the dialog follows
+            await pilot.pause(0.05)
+            if not isinstance(app.screen, AskScreen):
+                continue
+            for _ in range(20):  # time for any replayed key to reach the dialog
+                await pilot.pause(0.02)
+            break
+        screen = app.screen
+        shown = getattr(screen, "question", "")
+        is_problems = isinstance(screen, AskScreen)
+    assert is_problems, type(screen).__name__
+    assert "could not be opened" in shown and "TOML syntax error" in shown, shown

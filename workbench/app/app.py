@@ -480,7 +480,7 @@ class WorkbenchApp(TypeAhead, App[int]):
             self.elastic_status = "failed"
             self.refresh_bindings()
         elif worker.group == "load" and self.project is None:
-            self.release_keys()
+            self.drop_keys()  # typed for a project that did not open: not for the dialog
             if not self.recovery.offer_after_failed_load(
                     self, self._loading_path, text, lambda: self._show_load_problems(text)):
                 self._show_load_problems(text)

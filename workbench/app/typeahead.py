@@ -54,6 +54,16 @@ class TypeAhead:
             self._replaying = True
             self.run_worker(self._replay_keys(), group="keys", exit_on_error=False)
 
+    def drop_keys(self) -> None:
+        """Forget the keys typed ahead: the project they were typed for did not open, and
+        replayed they would answer the dialog that says why before it is read (an Enter
+        chose its first answer)."""
+        self._holding = False
+        if self._hold_timer is not None:
+            self._hold_timer.stop()
+            self._hold_timer = None
+        self._held_keys = None
+
     async def _replay_keys(self) -> None:
         """One key at a time, each once its effects have settled: Enter on the element list
         or F3 moves the focus (and holds the keys again while it does), so the keys typed
