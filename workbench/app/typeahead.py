@@ -76,8 +76,11 @@ class TypeAhead:
                 # bindings (a message is never bubbled to the pump that sent it)
                 key._sender = None
                 self._replayed_key = key
+                before = self.focused
                 self.post_message(key)
                 await self._settle_key()
+                if key.key in getattr(before, "KEYS_THAT_MOVE_FOCUS", ()):
+                    await self._focus_moved(before)
         finally:
             self._replaying = False
             self._replayed_key = None
@@ -85,6 +88,16 @@ class TypeAhead:
             return  # a replayed key started a new hold: its release replays the rest
         self._held_keys = None
         self._start_deferred()
+
+    async def _focus_moved(self, before) -> None:
+        """Wait (at most about 5 s) until a key that moves the focus away from ``before``
+        has been answered: a hold started or the focus moved. On a busy machine the rounds
+        of :meth:`_settle_key` can pass before the widget has handled it, and the next key
+        (a Down meant for the form Enter opens) would move the element list instead."""
+        for _ in range(100):
+            if self._holding or self.focused is not before:
+                return
+            await asyncio.sleep(0.05)
 
     async def _settle_key(self, hops: int = 5) -> None:
         """Wait while a key travels: from the app through the screen to the focused widget,

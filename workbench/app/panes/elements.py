@@ -38,6 +38,10 @@ class ElementList(OptionList):
     class EditRequested(Message):
         """The user asked to edit the fields of the highlighted row."""
 
+    KEYS_THAT_MOVE_FOCUS = frozenset({"enter"})
+    """Keys this list answers by moving the focus to a form (the keys typed after one are
+    held until the form has the focus: :mod:`workbench.app.typeahead`)."""
+
     def __init__(self, **kwargs) -> None:
         super().__init__(**kwargs)
         self._keys: list[str] = []
