@@ -162,6 +162,27 @@ def test_entries_of_the_wrong_type_are_passed_over(tmp_path) -> None:
     assert memo.unit("length", "ft") is None and memo.factor("m", "ft") is None
 
 
+def test_a_hand_edited_number_that_is_not_finite_is_passed_over(tmp_path) -> None:
+    """json reads NaN and Infinity as floats; a reading or factor must be a finite number
+    (a factor to SI also above zero)."""
+    path = memo_path(tmp_path, KEY)
+    path.write_text('{"key": %s, "parsed": {"length\\t1 m": [NaN, null]}, '
+                    '"units": {"length\\tft": [Infinity, null]}, '
+                    '"factors": {"m\\tft": -Infinity, "m\\tin": 0.0}}' % json.dumps(KEY))
+    memo = UnitMemo(path, KEY)
+    assert memo.parsed("length", "1 m") is None and memo.unit("length", "ft") is None
+    assert memo.factor("m", "ft") is None and memo.factor("m", "in") is None
+
+
+def test_a_memo_that_cannot_be_written_out_whole_is_not_written(tmp_path) -> None:
+    """A value that is not finite (or a table changing under the writer) ends the save
+    quietly, leaving no file and no error at exit."""
+    memo = UnitMemo(memo_path(tmp_path, KEY), KEY)
+    memo.keep_parsed("length", "1 m", float("nan"), None)
+    memo.save()
+    assert not memo_path(tmp_path, KEY).exists()
+
+
 def test_the_memo_stops_growing_at_its_limit(tmp_path) -> None:
     memo = UnitMemo(memo_path(tmp_path, KEY), KEY)
     for i in range(MAX_ENTRIES + 10):

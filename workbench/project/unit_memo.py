@@ -32,6 +32,7 @@ import atexit
 import hashlib
 import importlib.util
 import json
+import math
 import os
 from pathlib import Path
 
@@ -100,7 +101,7 @@ class UnitMemo:
     def factor(self, si_unit: str, unit: str) -> float | None:
         """The kept factor from ``si_unit`` to ``unit``, or ``None``."""
         entry = self._factors.get(f"{si_unit}\t{unit}")
-        return entry if type(entry) is float else None
+        return entry if type(entry) is float and math.isfinite(entry) and entry > 0.0 else None
 
     def keep_parsed(self, kind: str, text: str, value: float, reference: str | None) -> None:
         self._keep(self._parsed, f"{kind}\t{text}", [float(value), reference])
@@ -124,9 +125,13 @@ class UnitMemo:
         if self.path is None or not self._dirty:
             return
         self._dirty = False
-        text = json.dumps({"key": self.key, "parsed": self._parsed, "units": self._units,
-                           "factors": self._factors},
-                          ensure_ascii=False, allow_nan=False, separators=(",", ":"))
+        try:  # at exit a worker thread may still be adding (RuntimeError); a value that is
+            # not finite (ValueError) is never written
+            text = json.dumps({"key": self.key, "parsed": dict(self._parsed),
+                               "units": dict(self._units), "factors": dict(self._factors)},
+                              ensure_ascii=False, allow_nan=False, separators=(",", ":"))
+        except (RuntimeError, ValueError):
+            return
         tmp = self.path.with_name(f".{self.path.name}.{os.getpid()}.tmp")
         try:
             self.path.parent.mkdir(parents=True, exist_ok=True)
@@ -142,6 +147,6 @@ class UnitMemo:
 def _pair(entry) -> tuple[float, str | None] | None:
     """A kept ``[float, reference]``, or ``None`` for anything else."""
     if (isinstance(entry, list) and len(entry) == 2 and type(entry[0]) is float
-            and entry[1] in (None, "gauge", "absolute")):
+            and math.isfinite(entry[0]) and entry[1] in (None, "gauge", "absolute")):
         return entry[0], entry[1]
     return None
