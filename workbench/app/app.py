@@ -193,6 +193,22 @@ class WorkbenchApp(TypeAhead, App[int]):
         super().notify(printable(message, keep_lines=True), title=title, severity=severity,
                        timeout=timeout, markup=markup)
 
+    def _refresh_notifications(self) -> None:
+        super()._refresh_notifications()
+        self.call_after_refresh(self._drop_empty_notice_holders)
+
+    def _drop_empty_notice_holders(self) -> None:
+        """Textual removes a cleared notice's toast but leaves its holder, which keeps its
+        rows: after a few notices cleared at once the next ones crept down over a view's
+        detail pane. Empty holders go."""
+        try:
+            holders = list(self.screen.query("ToastHolder"))
+        except Exception:  # no screen yet, or one being replaced
+            return
+        for holder in holders:
+            if not holder.children:
+                holder.remove()
+
     def action_help_quit(self) -> None:
         """Ctrl+C: say how to quit in plain words (Textual's own reminder is markup, and
         notices here carry none, so it showed '[b]ctrl+q[/b]')."""
