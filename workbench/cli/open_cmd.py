@@ -31,11 +31,15 @@ def run(args: argparse.Namespace) -> ExitCode:
         print(f"{path}: no such file (use 'workbench new {path}' to start one, or "
               "'workbench open' without a file)", file=sys.stderr)
         return ExitCode.INVALID
-    from workbench.app.factory import make_app
+    from workbench.cli.typed_ahead import keys_kept
 
-    # the file is read and solved on the other core while Textual loads here
-    app = make_app(path=path, offer_new=path is None, unit_system=args.units, solve_ahead=True)
-    result = app.run()
+    with keys_kept():  # Ctrl+R typed while Textual loads is a key for the app, not the terminal
+        from workbench.app.factory import make_app
+
+        # the file is read and solved on the other core while Textual loads here
+        app = make_app(path=path, offer_new=path is None, unit_system=args.units,
+                       solve_ahead=True)
+        result = app.run()
     return exit_status(result, app.return_code)
 
 
