@@ -24,6 +24,7 @@ from workbench.project.validate.checker import Checker, describe
 from workbench.project.validate.discharges import check_open_discharge_ends
 from workbench.project.validate.elements import check_junction, check_receiver, element_tables
 from workbench.project.validate.fluid import check_fluid
+from workbench.project.validate.gas_space import check_gas_spaces
 from workbench.project.validate.lines import check_line
 from workbench.project.validate.profile_ends import check_profile_ends
 from workbench.project.validate.root import check_project, check_root
@@ -70,6 +71,7 @@ def _check_measurements(c: Checker, parts: Parts) -> None:
 #: Checks run after the built-in sections, in order, each as ``check(c, parts)``.
 FURTHER_CHECKS: list[Callable[[Checker, Parts], None]] = [check_profile_ends,
                                                         check_open_discharge_ends,
+                                                        check_gas_spaces,
                                                         _check_measurements]
 
 
