@@ -12,7 +12,9 @@ from typing import Any
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical, VerticalScroll
+from textual.geometry import Size
 from textual.message import Message
+from textual.reactive import Reactive
 from textual.widgets import Input, Label, Select, Static
 
 from workbench.app.outline import (
@@ -33,7 +35,15 @@ NAME_WIDTH = 18
 
 
 class FieldInput(Input):
-    """A text field bound to one key path of the project."""
+    """A text field bound to one key path of the project.
+
+    Its width and height come from the style sheet, never from its text, so a change of
+    its value needs a repaint, not a layout: Textual's Input sets ``virtual_size`` (the
+    scrollable width of the text) on every keystroke, and on a Widget that reactive asks
+    for a layout of the whole screen (~0.05 s CPU per key with a line form shown).
+    """
+
+    virtual_size: Reactive[Size] = Reactive(Size(0, 0), layout=False, repaint=True)
 
     BINDINGS = [
         Binding("enter", "submit", "Apply", id="field.apply"),
