@@ -100,6 +100,24 @@ def test_solve_reports_the_vacuum_at_the_steady_outflow(tmp_path, capsys):
     assert "gas_pressure_pa" not in out["nodes"]["OUT"]
 
 
+def test_solve_names_the_outflow_the_vent_holds_the_tank_to(tmp_path, capsys):
+    """The vacuum is the vent's drop at the outflow it holds the tank to (the orifice
+    equation above at that flow), and that outflow is below the open tank's: the vacuum takes
+    p/(rho g) off the head driving the line."""
+    path = _write(tmp_path, VENT)
+    assert main(["solve", str(path), "--json"]) == 0
+    out = json.loads(capsys.readouterr().out)
+    held = out["nodes"]["TK"]["vent_held_net_outflow_m3_s"]
+    rho_air = 101_325.0 / (287.05 * 293.15)
+    area = math.pi * 0.05**2 / 4 / math.sqrt(1.5)
+    assert -out["nodes"]["TK"]["gas_pressure_pa"] == pytest.approx(
+        rho_air * (held / area) ** 2 / 2, rel=2e-3)
+    assert 0.0 < held < out["lines"]["L1"]["flow_m3_s"]
+    assert main(["solve", str(path)]) == 0
+    text = " ".join(capsys.readouterr().out.split())
+    assert f"holds the net outflow to {held * 1000:.4g} L/s" in text
+
+
 def test_solve_says_the_vacuum_in_words(tmp_path, capsys):
     assert main(["solve", str(_write(tmp_path, VENT))]) == 0
     text = " ".join(capsys.readouterr().out.split())

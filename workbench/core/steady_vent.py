@@ -26,7 +26,7 @@ from dataclasses import dataclass, field, replace
 
 from workbench.core.model import System, draw_off_at, inflow_at
 
-__all__ = ["VentedSteady", "vented_steady"]
+__all__ = ["VentedSteady", "net_outflows", "vented_steady"]
 
 
 @dataclass(frozen=True)
@@ -46,7 +46,9 @@ class VentedSteady:
     """The fixed point was reached (relative change below 1e-7)."""
 
 
-def _outflows(system: System, result, tanks, t: float) -> dict[str, float]:
+def net_outflows(system: System, result, tanks, t: float = 0.0) -> dict[str, float]:
+    """Per tank in ``tanks``, its net liquid outflow [m^3/s] in the steady ``result``: what
+    its lines take out less what they bring, plus its draw-off less its feed at time ``t``."""
     out = {tid: draw_off_at(system.reservoirs[tid], t) - inflow_at(system.reservoirs[tid], t)
            for tid in tanks}
     for lid, line in system.lines.items():
@@ -104,7 +106,7 @@ def vented_steady(system: System, solve, *, first=None, t: float = 0.0,
     for sweep in range(max_iterations):
         if res is None:
             res = solve(_with_gas_pressures(system, p))
-        out = _outflows(system, res, tanks, t)
+        out = net_outflows(system, res, tanks, t)
         if not vented:
             return VentedSteady(res, p, out)
         p_new = dict(p)
@@ -121,4 +123,4 @@ def vented_steady(system: System, solve, *, first=None, t: float = 0.0,
         weight = 1.0 if sweep < 10 else 0.5
         p = {k: p[k] + weight * (p_new[k] - p[k]) for k in p}
         res = None
-    return VentedSteady(res, p, _outflows(system, res, tanks, t), settled=False)
+    return VentedSteady(res, p, net_outflows(system, res, tanks, t), settled=False)

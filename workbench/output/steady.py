@@ -109,10 +109,11 @@ def steady_to_json(result: SteadyResult, system: System) -> dict:
                 "level_rate_m_s": _num(b.level_rate),
             })
     if result.success:  # tanks with a vent: the gas-space pressure at the steady outflow
-        from workbench.output.vent import steady_gas_pressures
+        from workbench.output.vent import steady_gas_states
 
-        for tid, p in steady_gas_pressures(system, result).items():
+        for tid, (p, outflow) in steady_gas_states(system, result).items():
             out["nodes"][tid]["gas_pressure_pa"] = _num(p)
+            out["nodes"][tid]["vent_held_net_outflow_m3_s"] = _num(outflow)
     out["warnings"] = [
         {"code": w.code, "element": w.element, "message": w.message, "severity": w.severity,
          "source": w.source, **({"values": finding_values(w)} if w.values else {})}

@@ -21,7 +21,8 @@ if TYPE_CHECKING:  # pragma: no cover
     from workbench.core.model import System
     from workbench.core.transient import TransientResult
 
-__all__ = ["gas_csv_columns", "gas_json", "gas_table", "steady_gas_pressures"]
+__all__ = ["gas_csv_columns", "gas_json", "gas_table", "steady_gas_pressures",
+           "steady_gas_states"]
 
 
 def gas_json(result: "TransientResult", tid: str, include_series: bool = True) -> dict[str, Any]:
@@ -95,7 +96,13 @@ def vent_words(vent, unit_system: str) -> str:
 def steady_gas_pressures(system: "System", result) -> dict[str, float | None]:
     """Per tank with a vent, the gauge pressure [Pa] at which its vent passes the air that
     its steady outflow makes room for (``None`` when no pressure does: a sealed tank with an
-    outflow, or a choked vent); a sealed tank at rest keeps its initial gas pressure.
+    outflow, or a choked vent); a sealed tank at rest keeps its initial gas pressure."""
+    return {tid: p for tid, (p, _) in steady_gas_states(system, result).items()}
+
+
+def steady_gas_states(system: "System", result) -> dict[str, tuple[float | None, float]]:
+    """Per tank with a vent, (gauge pressure [Pa] or ``None`` as in
+    :func:`steady_gas_pressures`, the tank's net outflow [m^3/s] at that pressure).
 
     Computed by the core (:func:`workbench.core.steady_vent.vented_steady`, the same fixed
     point a simulation's steady start uses): the vacuum lowers the steady outflow by
@@ -115,23 +122,29 @@ def steady_gas_pressures(system: "System", result) -> dict[str, float | None]:
     try:
         state = vented_steady(system, solve, first=result)
     except ValueError:
-        return {tid: None for tid in tanks}
-    out: dict[str, float | None] = {}
+        return {tid: (None, float("nan")) for tid in tanks}
+    out: dict[str, tuple[float | None, float]] = {}
     for tid in tanks:
         p = state.pressures[tid]
         sealed = system.reservoirs[tid].vent.effective_area <= 0.0
-        moving = state.outflows.get(tid, 0.0) != 0.0
-        out[tid] = None if not np.isfinite(p) or (sealed and moving) else p
+        outflow = state.outflows.get(tid, 0.0)
+        moving = outflow != 0.0
+        out[tid] = (None if not np.isfinite(p) or (sealed and moving) else p, outflow)
     return out
 
 
 def steady_gas_texts(system: "System", result, unit_system: str) -> list:
     """One line per tank with a vent for ``solve``'s tables: its gas-space pressure at the
-    steady outflow, against its design."""
+    steady outflow the vent allows (against the open tank's, which the tables show), and
+    against its design."""
     from rich.text import Text
 
+    from workbench.core.steady_vent import net_outflows
+
     out = []
-    for tid, p in steady_gas_pressures(system, result).items():
+    states = steady_gas_states(system, result)
+    open_flows = net_outflows(system, result, list(states))
+    for tid, (p, outflow) in states.items():
         res = system.reservoirs[tid]
         vent = vent_words(res.vent, unit_system)
         if p is None:
@@ -141,7 +154,8 @@ def steady_gas_texts(system: "System", result, unit_system: str) -> list:
                 style="bold"))
             continue
         text = (f"Tank {tid} ({vent}): gas space at "
-                f"{quantity_text(p, 'pressure', unit_system, 3)} gauge at the steady outflow")
+                f"{quantity_text(p, 'pressure', unit_system, 3)} gauge"
+                f"{_held_flow_words(outflow, open_flows.get(tid, 0.0), unit_system)}")
         p_v = system.fluid.vapor_pressure
         if p_v is not None and p <= p_v - system.atmospheric_pressure + 1e-6:
             out.append(Text(
@@ -158,6 +172,19 @@ def steady_gas_texts(system: "System", result, unit_system: str) -> list:
         out.append(Text(text + ".", style="bold red" if design is not None and abs(p) > design
                         else ""))
     return out
+
+
+def _held_flow_words(held: float, open_tank: float, unit_system: str) -> str:
+    """", where the vent holds the net outflow to 17.65 L/s (the tables above: 17.74 L/s,
+    the tank open to the air)", or nothing when the two read the same."""
+    def q(value):
+        return quantity_text(abs(value), "flow", unit_system, 4)
+
+    if not (np.isfinite(held) and np.isfinite(open_tank)) or q(held) == q(open_tank):
+        return " at the steady outflow"
+    way = "outflow" if held >= 0.0 else "inflow"
+    return (f", where the vent holds the net {way} to {q(held)} (the tables above show "
+            f"{q(open_tank)}, the tank open to the air)")
 
 
 #: The calculation record's methods-table row for tanks with a vent.
