@@ -101,7 +101,8 @@ def test_sweep_units_us_shows_the_cases_in_us_units(capsys):
 
 def test_check_units_us_writes_the_problems_and_summary_of_an_si_project_in_us_units(tmp_path, capsys):
     """A bore below the plausible 1 mm (README's range) refused in the chosen units: 1 mm =
-    1/25.4 in = 0.03937 in (exact by definition, shown to 4 digits); the valid file's summary
+    1/25.4 in = 0.03937 in (exact by definition), written rounded inward to two figures as
+    0.04 in, so that every bore inside the words is accepted; the valid file's summary
     gives its 18 degC water as 18 * 9/5 + 32 = 64.4 degF."""
     bad = tmp_path / "bad.toml"
     text = DRAIN.read_text(encoding="utf-8")
@@ -109,7 +110,7 @@ def test_check_units_us_writes_the_problems_and_summary_of_an_si_project_in_us_u
     bad.write_text(text.replace('nominal_size = "4 in"', 'inner_diameter = "0.5 mm"'), encoding="utf-8")
     code, _, err = _run(["check", bad, "--units", "US"], capsys)
     assert code == 1
-    assert "lines.210-DR-04.inner_diameter" in err and "0.03937 in" in err and "1 mm" not in err
+    assert "lines.210-DR-04.inner_diameter" in err and "from 0.04 in" in err and "1 mm" not in err
     code, _, err = _run(["check", bad], capsys)
     assert code == 1 and "1 mm" in err  # the file's own SI without --units
     code, out, _ = _run(["check", DRAIN, "--units", "US"], capsys)
@@ -118,7 +119,8 @@ def test_check_units_us_writes_the_problems_and_summary_of_an_si_project_in_us_u
 
 def test_check_units_si_writes_the_problems_of_a_us_project_in_si(tmp_path, capsys):
     """The US demo with an implausible bore: --units SI gives the range as 1 mm to 20,000 mm,
-    the file's own US units as 0.03937 in (1 in = 25.4 mm, exact by definition)."""
+    the file's own US units as 0.04 in to 780 in (1 mm = 0.03937 in and 20 m = 787.4 in, as
+    1 in = 25.4 mm exactly, rounded inward to two figures)."""
     bad = tmp_path / "bad.toml"
     text = NETWORK.read_text(encoding="utf-8")
     assert 'inner_diameter = "8 in"' in text
@@ -126,7 +128,7 @@ def test_check_units_si_writes_the_problems_of_a_us_project_in_si(tmp_path, caps
     code, _, err = _run(["check", bad, "--units", "SI"], capsys)
     assert code == 1 and "from 1 mm to 20,000 mm" in err
     code, _, err = _run(["check", bad], capsys)
-    assert "from 0.03937 in" in err
+    assert "from 0.04 in to 780 in" in err
 
 
 def test_json_stays_si_whatever_the_display_units(capsys):

@@ -71,9 +71,18 @@ def computed_part(message: str) -> str:
 
 def test_a_bore_out_of_range_gives_its_limits_in_inches_on_a_us_project():
     message = problems(bore="0.1 mm")["lines.L1.inner_diameter"]
-    # 1 mm and 20 m in inches (NIST SP 811: 1 in = 25.4 mm), to 4 significant digits
-    assert f"from {1e-3 / IN:.4g} in to {20 / IN:.4g} in" in message
+    # 1 mm and 20 m in inches (NIST SP 811: 1 in = 25.4 mm): 0.03937 in and 787.4 in,
+    # rounded inward to two figures so that every bore inside the words is accepted
+    low, high = 1e-3 / IN, 20 / IN
+    assert (low, high) == (pytest.approx(0.03937, rel=1e-4), pytest.approx(787.4, rel=1e-4))
+    assert "from 0.04 in to 780 in" in message
     assert not SI_UNIT.search(computed_part(message)), message
+
+
+@pytest.mark.parametrize("bore", ["0.04 in", "780 in"])
+def test_a_bore_at_either_limit_the_words_give_is_accepted(bore):
+    text = BASE.format(units="US", height="5.2 m", tank="", bore=bore, end="1.2 m")
+    assert load_project_text(text, "t.toml").system.lines["L1"].diameter > 0.0
 
 
 def test_the_same_bore_on_an_si_project_gives_its_limits_in_millimetres():
@@ -84,9 +93,11 @@ def test_the_same_bore_on_an_si_project_gives_its_limits_in_millimetres():
 def test_a_vent_rated_flow_out_of_range_is_a_gas_flow_in_cubic_feet_a_minute():
     tank = 'vent = { rated_flow = "1e9 m3/h", rated_pressure_drop = "0.5 kPa" }'
     message = problems(tank=tank)["reservoirs.TK.vent.rated_flow"]
-    # 1e7 m3/h is 1e7 / (0.028316846592 * 60) ft3/min (NIST SP 811)
+    # 1e7 m3/h is 1e7 / (0.028316846592 * 60) = 5,885,780 ft3/min (NIST SP 811), rounded
+    # down to two figures: 5,800,000 ft3/min
     high = 1e7 / (FT ** 3 * 60)
-    assert f"{round(float(f'{high:.4g}')):,} ft3/min" in message
+    assert high == pytest.approx(5_885_780, rel=1e-6)
+    assert "5,800,000 ft3/min" in message
     assert "gpm" not in message and not SI_UNIT.search(computed_part(message)), message
 
 

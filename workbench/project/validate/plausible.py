@@ -44,24 +44,40 @@ class Plausible:
     def describe(self, unit_system: str = "SI", kind: str | None = None) -> str:
         """The range in words: in :attr:`unit` for SI (or without a quantity ``kind``), in
         the ``kind``'s US display unit for ``unit_system="US"``."""
-        scale, unit = self.scale, self.unit
+        scale, unit, converted = self.scale, self.unit, False
         if unit_system == "US" and kind is not None and unit:
             from workbench.project.units import display_unit, to_display
 
             unit = display_unit(kind, "US")
             scale = 1.0 / float(to_display(1.0, kind, "US"))
+            converted = True
 
-        def text(x: float) -> str:
-            x = float(f"{x / scale:.4g}")
+        def text(x: float, inward: int = 0) -> str:
+            x = x / scale
+            # converted limits are rounded inward to two figures ("0.04 in to 780 in", not
+            # "0.03937 in to 787.4 in"): every value inside the words is accepted
+            x = _two_figures(x, inward) if converted and inward else float(f"{x:.4g}")
             shown = f"{int(round(x)):,}" if abs(x) >= 1 and abs(x - round(x)) < 1e-9 * abs(x) \
                 else f"{x:g}"
             return shown + (f" {unit}" if unit else "")
 
         if self.low is not None and self.high is not None:
-            return f"from {text(self.low)} to {text(self.high)}"
+            return f"from {text(self.low, 1)} to {text(self.high, -1)}"
         if self.low is not None:
-            return f"at least {text(self.low)}"
-        return f"at most {text(self.high)}"  # type: ignore[arg-type]
+            return f"at least {text(self.low, 1)}"
+        return f"at most {text(self.high, -1)}"  # type: ignore[arg-type]
+
+
+def _two_figures(x: float, direction: int) -> float:
+    """``x`` to two significant figures, rounded up (``direction`` 1) or down (-1)."""
+    import math
+
+    if x == 0.0 or not math.isfinite(x):
+        return x
+    step = 10.0 ** (math.floor(math.log10(abs(x))) - 1)
+    n = x / step
+    n = math.ceil(n - 1e-9) if direction > 0 else math.floor(n + 1e-9)
+    return float(f"{n * step:.2g}") if abs(n) < 100 else float(f"{n * step:.3g}")
 
 
 _ELEVATION = Plausible(-20_000.0, 20_000.0, "an elevation", "m", 1.0,
