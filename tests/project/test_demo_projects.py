@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import math
+import re
 from pathlib import Path
 
 import pytest
@@ -85,6 +86,29 @@ def test_the_starter_project_is_valid_and_canonical():
     project = load_project_text(starter_text(), "starter.toml")
     assert project.system.lines
     assert format_text(starter_text()) == starter_text()
+
+
+def test_the_us_starter_is_valid_canonical_and_close_to_the_si_one():
+    """Every SI figure the starter writes has a US replacement that occurs once, and the US
+    starter describes about the same system: each tank and line figure within 10 % of the SI
+    one (1 ft = 0.3048 m, NIST SP 811), so neither file is a different plant."""
+    from workbench.project.starter import STARTER, US_VALUES
+
+    for si, _ in US_VALUES:
+        assert STARTER.count(si) == 1, si
+    us_text = starter_text("US")
+    assert format_text(us_text) == us_text
+    si, us = (load_project_text(t, "starter.toml") for t in (starter_text(), us_text))
+    assert us.unit_system == "US" and si.unit_system == "SI"
+    pairs = [(si.system.reservoirs["TK1"].level, us.system.reservoirs["TK1"].level),
+             (si.system.reservoirs["TK1"].bottom_elevation,
+              us.system.reservoirs["TK1"].bottom_elevation),
+             (si.system.lines["L1"].length, us.system.lines["L1"].length),
+             (si.system.lines["L1"].diameter, us.system.lines["L1"].diameter)]
+    for a, b in pairs:
+        assert b == pytest.approx(a, rel=0.1)
+    quoted = re.findall(r'"([0-9.]+) ([A-Za-z/0-9]+)"', us_text.split("schema = 1", 1)[1])
+    assert not {unit for _, unit in quoted} & {"m", "mm", "kPa", "L/s", "degC", "bar"}
 
 
 def test_the_drain_test_demo_reads_its_level_log_from_beside_it():

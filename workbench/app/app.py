@@ -269,7 +269,8 @@ class WorkbenchApp(TypeAhead, App[int]):
             project, steady = taken
             self.post_message(self.ProjectLoaded(project, path, steady))
             return
-        project = jobs.load_starter() if path is None else jobs.load(path)
+        project = (jobs.load_starter(self._unit_override or "SI") if path is None
+                   else jobs.load(path))
         self.post_message(self.ProjectLoaded(project, path))
 
     def on_workbench_app_project_loaded(self, message: ProjectLoaded) -> None:

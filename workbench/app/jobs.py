@@ -19,11 +19,12 @@ def load(path: Path) -> Any:
     return load_project(path)
 
 
-def load_starter() -> Any:
-    """A new, unsaved project made from the commented starter template."""
+def load_starter(units: str = "SI") -> Any:
+    """A new, unsaved project made from the commented starter template, its figures in
+    ``units`` ("SI" or "US")."""
     from workbench.project.document import load_project_text, starter_text
 
-    return load_project_text(starter_text(), name="<new project>")
+    return load_project_text(starter_text(units), name="<new project>")
 
 
 def solve(system: Any) -> Any:

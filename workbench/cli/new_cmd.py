@@ -13,6 +13,9 @@ def add_parser(subparsers, name: str, help_text: str) -> argparse.ArgumentParser
         name, help=help_text, description="Write a commented starter project file that passes "
         "'workbench check'. An existing file is never overwritten.")
     parser.add_argument("path", metavar="PATH", help="file to create, e.g. drain.toml")
+    parser.add_argument("--units", choices=("SI", "US"), default="SI",
+                        help="units of the figures in the file and its display units "
+                        "(default SI)")
     return parser
 
 
@@ -21,7 +24,7 @@ def run(args: argparse.Namespace) -> ExitCode:
 
     try:
         with open(args.path, "x", encoding="utf-8", newline="\n") as handle:
-            handle.write(starter_text())
+            handle.write(starter_text(args.units))
     except FileExistsError:
         print(f"{args.path}: already exists; not overwritten (choose another name)",
               file=sys.stderr)

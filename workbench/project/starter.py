@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-__all__ = ["STARTER", "starter_text"]
+__all__ = ["STARTER", "US_VALUES", "starter_text"]
 
 STARTER = '''\
 # A gravity-flow system for the workbench (project file, schema 1).
@@ -87,6 +87,46 @@ stop_when = "drained"  # stop when every tank reaches its min_level
 '''
 
 
-def starter_text() -> str:
-    """The commented starter project (valid: it passes ``workbench check``)."""
-    return STARTER
+#: The starter's SI texts and what a US project file gets instead: round figures a US plant
+#: would write, not exact conversions (the file keeps what is typed). Each left-hand text
+#: occurs exactly once in :data:`STARTER` (tested). A Kv stays in m3/h: it is defined so.
+US_VALUES: tuple[tuple[str, str], ...] = (
+    ('units = "SI"', 'units = "US"'),
+    ('site_elevation = "0 m"', 'site_elevation = "0 ft"'),
+    ('temperature = "20 degC"', 'temperature = "68 degF"'),
+    ('diameter = "3 m"', 'diameter = "10 ft"'),
+    ('height = "5 m"', 'height = "16 ft"'),
+    ('bottom_elevation = "10 m"', 'bottom_elevation = "33 ft"'),
+    ('level = "4 m"', 'level = "13 ft"'),
+    ('min_level = "0.1 m"', 'min_level = "4 in"'),
+    ('surface_pressure = "0 kPa"', 'surface_pressure = "0 psi"'),
+    ('inflow = "40 L/s"', 'inflow = "600 gpm"'),
+    ('draw_off = "5 L/s"', 'draw_off = "80 gpm"'),
+    ('flow = "0 L/s" }, { time = "10 min", flow = "40 L/s"',
+     'flow = "0 gpm" }, { time = "10 min", flow = "600 gpm"'),
+    ('restart_level = "0.5 m"', 'restart_level = "1.5 ft"'),
+    ('inner_diameter = "50 mm", k = 1.5', 'inner_diameter = "2 in", k = 1.5'),
+    ('rated_flow = "300 m3/h", rated_pressure_drop = "0.5 kPa"',
+     'rated_flow = "180 ft3/min", rated_pressure_drop = "2 inH2O"'),
+    ('(air at 20 degC, 1 atm)', '(air at 68 degF, 1 atm)'),
+    ('design_vacuum = "0.5 kPa"', 'design_vacuum = "2 inH2O"'),
+    ('design_pressure = "2 kPa"', 'design_pressure = "8 inH2O"'),
+    ('elevation = "2 m"\n', 'elevation = "6.5 ft"\n'),
+    ('length = "60 m"', 'length = "200 ft"'),
+    ('inner_diameter = "77.9 mm"', 'inner_diameter = "3.068 in"'),
+    ('roughness = "0.045 mm"', 'roughness = "0.0018 in"'),
+    ('{ distance = "0 m", elevation = "10 m" }, { distance = "60 m", elevation = "2 m" }',
+     '{ distance = "0 ft", elevation = "33 ft" }, { distance = "200 ft", elevation = "6.5 ft" }'),
+    ('pressure_rating = "10 bar"', 'pressure_rating = "150 psi"'),
+)
+
+
+def starter_text(units: str = "SI") -> str:
+    """The commented starter project (valid: it passes ``workbench check``), its figures in
+    ``units`` ("SI" or "US")."""
+    if units != "US":
+        return STARTER
+    text = STARTER
+    for si, us in US_VALUES:
+        text = text.replace(si, us)
+    return text
