@@ -98,10 +98,10 @@ async def test_a_steady_sweep_fills_the_table_in_sweep_order_and_names_the_first
         assert abs(a - b) <= 1e-9 * abs(b)
     assert [c["pass"] for c in sweep["cases"]] == [f * 1000.0 > threshold for f in flows]
     assert sweep["first_passing"] == 1
-    assert "first passing: #1" in status
+    assert "first passing: #2" in status
     assert pass_at <= 1 and right_edge <= visible_width
     assert pass_cells == ["yes" if f * 1000.0 > threshold else "no" for f in flows]
-    assert detail.startswith("# 0 · pass no")  # the highlighted case, every column
+    assert detail.startswith("# 1 · pass no")  # the highlighted case, every column
 
 
 async def test_the_plot_puts_the_chosen_result_against_the_swept_value() -> None:

@@ -143,7 +143,7 @@ def _print_table(project, sweep: dict, keypaths) -> None:
             console.print("No case passes every criterion.")
         else:
             values = ", ".join(f"{k} = {v}" for k, v in sweep["cases"][first]["values"].items())
-            console.print(f"First passing case in sweep order: #{first} ({values}).")
+            console.print(f"First passing case in sweep order: #{first + 1} ({values}).")
 
 
 def run(args: argparse.Namespace) -> ExitCode:

@@ -80,7 +80,7 @@ def sweep_table(sweep: Mapping, keypaths: Sequence[str] | None = None) -> tuple[
 
     rows = []
     for i, c in enumerate(cases):
-        row: dict[str, object] = {"case": i}
+        row: dict[str, object] = {"case": i + 1}  # cases are numbered from 1 for the reader
         for k in keypaths:
             row[f"value:{k}"] = c["values"].get(k, "")
         steady = c.get("steady") or {}

@@ -246,7 +246,7 @@ class SweepScreen(Screen[None]):
         if self.sweep.get("cancelled"):
             words.append("stopped before the end")
         if self.sweep.get("criteria"):
-            words.append("no case passes" if first is None else f"first passing: #{first} "
+            words.append("no case passes" if first is None else f"first passing: #{first + 1} "
                          + ", ".join(f"{k} = {v}" for k, v in cases[first]["values"].items()))
         self._words = "; ".join(words)
         self._status(self._words)
