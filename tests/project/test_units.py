@@ -93,6 +93,8 @@ BAD = [
     ("__import__('os').system('true') m", "length", "must start with a number"),
     ("3 m; import os", "length", "characters a unit cannot have"),
     ("3 m)", "length", "cannot read the unit"),
+    # a unit pint would read as m^100000, after seconds of CPU (found by the fuzz test)
+    ("3" + " m" * 100_000, "length", "characters long (a unit has at most 100)"),
     ("", "length", "must start with a number"),
     ("5 kPa(g)", "length", "got a pressure"),  # pint reads 'kPa(g)' as kPa x gram
     ("-300 degC", "temperature", "below absolute zero"),

@@ -254,6 +254,10 @@ _WORD_REFERENCE = re.compile(
     re.I,
 )
 _EXPONENT = re.compile(r"(\*\*|\^)\s*[+-]?\d+(\.\d+)?")
+#: Longest unit text handed to pint [characters]: the longest unit a file needs is a couple
+#: of dozen characters ("kilogram / meter / second ** 2"), while pint's tokenizer takes
+#: seconds of CPU on a unit of a few hundred thousand characters ("m m m ...").
+MAX_UNIT_CHARS = 100
 
 
 @dataclass(frozen=True)
@@ -423,6 +427,10 @@ def _parse_with_pint(text: str, kind: str) -> ParsedQuantity:
     as_written = unit_text
     if not unit_text:
         raise UnitError(f"{text!r} is not {_a(what)}: a unit is needed, e.g. {spec.example!r}")
+    if len(unit_text) > MAX_UNIT_CHARS:
+        raise UnitError(f"expected {_a(what)}, but the unit {unit_text[:24]!r}... is "
+                        f"{len(unit_text):,} characters long (a unit has at most "
+                        f"{MAX_UNIT_CHARS})")
     reference: Reference | None = None
     is_pressure = kind in {"pressure", "pressure_abs"}
     if is_pressure:
