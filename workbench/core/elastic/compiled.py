@@ -3,7 +3,7 @@ r"""The time march compiled by numba: the same equations as the numpy kernel, as
 numpy cannot do a step in fewer than about five array calls, and a call costs about a
 microsecond whatever the array's length; at a few hundred nodes that overhead is most of the
 work. Here the step is plain loops that numba compiles to machine code (cached on disk after
-the first run, GIL released so a UI thread stays live). The boundary conditions are the
+the first run, :mod:`.jit_cache`; GIL released so a UI thread stays live). The boundary conditions are the
 functions of :mod:`workbench.core.elastic.boundaries`, compiled as they are.
 
 This module imports numba, so it is imported only when the compiled kernel is chosen
@@ -13,14 +13,16 @@ This module imports numba, so it is imported only when the compiled kernel is ch
 from __future__ import annotations
 
 import math
+import sys
 
-import numba
 import numpy as np
 
 from workbench.core import friction as _friction
 from workbench.core.elastic import boundaries as _bc
+from workbench.core.elastic.jit_cache import cached_jit
 
-_jit = numba.njit(cache=True, nogil=True)
+# Cached on disk, keyed on this module and the two whose functions are compiled into it.
+_jit = cached_jit(sys.modules[__name__], _bc, _friction)
 
 _RE_LAMINAR = _friction.RE_LAMINAR
 _RE_TURBULENT = _friction.RE_TURBULENT
