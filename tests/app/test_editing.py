@@ -52,9 +52,10 @@ async def test_a_wrong_unit_shows_its_message_beside_the_field_and_the_model_kee
         before = app.project
         await type_into(pilot, f"lines.{LINE}.length", "240 mmm")
         row = field_input(app, f"lines.{LINE}.length").parent
-        message = str(row.query_one(".field-hint").render())
+        shown = str(row.render())  # the row draws its name, then the message beside
         assert row.has_class("-invalid")
-        assert message.startswith("✗")
+        assert shown.startswith("length*") and "✗" in shown
+        message = shown[shown.index("✗"):]
     assert "mmm" in message
     assert app.project is before
     assert app.project.data["lines"][LINE]["length"] == "240 m"

@@ -153,10 +153,8 @@ async def test_a_quick_burst_of_down_presses_lands_on_the_field_as_many_steps_on
 
 async def _every_form_whole(pilot) -> list[str]:
     """Each element's form in turn: names and empty-field placeholders that do not fit."""
-    from textual.widgets import Label
-
     from workbench.app.outline import entries
-    from workbench.app.panes.form import FieldForm, FieldInput
+    from workbench.app.panes.form import EDITOR_WIDTH, FieldForm, FieldInput
 
     app = pilot.app
     cut = []
@@ -165,12 +163,12 @@ async def _every_form_whole(pilot) -> list[str]:
         await pilot.pause()
         form = app.screen.query_one(FieldForm)
         for row in form.current_rows():
-            name = row.query_one(".field-name", Label)
             editor = row.editor
-            if len(str(name.render())) + 1 > name.region.width:  # a space before the value
-                cut.append(f"{entry.key} name {name.render()}")
+            if len(row.name_text) + 1 > row.name_width:  # a space before the value
+                cut.append(f"{entry.key} name {row.name_text}")
+            # a field not being edited shows EDITOR_WIDTH columns, then the unit hint
             if (isinstance(editor, FieldInput) and not editor.value
-                    and len(editor.placeholder) > editor.region.width):
+                    and len(editor.placeholder) > min(EDITOR_WIDTH, editor.region.width)):
                 cut.append(f"{entry.key} {row.field.keypath} placeholder {editor.placeholder!r}")
     return cut
 

@@ -11,11 +11,13 @@ from typing import Any
 
 from textual.app import ComposeResult
 from textual.binding import Binding
-from textual.containers import Horizontal, Vertical, VerticalScroll
+from textual.containers import Vertical, VerticalScroll
 from textual.geometry import Size
 from textual.message import Message
 from textual.reactive import Reactive
-from textual.widgets import Input, Label, Select, Static
+from textual.strip import Strip
+from textual.widget import Widget
+from textual.widgets import Input, Select, Static
 
 from workbench.app.outline import (
     Entry,
@@ -30,8 +32,10 @@ from workbench.app.outline import (
 from workbench.project.units import QUANTITY_KINDS
 
 NODE_SECTIONS = ("reservoirs", "junctions", "receivers")
-#: Columns of a key's name in a form, at least (the style sheet's .field-name width).
+#: Columns of a key's name in a form, at least.
 NAME_WIDTH = 18
+#: Columns of a field's value while it is not being edited (the unit hint follows).
+EDITOR_WIDTH = 22
 
 
 class FieldInput(Input):
@@ -63,6 +67,26 @@ class FieldInput(Input):
                          suggester=suggester, classes="field-editor")
         self.field = field
         self.choices = choices
+
+    COMPONENT_CLASSES = Input.COMPONENT_CLASSES | {"field-input--hint"}
+
+    def render_line(self, y: int) -> Strip:
+        """The value; while the field is not being edited, its first :data:`EDITOR_WIDTH`
+        columns and then the row's unit hint (no message showing)."""
+        strip = super().render_line(y)
+        row = self.parent
+        if (y or self.has_focus or not isinstance(row, FieldRow) or row.problem
+                or strip.cell_length <= EDITOR_WIDTH):
+            return strip
+        from rich.segment import Segment
+        from rich.style import Style
+
+        room = strip.cell_length - EDITOR_WIDTH
+        text = f" {row.hint_text}"[:room].ljust(room)
+        # the row's background (the hint sits beside the editor, not in it), the hint colour
+        colour = self.get_component_rich_style("field-input--hint").color
+        style = row.rich_style + Style(color=colour)
+        return Strip.join([strip.crop(0, EDITOR_WIDTH), Strip([Segment(text, style)], room)])
 
     def action_revert(self) -> None:
         """Put back the stored value and clear the message."""
@@ -163,12 +187,22 @@ class GroupHeading(Static):
             form.scroll_to_widget(self, animate=False)
 
 
-class FieldRow(Horizontal):
-    """Name, editor, and beside them the value in the display unit, or what is wrong.
+class FieldRow(Widget):
+    """One key of the form in one line: its name, its editor, and beside them the value in
+    the display unit or what is wrong with the entry.
 
-    A refused entry replaces the unit hint with the reason (wrapping onto more lines as
-    needed), so the message sits right beside the field it is about.
+    Two widgets a key (this row and its :class:`FieldInput`) rather than four: the row
+    draws the name and any message itself, and the editor, as wide as the rest of the row,
+    draws the unit hint beside the value while it is not being edited. So moving the focus
+    from field to field repaints two editors and lays nothing out, and a form of 30 keys
+    builds and is walked in far less time.
+
+    A refused entry shows its reason beside the field (wrapping onto more lines as
+    needed); the editor then keeps to :data:`EDITOR_WIDTH` columns, or half the room
+    while it is being edited, so the reason stays in sight.
     """
+
+    COMPONENT_CLASSES = {"field-row--name", "field-row--problem"}
 
     class Focused(Message):
         """One of the row's widgets got the focus."""
@@ -186,41 +220,96 @@ class FieldRow(Horizontal):
         self.problem = ""
         self.heading = ""
         """The form heading this row sits under."""
-        self.name_width = 0
-        """Columns for the key's name (0: the style sheet's), so the longest name of the
-        form shows whole."""
-        self._hint_text = ""
+        self.name_width = NAME_WIDTH
+        """Columns for the key's name, so the longest name of the form shows whole."""
+        self.hint_text = ""
+        """The stored value in the display unit (or the unit expected), shown beside it."""
         self._editor: Input | Select | None = None
-        self._note: Static | None = None
+        self._fitted: int | None = None
+
+    @property
+    def name_text(self) -> str:
+        """The key's name as shown, ``*`` after a required one."""
+        spec = self.field.spec
+        return f"{spec.name}{'*' if spec.required else ' '}"
 
     def compose(self) -> ComposeResult:
-        spec = self.field.spec
-        mark = "*" if spec.required else " "
-        label = Label(f"{spec.name}{mark}", classes="field-name")
-        if self.name_width:
-            label.styles.width = self.name_width
-        yield label
         # Choices are typed, with the rest of a matching word suggested (Right accepts);
         # a plain input is far lighter to build than a drop-down, which keeps forms fast.
         self._editor = FieldInput(self.field, value_text(self.stored), self.choices)
+        self._editor.styles.margin = (0, 0, 0, self.name_width)
         yield self._editor
-        self._note = Static("", classes="field-hint", markup=False)
-        yield self._note
 
     @property
     def editor(self) -> Input | Select:
         return self._editor
+
+    # --- the message beside the field ---------------------------------------------------
+    def _editor_width(self, width: int) -> int | None:
+        """The editor's columns in a row ``width`` wide (``None``: the rest of the row)."""
+        if not self.problem:
+            return None
+        room = max(width - self.name_width, 2)
+        editing = self._editor is not None and self._editor.has_focus
+        return max(room // 2, 1) if editing else min(EDITOR_WIDTH, room)
+
+    def _problem_lines(self, width: int) -> list:
+        """The message's lines, wrapped to the room beside the editor."""
+        if not self.problem:
+            return []
+        from rich.text import Text
+
+        room = width - self.name_width - (self._editor_width(width) or 0) - 1
+        text = Text(f"✗ {self.problem}", no_wrap=False)
+        return list(text.wrap(self.app.console, max(room, 8)))
+
+    def _fit_editor(self) -> None:
+        """Size the editor for the row's state (a no-op when nothing changes)."""
+        editor = self._editor
+        if editor is None or not self.size.width:
+            return
+        width = self._editor_width(self.size.width)
+        if width != self._fitted:  # None: the style sheet's width, the rest of the row
+            self._fitted = width
+            editor.styles.width = width  # lays the screen out
+
+    def get_content_height(self, container: Size, viewport: Size, width: int) -> int:
+        return max(1, len(self._problem_lines(width))) if width else 1
+
+    def render(self):
+        from rich.text import Text
+
+        width = self.size.width
+        name = Text(self.name_text.ljust(self.name_width),
+                    style=self.get_component_rich_style("field-row--name"))
+        lines = self._problem_lines(width)
+        if not lines:
+            return name
+        column = self.name_width + (self._editor_width(width) or 0) + 1
+        style = self.get_component_rich_style("field-row--problem")
+        out = Text(no_wrap=True, overflow="crop")
+        for index, line in enumerate(lines):
+            if index:
+                out.append("\n" + " " * self.name_width)
+            else:
+                out.append_text(name)
+            out.append(" " * (column - self.name_width))
+            line.stylize(style)
+            out.append_text(line)
+        return out
+
+    def on_resize(self) -> None:
+        self._fit_editor()
 
     def show_problem(self, text: str) -> None:
         if text == self.problem:
             return
         self.problem = text
         self.set_class(bool(text), "-invalid")
-        self._show_note()
-
-    def _show_note(self) -> None:
-        if self._note is not None:
-            self._note.update(f"✗ {self.problem}" if self.problem else self._hint_text)
+        self._fit_editor()
+        self.refresh(layout=True)  # the message may take more lines
+        if self._editor is not None:
+            self._editor.refresh()
 
     def set_stored(self, stored: Any, unit_system: str) -> None:
         """Show a new stored value (after an edit, undo or redo elsewhere)."""
@@ -269,17 +358,21 @@ class FieldRow(Horizontal):
 
     def show_hint(self, unit_system: str) -> None:
         text = hint(self.field, self.stored, unit_system)
-        if text != self._hint_text:
-            self._hint_text = text
-            if not self.problem:
-                self._show_note()
+        if text != self.hint_text:
+            self.hint_text = text
+            if self._editor is not None and not self.problem:
+                self._editor.refresh()
 
     def on_descendant_focus(self) -> None:
-        self.add_class("-editing")
+        if self.problem:
+            self._fit_editor()
+            self.refresh()
         self.post_message(self.Focused(self))
 
     def on_descendant_blur(self) -> None:
-        self.remove_class("-editing")
+        if self.problem:
+            self._fit_editor()
+            self.refresh()
 
 
 def hint(field: Field, stored: Any, unit_system: str) -> str:

@@ -67,7 +67,7 @@ class SystemPane(Horizontal):
         title = (f"{NOUN[entry.section]} {entry.element}" if entry.element
                  else f"{entry.section} settings")
         self.query_one("#form-title", Static).update(
-            f"{title}  · ↑↓ Tab move · Enter applies · Esc back")
+            f"{title}  · ↑↓ Tab move · Enter applies · Esc back", layout=False)  # 1 row
         await self.query_one(FieldForm).show(entry, self.app.project.data, self.app.unit_system)
 
     async def on_element_list_chosen(self, message: ElementList.Chosen) -> None:
@@ -107,7 +107,24 @@ class SystemPane(Horizontal):
         group = message.field.group
         if group and row.stored is None and getattr(editor, "placeholder", "").startswith("(no "):
             text += f" · no {group} yet: a value typed here adds one"
-        self.query_one("#field-help", Static).update(text)
+        show_help(self.query_one("#field-help", Static), text)
         # a longer help line takes rows from the form: keep the field in sight after it
         form = self.query_one(FieldForm)
         self.call_after_refresh(form.scroll_to_widget, row, animate=False)
+
+
+def show_help(help_line: Static, text: str) -> None:
+    """Put ``text`` on the help line under the form, laying the screen out again only when
+    it needs another number of rows (a field's focus then costs a repaint, not a layout)."""
+    from rich.text import Text
+
+    width = help_line.content_region.width
+    if not width:
+        help_line.update(text)
+        return
+    rows = len(Text(text).wrap(help_line.app.console, width))
+    styles = help_line.styles
+    tall = rows + styles.gutter.height  # min/max heights count the border and padding
+    low = int(styles.min_height.value) if styles.min_height else tall
+    high = int(styles.max_height.value) if styles.max_height else tall
+    help_line.update(text, layout=min(max(tall, low), high) != help_line.outer_size.height)
