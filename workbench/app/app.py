@@ -45,7 +45,9 @@ class WorkbenchApp(TypeAhead, App[int]):
     ENABLE_COMMAND_PALETTE = True
 
     BINDINGS: ClassVar = [
-        Binding("f1", "keys", "Keys", key_display="F1", id="app.keys"),
+        # F1, F8, F9 and F11 open a screen: priority, so they run at once and the keys typed
+        # right after them are held for that screen (not handed to the widget behind it)
+        Binding("f1", "keys", "Keys", key_display="F1", id="app.keys", priority=True),
         Binding("f2", "view('system')", "System", key_display="F2", id="view.system",
                 show=False),
         Binding("f3", "view('flows')", "Flows", key_display="F3", id="view.flows",
@@ -59,9 +61,9 @@ class WorkbenchApp(TypeAhead, App[int]):
         Binding("f10", "view('surge')", "Surge", key_display="F10", id="view.surge",
                 show=False),
         Binding("f7", "toggle_units", "SI/US", key_display="F7", id="app.units"),
-        Binding("f8", "cautions", "Cautions", key_display="F8", id="app.cautions"),
-        Binding("f9", "sweep", "Sweep", key_display="F9", id="run.sweep"),
-        # priority: run at once, so the keys typed right after it are held for the view
+        Binding("f8", "cautions", "Cautions", key_display="F8", id="app.cautions",
+                priority=True),
+        Binding("f9", "sweep", "Sweep", key_display="F9", id="run.sweep", priority=True),
         Binding("f11", "calibrate", "Calibrate", key_display="F11", id="run.calibrate",
                 show=False, priority=True),
         Binding("ctrl+s", "save", "Save", id="file.save"),
@@ -551,21 +553,35 @@ class WorkbenchApp(TypeAhead, App[int]):
             finally:
                 self.call_after_refresh(self.release_keys)
 
-    def action_keys(self) -> None:
+    async def _push_holding_keys(self, screen) -> None:
+        """Push ``screen`` holding the keys typed meanwhile (a key path typed right after
+        F9 goes into the sweep's first field, not to the view behind it or nowhere)."""
+        if type(self.screen) is type(screen):
+            close = getattr(self.screen, "action_close", None)
+            if close is not None:
+                close()  # F1 and F8 close their screens again
+            return  # the sweep stays (F9 pressed again on it)
+        self.hold_keys()
+        try:
+            await self.push_screen(screen)
+        finally:
+            self.call_after_refresh(self.release_keys)
+
+    async def action_keys(self) -> None:
         from workbench.app.screens.keys import KeysScreen, key_contexts
 
-        self.push_screen(KeysScreen(key_contexts(type(self))))
+        await self._push_holding_keys(KeysScreen(key_contexts(type(self))))
 
-    def action_cautions(self) -> None:
+    async def action_cautions(self) -> None:
         from workbench.app.screens.cautions import CautionsScreen
 
-        self.push_screen(CautionsScreen())
+        await self._push_holding_keys(CautionsScreen())
 
-    def action_sweep(self) -> None:
+    async def action_sweep(self) -> None:
         from workbench.app.screens.sweep import SweepScreen
 
         if self.project is not None:
-            self.push_screen(SweepScreen())
+            await self._push_holding_keys(SweepScreen())
 
     def action_calibrate(self) -> None:
         from workbench.app.screens.calibrate import CalibrateScreen

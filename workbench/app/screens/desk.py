@@ -123,7 +123,7 @@ class DeskScreen(Screen):
     async def on_tabbed_content_tab_activated(self, event: TabbedContent.TabActivated) -> None:
         if event.pane.id == SWEEP_TAB:
             self.query_one(TabbedContent).active = getattr(self, "_last_view", "system")
-            self.app.action_sweep()
+            await self.app.run_action("sweep")
             return
         self._last_view = event.pane.id
         await self._activate(event.pane.id)
