@@ -34,15 +34,23 @@ def assert_same(a, b, path="") -> None:
         assert a == b, path
 
 
-@pytest.fixture
+@pytest.fixture(scope="module")
 def runner_project():
     return load_runner_project()
 
 
-@pytest.fixture
+@pytest.fixture(scope="module")
 def serial(runner_project):
+    """The plan and the serial reference, run once for the module (the tests only read)."""
     plan = plan_sweep(runner_project, [SIZES], ["drain_time(T1) < 10 min"])
     return plan, comparable(run_sweep(runner_project, plan, workers=1).to_json())
+
+
+@pytest.fixture(scope="module")
+def pooled(runner_project, serial):
+    """The same sweep on the local process pool (two workers), run once for the module."""
+    plan, _ = serial
+    return comparable(run_sweep(runner_project, plan, workers=2).to_json())
 
 
 def test_the_serial_reference_simulates_every_case_and_judges_it(serial) -> None:
@@ -57,10 +65,9 @@ def test_the_serial_reference_simulates_every_case_and_judges_it(serial) -> None
     assert all(c["simulation"] is not None and c["error"] is None for c in cases)
 
 
-def test_the_local_process_pool_gives_the_serial_outcomes_in_sweep_order(runner_project, serial) -> None:
-    plan, reference = serial
-    pooled = run_sweep(runner_project, plan, workers=2).to_json()
-    assert_same(reference, comparable(pooled))
+def test_the_local_process_pool_gives_the_serial_outcomes_in_sweep_order(serial, pooled) -> None:
+    _, reference = serial
+    assert_same(reference, pooled)
 
 
 def test_any_executor_runs_the_cases_and_keeps_the_sweep_order(runner_project, serial) -> None:
@@ -115,9 +122,8 @@ def dask_run():
 
 
 def test_a_local_dask_cluster_gives_the_process_pools_outcomes_in_the_same_order(
-        runner_project, serial, dask_run) -> None:
-    plan, reference = serial
-    pooled = comparable(run_sweep(runner_project, plan, workers=2).to_json())
+        serial, pooled, dask_run) -> None:
+    _, reference = serial
     on_cluster = comparable(dask_run["sweep"])
     assert_same(pooled, on_cluster)
     assert_same(reference, on_cluster)
