@@ -63,12 +63,13 @@ class FieldInput(Input):
             from textual.suggester import SuggestFromList
 
             suggester = SuggestFromList(choices, case_sensitive=False)
-        super().__init__(value, compact=True, placeholder=_placeholder(field),
-                         suggester=suggester, classes="field-editor")
+        # One line, no border (the style sheet's .field-editor; Input's compact switch
+        # would restyle each new field once more as it mounts). validate_on=(): no
+        # validators, so no -valid class set on every change; our checks run on Enter.
+        super().__init__(value, placeholder=_placeholder(field),
+                         suggester=suggester, classes="field-editor", validate_on=())
         self.field = field
         self.choices = choices
-
-    COMPONENT_CLASSES = Input.COMPONENT_CLASSES | {"field-input--hint"}
 
     def render_line(self, y: int) -> Strip:
         """The value; while the field is not being edited, its first :data:`EDITOR_WIDTH`
@@ -84,7 +85,7 @@ class FieldInput(Input):
         room = strip.cell_length - EDITOR_WIDTH
         text = f" {row.hint_text}"[:room].ljust(room)
         # the row's background (the hint sits beside the editor, not in it), the hint colour
-        colour = self.get_component_rich_style("field-input--hint").color
+        colour = form_style(self, "field-form--hint").color
         style = row.rich_style + Style(color=colour)
         return Strip.join([strip.crop(0, EDITOR_WIDTH), Strip([Segment(text, style)], room)])
 
@@ -202,8 +203,6 @@ class FieldRow(Widget):
     while it is being edited, so the reason stays in sight.
     """
 
-    COMPONENT_CLASSES = {"field-row--name", "field-row--problem"}
-
     class Focused(Message):
         """One of the row's widgets got the focus."""
 
@@ -280,13 +279,14 @@ class FieldRow(Widget):
         from rich.text import Text
 
         width = self.size.width
-        name = Text(self.name_text.ljust(self.name_width),
-                    style=self.get_component_rich_style("field-row--name"))
+        name = Text(self.name_text.ljust(self.name_width))
+        if self.problem:
+            name.stylize(form_style(self, "field-form--refused-name"))
         lines = self._problem_lines(width)
         if not lines:
             return name
         column = self.name_width + (self._editor_width(width) or 0) + 1
-        style = self.get_component_rich_style("field-row--problem")
+        style = form_style(self, "field-form--problem")
         out = Text(no_wrap=True, overflow="crop")
         for index, line in enumerate(lines):
             if index:
@@ -390,8 +390,19 @@ def hint(field: Field, stored: Any, unit_system: str) -> str:
         return f"[{display_unit(kind, unit_system)}]"
 
 
+def form_style(widget: Widget, name: str):
+    """A style of the form ``widget`` sits in (its component classes: one set for all the
+    rows rather than a set a row, which the style sheet would apply row by row)."""
+    from rich.style import Style
+
+    form = next((n for n in widget.ancestors if isinstance(n, FieldForm)), None)
+    return form.get_component_rich_style(name) if form is not None else Style()
+
+
 class FieldForm(VerticalScroll):
     """The form for one entry of the element list."""
+
+    COMPONENT_CLASSES = {"field-form--hint", "field-form--problem", "field-form--refused-name"}
 
     class Committed(Message):
         """A field's new value was accepted into the project."""
