@@ -6,6 +6,7 @@ import shutil
 from pathlib import Path
 
 import pytest
+import pytest_asyncio
 
 PROJECTS = Path(__file__).resolve().parents[2] / "projects"
 SIZE = (80, 24)
@@ -80,18 +81,27 @@ def field_input(app, keypath: str):
 
 
 async def choose_entry(pilot, key: str) -> None:
-    """Move the element list to ``key`` ("lines:L1") with the arrow keys."""
+    """Highlight ``key`` ("lines:L1") in the element list, as Up/Down do, and wait until
+    its form is shown. It moves there at once, not row by row: the rows between would each
+    show their form, which the test does not look at (tests of the keys press them)."""
     from workbench.app.panes.elements import ElementList
+    from workbench.app.panes.form import FieldForm
 
     elements = pilot.app.screen.query_one(ElementList)
     elements.focus()
-    await pilot.press("home")
-    for _ in range(elements.option_count):
-        if elements.entry is not None and elements.entry.key == key:
-            await pilot.pause()
-            return
-        await pilot.press("down")
-    raise AssertionError(f"{key} is not in the element list")
+    keys = [elements.get_option_at_index(i).id for i in range(elements.option_count)]
+    if key not in keys:
+        raise AssertionError(f"{key} is not in the element list")
+    elements.highlighted = keys.index(key)
+    form = pilot.app.screen.query_one(FieldForm)
+    for _ in range(200):
+        await pilot.pause()
+        if (elements.entry is not None and elements.entry.key == key
+                and form.entry is not None and form.entry.key == key):
+            break
+    else:
+        raise AssertionError(f"the form of {key} was never shown")
+    await pilot.pause()
 
 
 async def type_into(pilot, keypath: str, text: str, enter: bool = True) -> None:
@@ -114,3 +124,175 @@ async def run_elastic_in_the_surge_view(pilot, *keys: str) -> None:
     await pilot.press(*keys)
     await pilot.app.workers.wait_for_complete()
     await pilot.pause()
+
+
+# --- one started app shared by the tests of a module --------------------------------------
+#
+# Starting the app and waiting for its first result costs about 1.5 s of CPU, and a form
+# is composed the first time it is shown. Tests that only read (they look, move the focus,
+# type and take it back with Esc, open a view or a dialog and close it) can drive one app
+# that was started once per module and per pytest-xdist worker, with every form built.
+# Rules (SharedApp.left_dirty checks them after each test, and a test that breaks one
+# gets a fresh app for the next test, so no test depends on what ran before it):
+#   - the test puts the app where it needs it (choose_entry, a view key): it is handed
+#     over on the System view with the focus on the element list;
+#   - it applies no edit (an applied edit fails the test: it belongs on its own app);
+#   - whatever else it changes (a dialog left open, a value typed and not applied, a
+#     folded heading, a run, the display units) makes the app be started afresh.
+# Tests that edit, save, quit or watch the start-up keep their own app (make(...)).
+
+
+class SharedApp:
+    """A started app, held open in a task of its own (the one that entered
+    ``run_test`` must leave it), that the tests of one module drive in turn."""
+
+    def __init__(self, path: Path, **kwargs) -> None:
+        self.path = path
+        self.kwargs = {"prebuild_forms": True, **kwargs}
+        self.pilot = None
+        self.starts = 0
+        self._task = None
+        self._stop = None
+        self._initial: dict = {}
+
+    async def start(self) -> None:
+        import asyncio
+
+        app = make(self.path, **self.kwargs)
+        ready, self._stop = asyncio.Event(), asyncio.Event()
+
+        async def hold() -> None:
+            async with app.run_test(size=SIZE) as pilot:
+                self.pilot = pilot
+                ready.set()
+                await self._stop.wait()
+
+        self._task = asyncio.create_task(hold(), name=f"shared app {self.path.name}")
+        waiting = asyncio.create_task(ready.wait())
+        await asyncio.wait({self._task, waiting}, return_when=asyncio.FIRST_COMPLETED)
+        if not ready.is_set():
+            waiting.cancel()
+            self._task.result()  # raises what stopped the app
+        await settle(self.pilot)
+        self.starts += 1
+        self._initial = self._state()
+
+    async def stop(self) -> None:
+        if self._task is not None:
+            self._stop.set()
+            task, self._task, self.pilot = self._task, None, None
+            await task
+
+    def _state(self) -> dict:
+        app = self.pilot.app
+        return {"steady": app.steady_status, "run": app.run_status,
+                "elastic": app.elastic_status, "units": app.unit_system}
+
+    def edits(self) -> str:
+        """What was applied to the project since it was opened ("" when nothing)."""
+        app = self.pilot.app
+        history = app.history
+        if history is None:
+            return "no project"
+        if history.can_undo or history.can_redo or history.modified or app.modified:
+            return "edits applied: " + ", ".join(history.labels[1:])
+        return ""
+
+    def left_dirty(self) -> list[str]:
+        """Why this app cannot be handed to the next test as it is ([] when it can)."""
+        from workbench.app.panes.form import FieldRow, GroupHeading, value_text
+        from workbench.app.screens.desk import DeskScreen
+
+        if self._task is None or self._task.done() or self.pilot is None:
+            return ["the app has stopped"]
+        app = self.pilot.app
+        reasons = [text for text in (self.edits(),) if text]
+        if not isinstance(app.screen, DeskScreen):
+            reasons.append(f"{type(app.screen).__name__} left open")
+        if any(not worker.is_finished for worker in app.workers):
+            reasons.append("a worker still running")
+        state = self._state()
+        reasons += [f"{key} is {state[key]}, was {value}"
+                    for key, value in self._initial.items() if state[key] != value]
+        for row in app.screen.query(FieldRow):
+            editor = row.editor
+            typed = getattr(editor, "value", None)
+            if row.problem or (isinstance(typed, str) and typed != value_text(row.stored)):
+                reasons.append(f"{row.field.keypath} typed and not applied")
+        if any(heading.folded for heading in app.screen.query(GroupHeading)):
+            reasons.append("a heading left folded")
+        return reasons
+
+    async def hand_over(self):
+        """The pilot of a clean app on the System view, the element list focused."""
+        from textual.widgets import TabbedContent
+
+        from workbench.app.panes.elements import ElementList
+        from workbench.app.panes.form import FieldForm
+
+        if self.pilot is None or self.left_dirty():
+            await self.stop()
+            await self.start()
+        pilot = self.pilot
+        # the fixture and the test run in tasks of their own: make the app the active one
+        # there too (a widget drawn or scrolled from them asks for it); pytest-asyncio
+        # carries the fixture's context over to the test
+        from textual._context import active_app
+
+        active_app.set(pilot.app)
+        if pilot.app.screen.query_one(TabbedContent).active != "system":
+            await pilot.press("f2")
+        # the first row highlighted and its form shown from the top, as at the start
+        elements = pilot.app.screen.query_one(ElementList)
+        await choose_entry(pilot, elements.get_option_at_index(0).id)
+        form = pilot.app.screen.query_one(FieldForm)
+        form.scroll_home(animate=False)
+        await pilot.pause()
+        assert form.scroll_y == 0 and pilot.app.focused is elements
+        return pilot
+
+
+@pytest_asyncio.fixture(scope="module", loop_scope="module")
+async def shared_apps(tmp_path_factory):
+    """The module's shared apps, by demo name, started when first asked for."""
+    folder = tmp_path_factory.mktemp("shared")
+    patch = pytest.MonkeyPatch()
+    patch.setenv("WORKBENCH_STATE_DIR", str(folder / "state"))
+    apps: dict[str, SharedApp] = {}
+
+    def get(name: str) -> SharedApp:
+        if name not in apps:
+            target = folder / name
+            shutil.copy(PROJECTS / name, target)
+            apps[name] = SharedApp(target)
+        return apps[name]
+
+    yield get
+    for shared in apps.values():
+        await shared.stop()
+    patch.undo()
+
+
+def shared_app(*names: str):
+    """A fixture handing the module's shared app of demo ``names[0]`` to a test, or, given
+    several names, parametrized over them (the test module runs in one event loop:
+    ``pytestmark = SHARED_LOOP``)."""
+
+    several = len(names) > 1
+
+    @pytest_asyncio.fixture(loop_scope="module", params=names if several else None,
+                            ids=[n.removesuffix(".toml") for n in names] if several else None)
+    async def handed(shared_apps, request):
+        shared = shared_apps(getattr(request, "param", names[0]))
+        pilot = await shared.hand_over()
+        yield pilot
+        applied = shared.edits() if shared.pilot is not None else ""
+        if applied:
+            await shared.stop()
+            pytest.fail(f"a test on the shared app must not edit ({applied}); give it its own")
+
+    return handed
+
+
+#: The mark of a test module that uses shared apps: its tests and the apps share one loop.
+SHARED_LOOP = pytest.mark.asyncio(loop_scope="module")
