@@ -294,5 +294,6 @@ def shared_app(*names: str):
     return handed
 
 
-#: The mark of a test module that uses shared apps: its tests and the apps share one loop.
+#: The mark of a test that uses a shared app (or `pytestmark = SHARED_LOOP` in a module of
+#: async tests only): the test runs in the module's event loop, where the shared apps run.
 SHARED_LOOP = pytest.mark.asyncio(loop_scope="module")

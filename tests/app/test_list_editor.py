@@ -4,9 +4,19 @@ from __future__ import annotations
 
 import pytest
 
-from tests.app.conftest import SIZE, TRANSFER, choose_entry, field_input, make, settle, type_into
+from tests.app.conftest import (
+    SHARED_LOOP,
+    SIZE,
+    TRANSFER,
+    choose_entry,
+    field_input,
+    make,
+    settle,
+    shared_app,
+)
 
 LINE = "310-PW-12"
+table_app = shared_app(TRANSFER)
 
 
 async def open_table(pilot, key: str, how: str = "enter"):
@@ -61,61 +71,67 @@ async def test_the_profile_table_adds_a_point_edits_a_cell_applies_and_undo_rest
         assert '"240 m"' in field_input(app, f"lines.{LINE}.profile").value
 
 
+@SHARED_LOOP
 @pytest.mark.parametrize(("row", "text", "words"), [
     (2, "20 mmm", "mmm"),
     (3, "260 m", "beyond the line's length"),
 ])
 async def test_a_bad_profile_cell_is_refused_beside_its_row_and_nothing_changes(
-        project_file, row, text, words):
-    from workbench.app.screens.list_editor import ListEditorScreen
-
-    path = project_file(TRANSFER)
-    original = path.read_text()
-    app = make(path)
-    async with app.run_test(size=SIZE) as pilot:
-        await settle(pilot)
-        project = app.project
-        screen = await open_table(pilot, "profile")
-        await pilot.press(*["down"] * (row - 1))
-        await type_keys(pilot, text)
-        await pilot.press("enter", "ctrl+a")
-        await pilot.pause()
-        assert isinstance(app.screen, ListEditorScreen)  # still open
-        shown = problems_shown(screen)
-        assert f"row {row} · distance" in shown and words in shown
-        assert words in str(screen.query_one("#cell-hint").render())  # beside the cell
-        assert screen.rows[row - 1].cells["distance"] == text  # what was typed is kept
-    assert app.project is project
-    assert not app.modified
-    assert path.read_text() == original
-
-
-async def test_escape_with_changes_asks_before_discarding_them(project_file):
+        table_app, row, text, words):
     from workbench.app.screens.dialogs import AskScreen
     from workbench.app.screens.list_editor import ListEditorScreen
 
-    app = make(project_file(TRANSFER))
-    async with app.run_test(size=SIZE) as pilot:
-        await settle(pilot)
-        project = app.project
-        await open_table(pilot, "profile")
-        await pilot.press("a", "escape")
-        await pilot.pause()
-        assert isinstance(app.screen, AskScreen)
-        assert "not applied" in app.screen.question
-        await pilot.press("k")  # keep editing: the new row is still there
-        await pilot.pause()
-        assert isinstance(app.screen, ListEditorScreen) and len(app.screen.rows) == 4
-        await pilot.press("escape")
-        await pilot.pause()
-        await pilot.press("d")  # discard
-        await pilot.pause()
-        assert not isinstance(app.screen, (AskScreen, ListEditorScreen))
-        assert app.project is project and not app.modified
-        await open_table(pilot, "profile")
-        await pilot.press("escape")  # nothing changed: closes without a question
-        await pilot.pause()
-        assert not isinstance(app.screen, (AskScreen, ListEditorScreen))
+    pilot = table_app
+    app = pilot.app
+    original = app.path.read_text()
+    project = app.project
+    screen = await open_table(pilot, "profile")
+    await pilot.press(*["down"] * (row - 1))
+    await type_keys(pilot, text)
+    await pilot.press("enter", "ctrl+a")
+    await pilot.pause()
+    assert isinstance(app.screen, ListEditorScreen)  # still open
+    shown = problems_shown(screen)
+    assert f"row {row} · distance" in shown and words in shown
+    assert words in str(screen.query_one("#cell-hint").render())  # beside the cell
+    assert screen.rows[row - 1].cells["distance"] == text  # what was typed is kept
+    await pilot.press("escape")
+    await pilot.pause()
+    assert isinstance(app.screen, AskScreen)
+    await pilot.press("d")  # discard: the list as it was
+    await pilot.pause()
+    assert not isinstance(app.screen, (AskScreen, ListEditorScreen))
+    assert app.project is project
+    assert not app.modified
+    assert app.path.read_text() == original
+
+
+@SHARED_LOOP
+async def test_escape_with_changes_asks_before_discarding_them(table_app):
+    from workbench.app.screens.dialogs import AskScreen
+    from workbench.app.screens.list_editor import ListEditorScreen
+
+    pilot = table_app
+    app = pilot.app
+    project = app.project
+    await open_table(pilot, "profile")
+    await pilot.press("a", "escape")
+    await pilot.pause()
+    assert isinstance(app.screen, AskScreen)
+    assert "not applied" in app.screen.question
+    await pilot.press("k")  # keep editing: the new row is still there
+    await pilot.pause()
+    assert isinstance(app.screen, ListEditorScreen) and len(app.screen.rows) == 4
+    await pilot.press("escape")
+    await pilot.pause()
+    await pilot.press("d")  # discard
+    await pilot.pause()
+    assert not isinstance(app.screen, (AskScreen, ListEditorScreen))
+    assert app.project is project and not app.modified
+    await open_table(pilot, "profile")
+    await pilot.press("escape")  # nothing changed: closes without a question
+    await pilot.pause()
+    assert not isinstance(app.screen, (AskScreen, ListEditorScreen))
 
 
 async def test_the_fittings_table_offers_the_fitting_names_in_its_type_column(project_file):
@@ -147,9 +163,18 @@ async def test_the_inline_list_field_still_applies_typed_text(project_file):
     async with app.run_test(size=SIZE) as pilot:
         await settle(pilot)
         await choose_entry(pilot, f"lines:{LINE}")
-        await type_into(pilot, f"lines.{LINE}.profile",
-                        '[{ distance = "0 m", elevation = "18 m" }, '
-                        '{ distance = "240 m", elevation = "1.5 m" }]')
+        # pasted as a terminal sends it (one Paste event): 80 key presses would each lay
+        # the form out again and add nothing to what is checked, the field applying it
+        from textual import events
+
+        editor = field_input(app, f"lines.{LINE}.profile")
+        editor.focus()
+        await pilot.pause()
+        await pilot.press("end", "ctrl+u")
+        editor.post_message(events.Paste('[{ distance = "0 m", elevation = "18 m" }, '
+                                         '{ distance = "240 m", elevation = "1.5 m" }]'))
+        await pilot.pause()
+        await pilot.press("enter")
         await settle(pilot)
     assert app.project.data["lines"][LINE]["profile"] == [
         {"distance": "0 m", "elevation": "18 m"}, {"distance": "240 m", "elevation": "1.5 m"}]
@@ -174,21 +199,26 @@ async def test_rows_are_deleted_and_moved_and_a_bad_order_is_named(project_file)
     assert [p["distance"] for p in app.project.data["lines"][LINE]["profile"]] == ["0 m", "240 m"]
 
 
-async def test_quitting_from_the_table_with_changes_asks_about_them_first(project_file):
+@SHARED_LOOP
+async def test_quitting_from_the_table_with_changes_asks_about_them_first(table_app):
     from workbench.app.screens.dialogs import AskScreen
     from workbench.app.screens.list_editor import ListEditorScreen
 
-    app = make(project_file(TRANSFER))
-    async with app.run_test(size=SIZE) as pilot:
-        await settle(pilot)
-        await open_table(pilot, "profile")
-        await pilot.press("a", "ctrl+q")
-        await pilot.pause()
-        assert isinstance(app.screen, AskScreen)
-        assert "not applied" in app.screen.question
-        await pilot.press("k")
-        await pilot.pause()
-        assert isinstance(app.screen, ListEditorScreen) and app.is_running
+    pilot = table_app
+    app = pilot.app
+    await open_table(pilot, "profile")
+    await pilot.press("a", "ctrl+q")
+    await pilot.pause()
+    assert isinstance(app.screen, AskScreen)
+    assert "not applied" in app.screen.question
+    await pilot.press("k")
+    await pilot.pause()
+    assert isinstance(app.screen, ListEditorScreen) and app.is_running
+    await pilot.press("escape")
+    await pilot.pause()
+    await pilot.press("d")  # leave the table, the new row discarded
+    await pilot.pause()
+    assert not isinstance(app.screen, (AskScreen, ListEditorScreen)) and not app.modified
 
 
 def test_the_key_list_names_the_table_keys():
