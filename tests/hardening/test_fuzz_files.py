@@ -23,7 +23,7 @@ from pathlib import Path
 import pytest
 from hypothesis import HealthCheck, given, settings
 
-from tests.hardening.harness import run_cli, run_subprocess, simulate_argv
+from tests.hardening.harness import Outcome, judge, run_batch, run_cli, run_subprocess, simulate_argv
 from tests.hardening.mutations import Case, mutate
 from tests.hardening.strategies import damaged_projects, to_toml, valid_projects
 
@@ -121,13 +121,24 @@ def test_files_of_several_megabytes_end_in_a_result_or_a_message(tmp_path, seed)
 
 @pytest.mark.slow
 def test_a_damaged_file_is_refused_in_a_real_process_without_a_traceback(tmp_path):
-    """A few cases through ``python -m workbench``: what a user on a shell actually sees."""
+    """A few cases through a real process, what a user on a shell actually sees: one
+    ``python -m workbench`` and the rest in one process (``run_batch``, the bytes written
+    to its pipes and the exit codes; one start-up instead of nine)."""
     picked = [mutate(seed) for seed in (1, 2)] + [mutate(10_000, heavy=True)]
-    for case in picked:
-        path = _write(tmp_path, case)
+    runs, names = [], []
+    for i, case in enumerate(picked):
+        path = str(tmp_path / f"case{i}.toml")
+        Path(path).write_text(case.text, encoding="utf-8", newline="")
         for argv in (["check", path], ["solve", path, "--json"], simulate_argv(path, "2 s")):
-            outcome = run_subprocess(argv, project_path=path)
-            assert outcome.ok, f"{case.name}\n{outcome.report()}"
+            runs.append(argv)
+            names.append((case.name, path))
+    first = run_subprocess(runs[0], project_path=names[0][1])
+    assert first.ok, f"{names[0][0]}\n{first.report()}"
+    env = dict(os.environ, NO_COLOR="1", PYTHONUTF8="1")
+    for (name, path), done in zip(names, run_batch(runs, tmp_path / "codes.json", env=env)):
+        outcome = judge(Outcome(done.args, done.returncode, done.stdout.decode("utf-8", "replace"),
+                                done.stderr.decode("utf-8", "replace"), 0.0), path)
+        assert outcome.ok, f"{name}\n{outcome.report()}"
 
 
 @settings(max_examples=max(CASES // 4, 20), deadline=None,
