@@ -1,12 +1,14 @@
 """Small systems of our own invention for the elastic-surge tests (plain SI, no files).
 
-One place for the liquid, the closing valve and the reservoir-line-valve system that the
-elastic tests of the core and the app's Surge view build (``from tests.core.elastic_systems
-import ...``); each test module keeps only the defaults that are its own.
+One place for the liquid (the water of ``builders.py``), the closing valve and the
+reservoir-line-valve system that the elastic tests of the core and the app's Surge view
+build (``from tests.core.elastic_systems import ...``); each test module keeps only the
+defaults that are its own.
 """
 
 from __future__ import annotations
 
+from tests.core.builders import WATER
 from workbench.core.model import (
     FluidProps,
     Line,
@@ -17,10 +19,6 @@ from workbench.core.model import (
     Valve,
     ValveSchedule,
 )
-
-WATER = FluidProps("water", 998.207, 1.0016e-3, 2339.2, 2.19e9, 293.15)
-"""Water at 20 degC: density IAPWS-95, viscosity IAPWS 2008, vapour pressure IAPWS IF97
-(HYDRAULICS.md table); bulk modulus 2.19 GPa (common practice, no source)."""
 
 WATER_WHOLE = FluidProps("water", 998.207, 1.0016e-3, None, 2.19e9, 293.15)
 """The same water without a vapour pressure, for checks where the liquid must stay whole."""

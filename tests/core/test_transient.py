@@ -13,6 +13,7 @@ import numpy as np
 import pytest
 from scipy.integrate import quad, solve_ivp
 
+from tests.core.builders import WATER, circle_area, transient_system
 from workbench.core.model import (
     FluidProps,
     G,
@@ -20,32 +21,11 @@ from workbench.core.model import (
     Line,
     Receiver,
     Reservoir,
-    SimulationSettings,
-    System,
     TankShape,
     Valve,
     ValveSchedule,
 )
 from workbench.core.transient import simulate
-
-# Water at 20 degC: IAPWS-95 density, IAPWS 2008 viscosity, IF97 saturation (HYDRAULICS
-# notes table); bulk modulus 2.19 GPa (common practice, no source).
-WATER = FluidProps("water", 998.207, 1.0016e-3, 2339.2, 2.19e9, 293.15)
-
-
-def _system(reservoirs, lines, receivers=(), junctions=(), fluid=WATER, duration=100.0,
-            initial="steady", stop_when=None, interval=None):
-    return System(
-        "test", fluid,
-        {r.id: r for r in reservoirs}, {j.id: j for j in junctions},
-        {r.id: r for r in receivers}, {ln.id: ln for ln in lines},
-        simulation=SimulationSettings(duration, initial, stop_when, interval),
-    )
-
-
-def _area(d):
-    return math.pi * d * d / 4.0
-
 
 # ------------------------------------------------------------------ flow establishment
 
@@ -66,7 +46,7 @@ def test_flow_establishment_follows_the_tanh_law(f, k_entrance, length, diameter
     k_t = 1.0 + k_entrance + f * length / diameter
     v_inf = math.sqrt(2 * G * head / k_t)
     tau = length * v_inf / (G * head)
-    system = _system(
+    system = transient_system(
         [Reservoir("R", "constant_level", 0.0, head)],
         [Line("L1", "R", "OUT", length, diameter, friction_factor=f, entrance_k=k_entrance)],
         [Receiver("OUT", "open_discharge", 0.0)],
@@ -74,7 +54,7 @@ def test_flow_establishment_follows_the_tanh_law(f, k_entrance, length, diameter
     )
     res = simulate(system, rtol=1e-8)
     assert res.success, res.message
-    v = res.flows[0] / _area(diameter)
+    v = res.flows[0] / circle_area(diameter)
     assert np.max(np.abs(v - v_inf * np.tanh(res.t / tau))) <= 1e-5 * v_inf
 
 
@@ -88,7 +68,7 @@ def test_laminar_start_up_has_the_lumped_time_constant():
     oil = FluidProps("test oil", 880.0, 0.25, None, None, None)
     dh = 50e3 / (880.0 * G)
     d = 0.05
-    system = _system(
+    system = transient_system(
         [Reservoir("A", "constant_level", 0.0, 1.0 + dh), Reservoir("B", "constant_level", 0.0, 1.0)],
         [Line("L1", "A", "B", 30.0, d, entrance_k=0.0)],
         fluid=oil, duration=3.0, initial="at_rest", interval=0.001,
@@ -118,7 +98,7 @@ def test_a_laminar_line_started_at_rest_settles_on_the_steady_flow(head):
 
     oil = FluidProps("light oil", 850.0, 0.02, None, None, None)
     d, length = 0.05, 20.0
-    system = _system(
+    system = transient_system(
         [Reservoir("T", "constant_level", 0.0, 1.0 + head)],
         [Line("L1", "T", "OUT", length, d, entrance_k=0.5)],
         [Receiver("OUT", "open_discharge", 1.0)],
@@ -135,7 +115,7 @@ def test_a_laminar_line_started_at_rest_settles_on_the_steady_flow(head):
         b = 32 * nu * length / (G * d * d)
         a = 2.5 / (2 * G)
         v = (-b + math.sqrt(b * b + 4 * a * head)) / (2 * a)
-        assert q_end == pytest.approx(v * _area(d), rel=1e-6)
+        assert q_end == pytest.approx(v * circle_area(d), rel=1e-6)
     else:
         assert 2000.0 < steady.reynolds < 4000.0
 
@@ -149,7 +129,7 @@ def test_a_steady_laminar_line_has_the_steady_grade_line_pressures():
     from workbench.core.network import solve_steady
 
     oil = FluidProps("test oil", 880.0, 0.25, None, None, None)
-    system = _system(
+    system = transient_system(
         [Reservoir("T", "constant_level", 10.0, 2.0)],
         [Line("L1", "T", "OUT", 100.0, 0.08, entrance_k=0.5,
               profile=((0.0, 10.0), (20.0, 12.5), (60.0, 12.5), (100.0, 0.0)))],
@@ -170,7 +150,7 @@ def test_a_steady_laminar_line_has_the_steady_grade_line_pressures():
 
 def _drain_system(shape, h0, *, drop=1.0, length=2.0, diameter=0.05, f=0.02, k_entrance=0.5,
                   min_level=0.0, interval=None):
-    return _system(
+    return transient_system(
         [Reservoir("T", "tank", 10.0, h0, shape=shape, min_level=min_level)],
         [Line("L1", "T", "OUT", length, diameter, friction_factor=f, entrance_k=k_entrance)],
         [Receiver("OUT", "open_discharge", 10.0 - drop)],
@@ -181,7 +161,7 @@ def _drain_system(shape, h0, *, drop=1.0, length=2.0, diameter=0.05, f=0.02, k_e
 def _quasi_steady_drain_time(area_of_h, h0, h1, drop, length, diameter, f, k_entrance):
     """Torricelli with a line: dt = A(h) dh / (a sqrt(2g (h + z)/K_t)), integrated by quad."""
     k_t = 1.0 + k_entrance + f * length / diameter
-    a = _area(diameter)
+    a = circle_area(diameter)
     value, _ = quad(lambda h: area_of_h(h) / (a * math.sqrt(2 * G * (h + drop) / k_t)), h1, h0,
                     limit=200, epsabs=0.0, epsrel=1e-12)
     return value
@@ -193,8 +173,8 @@ def test_vertical_tank_drains_in_the_torricelli_time():
     shifts the time by about the line time constant: 5e-4 relative here."""
     d_tank, h0, z = 2.0, 3.0, 1.0
     k_t = 1.0 + 0.5 + 0.02 * 2.0 / 0.05
-    a = _area(0.05)
-    expected = 2 * _area(d_tank) * (math.sqrt(h0 + z) - math.sqrt(z)) / (a * math.sqrt(2 * G / k_t))
+    a = circle_area(0.05)
+    expected = 2 * circle_area(d_tank) * (math.sqrt(h0 + z) - math.sqrt(z)) / (a * math.sqrt(2 * G / k_t))
     res = simulate(_drain_system(TankShape("vertical_cylinder", diameter=d_tank), h0, drop=z))
     assert res.success and res.status == 1, res.message
     assert res.drain_times["T"] == pytest.approx(expected, rel=5e-4)
@@ -206,7 +186,7 @@ def test_horizontal_cylinder_drains_in_the_closed_form_orifice_time():
     (HYDRAULICS notes; the surface width 2 sqrt(h(D - h)) integrated in closed form)."""
     d, lt, h0, h1 = 2.0, 5.0, 1.6, 0.2
     k_t = 1.0 + 0.5 + 0.02 * 0.5 / 0.05
-    expected = (2 * lt * math.sqrt(k_t) / (_area(0.05) * math.sqrt(2 * G))
+    expected = (2 * lt * math.sqrt(k_t) / (circle_area(0.05) * math.sqrt(2 * G))
                 * (2 / 3) * ((d - h1) ** 1.5 - (d - h0) ** 1.5))
     shape = TankShape("horizontal_cylinder", diameter=d, length=lt)
     res = simulate(_drain_system(shape, h0, drop=0.0, length=0.5, min_level=h1))
@@ -222,7 +202,7 @@ def test_horizontal_cylinder_drains_in_the_closed_form_orifice_time():
          lambda h: 2 * 4.0 * math.sqrt(max(h * (1.8 - h), 0.0)), 1.5),
         # cone bottom (apex down, 1.0 m cone under a 1.6 m cylinder), drained to the apex
         (TankShape("cone_bottom", diameter=1.6, cone_height=1.0),
-         lambda h: _area(1.6) * min(h / 1.0, 1.0) ** 2, 2.5),
+         lambda h: circle_area(1.6) * min(h / 1.0, 1.0) ** 2, 2.5),
     ],
 )
 def test_shaped_tanks_drain_in_the_quasi_steady_time_computed_with_quad(shape, area_of_h, h0):
@@ -237,8 +217,8 @@ def _independent_drain(h0, drop, length, diameter, f, k_entrance, d_tank, rtol):
     """The same rigid-column tank drain written out as two scalar ODEs and integrated with
     scipy solve_ivp (events by its own root finding): I dQ/dt = rho g (h + z - K_t v^2/2g),
     dV/dt = -Q."""
-    a = _area(diameter)
-    at = _area(d_tank)
+    a = circle_area(diameter)
+    at = circle_area(d_tank)
     k_t = 1.0 + k_entrance + f * length / diameter
     v0 = math.sqrt(2 * G * (h0 + drop) / k_t)  # steady start
 
@@ -271,8 +251,8 @@ def test_a_tank_overflows_at_the_landed_time_and_then_holds_its_level():
     """Filling from a constant head H_R through a line: t = 2 A (sqrt(dH0) - sqrt(dH1)) /
     (a sqrt(2g/K_t)) (Torricelli in reverse, quasi-steady; HYDRAULICS notes formula)."""
     k_t = 1.0 + 0.5 + 0.02 * 2.0 / 0.05
-    at, a = _area(1.5), _area(0.05)
-    system = _system(
+    at, a = circle_area(1.5), circle_area(0.05)
+    system = transient_system(
         [Reservoir("R", "constant_level", 10.0, 6.0),
          Reservoir("T", "tank", 10.0, 0.5, shape=TankShape("vertical_cylinder", diameter=1.5),
                    height=3.0)],
@@ -298,8 +278,8 @@ def test_frictionless_u_tube_oscillates_with_the_small_oscillation_period():
     loss (one to two velocity heads: Re peaks near 4000 here) is quadratic and negligible
     at this 1 cm amplitude. Reversals come half a period apart."""
     length, d, a1, a2 = 50.0, 0.1, 1.0, 2.5
-    expected = 2 * math.pi * math.sqrt(length / (G * _area(d) * (1 / a1 + 1 / a2)))
-    system = _system(
+    expected = 2 * math.pi * math.sqrt(length / (G * circle_area(d) * (1 / a1 + 1 / a2)))
+    system = transient_system(
         [Reservoir("T1", "tank", 0.0, 2.01, shape=TankShape("rectangular", length=1.0, width=a1)),
          Reservoir("T2", "tank", 0.0, 2.00, shape=TankShape("rectangular", length=1.0, width=a2))],
         [Line("L1", "T1", "T2", length, d, friction_factor=0.0, entrance_k=0.0)],
@@ -316,10 +296,10 @@ def test_frictionless_u_tube_oscillates_with_the_small_oscillation_period():
 def test_equalising_tanks_conserve_volume_and_end_level():
     # Mass balance (common practice): the total liquid volume never changes; with friction
     # the levels settle at equal heads (hydrostatics).
-    system = _system(
+    system = transient_system(
         [Reservoir("T1", "tank", 2.0, 4.0, shape=TankShape("vertical_cylinder", diameter=2.0)),
          Reservoir("T2", "tank", 0.0, 1.0, shape=TankShape("cone_bottom", diameter=3.0,
-                                                           cone_height=0.5))],
+                                                                    cone_height=0.5))],
         [Line("L1", "T1", "T2", 30.0, 0.04, roughness=4.5e-5)],
         duration=20000.0, initial="at_rest",
     )
@@ -335,7 +315,7 @@ def test_equalising_tanks_conserve_volume_and_end_level():
 def test_junction_continuity_holds_at_every_output():
     # Continuity at a junction (Kirchhoff's first law): sum of inflows = outflow, 1e-9.
     shape = TankShape("vertical_cylinder", diameter=1.5)
-    system = _system(
+    system = transient_system(
         [Reservoir("T1", "tank", 5.0, 2.0, shape=shape), Reservoir("T2", "tank", 4.0, 3.0, shape=shape)],
         [Line("A", "T1", "J", 10.0, 0.05, roughness=4.5e-5),
          Line("B", "T2", "J", 15.0, 0.05, roughness=4.5e-5),
@@ -355,7 +335,7 @@ def test_junction_continuity_holds_at_every_output():
 
 def _closure_system(t_close, k_open=200.0, head=30.0, length=600.0, d=0.3):
     valve = Valve("linear", k_open, schedule=ValveSchedule((1.0, 1.0 + t_close), (1.0, 0.0)))
-    return _system(
+    return transient_system(
         [Reservoir("R", "constant_level", 0.0, head)],
         [Line("L1", "R", "OUT", length, d, friction_factor=0.0, entrance_k=0.0, valve=valve)],
         [Receiver("OUT", "open_discharge", 0.0)],
@@ -398,8 +378,8 @@ def test_a_fast_closure_is_flagged_and_its_peak_capped_at_static_plus_joukowsky(
     line = Line("L1", "R", "OUT", 600.0, 0.30318, friction_factor=0.015, entrance_k=0.5,
                 valve=valve, wall_thickness=0.01031, elastic_modulus=207e9,
                 pressure_rating=10e5)
-    system = _system([Reservoir("R", "constant_level", 0.0, 30.0)], [line],
-                     [Receiver("OUT", "open_discharge", 0.0)], duration=10.0)
+    system = transient_system([Reservoir("R", "constant_level", 0.0, 30.0)], [line],
+                              [Receiver("OUT", "open_discharge", 0.0)], duration=10.0)
     res = simulate(system)
     s = res.surge["L1"]
     # Korteweg, anchored, the thick-wall factor used at every D/e (Wylie & Streeter 1993,
@@ -411,7 +391,7 @@ def test_a_fast_closure_is_flagged_and_its_peak_capped_at_static_plus_joukowsky(
     assert s.rapid_closure and s.capped
     codes = {w.code for w in res.warnings}
     assert {"surge.rapid_closure", "surge.pressure"} <= codes
-    v0 = res.flows[0, 0] / _area(0.30318)
+    v0 = res.flows[0, 0] / circle_area(0.30318)
     cap = WATER.density * G * 30.0 + WATER.density * s.wave_speed * v0
     assert res.max_pressure["L1"] == pytest.approx(cap, rel=1e-3)
     assert s.max_pressure_uncapped > cap
@@ -425,8 +405,8 @@ def test_column_separation_is_flagged_where_pressure_reaches_vapour_pressure():
                   schedule=ValveSchedule((1.0, 2.0), (1.0, 0.0)))
     line = Line("L1", "R", "OUT", 600.0, 0.3, friction_factor=0.015, entrance_k=0.5,
                 valve=valve)
-    system = _system([Reservoir("R", "constant_level", 0.0, 30.0)], [line],
-                     [Receiver("OUT", "open_discharge", 0.0)], duration=5.0)
+    system = transient_system([Reservoir("R", "constant_level", 0.0, 30.0)], [line],
+                              [Receiver("OUT", "open_discharge", 0.0)], duration=5.0)
     res = simulate(system)
     assert "surge.column_separation" in {w.code for w in res.warnings}
     assert res.min_pressure["L1"] == pytest.approx(WATER.vapor_pressure - 101325.0, rel=1e-12)
@@ -472,7 +452,7 @@ def test_pressure_is_tracked_at_profile_points_over_a_crest():
     v = math.sqrt(2 * G * head / (1 + k_e + f * length / d))
     hgl_crest = head - (1 + k_e + f * 40.0 / d) * v * v / (2 * G)
     expected = WATER.density * G * (hgl_crest - 14.0)
-    system = _system(
+    system = transient_system(
         [Reservoir("R", "constant_level", 10.0, 2.0)],
         [Line("L1", "R", "OUT", length, d, friction_factor=f, entrance_k=k_e,
               profile=((0.0, 10.0), (40.0, 14.0), (100.0, 0.0)))],
@@ -488,7 +468,7 @@ def test_a_shut_valve_passes_nothing_until_its_schedule_opens_it():
     # A shut valve carries no flow (c(0) = 0, IEC 60534-2-4 characteristics end at zero).
     valve = Valve("linear", 2.0, opening=0.0,
                   schedule=ValveSchedule((0.0, 5.0, 10.0), (0.0, 0.0, 1.0)))
-    system = _system(
+    system = transient_system(
         [Reservoir("R", "constant_level", 0.0, 10.0)],
         [Line("L1", "R", "OUT", 50.0, 0.1, friction_factor=0.02, valve=valve)],
         [Receiver("OUT", "open_discharge", 0.0)],
@@ -509,7 +489,7 @@ def test_a_viscous_drain_with_a_millisecond_line_is_integrated_as_a_stiff_system
     this in a few hundred steps. Entrance and exit velocity heads are 2e-4 of the head."""
     rho, mu, d, length, z, h0, area = 1260.0, 1.0, 0.02, 5.0, 1.0, 2.0, 0.5
     glycerol_like = FluidProps("test glycerol", rho, mu, None, None, None)
-    system = _system(
+    system = transient_system(
         [Reservoir("T", "tank", 10.0, h0, shape=TankShape("rectangular", length=1.0, width=area))],
         [Line("L1", "T", "OUT", length, d)],
         [Receiver("OUT", "open_discharge", 10.0 - z)],
@@ -531,7 +511,7 @@ def test_a_drain_that_falls_below_atmospheric_at_its_outlet_is_flagged_with_when
                            min_level=0.05)
     res = simulate(system)
     assert res.success, res.message
-    v_end = res.flows[0][-1] / _area(0.05)
+    v_end = res.flows[0][-1] / circle_area(0.05)
     expected = rho * G * 0.05 - (1.0 + 0.5) * rho * v_end**2 / 2.0
     assert expected < -5e3  # several kPa below atmospheric
     assert res.min_pressure["L1"] == pytest.approx(expected, rel=0.01)
@@ -539,7 +519,7 @@ def test_a_drain_that_falls_below_atmospheric_at_its_outlet_is_flagged_with_when
     assert len(found) == 1 and found[0].element == "L1" and found[0].severity == "caution"
     assert f"t = {res.min_pressure_time['L1']:.4g} s" in found[0].message
     assert "0 m from 'T'" in found[0].message
-    v0 = res.flows[0][0] / _area(0.05)
+    v0 = res.flows[0][0] / circle_area(0.05)
     assert rho * G * 3.0 - 1.5 * rho * v0**2 / 2.0 > 0.0  # the start is above atmospheric
 
 
@@ -563,13 +543,13 @@ def test_the_time_a_draining_outlet_loses_its_vortex_submergence_is_reported():
 
     d, z, h0, d_tank = 0.05, 1.0, 3.0, 2.0
     k_t = 1.0 + 0.5 + 0.02 * 2.0 / 0.05
-    a = _area(d)
+    a = circle_area(d)
 
     def v_of(h):
         return math.sqrt(2 * G * (h + z) / k_t)
 
     h_star = brentq(lambda h: h - d * (1.0 + 2.3 * v_of(h) / math.sqrt(G * d)), 0.0, h0)
-    t_star = 2 * _area(d_tank) * (math.sqrt(h0 + z) - math.sqrt(h_star + z)) / (
+    t_star = 2 * circle_area(d_tank) * (math.sqrt(h0 + z) - math.sqrt(h_star + z)) / (
         a * math.sqrt(2 * G / k_t))
     system = _drain_system(TankShape("vertical_cylinder", diameter=d_tank), h0, drop=z,
                            interval=1.0)

@@ -13,9 +13,9 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
+from tests.core.builders import WATER
 from workbench.core.model import (
     FlowSchedule,
-    FluidProps,
     Line,
     Receiver,
     Reservoir,
@@ -25,9 +25,6 @@ from workbench.core.model import (
     Valve,
 )
 from workbench.core.transient import simulate
-
-# Water at 20 degC: IAPWS-95 density, IAPWS 2008 viscosity (HYDRAULICS notes table).
-WATER = FluidProps("water", 998.207, 1.0016e-3, 2339.2, 2.19e9, 293.15)
 
 
 def _balance_residual(res, k: int) -> tuple[float, float]:

@@ -17,41 +17,23 @@ import pytest
 from scipy.integrate import quad, solve_ivp
 from scipy.optimize import brentq
 
+from tests.core.builders import circle_area, transient_system
 from workbench.core.model import (
     FlowSchedule,
-    FluidProps,
     G,
     Line,
     Receiver,
     Reservoir,
-    SimulationSettings,
-    System,
     TankShape,
     Valve,
 )
 from workbench.core.transient import simulate
-
-# Water at 20 degC: IAPWS-95 density, IAPWS 2008 viscosity (HYDRAULICS notes table).
-WATER = FluidProps("water", 998.207, 1.0016e-3, 2339.2, 2.19e9, 293.15)
 
 # Outlet line of the tests: short, fixed friction factor, sharp entrance, turbulent all run,
 # so it behaves as an orifice with K_t = 1 + K_entrance + f L/D (one velocity head at the
 # exit for turbulent flow: HYDRAULICS notes "Minor losses").
 LINE_L, LINE_D, LINE_F, LINE_KE = 2.0, 0.05, 0.02, 0.5
 K_T = 1.0 + LINE_KE + LINE_F * LINE_L / LINE_D
-
-
-def _area(d):
-    return math.pi * d * d / 4.0
-
-
-def _system(reservoirs, lines, receivers=(), duration=100.0, initial="steady", stop_when=None,
-            interval=None):
-    return System(
-        "feed test", WATER, {r.id: r for r in reservoirs}, {},
-        {r.id: r for r in receivers}, {ln.id: ln for ln in lines},
-        simulation=SimulationSettings(duration, initial, stop_when, interval),
-    )
 
 
 def _outlet(valve=None):
@@ -61,7 +43,7 @@ def _outlet(valve=None):
 
 def _q_line(h, drop):
     """Steady outflow of the orifice-like line at level h (Bernoulli with losses)."""
-    return _area(LINE_D) * math.sqrt(2 * G * max(h + drop, 0.0) / K_T)
+    return circle_area(LINE_D) * math.sqrt(2 * G * max(h + drop, 0.0) / K_T)
 
 
 # ------------------------------------------------------------------ equilibrium
@@ -78,15 +60,15 @@ def test_a_fed_tank_settles_where_the_outflow_equals_the_feed(h0):
     d_tank, drop, q_in = 2.0, 1.0, 8e-3
     h_eq = brentq(lambda h: _q_line(h, drop) - q_in, 0.0, 10.0, xtol=1e-14)
     # the same from the closed form of the line equation (a check on the check)
-    assert h_eq == pytest.approx(K_T * (q_in / _area(LINE_D)) ** 2 / (2 * G) - drop, rel=1e-12)
+    assert h_eq == pytest.approx(K_T * (q_in / circle_area(LINE_D)) ** 2 / (2 * G) - drop, rel=1e-12)
     tank = Reservoir("T", "tank", 10.0, h0, shape=TankShape("vertical_cylinder", diameter=d_tank),
                      inflow=q_in)
-    system = _system([tank], [_outlet()], [Receiver("OUT", "open_discharge", 10.0 - drop)],
-                     duration=20000.0, interval=50.0)
+    system = transient_system([tank], [_outlet()], [Receiver("OUT", "open_discharge", 10.0 - drop)],
+                              duration=20000.0, interval=50.0)
     res = simulate(system, rtol=1e-8)
     assert res.success, res.message
 
-    at = _area(d_tank)
+    at = circle_area(d_tank)
     ref = solve_ivp(lambda t, h: [(q_in - _q_line(h[0], drop)) / at], (0.0, 20000.0), [h0],
                     method="LSODA", rtol=1e-11, atol=1e-12, dense_output=True)
     expected = ref.sol(res.t)[0]
@@ -111,11 +93,11 @@ def test_a_tank_with_only_a_feed_fills_linearly_and_overflows_when_the_geometry_
     d_tank, h0, height, q_in = 1.5, 0.5, 3.0, 12e-3
     tank = Reservoir("T", "tank", 10.0, h0, shape=TankShape("vertical_cylinder", diameter=d_tank),
                      height=height, inflow=q_in)
-    system = _system([tank], [_shut_outlet()], [Receiver("OUT", "open_discharge", 0.0)],
-                     duration=600.0, interval=10.0)
+    system = transient_system([tank], [_shut_outlet()], [Receiver("OUT", "open_discharge", 0.0)],
+                              duration=600.0, interval=10.0)
     res = simulate(system)
     assert res.success, res.message
-    at = _area(d_tank)
+    at = circle_area(d_tank)
     t_over = at * (height - h0) / q_in
     over = [e for e in res.events if e.code == "tank.overflow"]
     assert len(over) == 1 and over[0].time == pytest.approx(t_over, rel=1e-9)
@@ -139,8 +121,8 @@ def test_schedule_break_points_are_landed_exactly():
     times, flows = (0.0, 37.3, 101.9, 250.0), (0.0, 20e-3, 5e-3, 5e-3)
     tank = Reservoir("T", "tank", 10.0, 0.5, shape=TankShape("rectangular", length=2.0, width=1.5),
                      inflow_schedule=FlowSchedule(times, flows))
-    system = _system([tank], [_shut_outlet()], [Receiver("OUT", "open_discharge", 0.0)],
-                     duration=300.0, interval=7.0)
+    system = transient_system([tank], [_shut_outlet()], [Receiver("OUT", "open_discharge", 0.0)],
+                              duration=300.0, interval=7.0)
     res = simulate(system)
     assert res.success, res.message
     for tb in times[1:]:
@@ -187,7 +169,7 @@ def test_a_draw_off_empties_a_horizontal_cylinder_in_the_time_of_its_volume():
                                                            length=lt),
                      height=d, min_level=h1, draw_off=q)
     # the system needs a line: one from a constant-level reservoir elsewhere on the site
-    system = _system(
+    system = transient_system(
         [tank, Reservoir("R", "constant_level", 20.0, 1.0)],
         [Line("L9", "R", "OUT", 50.0, 0.05, friction_factor=0.02)],
         [Receiver("OUT", "open_discharge", 0.0)],
@@ -222,8 +204,8 @@ def test_a_drained_tank_refilled_by_a_scheduled_feed_reopens_its_outlet():
     tank = Reservoir("T", "tank", 10.0, 2.0, shape=TankShape("vertical_cylinder", diameter=d_tank),
                      min_level=h_min, restart_level=h_restart,
                      inflow_schedule=FlowSchedule((0.0, t1, t2), (0.0, 0.0, q_f)))
-    system = _system([tank], [_outlet()], [Receiver("OUT", "open_discharge", 10.0 - drop)],
-                     duration=25000.0, interval=20.0)
+    system = transient_system([tank], [_outlet()], [Receiver("OUT", "open_discharge", 10.0 - drop)],
+                              duration=25000.0, interval=20.0)
     res = simulate(system)
     assert res.success, res.message
     events = [(e.code, e.time) for e in res.events if e.code.startswith("tank.")]
@@ -231,7 +213,7 @@ def test_a_drained_tank_refilled_by_a_scheduled_feed_reopens_its_outlet():
     t_drain, t_refill = events[0][1], events[1][1]
     assert t_drain < t1
     # refill: q_f (t - t1)^2 / (2 (t2 - t1)) = A (h_restart - h_min), within the ramp
-    need = _area(d_tank) * (h_restart - h_min)
+    need = circle_area(d_tank) * (h_restart - h_min)
     ramp = q_f * (t2 - t1) / 2
     if need <= ramp:
         expected = t1 + math.sqrt(2 * need * (t2 - t1) / q_f)
@@ -257,7 +239,7 @@ def test_a_draw_off_larger_than_the_feed_cycles_and_says_so():
     tank = Reservoir("T", "tank", 5.0, 0.5, shape=TankShape("rectangular", length=1.0, width=at),
                      height=2.0, min_level=h_min, restart_level=h_restart, inflow=q_in,
                      draw_off=q_dr)
-    system = _system(
+    system = transient_system(
         [tank, Reservoir("R", "constant_level", 20.0, 1.0)],
         [Line("L9", "R", "OUT", 50.0, 0.05, friction_factor=0.02)],
         [Receiver("OUT", "open_discharge", 0.0)], duration=2000.0, interval=10.0,
@@ -276,8 +258,8 @@ def test_a_draw_off_larger_than_the_feed_cycles_and_says_so():
 def test_a_tank_without_feed_or_draw_off_is_not_flagged_as_cycling_or_fed():
     # A plain drain (common practice: nothing new should appear): one drain, no cycling.
     tank = Reservoir("T", "tank", 10.0, 1.0, shape=TankShape("vertical_cylinder", diameter=1.0))
-    system = _system([tank], [_outlet()], [Receiver("OUT", "open_discharge", 9.0)],
-                     duration=1e5, stop_when="drained")
+    system = transient_system([tank], [_outlet()], [Receiver("OUT", "open_discharge", 9.0)],
+                              duration=1e5, stop_when="drained")
     res = simulate(system)
     assert res.status == 1
     assert not any(w.code == "tank.cycling" for w in res.warnings)

@@ -15,8 +15,8 @@ import time
 import numpy as np
 import pytest
 
+from tests.core.builders import WATER
 from workbench.core.model import (
-    FluidProps,
     G,
     Junction,
     Line,
@@ -34,9 +34,6 @@ from workbench.core.transient import simulate
 from workbench.core.transient.equations import Equations
 from workbench.core.transient.model import TransientModel
 from workbench.core.transient.state import RunState
-
-# Water at 20 degC: IAPWS-95 density, IAPWS 2008 viscosity (HYDRAULICS notes table).
-WATER = FluidProps("water", 998.207, 1.0016e-3, 2339.2, 2.19e9, 293.15)
 
 
 def test_two_thousand_parallel_lines_start_up_as_the_closed_form_of_one_column():

@@ -13,8 +13,8 @@ import math
 import numpy as np
 import pytest
 
+from tests.core.builders import WATER, circle_area
 from workbench.core.model import (
-    FluidProps,
     G,
     Junction,
     Line,
@@ -35,13 +35,6 @@ from workbench.core.transient.options import MAX_OUTPUT_POINTS, resolve_options
 from workbench.core.transient.recording import Recording
 from workbench.core.transient.state import RunState
 from workbench.core.transient.submergence import submergence
-
-# Water at 20 degC (IAPWS-95 density, IAPWS 2008 viscosity; HYDRAULICS notes table).
-WATER = FluidProps("water", 998.207, 1.0016e-3, 2339.2, 2.19e9, 293.15)
-
-
-def _area(d):
-    return math.pi * d * d / 4.0
 
 
 def _tank_drain(level=2.0, duration=100.0, out_z=0.0):
@@ -88,7 +81,7 @@ def test_stopping_one_line_at_a_junction_redistributes_flow_by_inertance():
     cfg = Configuration(model, open_lines, np.zeros(0, bool))
     q = np.array([{"L0": 0.03, "LA": 0.02, "LB": 0.0}[lid] for lid in ids])
     q2 = cfg.project(q)
-    a = {lid: G * _area(d) / ln for lid, ln, d in (("L0", 50.0, 0.10), ("LA", 30.0, 0.08))}
+    a = {lid: G * circle_area(d) / ln for lid, ln, d in (("L0", 50.0, 0.10), ("LA", 30.0, 0.08))}
     # imbalance into J: +0.03 (in) - 0.02 (out) = 0.01 must leave: L0 slows, LA speeds up
     total = a["L0"] + a["LA"]
     assert q2[ids.index("L0")] == pytest.approx(0.03 - 0.01 * a["L0"] / total, rel=1e-12)
@@ -101,9 +94,9 @@ def test_stopping_one_line_at_a_junction_redistributes_flow_by_inertance():
 def test_a_column_at_rest_accelerates_by_newtons_second_law():
     """A line at rest under a head difference dH: dQ/dt = g A dH / L (rigid column)."""
     model, _, eq = _equations(_tank_drain(level=2.0))
-    y = np.array([0.0, _area(1.0) * 2.0])
+    y = np.array([0.0, circle_area(1.0) * 2.0])
     dq = eq.rhs(0.0, y)[0]
-    assert dq == pytest.approx(G * _area(0.05) * (5.0 + 2.0) / 20.0, rel=1e-12)
+    assert dq == pytest.approx(G * circle_area(0.05) * (5.0 + 2.0) / 20.0, rel=1e-12)
 
 
 def test_the_analytic_jacobian_matches_a_finite_difference_of_the_right_hand_side():
@@ -129,7 +122,7 @@ def test_a_column_at_rest_shows_hydrostatic_pressure_at_its_ends():
     inlet end is at the tank bottom) and zero gauge at the open discharge."""
     model, state, eq = _equations(_tank_drain(level=2.0))
     rec = Recording(model)
-    rec.track(eq, 0.0, np.array([0.0, _area(1.0) * 2.0]), np.zeros(1))
+    rec.track(eq, 0.0, np.array([0.0, circle_area(1.0) * 2.0]), np.zeros(1))
     assert rec.p_max[0] == pytest.approx(WATER.density * G * 2.0, rel=1e-12)
     assert rec.p_max[-1] == pytest.approx(0.0, abs=1e-9)
 
@@ -141,7 +134,7 @@ def test_a_drain_event_is_located_where_the_volume_meets_the_drained_volume():
     """brentq on a linear dense output V(t) = V0 - Q t finds V = V_min at (V0 - V_min)/Q."""
     model, state, eq = _equations(_tank_drain(level=2.0))
     events = ev.arm(eq)
-    v0, q = _area(1.0) * 2.0, 0.01
+    v0, q = circle_area(1.0) * 2.0, 0.01
 
     def sol(t):
         t = np.asarray(t, float)
@@ -178,7 +171,7 @@ def test_a_run_starting_steady_starts_from_the_steady_flow_of_the_closed_form():
                                  output_interval=None, initial_state="steady",
                                  stop_when=None)
     y0 = Run(model, options, RunState.empty(model.nl, model.nt)).initial()
-    q = _area(0.05) * math.sqrt(2 * G * 7.0 / (1.0 + 0.5 + 0.02 * 20.0 / 0.05))
+    q = circle_area(0.05) * math.sqrt(2 * G * 7.0 / (1.0 + 0.5 + 0.02 * 20.0 / 0.05))
     assert y0[0] == pytest.approx(q, rel=1e-6)
 
 
@@ -214,7 +207,7 @@ def test_submergence_is_lost_where_the_level_crosses_the_vortex_rule():
     the time interpolated linearly between output times."""
     model = TransientModel(_tank_drain())
     q = 0.004
-    fr = q / _area(0.05) / math.sqrt(G * 0.05)
+    fr = q / circle_area(0.05) / math.sqrt(G * 0.05)
     s = 0.05 * (1.0 + 2.3 * fr)
     t = np.linspace(0.0, 100.0, 101)
     levels = (2.0 * s - 2.0 * s * t / 100.0)[None, :]
@@ -254,7 +247,7 @@ def test_the_jacobian_with_a_gas_space_matches_a_finite_difference():
             {"L1": Line("L1", "T", "OUT", 20.0, 0.05, friction_factor=0.02)},
             simulation=SimulationSettings(10.0, "at_rest", None, None))
         model, _, eq = _equations(system)
-        v = _area(1.0) * 2.0
+        v = circle_area(1.0) * 2.0
         x = float(model.gas.excess(np.array([v]), np.array([-300.0]))[0])
         y = np.array([0.01, v, x])
         jac = eq.jac(0.0, y)

@@ -16,6 +16,7 @@ import numpy as np
 import pytest
 from scipy.optimize import brentq
 
+from tests.core.builders import WATER
 from workbench.core.model import (
     FlowSchedule,
     FluidProps,
@@ -31,8 +32,6 @@ from workbench.core.model import (
 from workbench.core.transient import simulate
 from workbench.core.vent import bore_effective_area
 
-# Water at 20 degC: IAPWS-95 density, IAPWS 2008 viscosity (HYDRAULICS notes table).
-WATER = FluidProps("water", 998.207, 1.0016e-3, 2339.2, 2.19e9, 293.15)
 P_ATM = 101_325.0
 R_AIR = 287.0528  # J/(kg K), US Standard Atmosphere 1976
 
