@@ -124,6 +124,11 @@ async def line_form(meter: Meter, pilot, elements) -> None:
         await pilot.press("down")
         await idle(pilot)
         meter.end("Down in a line form")
+    for _ in range(3):  # what a key costs the pilot and the app when nothing answers it
+        meter.begin()
+        await pilot.press("f24")
+        await idle(pilot)
+        meter.end("a key nothing answers (the floor)")
     editor = field_input(pilot.app, LINE.replace(":", ".") + ".length")
     editor.focus()
     await idle(pilot)

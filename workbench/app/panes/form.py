@@ -419,6 +419,8 @@ class FieldForm(VerticalScroll):
         self.entry: Entry | None = None
         self._building = asyncio.Lock()
         self._rows: dict[str, list[FieldRow]] = {}
+        self._holders: dict[str, Vertical] = {}
+        """Each built section's rows, by section (a query walks the whole screen)."""
         self._focus_chain: list = []
         """Widgets :meth:`step_focus` asked to focus that have not got the focus yet."""
 
@@ -434,7 +436,7 @@ class FieldForm(VerticalScroll):
         if entry is None:
             return
         holder = await self._holder(entry, data)
-        for other in self.query(".form-section"):
+        for other in self._holders.values():
             other.display = other is holder
         self.refresh_values(data, unit_system)
         self.scroll_home(animate=False)
@@ -442,9 +444,9 @@ class FieldForm(VerticalScroll):
     async def _holder(self, entry: Entry, data: dict, hidden: bool = False):
         """The rows of ``entry``'s section, built if needed, bound to ``entry``'s keys."""
         holder_id = "form-" + entry.section
-        holders = self.query(f"#{holder_id}")
+        holder = self._holders.get(entry.section)
         fields = form_fields(entry)
-        if not holders:
+        if holder is None:
             rows: list = []
             group = ""
             # the longest key name of the section, its required mark and a space
@@ -462,19 +464,18 @@ class FieldForm(VerticalScroll):
             holder = Vertical(*rows, id=holder_id, classes="form-section")
             holder.display = not hidden
             await self.mount(holder)
+            self._holders[entry.section] = holder
             self._rows[entry.section] = [r for r in rows if isinstance(r, FieldRow)]
-        else:
-            holder = holders.first()
-            if not hidden:
-                for row, field in zip(self._rows[entry.section], fields):
-                    row.rebind(field, choices_for(field, data))
+        elif not hidden:
+            for row, field in zip(self._rows[entry.section], fields):
+                row.rebind(field, choices_for(field, data))
         return holder
 
     async def prebuild(self, entries: list[Entry], data: dict) -> None:
         """Build the forms of other sections while the user reads (mounting is slow)."""
         for entry in entries:
             async with self._building:
-                if not self.query("#form-" + entry.section):
+                if entry.section not in self._holders:
                     await self._holder(entry, data, hidden=True)
 
     def focusables(self) -> list:
@@ -482,11 +483,11 @@ class FieldForm(VerticalScroll):
         take the focus now (a folded group's fields cannot)."""
         if self.entry is None:
             return []
-        holders = self.query("#form-" + self.entry.section)
-        if not holders:
+        holder = self._holders.get(self.entry.section)
+        if holder is None:
             return []
         found = []
-        for child in holders.first().children:
+        for child in holder.children:
             if isinstance(child, GroupHeading):
                 found.append(child)
             elif isinstance(child, FieldRow) and child.display and child.editor is not None:
