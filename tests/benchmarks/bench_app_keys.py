@@ -4,8 +4,8 @@ The app is built as the app tests build it (``tests/app/conftest.py`` ``make``: 
 built on first visit, ``prebuild_forms=False``) around a copy of a demo project and driven
 headless with Textual's pilot. For each action the script prints the CPU seconds of this
 process (``time.process_time``: the app's thread, its solve workers and the pilot) and
-the number of whole-screen layouts (calls of the screen's layout refresh, counted by
-wrapping it here; the app itself is not changed). Each action waits until the app is idle
+the number of whole-screen layouts and of screen updates (frames drawn), counted by
+wrapping the screen's methods here (the app itself is not changed). Each action waits until the app is idle
 again (and, where it starts a solve, until the steady result is back).
 
 Actions: start to the first steady result; Down in the element list onto each element
@@ -43,35 +43,46 @@ class Meter:
     def __init__(self) -> None:
         self.cpu: dict[str, list[float]] = defaultdict(list)
         self.layouts: dict[str, list[int]] = defaultdict(list)
+        self.frames: dict[str, list[int]] = defaultdict(list)
         self.count = 0
-        self._start = (0.0, 0)
+        self.frame_count = 0
+        self._start = (0.0, 0, 0)
 
     def begin(self) -> None:
-        self._start = (time.process_time(), self.count)
+        self._start = (time.process_time(), self.count, self.frame_count)
 
     def end(self, name: str) -> None:
-        cpu, count = self._start
+        cpu, count, frames = self._start
         self.cpu[name].append(time.process_time() - cpu)
         self.layouts[name].append(self.count - count)
+        self.frames[name].append(self.frame_count - frames)
 
     def report(self) -> None:
-        print(f"{'action':44} {'CPU s':>7} {'min':>7} {'layouts':>8}")
+        print(f"{'action':44} {'CPU s':>7} {'min':>7} {'layouts':>8} {'updates':>8}")
         for name, values in self.cpu.items():
             layouts = self.layouts[name]
             print(f"{name:44} {statistics.median(values):7.3f} {min(values):7.3f} "
-                  f"{statistics.median(layouts):8.1f}")
+                  f"{statistics.median(layouts):8.1f} {statistics.median(self.frames[name]):8.1f}")
 
 
 def count_layouts(meter: Meter) -> None:
+    """Count whole-screen layouts and screen updates (a frame drawn: a repaint of what
+    changed, an animation step) by wrapping the screen's own methods."""
     from textual.screen import Screen
 
     real = Screen._refresh_layout
+    real_update = Screen._compositor_refresh
 
     def counted(self, *args, **kwargs):
         meter.count += 1
         return real(self, *args, **kwargs)
 
+    def counted_update(self, *args, **kwargs):
+        meter.frame_count += 1
+        return real_update(self, *args, **kwargs)
+
     Screen._refresh_layout = counted
+    Screen._compositor_refresh = counted_update
 
 
 async def idle(pilot) -> None:

@@ -8,6 +8,7 @@ happened; one handler turns any worker failure into words.
 
 from __future__ import annotations
 
+import os
 from pathlib import Path
 from typing import Any, ClassVar
 
@@ -165,6 +166,11 @@ class WorkbenchApp(TypeAhead, App[int]):
         ahead: Any = None,
     ) -> None:
         super().__init__()
+        if "TEXTUAL_ANIMATIONS" not in os.environ:
+            # No sliding tab underline or other motion unless asked for: a view switch
+            # drew ~20 frames instead of 2, CPU and bytes a busy server and a slow SSH
+            # link do not have to spare (TEXTUAL_ANIMATIONS=full brings them back).
+            self.animation_level = "none"
         self._ahead = ahead
         """The child process loading and solving ``path`` (``workbench.app.solve_ahead``)."""
         self._initial_project = project
