@@ -141,8 +141,15 @@ def _turbulent_observation(noise: float, roughness: float = 0.5e-3) -> Observati
 ROUGH = FitParameter("lines.L.roughness", "roughness", "L", 1e-5, 3e-3, 4.5e-5)
 
 
-def test_a_turbulent_drain_with_noise_gives_back_the_roughness_within_its_interval():
-    result = fit([_turbulent_observation(0.005)], [ROUGH])
+@pytest.fixture(scope="module")
+def turbulent_fit():
+    """The roughness fitted to the turbulent drain read with 5 mm of noise, once for the
+    tests that read it."""
+    return fit([_turbulent_observation(0.005)], [ROUGH])
+
+
+def test_a_turbulent_drain_with_noise_gives_back_the_roughness_within_its_interval(turbulent_fit):
+    result = turbulent_fit
     assert result.success, result.message
     lo, hi = result.ci95[0]
     assert lo <= 0.5e-3 <= hi
@@ -264,8 +271,8 @@ def test_an_interval_reaching_below_zero_is_cut_at_zero_and_says_so():
     assert key == "lines.L.roughness" and "cut at zero" in words and "cannot be negative" in words
 
 
-def test_an_interval_inside_the_range_is_not_cut():
-    result = fit([_turbulent_observation(0.005)], [ROUGH])
+def test_an_interval_inside_the_range_is_not_cut(turbulent_fit):
+    result = turbulent_fit
     assert result.success and not result.ci95_cut.any()
     np.testing.assert_array_equal(result.ci95, result.ci95_linear)
 
