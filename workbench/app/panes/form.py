@@ -89,6 +89,11 @@ class FieldInput(Input):
         style = row.rich_style + Style(color=colour)
         return Strip.join([strip.crop(0, EDITOR_WIDTH), Strip([Segment(text, style)], room)])
 
+    def on_blur(self) -> None:
+        """Left: show a long value from its start again (editing left it scrolled to
+        where the cursor was)."""
+        self.scroll_to(x=0, animate=False)
+
     def action_revert(self) -> None:
         """Put back the stored value and clear the message."""
         row = self.parent
