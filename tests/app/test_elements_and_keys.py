@@ -2,7 +2,19 @@
 
 from __future__ import annotations
 
-from tests.app.conftest import NETWORK, SIZE, TRANSFER, choose_entry, field_input, make, settle
+from tests.app.conftest import (
+    NETWORK,
+    SHARED_LOOP,
+    SIZE,
+    TRANSFER,
+    choose_entry,
+    field_input,
+    make,
+    settle,
+    shared_app,
+)
+
+transfer_app = shared_app(TRANSFER)
 
 
 async def answer_text(pilot, text: str) -> None:
@@ -91,36 +103,39 @@ async def test_deleting_a_tank_names_the_lines_that_depend_on_it_and_asks(projec
     assert tank in back["reservoirs"] and all(line in back["lines"] for line in users)
 
 
-async def test_the_key_list_shows_every_described_binding_of_the_app(project_file):
+@SHARED_LOOP
+async def test_the_key_list_shows_every_described_binding_of_the_app(transfer_app):
     from workbench.app.app import WorkbenchApp
     from workbench.app.screens.keys import KeysScreen
 
-    app = make(project_file(TRANSFER))
-    async with app.run_test(size=SIZE) as pilot:
-        await settle(pilot)
-        await pilot.press("f1")
-        await pilot.pause()
-        assert isinstance(app.screen, KeysScreen)
-        table = app.screen.query_one("#keys-table")
-        described = {str(table.get_row_at(i)[2]) for i in range(table.row_count)}
-        await pilot.press("escape")
-        await pilot.pause()
-        assert not isinstance(app.screen, KeysScreen)
+    pilot = transfer_app
+    app = pilot.app
+    await pilot.press("f1")
+    await pilot.pause()
+    assert isinstance(app.screen, KeysScreen)
+    table = app.screen.query_one("#keys-table")
+    described = {str(table.get_row_at(i)[2]) for i in range(table.row_count)}
+    await pilot.press("escape")
+    await pilot.pause()
+    assert not isinstance(app.screen, KeysScreen)
     wanted = {b.description for b in WorkbenchApp.BINDINGS if b.description}
     assert wanted <= described
 
 
-async def test_the_cautions_open_from_the_app(project_file):
+@SHARED_LOOP
+async def test_the_cautions_open_from_the_app(transfer_app):
     from workbench.app.screens.cautions import CautionsScreen
     from workbench.cautions import CAUTIONS
 
-    app = make(project_file(TRANSFER))
-    async with app.run_test(size=SIZE) as pilot:
-        await settle(pilot)
-        await pilot.press("f8")
-        await pilot.pause()
-        assert isinstance(app.screen, CautionsScreen)
-        topics = [str(w.render()) for w in app.screen.query(".caution-topic")]
+    pilot = transfer_app
+    app = pilot.app
+    await pilot.press("f8")
+    await pilot.pause()
+    assert isinstance(app.screen, CautionsScreen)
+    topics = [str(w.render()) for w in app.screen.query(".caution-topic")]
+    await pilot.press("f8")  # F8 closes them again
+    await pilot.pause()
+    assert not isinstance(app.screen, CautionsScreen)
     assert len(topics) == len(CAUTIONS)
     assert any("Confined spaces" in t for t in topics)
 
@@ -180,18 +195,18 @@ async def test_open_without_a_file_offers_the_starter_template():
         assert app.steady_status == "fresh"
 
 
-async def test_the_fluid_kind_suggests_every_liquid_the_project_layer_accepts(project_file):
+@SHARED_LOOP
+async def test_the_fluid_kind_suggests_every_liquid_the_project_layer_accepts(transfer_app):
     # The app's suggestions and the validator read one list (project.schema.choices_for):
     # the solutions by strength (glycol-water, seawater) included.
     from workbench.app.panes.form import FieldRow
     from workbench.project.schema import choices_for
 
-    app = make(project_file(TRANSFER))
-    async with app.run_test(size=SIZE) as pilot:
-        await settle(pilot)
-        await choose_entry(pilot, "fluid")
-        rows = [r for r in app.screen.query(FieldRow) if r.field.keypath == "fluid.kind"]
-        offered = rows[0].choices if rows else None
+    pilot = transfer_app
+    app = pilot.app
+    await choose_entry(pilot, "fluid")
+    rows = [r for r in app.screen.query(FieldRow) if r.field.keypath == "fluid.kind"]
+    offered = rows[0].choices if rows else None
     assert offered is not None
     assert set(offered) == set(choices_for("fluid", "kind"))
     assert {"water", "ethanol", "ethylene_glycol_water", "seawater", "custom"} <= set(offered)

@@ -3,10 +3,11 @@ the steady and run state, and keys typed before the screen is ready are not lost
 
 from __future__ import annotations
 
-from tests.app.conftest import SIZE, choose_entry, make, settle, type_into
+from tests.app.conftest import SHARED_LOOP, SIZE, choose_entry, make, settle, shared_app, type_into
 
 DRAIN = "fellgate_neutraliser_drain.toml"
 LINE = "210-DR-04"
+drain_app = shared_app(DRAIN)
 
 
 def text(app, selector: str) -> str:
@@ -72,59 +73,61 @@ async def test_keys_typed_while_the_project_loads_are_answered_once_it_is_shown(
     assert focused.field.keypath == f"lines.{LINE}.nominal_size"
 
 
-async def test_every_result_view_carries_the_one_line_screening_notice(project_file):
+@SHARED_LOOP
+async def test_every_result_view_carries_the_one_line_screening_notice(drain_app):
     from workbench.app.results import SCREENING
 
-    app = make(project_file(DRAIN))
-    async with app.run_test(size=SIZE) as pilot:
-        await settle(pilot)
-        shown = {}
-        for key, view in (("f3", "flows"), ("f4", "grade"), ("f5", "run"), ("f6", "events")):
-            await pilot.press(key)
-            await pilot.pause()
-            pane = app.screen.query_one(f"#{view}-pane")
-            notes = [w for w in pane.query(".screening") if str(w.render()) == SCREENING]
-            shown[view] = bool(notes) and notes[0].region.height == 1 and \
-                notes[0].region.bottom <= SIZE[1]
+    pilot = drain_app
+    app = pilot.app
+    shown = {}
+    for key, view in (("f3", "flows"), ("f4", "grade"), ("f5", "run"), ("f6", "events")):
+        await pilot.press(key)
+        await pilot.pause()
+        pane = app.screen.query_one(f"#{view}-pane")
+        notes = [w for w in pane.query(".screening") if str(w.render()) == SCREENING]
+        shown[view] = bool(notes) and notes[0].region.height == 1 and \
+            notes[0].region.bottom <= SIZE[1]
     assert all(shown.values()), shown
 
 
+@SHARED_LOOP
 async def test_the_sweep_is_listed_in_the_tab_bar_like_the_other_views_and_its_tab_opens_it(
-        project_file):
+        drain_app):
     from textual.widgets import Tabs
 
     from workbench.app.screens.sweep import SweepScreen
 
-    app = make(project_file(DRAIN))
-    async with app.run_test(size=SIZE) as pilot:
-        await settle(pilot)
-        tabs = app.screen.query_one(Tabs)
-        titles = [str(tab.label) for tab in tabs.query("Tab")]
-        tabs.active = "--content-tab-sweep-tab"
-        await pilot.pause()
-        opened = isinstance(app.screen, SweepScreen)
+    pilot = drain_app
+    app = pilot.app
+    tabs = app.screen.query_one(Tabs)
+    titles = [str(tab.label) for tab in tabs.query("Tab")]
+    tabs.active = "--content-tab-sweep-tab"
+    await pilot.pause()
+    opened = isinstance(app.screen, SweepScreen)
+    await pilot.press("escape")  # nothing runs: Esc closes the sweep
+    await pilot.pause()
     assert "F9 Sweep" in titles
     assert opened
 
 
+@SHARED_LOOP
 async def test_f9_sweep_is_in_the_key_footer_of_every_view_and_every_key_shows_whole(
-        project_file):
+        drain_app):
     from workbench.app.widgets.keyfooter import KeyCap, KeyFooter
 
-    app = make(project_file(DRAIN))
-    async with app.run_test(size=SIZE) as pilot:
-        await settle(pilot)
-        seen = {}
-        for view in ("f2", "f3", "f4", "f5", "f6", "f10"):
-            await pilot.press(view)
-            await pilot.pause()
-            await pilot.pause()
-            footer = app.screen.query_one(KeyFooter)
-            caps = list(footer.query(KeyCap))
-            sweep = [c for c in caps if c.key == "f9"]
-            seen[view] = bool(sweep) and all(
-                c.region.right <= SIZE[0] and footer.region.contains_region(c.region)
-                for c in caps)
+    pilot = drain_app
+    app = pilot.app
+    seen = {}
+    for view in ("f2", "f3", "f4", "f5", "f6", "f10"):
+        await pilot.press(view)
+        await pilot.pause()
+        await pilot.pause()
+        footer = app.screen.query_one(KeyFooter)
+        caps = list(footer.query(KeyCap))
+        sweep = [c for c in caps if c.key == "f9"]
+        seen[view] = bool(sweep) and all(
+            c.region.right <= SIZE[0] and footer.region.contains_region(c.region)
+            for c in caps)
     assert all(seen.values()), seen
 
 
@@ -217,18 +220,20 @@ async def test_the_events_view_shows_its_first_event_row_with_the_stale_mark_at_
     assert room >= 2
 
 
-async def test_the_run_view_never_says_no_simulation_while_one_runs(project_file):
-    app = make(project_file(DRAIN))
-    async with app.run_test(size=SIZE) as pilot:
-        await settle(pilot)
-        await pilot.press("f5")
-        await pilot.pause()
-        await pilot.pause()
-        plot = app.screen.query_one("#run-plot")
-        idle = plot.render().plain.splitlines()[0]
-        app.run_status = "running"  # as Ctrl+R sets it, before the first result arrives
-        await pilot.pause()
-        running = plot.render().plain.splitlines()[0]
+@SHARED_LOOP
+async def test_the_run_view_never_says_no_simulation_while_one_runs(drain_app):
+    pilot = drain_app
+    app = pilot.app
+    await pilot.press("f5")
+    await pilot.pause()
+    await pilot.pause()
+    plot = app.screen.query_one("#run-plot")
+    idle = plot.render().plain.splitlines()[0]
+    app.run_status = "running"  # as Ctrl+R sets it, before the first result arrives
+    await pilot.pause()
+    running = plot.render().plain.splitlines()[0]
+    app.run_status = "idle"  # no run was started: as it was
+    await pilot.pause()
     assert "Ctrl+R runs one" in idle
     assert "no simulation" not in running and "when the run ends" in running
 
