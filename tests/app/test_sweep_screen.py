@@ -35,10 +35,16 @@ class SweepTestApp(App[None]):
 
 
 async def _type(pilot, selector: str, text: str) -> None:
+    """Put ``text`` in a field as a terminal pastes it (one event: the screen is checked,
+    not the typing of each character)."""
+    from textual import events
+
     widget = pilot.app.screen.query_one(selector)
     widget.value = ""
     widget.focus()
-    await pilot.press(*["space" if c == " " else c for c in text])
+    widget.post_message(events.Paste(text))
+    await pilot.pause()
+    assert widget.value == text
 
 
 async def _wait_for_sweep(pilot) -> None:
