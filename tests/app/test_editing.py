@@ -4,9 +4,21 @@ from __future__ import annotations
 
 import math
 
-from tests.app.conftest import SIZE, TRANSFER, choose_entry, field_input, make, settle, table_cells, type_into
+from tests.app.conftest import (
+    SHARED_LOOP,
+    SIZE,
+    TRANSFER,
+    choose_entry,
+    field_input,
+    make,
+    settle,
+    shared_app,
+    table_cells,
+    type_into,
+)
 
 LINE = "310-PW-12"
+transfer_app = shared_app(TRANSFER)
 
 
 def flow_cell(app) -> float:
@@ -42,24 +54,26 @@ async def test_changing_a_line_diameter_changes_the_flow_shown_after_the_worker_
     assert math.isclose(after, expected, rel_tol=1e-3)
 
 
+@SHARED_LOOP
 async def test_a_wrong_unit_shows_its_message_beside_the_field_and_the_model_keeps_its_value(
-        project_file):
-    path = project_file(TRANSFER)
-    app = make(path)
-    async with app.run_test(size=SIZE) as pilot:
-        await settle(pilot)
-        await choose_entry(pilot, f"lines:{LINE}")
-        before = app.project
-        await type_into(pilot, f"lines.{LINE}.length", "240 mmm")
-        row = field_input(app, f"lines.{LINE}.length").parent
-        shown = str(row.render())  # the row draws its name, then the message beside
-        assert row.has_class("-invalid")
-        assert shown.startswith("length*") and "✗" in shown
-        message = shown[shown.index("✗"):]
+        transfer_app):
+    pilot = transfer_app
+    app = pilot.app
+    await choose_entry(pilot, f"lines:{LINE}")
+    before = app.project
+    await type_into(pilot, f"lines.{LINE}.length", "240 mmm")
+    row = field_input(app, f"lines.{LINE}.length").parent
+    shown = str(row.render())  # the row draws its name, then the message beside
+    assert row.has_class("-invalid")
+    assert shown.startswith("length*") and "✗" in shown
+    message = shown[shown.index("✗"):]
     assert "mmm" in message
     assert app.project is before
     assert app.project.data["lines"][LINE]["length"] == "240 m"
     assert not app.history.can_undo
+    await pilot.press("escape")  # puts the stored value back
+    await pilot.pause()
+    assert not row.has_class("-invalid")
 
 
 async def test_undo_and_redo_step_through_the_edits(project_file):
@@ -152,23 +166,25 @@ async def test_quitting_without_edits_leaves_at_once(project_file):
     assert app.return_code == 0
 
 
-async def test_the_unit_switch_changes_the_display_and_no_stored_value(project_file):
-    path = project_file(TRANSFER)
-    app = make(path)
-    async with app.run_test(size=SIZE) as pilot:
-        await settle(pilot)
-        await pilot.press("f3")
-        si_flow = flow_cell(app)
-        await pilot.press("f7")
-        await pilot.pause()
-        header = [str(c.label) for c in app.screen.query_one("#line-table").columns.values()]
-        us_flow = flow_cell(app)
+@SHARED_LOOP
+async def test_the_unit_switch_changes_the_display_and_no_stored_value(transfer_app):
+    pilot = transfer_app
+    app = pilot.app
+    await pilot.press("f3")
+    si_flow = flow_cell(app)
+    await pilot.press("f7")
+    await pilot.pause()
+    header = [str(c.label) for c in app.screen.query_one("#line-table").columns.values()]
+    us_flow = flow_cell(app)
     assert app.unit_system == "US"
     assert "flow gpm" in header
     # 1 US gallon = 3.785411784 L exactly (NIST Handbook 44, appendix C).
     assert math.isclose(us_flow, si_flow * 60 / 3.785411784, rel_tol=2e-3)
     assert not app.modified
     assert app.project.data["project"]["units"] == "SI"
+    await pilot.press("f7")  # and back
+    await pilot.pause()
+    assert app.unit_system == "SI" and flow_cell(app) == si_flow
 
 
 async def test_a_fluid_kind_that_needs_its_strength_asks_for_it_and_applies_both(project_file):
@@ -208,17 +224,20 @@ async def test_a_fluid_kind_that_needs_its_strength_asks_for_it_and_applies_both
     assert 'kind = "water"' in path.read_text()  # nothing saved without Ctrl+S
 
 
-async def test_escaping_the_question_leaves_the_fluid_as_it_was(project_file):
+@SHARED_LOOP
+async def test_escaping_the_question_leaves_the_fluid_as_it_was(transfer_app):
     from workbench.app.screens.dialogs import TextScreen
 
-    app = make(project_file(TRANSFER))
-    async with app.run_test(size=SIZE) as pilot:
-        await settle(pilot)
-        await choose_entry(pilot, "fluid")
-        await type_into(pilot, "fluid.kind", "seawater")
-        assert isinstance(app.screen, TextScreen) and "salinity" in app.screen.prompt
-        await pilot.press("escape")
-        await pilot.pause()
-        kind = app.project.data["fluid"]["kind"]
-        modified = app.modified
+    pilot = transfer_app
+    app = pilot.app
+    await choose_entry(pilot, "fluid")
+    await type_into(pilot, "fluid.kind", "seawater")
+    assert isinstance(app.screen, TextScreen) and "salinity" in app.screen.prompt
+    await pilot.press("escape")
+    await pilot.pause()
+    kind = app.project.data["fluid"]["kind"]
+    modified = app.modified
     assert kind == "water" and not modified
+    field_input(app, "fluid.kind").focus()
+    await pilot.press("escape")  # the word typed in the field goes back too
+    await pilot.pause()
