@@ -157,10 +157,13 @@ def test_the_sealed_tank_stops_at_a_level_written_in_feet(runs):
 
 def test_a_sweep_cases_refusal_follows_the_units_the_command_asks_for(capsys):
     # the neutraliser demo is SI; --units US must reach the refusal of a swept value:
-    # 1 mm and 20 m in inches (NIST SP 811: 1 in = 25.4 mm)
+    # 1 mm and 20 m in inches (NIST SP 811: 1 in = 25.4 mm): 0.03937 in and 787.4 in,
+    # rounded inward to two figures (README: every value inside the words is accepted)
     demo = ROOT / "projects" / "fellgate_neutraliser_drain.toml"
     main(["sweep", str(demo), "--units", "US", "--steady-only", "--workers", "1",
           "--vary", "lines.210-DR-04.inner_diameter=100 mm,0.1 mm"])
     captured = capsys.readouterr()
     text = " ".join((captured.out + captured.err).split())
-    assert f"expected from {1 / 25.4:.4g} in to {20 / 0.0254:.4g} in" in text, text
+    assert (1 / 25.4, 20 / 0.0254) == (pytest.approx(0.03937, rel=1e-4),
+                                       pytest.approx(787.4, rel=1e-4))
+    assert "expected from 0.04 in to 780 in" in text, text
