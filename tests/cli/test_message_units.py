@@ -167,3 +167,4 @@ def test_a_sweep_cases_refusal_follows_the_units_the_command_asks_for(capsys):
     assert (1 / 25.4, 20 / 0.0254) == (pytest.approx(0.03937, rel=1e-4),
                                        pytest.approx(787.4, rel=1e-4))
     assert "expected from 0.04 in to 780 in" in text, text
+    assert "case 2 (lines.210-DR-04.inner_diameter = 0.1 mm)" in text, text

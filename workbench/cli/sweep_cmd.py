@@ -209,7 +209,7 @@ def run(args: argparse.Namespace) -> ExitCode:
         _print_table(project, sweep, keypaths)
 
     failed = [c for c in sweep["cases"] if c["error"]]
-    for i, c in enumerate(sweep["cases"]):
+    for i, c in enumerate(sweep["cases"], start=1):  # numbered as in the table
         if c["error"]:
             print(f"case {i} ({', '.join(f'{k} = {v}' for k, v in c['values'].items())}): {c['error']}",
                   file=sys.stderr)
