@@ -43,7 +43,7 @@ class FlowsPane(Vertical):
         if status in {"fresh", "failed"} and self.app.steady_message:
             text += f" — {self.app.steady_message}"
         banner = self.query_one("#steady-banner", Static)
-        banner.update(f"Steady  {text}")
+        banner.update(f"Steady  {text}", layout=False)  # one row: nothing moves
         for name in ("stale", "failed"):
             banner.set_class(status == name or (name == "stale" and status == "solving"),
                              f"-{name}")

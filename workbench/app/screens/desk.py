@@ -55,7 +55,8 @@ class StatusLine(Static):
         if app.project is None:
             self.update(" Gravity workbench · no project open")
             return
-        self.update(status_text(app, self.size.width or 80))
+        # one row (the style sheet's #status): a new text needs no layout of the screen
+        self.update(status_text(app, self.size.width or 80), layout=False)
         self.set_class(app.modified, "-modified")
         self.set_class(app.steady_status in {"stale", "solving"} or app.run_is_stale(),
                        "-stale")
