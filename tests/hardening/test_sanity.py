@@ -102,11 +102,17 @@ STEADY_FAULTS = {
 }
 
 
-@pytest.mark.parametrize("name", STEADY_FAULTS)
-def test_a_corrupted_steady_result_is_caught_by_the_checks(name):
-    corrupt, check = STEADY_FAULTS[name]
+@pytest.fixture(scope="module")
+def network_solved():
+    """The cooling-water network solved once for the checks below (each corrupts a copy)."""
     system = load_project(NETWORK).system
-    result = solve_steady(system)
+    return system, solve_steady(system)
+
+
+@pytest.mark.parametrize("name", STEADY_FAULTS)
+def test_a_corrupted_steady_result_is_caught_by_the_checks(name, network_solved):
+    corrupt, check = STEADY_FAULTS[name]
+    system, result = network_solved
     assert check_steady(system, result) == []
     found = check_steady(system, corrupt(result))
     assert check in {v.check for v in found}, found
@@ -136,7 +142,10 @@ def test_the_solve_command_refuses_a_corrupted_result_as_an_internal_error(monke
 
 # --- corrupted transient results are caught ----------------------------------------------
 
-def _transfer_run():
+@pytest.fixture(scope="module")
+def transfer_run():
+    """The transfer demo's first minute, run once for the checks below (each corrupts a
+    copy: the corruptions replace arrays, never write into the run's own)."""
     system = load_project(TRANSFER).system
     return system, simulate(system, duration=60.0)
 
@@ -167,9 +176,9 @@ def _leak_after(result, t_close):
 
 
 @pytest.mark.parametrize("name", TRANSIENT_FAULTS)
-def test_a_corrupted_transient_result_is_caught_by_the_checks(name):
+def test_a_corrupted_transient_result_is_caught_by_the_checks(name, transfer_run):
     corrupt, check = TRANSIENT_FAULTS[name]
-    system, result = _transfer_run()
+    system, result = transfer_run
     assert check_transient(system, result) == []
     found = check_transient(system, corrupt(result))
     assert check in {v.check for v in found}, found
