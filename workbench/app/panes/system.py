@@ -115,7 +115,7 @@ class SystemPane(Horizontal):
 
 def show_help(help_line: Static, text: str) -> None:
     """Put ``text`` on the help line under the form, laying the screen out again only when
-    it needs another number of rows (a field's focus then costs a repaint, not a layout)."""
+    it needs more rows than it has (a field's focus then costs a repaint, not a layout)."""
     from rich.text import Text
 
     width = help_line.content_region.width
@@ -127,4 +127,5 @@ def show_help(help_line: Static, text: str) -> None:
     tall = rows + styles.gutter.height  # min/max heights count the border and padding
     low = int(styles.min_height.value) if styles.min_height else tall
     high = int(styles.max_height.value) if styles.max_height else tall
-    help_line.update(text, layout=min(max(tall, low), high) != help_line.outer_size.height)
+    # a shorter text keeps the rows it has until the next layout (one that happens anyway)
+    help_line.update(text, layout=min(max(tall, low), high) > help_line.outer_size.height)
