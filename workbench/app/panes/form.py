@@ -208,6 +208,10 @@ class FieldRow(Widget):
     while it is being edited, so the reason stays in sight.
     """
 
+    virtual_size: Reactive[Size] = Reactive(Size(0, 0), layout=False, repaint=True)
+    """Nothing scrolls in a row: a new size (a form shown, a message) needs no second
+    layout of the screen, which this reactive asks for on a Widget."""
+
     class Focused(Message):
         """One of the row's widgets got the focus."""
 
@@ -395,6 +399,14 @@ def hint(field: Field, stored: Any, unit_system: str) -> str:
         return f"[{display_unit(kind, unit_system)}]"
 
 
+class FormSection(Vertical):
+    """The rows of one section's form (shown while an element of the section is)."""
+
+    virtual_size: Reactive[Size] = Reactive(Size(0, 0), layout=False, repaint=True)
+    """Nothing scrolls in here (the form does): a new size needs no second layout of the
+    screen, which this reactive asks for on a Widget."""
+
+
 def form_style(widget: Widget, name: str):
     """A style of the form ``widget`` sits in (its component classes: one set for all the
     rows rather than a set a row, which the style sheet would apply row by row)."""
@@ -424,7 +436,7 @@ class FieldForm(VerticalScroll):
         self.entry: Entry | None = None
         self._building = asyncio.Lock()
         self._rows: dict[str, list[FieldRow]] = {}
-        self._holders: dict[str, Vertical] = {}
+        self._holders: dict[str, FormSection] = {}
         """Each built section's rows, by section (a query walks the whole screen)."""
         self._focus_chain: list = []
         """Widgets :meth:`step_focus` asked to focus that have not got the focus yet."""
@@ -466,7 +478,7 @@ class FieldForm(VerticalScroll):
                 row.heading = heading
                 row.name_width = width
                 rows.append(row)
-            holder = Vertical(*rows, id=holder_id, classes="form-section")
+            holder = FormSection(*rows, id=holder_id, classes="form-section")
             holder.display = not hidden
             await self.mount(holder)
             self._holders[entry.section] = holder

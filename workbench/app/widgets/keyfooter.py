@@ -13,7 +13,8 @@ from typing import ClassVar
 from rich.text import Text
 from textual.app import ComposeResult
 from textual.containers import HorizontalGroup
-from textual.reactive import reactive
+from textual.geometry import Size
+from textual.reactive import Reactive, reactive
 from textual.widget import Widget
 from textual.widgets import Footer
 
@@ -64,6 +65,10 @@ class KeyCap(Widget):
 
     compact = reactive(True)
     """Keys without padding, one space apart."""
+
+    virtual_size: Reactive[Size] = Reactive(Size(0, 0), layout=False, repaint=True)
+    """Nothing scrolls in a key: a new size needs no second layout of the screen (on a
+    Widget this reactive asks for one each time a layout changes the widget's size)."""
 
     def __init__(self, key: str, key_display: str, description: str, action: str = "", *,
                  disabled: bool = False, tooltip: str = "") -> None:
@@ -150,19 +155,24 @@ class KeyFooter(Footer):
     async def _recompose_if_changed(self) -> None:
         """Rebuild the keys only when what they show changed: the focus moving between
         widgets with the same keys (field to field) rebuilds nothing (a rebuild restyles
-        every key, a large part of start-up and of a Tab)."""
+        every key, a large part of start-up and of a Tab). When each row keeps its number
+        of keys (a field to a heading), the keys are rewritten in place: no widgets
+        removed and mounted, and no layout unless a key's width changed."""
         if not self.is_attached:
             return
-        if self._signature(self._shown_keys()) != getattr(self, "_shown", None):
-            await self.recompose()
-
-    def compose(self) -> ComposeResult:
-        if not self._bindings_ready:
-            return
         seen = self._shown_keys()
-        self._shown = self._signature(seen)
+        signature = self._signature(seen)
+        if signature == getattr(self, "_shown", None):
+            return
+        if self._rewrite(seen):
+            self._shown = signature
+            return
+        await self.recompose()
+
+    def _arrange(self, seen: dict[str, tuple]) -> list[list[tuple]]:
+        """The keys of each row: (binding, enabled, tooltip, key as shown)."""
         width = max(self.app.size.width, 40)
-        rows: list[list[KeyCap]] = [[], []]
+        rows: list[list[tuple]] = [[], []]
         used = [0, 0]
         row = 0
         for binding, enabled, tooltip in seen.values():
@@ -171,8 +181,36 @@ class KeyFooter(Footer):
             if row == 0 and used[0] + need > width:
                 row = 1
             used[row] += need
-            rows[row].append(
-                KeyCap(binding.key, key_display, binding.description, binding.action,
-                       disabled=not enabled, tooltip=tooltip).data_bind(compact=Footer.compact))
-        for keys in rows:
-            yield HorizontalGroup(*keys, classes="footer-row")
+            rows[row].append((binding, enabled, tooltip, key_display))
+        return rows
+
+    def _rewrite(self, seen: dict[str, tuple]) -> bool:
+        """Show ``seen`` in the keys already mounted; False when a row's count differs."""
+        groups = list(self.query("HorizontalGroup.footer-row"))
+        rows = self._arrange(seen)
+        caps = [list(group.query_children(KeyCap)) for group in groups]
+        if len(groups) != len(rows) or any(len(c) != len(r) for c, r in zip(caps, rows)):
+            return False
+        for row_caps, row in zip(caps, rows):
+            for cap, (binding, enabled, tooltip, key_display) in zip(row_caps, row):
+                resized = (len(cap.key_display) + len(cap.description)
+                           != len(key_display) + len(binding.description))
+                cap.key, cap.action = binding.key, binding.action
+                cap.key_display, cap.description = key_display, binding.description
+                cap._key_disabled = not enabled
+                cap.set_class(not enabled, "-disabled")
+                cap.tooltip = tooltip or None
+                cap.refresh(layout=resized)
+        return True
+
+    def compose(self) -> ComposeResult:
+        if not self._bindings_ready:
+            return
+        seen = self._shown_keys()
+        self._shown = self._signature(seen)
+        for row in self._arrange(seen):
+            yield HorizontalGroup(
+                *(KeyCap(binding.key, key_display, binding.description, binding.action,
+                         disabled=not enabled, tooltip=tooltip).data_bind(compact=Footer.compact)
+                  for binding, enabled, tooltip, key_display in row),
+                classes="footer-row")
