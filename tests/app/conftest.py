@@ -131,7 +131,8 @@ async def run_elastic_in_the_surge_view(pilot, *keys: str) -> None:
 # Starting the app and waiting for its first result costs about 1.5 s of CPU, and a form
 # is composed the first time it is shown. Tests that only read (they look, move the focus,
 # type and take it back with Esc, open a view or a dialog and close it) can drive one app
-# that was started once per module and per pytest-xdist worker, with every form built.
+# that was started once per module and per pytest-xdist worker (with every form built, if
+# the module visits many).
 # Rules (SharedApp.left_dirty checks them after each test, and a test that breaks one
 # gets a fresh app for the next test, so no test depends on what ran before it):
 #   - the test puts the app where it needs it (choose_entry, a view key): it is handed
@@ -148,7 +149,7 @@ class SharedApp:
 
     def __init__(self, path: Path, **kwargs) -> None:
         self.path = path
-        self.kwargs = {"prebuild_forms": True, **kwargs}
+        self.kwargs = kwargs
         self.pilot = None
         self.starts = 0
         self._task = None
@@ -260,11 +261,11 @@ async def shared_apps(tmp_path_factory):
     patch.setenv("WORKBENCH_STATE_DIR", str(folder / "state"))
     apps: dict[str, SharedApp] = {}
 
-    def get(name: str) -> SharedApp:
+    def get(name: str, **kwargs) -> SharedApp:
         if name not in apps:
             target = folder / name
             shutil.copy(PROJECTS / name, target)
-            apps[name] = SharedApp(target)
+            apps[name] = SharedApp(target, **kwargs)
         return apps[name]
 
     yield get
@@ -273,17 +274,18 @@ async def shared_apps(tmp_path_factory):
     patch.undo()
 
 
-def shared_app(*names: str):
+def shared_app(*names: str, prebuild_forms: bool = True):
     """A fixture handing the module's shared app of demo ``names[0]`` to a test, or, given
-    several names, parametrized over them (the test module runs in one event loop:
-    ``pytestmark = SHARED_LOOP``)."""
+    several names, parametrized over them (the tests that use it carry ``SHARED_LOOP``).
+    ``prebuild_forms``: build every form at the start (worth it when the module's tests
+    visit many forms; one form is built faster when first shown)."""
 
     several = len(names) > 1
 
     @pytest_asyncio.fixture(loop_scope="module", params=names if several else None,
                             ids=[n.removesuffix(".toml") for n in names] if several else None)
     async def handed(shared_apps, request):
-        shared = shared_apps(getattr(request, "param", names[0]))
+        shared = shared_apps(getattr(request, "param", names[0]), prebuild_forms=prebuild_forms)
         pilot = await shared.hand_over()
         yield pilot
         applied = shared.edits() if shared.pilot is not None else ""

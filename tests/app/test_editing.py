@@ -18,7 +18,7 @@ from tests.app.conftest import (
 )
 
 LINE = "310-PW-12"
-transfer_app = shared_app(TRANSFER)
+transfer_app = shared_app(TRANSFER, prebuild_forms=False)
 
 
 def flow_cell(app) -> float:

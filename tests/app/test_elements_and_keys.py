@@ -14,7 +14,7 @@ from tests.app.conftest import (
     shared_app,
 )
 
-transfer_app = shared_app(TRANSFER)
+transfer_app = shared_app(TRANSFER, prebuild_forms=False)
 
 
 async def answer_text(pilot, text: str) -> None:

@@ -20,7 +20,7 @@ pytestmark = SHARED_LOOP
 LINE = "310-PW-12"
 DRAIN = "fellgate_neutraliser_drain.toml"
 VENTED = "fellgate_condensate_tank_vent.toml"
-transfer = shared_app(TRANSFER)
+transfer = shared_app(TRANSFER, prebuild_forms=True)
 every_form_demo = shared_app(DRAIN, VENTED, TRANSFER)
 
 

@@ -16,7 +16,7 @@ from tests.app.conftest import (
 )
 
 LINE = "310-PW-12"
-table_app = shared_app(TRANSFER)
+table_app = shared_app(TRANSFER, prebuild_forms=False)
 
 
 async def open_table(pilot, key: str, how: str = "enter"):

@@ -7,7 +7,7 @@ from tests.app.conftest import SHARED_LOOP, SIZE, choose_entry, make, settle, sh
 
 DRAIN = "fellgate_neutraliser_drain.toml"
 LINE = "210-DR-04"
-drain_app = shared_app(DRAIN)
+drain_app = shared_app(DRAIN, prebuild_forms=False)
 
 
 def text(app, selector: str) -> str:
