@@ -147,8 +147,10 @@ class SharedApp:
     """A started app, held open in a task of its own (the one that entered
     ``run_test`` must leave it), that the tests of one module drive in turn."""
 
-    def __init__(self, path: Path, **kwargs) -> None:
-        self.path = path
+    def __init__(self, source: Path, folder: Path, **kwargs) -> None:
+        self.source = source
+        self.folder = folder
+        self.path: Path | None = None
         self.kwargs = kwargs
         self.pilot = None
         self.starts = 0
@@ -159,6 +161,11 @@ class SharedApp:
     async def start(self) -> None:
         import asyncio
 
+        # a fresh copy each time: an app stopped with edits leaves its recovery copy beside
+        # the file, which the next start would offer
+        self.path = self.folder / f"start-{self.starts + 1}" / self.source.name
+        self.path.parent.mkdir(parents=True, exist_ok=True)
+        shutil.copy(self.source, self.path)
         app = make(self.path, **self.kwargs)
         ready, self._stop = asyncio.Event(), asyncio.Event()
 
@@ -168,7 +175,7 @@ class SharedApp:
                 ready.set()
                 await self._stop.wait()
 
-        self._task = asyncio.create_task(hold(), name=f"shared app {self.path.name}")
+        self._task = asyncio.create_task(hold(), name=f"shared app {self.source.name}")
         waiting = asyncio.create_task(ready.wait())
         await asyncio.wait({self._task, waiting}, return_when=asyncio.FIRST_COMPLETED)
         if not ready.is_set():
@@ -183,6 +190,9 @@ class SharedApp:
             self._stop.set()
             task, self._task, self.pilot = self._task, None, None
             await task
+
+    def stopped(self) -> bool:
+        return self._task is None or self._task.done() or self.pilot is None
 
     def _state(self) -> dict:
         app = self.pilot.app
@@ -204,7 +214,7 @@ class SharedApp:
         from workbench.app.panes.form import FieldRow, GroupHeading, value_text
         from workbench.app.screens.desk import DeskScreen
 
-        if self._task is None or self._task.done() or self.pilot is None:
+        if self.stopped():
             return ["the app has stopped"]
         app = self.pilot.app
         reasons = [text for text in (self.edits(),) if text]
@@ -263,9 +273,7 @@ async def shared_apps(tmp_path_factory):
 
     def get(name: str, **kwargs) -> SharedApp:
         if name not in apps:
-            target = folder / name
-            shutil.copy(PROJECTS / name, target)
-            apps[name] = SharedApp(target, **kwargs)
+            apps[name] = SharedApp(PROJECTS / name, folder / name.removesuffix(".toml"), **kwargs)
         return apps[name]
 
     yield get
@@ -288,7 +296,10 @@ def shared_app(*names: str, prebuild_forms: bool = True):
         shared = shared_apps(getattr(request, "param", names[0]), prebuild_forms=prebuild_forms)
         pilot = await shared.hand_over()
         yield pilot
-        applied = shared.edits() if shared.pilot is not None else ""
+        if shared.stopped():
+            await shared.stop()  # the app ended during this test: what ended it is raised here
+            return
+        applied = shared.edits()
         if applied:
             await shared.stop()
             pytest.fail(f"a test on the shared app must not edit ({applied}); give it its own")

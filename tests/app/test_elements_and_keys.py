@@ -172,9 +172,16 @@ async def test_palette_commands_are_grouped_by_a_first_word_and_run(project_file
         await pilot.press("ctrl+p")
         await pilot.pause()
         await pilot.press(*list("units"))
-        await pilot.pause(0.3)
+        commands = app.screen.query_one("CommandList")
+        for _ in range(200):  # the palette searches in the background: until it offers one
+            await pilot.pause(0.02)
+            if commands.option_count and commands.highlighted is not None:
+                break
         await pilot.press("enter")
-        await pilot.pause(0.3)
+        for _ in range(200):
+            await pilot.pause(0.02)
+            if app.unit_system == "US":
+                break
     assert app.unit_system == "US"
 
 
