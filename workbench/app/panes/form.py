@@ -337,7 +337,8 @@ class FieldRow(Widget):
                     editor.value = target
         elif changed or not self.problem:
             if editor.value != text and not (editor.has_focus and self.problem):
-                editor.value = text
+                with editor.prevent(Input.Changed):  # nobody listens: not posted up the tree
+                    editor.value = text
         if changed:
             self.show_problem("")
         self.show_hint(unit_system)
