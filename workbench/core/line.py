@@ -48,7 +48,7 @@ from workbench.core.friction import (
 )
 from workbench.core.model import G, System
 from workbench.core.topology import Topology, build_topology
-from workbench.core.valve import opening_at, relative_flow_coefficient, valve_k
+from workbench.core.valve import opening_at, openings_over, relative_flow_coefficient, valve_k
 
 _FREE_SURFACE = ("reservoir", "vessel")
 """Node kinds with a free surface that can feed a line (entrance loss applies)."""
@@ -183,24 +183,36 @@ class LineSet:
                 out[self.topology.line_index(lid)] = x
         return out
 
-    def openings_at(self, t: float) -> np.ndarray:
-        """Per-line valve opening at time ``t`` [s] by each valve's schedule; ``nan`` without."""
-        out = np.full(self.n, np.nan)
+    def openings_at(self, t) -> np.ndarray:
+        """Per-line valve opening at time ``t`` [s] by each valve's schedule; ``nan`` without.
+
+        A scalar ``t`` gives one row (lines); an array of times gives times x lines, each
+        row the one a scalar call at that time gives (``np.interp`` evaluates each time
+        alone).
+        """
+        if np.ndim(t) == 0:
+            out = np.full(self.n, np.nan)
+            for i in self._valve_idx:
+                out[i] = opening_at(self._valves[i], t)
+            return out
+        t = np.asarray(t, dtype=float)
+        out = np.full((t.size, self.n), np.nan)
         for i in self._valve_idx:
-            out[i] = opening_at(self._valves[i], t)
+            out[:, i] = openings_over(self._valves[i], t)
         return out
 
     def valve_k(self, openings=None) -> np.ndarray:
         """Valve loss coefficient per line at the openings [-]: 0 without a valve, ``inf`` shut."""
         if openings is None:
             x = self._steady_x
-        else:
-            x = np.asarray(openings, dtype=float)[self._valve_idx]
+        else:  # lines last: times x lines gives times x lines
+            x = np.asarray(openings, dtype=float)[..., self._valve_idx]
             x = np.where(np.isnan(x), self._steady_x, x)
-        k = np.zeros(self.n)
+        k = np.zeros(x.shape[:-1] + (self.n,))
         for (characteristic, low), sel in self._valve_groups:
-            c = relative_flow_coefficient(characteristic, x[sel], self._rangeability[sel], low)
-            k[self._valve_idx[sel]] = valve_k(self.valve_k_open[self._valve_idx[sel]], c)
+            c = relative_flow_coefficient(characteristic, x[..., sel], self._rangeability[sel],
+                                          low)
+            k[..., self._valve_idx[sel]] = valve_k(self.valve_k_open[self._valve_idx[sel]], c)
         return k
 
     def closed(self, openings=None) -> np.ndarray:
@@ -243,10 +255,11 @@ class LineSet:
         Parameters
         ----------
         q : array_like
-            Flow per line, positive from-end to to-end [m^3/s].
+            Flow per line, positive from-end to to-end [m^3/s]; times x lines gives the
+            losses of several states at once (every term is per element, lines last).
         openings : array_like, optional
-            Valve opening per line 0..1 (``nan`` or ignored without a valve); default the
-            valves' steady openings.
+            Valve opening per line 0..1 (``nan`` or ignored without a valve), shaped like
+            ``q`` or one row for all; default the valves' steady openings.
 
         Returns
         -------

@@ -135,6 +135,15 @@ def opening_at(valve: Valve, t: float) -> float:
     return float(np.interp(t, valve.schedule.times, valve.schedule.openings))
 
 
+def openings_over(valve: Valve, times: np.ndarray) -> np.ndarray:
+    """Relative travel of ``valve`` at each of ``times`` [s]: :func:`opening_at` at every
+    time, in one call [-]."""
+    times = np.asarray(times, dtype=float)
+    if valve.schedule is None or not valve.schedule.times:
+        return np.full(times.shape, float(valve.opening))
+    return np.interp(times, valve.schedule.times, valve.schedule.openings).astype(float)
+
+
 def k_from_kv(kv_m3_h: float, diameter_m: float, density: float = 1000.0) -> float:
     r"""Loss coefficient of a valve from its flow coefficient Kv, at a pipe diameter.
 

@@ -204,5 +204,6 @@ def simulate(
     run = Run(model, options, state, progress, cancel)
     if junction_pressures:
         run.rec.junction_heads.heads_of = run.eq.heads
+        run.rec.junction_heads.heads_many_of = run.eq.heads_many
     outcome = run.execute()
     return finish(model, run, outcome, _time.perf_counter() - wall0)

@@ -1,4 +1,5 @@
-r"""The right-hand side of the rigid-column equations, its Jacobian, and the heads at a state.
+r"""The right-hand side of the rigid-column equations, its Jacobian, and the heads at a state
+(or at several states of one configuration at once).
 
 With ``y = [Q, V]``, ``g = F^T H_F(V) + h(Q, t)`` on open lines,
 
@@ -57,7 +58,8 @@ class Equations:
     def clear_cache(self) -> None:
         self._cache = None
 
-    def _openings(self, t: float) -> np.ndarray | None:
+    def _openings(self, t) -> np.ndarray | None:
+        """Valve openings at time ``t`` [s] (times x lines for an array of times)."""
         if not self.model.valve_lines.size:
             return None
         x = self.model.lines.openings_at(t)
@@ -162,6 +164,27 @@ class Equations:
         g = model.ft @ hf + h * cfg.open_f
         hj = cfg.junction_heads(g)
         return np.concatenate([hj, hf])
+
+    def heads_many(self, ts: np.ndarray, ys: np.ndarray) -> np.ndarray:
+        """:meth:`heads` at several states of the current configuration [m], nodes x times.
+
+        ``ys`` is state x times at times ``ts`` [s]. The tanks' heads, the valve openings
+        and the losses still come from each state and time; what the configuration fixes
+        (``w = (M diag(a) M^T)^+ M diag(a)``, or the sparse factors of ``M diag(a) M^T``)
+        is applied once, to the matrix of right-hand sides ``G = F^T H_F + h`` on the open
+        lines (lines x times): ``H_J = -w G``. Each column equals :meth:`heads` at its
+        time to round-off. With a broken siphon (losses set per state) it is
+        :meth:`heads` at each time.
+        """
+        if self.state.siphon_broken.any():
+            return np.column_stack([self.heads(t, ys[:, k]) for k, t in enumerate(ts)])
+        model, cfg = self.model, self.cfg
+        nl = model.nl
+        hf = np.column_stack([model.fixed_heads(ys[nl:model.ne, k])[0]
+                              for k in range(ys.shape[1])])
+        h, _ = model.lines.head_loss(ys[:nl].T, self._openings(ts))
+        g = model.ft @ hf + h.T * cfg.open_f[:, None]
+        return np.vstack([cfg.junction_heads(g), hf])
 
     def discharge_drive(self, t, y):
         """Per line, the head difference driving flow out of its open discharge [m] (zero

@@ -1,8 +1,12 @@
 r"""Junction pressures in time: the series a pressure gauge at a junction would have read.
 
 Junction heads are algebraic in the rigid-column model (the package docstring): at each
-output time the run keeps them from :meth:`Equations.heads` under the configuration of that
-moment (:class:`JunctionHeads`), and :func:`junction_pressures` turns them into gauge
+output time the run keeps them under the configuration of that moment
+(:class:`JunctionHeads`): the output times of one step, which share its configuration, at
+once from :meth:`Equations.heads_many` (``H_J = -w G`` with ``w = (M diag(a) M^T)^+ M
+diag(a)`` fixed by the configuration: one product, or one factorised solve for a large
+system, over a matrix of right-hand sides ``G``, lines x times), a single time from
+:meth:`Equations.heads`; and :func:`junction_pressures` turns them into gauge
 pressures as the steady solution reports them
 (:func:`workbench.core.network.node_static_heads`): the junction's head is an energy head
 shared by the lines meeting there, and the pressure a gauge reads is the lowest static
@@ -32,7 +36,7 @@ class JunctionHeads:
     """Junction heads kept at the output times of one run [m] (``nan`` where unreached).
 
     Kept only when asked (``simulate(..., junction_pressures=True)``): each output time
-    costs one head evaluation, several times a smooth drain's own integration.
+    costs the losses of one state; the times of one step are evaluated together.
     """
 
     def __init__(self, model: TransientModel):
@@ -40,20 +44,38 @@ class JunctionHeads:
         self.nj = model.topo.n_junctions
         self.heads_of = None
         """``Equations.heads`` of the run when asked for; nothing is kept without it."""
+        self.heads_many_of = None
+        """``Equations.heads_many`` of the run: the heads at several times at once."""
         self.rows: list[np.ndarray] = []
         self._reached: dict[bytes, np.ndarray] = {}
 
-    def keep(self, t: float, y: np.ndarray, open_lines: np.ndarray) -> None:
-        """Keep the junction heads at time ``t`` and state ``y`` (lines ``open_lines``)."""
-        if not self.nj or self.heads_of is None:
-            return
+    def _reached_by(self, open_lines: np.ndarray) -> np.ndarray:
+        """Junctions an open line joins to a fixed head, per configuration (cached)."""
         key = np.asarray(open_lines, bool).tobytes()
         reached = self._reached.get(key)
         if reached is None:
             reached = self.model.topo._reached(open_lines)
             self._reached[key] = reached
+        return reached
+
+    def keep(self, t: float, y: np.ndarray, open_lines: np.ndarray) -> None:
+        """Keep the junction heads at time ``t`` and state ``y`` (lines ``open_lines``)."""
+        if not self.nj or self.heads_of is None:
+            return
         h = np.asarray(self.heads_of(t, y), dtype=float)[: self.nj]
-        self.rows.append(np.where(reached, h, np.nan))
+        self.rows.append(np.where(self._reached_by(open_lines), h, np.nan))
+
+    def keep_many(self, ts: np.ndarray, ys: np.ndarray, open_lines: np.ndarray) -> None:
+        """Keep the junction heads at times ``ts`` and states ``ys`` (state x times), all
+        in the configuration of open lines ``open_lines``."""
+        if not self.nj or self.heads_of is None or not len(ts):
+            return
+        if self.heads_many_of is None:
+            for k, t in enumerate(ts):
+                self.keep(float(t), ys[:, k], open_lines)
+            return
+        h = np.asarray(self.heads_many_of(ts, ys), dtype=float)[: self.nj]
+        self.rows.extend(np.where(self._reached_by(open_lines)[:, None], h, np.nan).T)
 
 
 

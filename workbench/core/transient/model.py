@@ -56,8 +56,9 @@ class Configuration:
         self.ext_on = (~spilling).astype(float)  # a spilling tank's surplus leaves it
 
     def junction_heads(self, g: np.ndarray) -> np.ndarray:
-        """Junction heads [m] for ``g = F^T H_F + h`` on the open lines."""
-        return -(self.w @ g) if self.w.shape[0] else np.zeros(0)
+        """Junction heads [m] for ``g = F^T H_F + h`` on the open lines (lines, or lines x
+        times for several states: junctions x times)."""
+        return -(self.w @ g) if self.w.shape[0] else np.zeros((0,) + g.shape[1:])
 
     def project(self, q: np.ndarray) -> np.ndarray:
         """Flows made to satisfy continuity at every junction after lines were stopped.

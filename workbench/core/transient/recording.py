@@ -66,8 +66,7 @@ class Recording:
                     state: RunState) -> None:
         """Keep states ``yg`` (state x times) at output times ``tg``."""
         yg[: self.model.nl][~open_lines] = 0.0
-        for k in range(tg.size if self.junction_heads.nj else 0):
-            self.junction_heads.keep(float(tg[k]), yg[:, k], open_lines)
+        self.junction_heads.keep_many(tg, yg, open_lines)
         self.t_out.extend(tg.tolist())
         self.y_out.extend(yg.T)
         self.drained_out.extend([state.drained.copy()] * tg.size)

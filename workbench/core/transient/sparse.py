@@ -129,9 +129,10 @@ class SparseConfiguration:
                                  shape=(model.nl, model.nl))
 
     def junction_heads(self, g: np.ndarray) -> np.ndarray:
-        """Junction heads [m] for ``g = F^T H_F + h`` on the open lines: ``-L^{-1} A g``."""
+        """Junction heads [m] for ``g = F^T H_F + h`` on the open lines: ``-L^{-1} A g``
+        (``g`` lines, or lines x times solved with the same factors: junctions x times)."""
         if self._lu is None:
-            return np.zeros(self._m.shape[0])
+            return np.zeros((self._m.shape[0],) + g.shape[1:])
         return -self._lu.solve(self._a @ g)
 
     def project(self, q: np.ndarray) -> np.ndarray:
