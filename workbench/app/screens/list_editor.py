@@ -391,9 +391,10 @@ class ListEditorScreen(ModalScreen[bool]):
         if action == "delete_row":
             return bool(self.rows) or None
         if action == "move_row":
-            if not self.is_mounted or not self.rows:
+            tables = self.query(ListTable)  # asked by the key footer, maybe before it is built
+            if not self.rows or not tables:
                 return None
-            row, _ = self._row_and_column()
+            row = tables.first().cursor_coordinate.row
             step = parameters[0] if parameters else 0
             return (0 <= row + int(step) < len(self.rows)) or None
         if action == "apply":
