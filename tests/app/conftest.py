@@ -248,7 +248,7 @@ class SharedApp:
         # the fixture and the test run in tasks of their own: make the app the active one
         # there too (a widget drawn or scrolled from them asks for it); pytest-asyncio
         # carries the fixture's context over to the test
-        from textual._context import active_app
+        from textual.app import active_app  # the app module's own name for it
 
         active_app.set(pilot.app)
         if pilot.app.screen.query_one(TabbedContent).active != "system":

@@ -46,8 +46,6 @@ async def test_the_highlighted_warning_is_shown_whole_in_the_detail_pane_of_both
 async def test_notices_never_cover_the_status_line_the_keys_or_a_detail_pane(project_file):
     """Saved, undid and an error notice stacked at once, on the System view (help line
     under the form) and on Flows and Events (detail panes at the foot of the view)."""
-    from textual.widgets._toast import Toast
-
     from tests.app.conftest import choose_entry, type_into
     from workbench.app.widgets.keyfooter import KeyFooter
 
@@ -72,7 +70,8 @@ async def test_notices_never_cover_the_status_line_the_keys_or_a_detail_pane(pro
                        severity="error", timeout=30)
             await pilot.pause()
             await pilot.pause()
-            toasts = [t.region for t in app.screen.query(Toast)]
+            # Toast by its type name: Textual keeps the class in a private module
+            toasts = [t.region for t in app.screen.query("Toast")]
             assert len(toasts) >= 2, view
             keep = [app.screen.query_one("#status").region,
                     app.screen.query_one(KeyFooter).region,
