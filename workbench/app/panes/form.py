@@ -29,9 +29,14 @@ from workbench.app.outline import (
     typed_value,
     value_text,
 )
-from workbench.project.units import QUANTITY_KINDS
+from workbench.app.panes.form_text import (
+    choices_for,
+    companion_keys,
+    hint,
+    placeholder,
+    problem_text,
+)
 
-NODE_SECTIONS = ("reservoirs", "junctions", "receivers")
 #: Columns of a key's name in a form, at least.
 NAME_WIDTH = 18
 #: Columns of a field's value while it is not being edited (the unit hint follows).
@@ -66,7 +71,7 @@ class FieldInput(Input):
         # One line, no border (the style sheet's .field-editor; Input's compact switch
         # would restyle each new field once more as it mounts). validate_on=(): no
         # validators, so no -valid class set on every change; our checks run on Enter.
-        super().__init__(value, placeholder=_placeholder(field),
+        super().__init__(value, placeholder=placeholder(field),
                          suggester=suggester, classes="field-editor", validate_on=())
         self.field = field
         self.choices = choices
@@ -128,20 +133,6 @@ class FieldInput(Input):
         form = next((n for n in self.ancestors if isinstance(n, FieldForm)), None)
         if isinstance(row, FieldRow) and form is not None:
             form.open_table(row)
-
-
-def _placeholder(field: Field) -> str:
-    """What an empty field says: its default, "required" or "not set" — never an example
-    value, which reads as a computed one (an example bore on a DN150 line); examples are
-    on the help line."""
-    spec = field.spec
-    if spec.default not in (None, ""):
-        return f"(default {spec.default})"
-    if spec.required:
-        return "(required)"
-    if spec.name == "inner_diameter":
-        return "(from the size)"
-    return "(not set)"
 
 
 class GroupHeading(Static):
@@ -385,21 +376,6 @@ class FieldRow(Widget):
             self.refresh()
 
 
-def hint(field: Field, stored: Any, unit_system: str) -> str:
-    """The stored value in the display unit (``= 4.03 in``), or the unit expected."""
-    kind = field.spec.kind
-    if kind not in QUANTITY_KINDS:
-        return ""
-    from workbench.project.units import display_unit, format_quantity, parse_quantity
-
-    if stored in (None, ""):
-        return f"[{display_unit(kind, unit_system)}]"
-    try:
-        return "= " + format_quantity(parse_quantity(stored, kind), kind, unit_system)
-    except Exception:  # noqa: BLE001 - a hint only; validation reports the real problem
-        return f"[{display_unit(kind, unit_system)}]"
-
-
 class FormSection(Vertical):
     """The rows of one section's form (shown while an element of the section is)."""
 
@@ -561,7 +537,7 @@ class FieldForm(VerticalScroll):
                 absent = not isinstance(lookup(data, field.keypath.rsplit(".", 1)[0]), dict)
                 # short enough for the field; the help line says typing adds one
                 row.editor.placeholder = (f"(no {field.group} yet)" if absent
-                                          else _placeholder(field))
+                                          else placeholder(field))
 
     def focus_first(self) -> None:
         rows = [row for row in self.current_rows() if row.editor is not None]
@@ -684,58 +660,3 @@ class FieldForm(VerticalScroll):
         if gone:
             self.app.notify(f"removed {', '.join(gone)}: no longer used", timeout=4)
         self.post_message(self.Committed(row.field.keypath))
-
-
-def companion_keys(error: Exception, table: str) -> tuple[list[tuple[str, str]], list[str]]:
-    """Of a refusal, the keys of ``table`` ("fluid.", "reservoirs.T1.") it says are missing
-    (with the message) and those it says no longer apply; empty lists when any problem is
-    of another sort."""
-    missing: list[tuple[str, str]] = []
-    stale: list[str] = []
-    for p in getattr(error, "problems", []) or []:
-        key = p.key
-        if not key.startswith(table) or "." in key[len(table):]:
-            return [], []
-        if p.message.startswith("missing required key"):
-            missing.append((key, p.message))
-        elif "applies only to" in p.message:
-            stale.append(key)
-        else:
-            return [], []
-    return missing, stale
-
-
-def problem_text(error: Exception, keypath: str) -> str:
-    """The messages of a refused edit, those about this key first, without the file name."""
-    problems = list(getattr(error, "problems", []) or [])
-    if not problems:
-        return str(error)
-    mine = [p for p in problems if p.key == keypath or p.key.startswith(keypath)]
-    others = [p for p in problems if p not in mine]
-    parts = [p.message for p in mine] + [f"{p.key}: {p.message}" for p in others]
-    return "; ".join(parts)
-
-
-def choices_for(field: Field, data: dict) -> tuple[str, ...] | None:
-    """The words a field can take, for a drop-down; ``None`` for free text."""
-    spec = field.spec
-    if spec.name in ("from", "to") and field.keypath.startswith("lines."):
-        return tuple(e for s in NODE_SECTIONS for e in (data.get(s) or {}))
-    if spec.kind != "choice":
-        return None
-    if spec.name == "entrance":
-        return None  # a named shape or a number K: free text
-    if spec.choices:
-        return spec.choices
-    return _runtime_choices(field.keypath.split(".", 1)[0], spec.name)
-
-
-def _runtime_choices(section: str, name: str) -> tuple[str, ...] | None:
-    """Words that come from a core table (fluid kinds, materials): the schema's own list."""
-    from workbench.project.schema import choices_for as schema_choices
-
-    try:
-        words = schema_choices(section, name)
-    except ImportError:
-        return None
-    return tuple(words) or None
