@@ -109,8 +109,17 @@ class SystemPane(Horizontal):
             text += f" · no {group} yet: a value typed here adds one"
         show_help(self.query_one("#field-help", Static), text)
         # a longer help line takes rows from the form: keep the field in sight after it
+        self.call_after_refresh(self._keep_focus_in_sight)
+
+    def _keep_focus_in_sight(self) -> None:
+        """Scroll the form to what has the focus now: with keys typed quickly that may be
+        a heading below the field this was asked for (which it used to scroll back to)."""
         form = self.query_one(FieldForm)
-        self.call_after_refresh(form.scroll_to_widget, row, animate=False)
+        focused = self.app.focused
+        if focused is None or form not in focused.ancestors:
+            return
+        target = focused.parent if isinstance(focused.parent, FieldRow) else focused
+        form.scroll_to_widget(target, animate=False)
 
 
 def show_help(help_line: Static, text: str) -> None:
