@@ -118,6 +118,20 @@ def test_solve_names_the_outflow_the_vent_holds_the_tank_to(tmp_path, capsys):
     assert f"holds the net outflow to {held * 1000:.4g} L/s" in text
 
 
+def test_solve_does_not_point_to_the_tables_for_a_fed_tanks_net_outflow(tmp_path, capsys):
+    """With a feed the tables show the line's flow, not the tank's net outflow (line flow
+    less feed: continuity at the tank, common practice, no source), so the open tank's net
+    figure is written out and never attributed to the tables above."""
+    path = _write(tmp_path, VENT + '\ninflow = "2 L/s"')
+    assert main(["solve", str(path), "--json"]) == 0
+    out = json.loads(capsys.readouterr().out)
+    open_net = out["lines"]["L1"]["flow_m3_s"] - 0.002
+    assert main(["solve", str(path)]) == 0
+    text = " ".join(capsys.readouterr().out.split())
+    assert "the tables above show" not in text
+    assert f"({open_net * 1000:.4g} L/s with the tank open to the air" in text
+
+
 def test_solve_says_the_vacuum_in_words(tmp_path, capsys):
     assert main(["solve", str(_write(tmp_path, VENT))]) == 0
     text = " ".join(capsys.readouterr().out.split())

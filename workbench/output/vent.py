@@ -175,16 +175,18 @@ def steady_gas_texts(system: "System", result, unit_system: str) -> list:
 
 
 def _held_flow_words(held: float, open_tank: float, unit_system: str) -> str:
-    """", where the vent holds the net outflow to 17.65 L/s (the tables above: 17.74 L/s,
-    the tank open to the air)", or nothing when the two read the same."""
+    """", where the vent holds the net outflow to 17.61 L/s (17.74 L/s with the tank open to
+    the air, as the tables above assume)", or " at the steady outflow" when the two read the
+    same. The tables show line flows, which differ from a tank's net outflow when it has a
+    feed or a draw-off, so the open tank's net figure is given here, not pointed to."""
     def q(value):
         return quantity_text(abs(value), "flow", unit_system, 4)
 
     if not (np.isfinite(held) and np.isfinite(open_tank)) or q(held) == q(open_tank):
         return " at the steady outflow"
     way = "outflow" if held >= 0.0 else "inflow"
-    return (f", where the vent holds the net {way} to {q(held)} (the tables above show "
-            f"{q(open_tank)}, the tank open to the air)")
+    return (f", where the vent holds the net {way} to {q(held)} ({q(open_tank)} with the "
+            f"tank open to the air, as the tables above assume)")
 
 
 #: The calculation record's methods-table row for tanks with a vent.
