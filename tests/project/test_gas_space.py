@@ -76,3 +76,20 @@ def test_a_pressure_just_below_the_vapour_pressure_is_refused_naming_the_floor(m
 def test_a_pressure_just_above_the_vapour_pressure_is_accepted(make):
     system = build_system(tomllib.loads(make(_floor_kpa_gauge() + 0.5)), "hot.toml")
     assert system.fluid.vapor_pressure == pytest.approx(47_414.0, rel=1e-3)
+
+
+@pytest.mark.parametrize("celsius", [25.0, 80.0])
+def test_the_pressure_offered_as_the_least_is_one_the_check_accepts(celsius):
+    """At 25 degC the floor is -98.155 kPa gauge (IAPWS-95 saturation pressure, 3.170 kPa
+    absolute, less the ISO 2533 atmosphere): shown to four figures it rounds down to
+    -98.16 kPa, which is below the floor. The figure the message offers must be accepted."""
+    import re
+
+    text = _surface(-99.0).replace('"80 degC"', f'"{celsius} degC"')
+    with pytest.raises(ProjectError) as info:
+        build_system(tomllib.loads(text), "hot.toml")
+    (problem,) = [p for p in info.value.problems if p.key == "reservoirs.T1.surface_pressure"]
+    offered = re.search(r"give at least (-?[0-9.]+) kPa", problem.message).group(1)
+    system = build_system(tomllib.loads(text.replace('"-99.00 kPa"', f'"{offered} kPa"')),
+                          "hot.toml")
+    assert system.reservoirs["T1"].surface_pressure == pytest.approx(float(offered) * 1e3)
