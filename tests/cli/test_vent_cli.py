@@ -132,6 +132,17 @@ def test_solve_does_not_point_to_the_tables_for_a_fed_tanks_net_outflow(tmp_path
     assert f"({open_net * 1000:.4g} L/s with the tank open to the air" in text
 
 
+def test_a_sealed_draining_tank_has_no_held_outflow_in_the_json(tmp_path, capsys):
+    """A sealed tank cannot pass the air its outflow makes room for, so no steady outflow
+    exists (Boyle's law: the gas space's pressure falls without bound as the liquid leaves;
+    common practice, no source): neither a gas pressure nor a held outflow is given."""
+    assert main(["solve", str(_write(tmp_path, 'vent = "none"')), "--json"]) == 0
+    out = json.loads(capsys.readouterr().out)
+    assert out["lines"]["L1"]["flow_m3_s"] > 0.0  # the open tank's tables: it drains
+    assert out["nodes"]["TK"]["gas_pressure_pa"] is None
+    assert out["nodes"]["TK"]["vent_held_net_outflow_m3_s"] is None
+
+
 def test_solve_says_the_vacuum_in_words(tmp_path, capsys):
     assert main(["solve", str(_write(tmp_path, VENT))]) == 0
     text = " ".join(capsys.readouterr().out.split())

@@ -102,7 +102,8 @@ def steady_gas_pressures(system: "System", result) -> dict[str, float | None]:
 
 def steady_gas_states(system: "System", result) -> dict[str, tuple[float | None, float]]:
     """Per tank with a vent, (gauge pressure [Pa] or ``None`` as in
-    :func:`steady_gas_pressures`, the tank's net outflow [m^3/s] at that pressure).
+    :func:`steady_gas_pressures`, the tank's net outflow [m^3/s] at that pressure; ``nan``
+    where the pressure is ``None``: no steady state, so no outflow is held).
 
     Computed by the core (:func:`workbench.core.steady_vent.vented_steady`, the same fixed
     point a simulation's steady start uses): the vacuum lowers the steady outflow by
@@ -129,7 +130,10 @@ def steady_gas_states(system: "System", result) -> dict[str, tuple[float | None,
         sealed = system.reservoirs[tid].vent.effective_area <= 0.0
         outflow = state.outflows.get(tid, 0.0)
         moving = outflow != 0.0
-        out[tid] = (None if not np.isfinite(p) or (sealed and moving) else p, outflow)
+        if not np.isfinite(p) or (sealed and moving):  # no steady state: no pressure, and
+            out[tid] = (None, float("nan"))  # no outflow the vent could hold the tank to
+        else:
+            out[tid] = (p, outflow)
     return out
 
 
