@@ -232,6 +232,9 @@ def test_csv_output_has_one_row_per_case_with_si_units(project_file, tmp_path, c
     rows = list(csv.reader(out.open(encoding="utf-8")))
     assert "flow L1 [m^3/s]" in rows[0]
     assert [r[1] for r in rows[1:]] == ["1 m", "2 m", "3 m"]
+    # the CSV's case column is the index into the JSON's cases, as it always was (the
+    # printed table numbers the same cases from 1 for the reader)
+    assert [r[0] for r in rows[1:]] == ["0", "1", "2"]
 
 
 @pytest.mark.parametrize(

@@ -100,6 +100,17 @@ def test_signals_stay_on_so_ctrl_c_still_stops_a_slow_start(terminal):
         assert termios.tcgetattr(program_end)[3] & termios.ISIG
 
 
+def test_ctrl_z_typed_during_the_start_is_a_key_for_the_workbench_not_a_stop(terminal):
+    """POSIX: with ISIG on, the SUSP character (Ctrl+Z) is taken by the terminal to stop the
+    program; disabled (_POSIX_VDISABLE) it is passed on like any key."""
+    from workbench.cli.typed_ahead import keys_kept
+
+    main_end, program_end = terminal
+    with keys_kept(program_end):
+        os.write(main_end, b"\x1a")
+        assert _read_all(program_end) == b"\x1a"
+
+
 def test_without_a_terminal_nothing_is_changed(tmp_path):
     from workbench.cli.typed_ahead import keys_kept
 

@@ -7,7 +7,8 @@ reprints the line, Ctrl+S stops the output, and Enter arrives as a newline. A us
 Ctrl+R (run) the moment the command starts would see nothing happen. :func:`keys_kept` turns
 those off at once (and the echo, so typed keys do not scribble over the shell), the way
 Textual does when it takes the terminal, and puts the terminal back as it found it when the
-workbench ends, even after a crash. Ctrl+C still interrupts a start that takes too long.
+workbench ends, even after a crash. Ctrl+C still interrupts a start that takes too long;
+Ctrl+Z is a key for the workbench (undo) rather than a stop.
 
 The standard library's :mod:`tty` is not used for the switch: ``tty.setcbreak`` leaves Ctrl+S,
 Ctrl+R and the carriage-return translation on, and ``tty.setraw`` would also stop the
@@ -72,4 +73,7 @@ def _held(attributes: list) -> list:
     held[3] = attributes[3] & ~(termios.ECHO | termios.ICANON | termios.IEXTEN)
     held[6][termios.VMIN] = 1
     held[6][termios.VTIME] = 0
+    # Ctrl+Z is the workbench's undo, not a stop of the half-started program (stopped now,
+    # it would leave the shell's terminal without echo); Ctrl+C still interrupts
+    held[6][termios.VSUSP] = b"\x00" if isinstance(attributes[6][termios.VSUSP], bytes) else 0
     return held

@@ -80,7 +80,7 @@ def sweep_table(sweep: Mapping, keypaths: Sequence[str] | None = None) -> tuple[
 
     rows = []
     for i, c in enumerate(cases):
-        row: dict[str, object] = {"case": i + 1}  # cases are numbered from 1 for the reader
+        row: dict[str, object] = {"case": i}  # the index into the JSON's cases (and the CSV)
         for k in keypaths:
             row[f"value:{k}"] = c["values"].get(k, "")
         steady = c.get("steady") or {}
@@ -159,6 +159,8 @@ def display_rows(columns: Sequence[SweepColumn], rows: Sequence[Mapping], unit_s
             value = row.get(col.key)
             if value is None or value == "":
                 cells.append("")
+            elif col.key == "case":
+                cells.append(str(int(value) + 1))  # numbered from 1 for the reader
             elif col.kind == "time":
                 cells.append(format_time(float(value)))
             elif col.kind is not None:

@@ -39,19 +39,19 @@ def check_gas_spaces(c: Checker, parts) -> None:
             if not -c.atmosphere < value < floor_gauge:
                 continue  # below a perfect vacuum (said already), or a pressure it can hold
             c.add(f"{path}.{key}", f"{table[key]!r} (gauge) is below the vapour pressure of "
-                  f"the {fluid.name} ({c.shown(floor_gauge, 'pressure')} gauge at this site "
+                  f"the {fluid.name} ({c.shown(floor_gauge, 'pressure', 5)} gauge at this site "
                   f"and temperature): the liquid would boil at its surface, so this pressure "
                   f"cannot be held; give at least {_at_least(c, floor_gauge)}")
 
 
 def _at_least(c: Checker, floor_gauge: float) -> str:
     """The floor [Pa gauge] as shown, or, where showing it rounds it below the floor (which
-    the check would refuse again), the next figure up: the four significant figures shown
-    are within half a part in a thousand of the value, so adding that much rounds up."""
-    text = c.shown(floor_gauge, "pressure")
+    the check would refuse again), the next figure up: the five significant figures shown
+    are within half a part in ten thousand of the value, so adding that much rounds up."""
+    text = c.shown(floor_gauge, "pressure", 5)
     try:
         if parse_quantity(text, "pressure", atmosphere=c.atmosphere) >= floor_gauge:
             return text
     except (UnitError, ValueError):
         pass
-    return c.shown(floor_gauge + 5e-4 * abs(floor_gauge), "pressure")
+    return c.shown(floor_gauge + 5e-5 * abs(floor_gauge), "pressure", 5)
