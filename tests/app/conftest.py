@@ -116,6 +116,14 @@ async def type_into(pilot, keypath: str, text: str, enter: bool = True) -> None:
         await pilot.pause()
 
 
+async def run_to_end(pilot) -> None:
+    """Ctrl+R (simulate) and wait until the run's worker is done and its result is shown."""
+    await pilot.press("ctrl+r")
+    await pilot.pause()
+    await pilot.app.workers.wait_for_complete()
+    await pilot.pause()
+
+
 async def run_elastic_in_the_surge_view(pilot, *keys: str) -> None:
     """F10 (the Surge view), then ``keys`` (``"down", "e"``: the next line, run it), and
     wait until the elastic run's worker is done."""

@@ -4,7 +4,7 @@ never inside the plot box (plotext's own legend is drawn over the data)."""
 
 from __future__ import annotations
 
-from tests.app.conftest import SIZE, make, settle
+from tests.app.conftest import SIZE, make, run_to_end, settle
 from tests.app.test_sweep_screen import DRAIN, LINE, TANK, SweepTestApp, _load, _type, _wait_for_sweep
 
 DRAIN_TEST = "fellgate_wash_tank_drain_test.toml"
@@ -50,10 +50,7 @@ async def test_site_test_readings_on_the_run_trends_are_named_under_the_plot(pro
     app = make(path)
     async with app.run_test(size=SIZE) as pilot:
         await settle(pilot)
-        await pilot.press("ctrl+r")
-        await pilot.pause()
-        await app.workers.wait_for_complete()
-        await pilot.pause()
+        await run_to_end(pilot)
         await pilot.press("f5")
         await pilot.pause()
         await pilot.pause()

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from tests.app.conftest import SIZE, make, settle
+from tests.app.conftest import SIZE, make, run_to_end, settle
 
 DRAIN = "fellgate_neutraliser_drain.toml"
 
@@ -30,9 +30,7 @@ async def test_the_highlighted_warning_is_shown_whole_in_the_detail_pane_of_both
         shown = " ".join(str(flows_detail.render()).split())
         assert " ".join(steady_text.split()) in shown
         assert _whole_on_screen(flows_detail)
-        await pilot.press("ctrl+r")
-        await pilot.pause()
-        await app.workers.wait_for_complete()
+        await run_to_end(pilot)
         await pilot.press("f6")
         await pilot.pause()
         detail = app.screen.query_one("#event-detail")
@@ -52,9 +50,7 @@ async def test_notices_never_cover_the_status_line_the_keys_or_a_detail_pane(pro
     app = make(project_file(DRAIN))
     async with app.run_test(size=SIZE, notifications=True) as pilot:
         await settle(pilot)
-        await pilot.press("ctrl+r")
-        await pilot.pause()
-        await app.workers.wait_for_complete()
+        await run_to_end(pilot)
         await choose_entry(pilot, "lines:210-DR-04")
         await type_into(pilot, "lines.210-DR-04.length", "90 m")
         await settle(pilot)

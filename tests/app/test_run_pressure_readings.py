@@ -11,7 +11,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from tests.app.conftest import SIZE, make, settle
+from tests.app.conftest import SIZE, make, run_to_end, settle
 from tests.cli.test_calibrate_pressure import gauge, project
 
 
@@ -27,10 +27,7 @@ async def test_the_run_keeps_the_gauged_junction_and_f5_shows_its_readings_and_r
     app = make(path)
     async with app.run_test(size=SIZE) as pilot:
         await settle(pilot)
-        await pilot.press("ctrl+r")
-        await pilot.pause()
-        await app.workers.wait_for_complete()
-        await pilot.pause()
+        await run_to_end(pilot)
         assert app.run_status == "done"
         assert list(app.transient.junction_ids) == ["J"]  # kept because a test reads J
         box = app.screen.query_one("#run-series", SelectionList)
@@ -58,9 +55,6 @@ async def test_a_project_without_a_pressure_test_keeps_no_junction_pressures(tmp
     app = make(path)
     async with app.run_test(size=SIZE) as pilot:
         await settle(pilot)
-        await pilot.press("ctrl+r")
-        await pilot.pause()
-        await app.workers.wait_for_complete()
-        await pilot.pause()
+        await run_to_end(pilot)
         assert app.run_status == "done"
         assert len(app.transient.junction_ids) == 0

@@ -6,17 +6,9 @@ import math
 
 import pytest
 
-from tests.app.conftest import SIZE, TRANSFER, make, settle, table_cells
+from tests.app.conftest import SIZE, TRANSFER, make, run_to_end, settle, table_cells
 
 DRAIN = "fellgate_neutraliser_drain.toml"
-
-
-async def run_to_end(pilot) -> None:
-    app = pilot.app
-    await pilot.press("ctrl+r")
-    await pilot.pause()
-    await app.workers.wait_for_complete()
-    await pilot.pause()
 
 
 def independent_drain_time(system) -> float:

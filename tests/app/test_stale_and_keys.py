@@ -3,7 +3,16 @@ the steady and run state, and keys typed before the screen is ready are not lost
 
 from __future__ import annotations
 
-from tests.app.conftest import SHARED_LOOP, SIZE, choose_entry, make, settle, shared_app, type_into
+from tests.app.conftest import (
+    SHARED_LOOP,
+    SIZE,
+    choose_entry,
+    make,
+    run_to_end,
+    settle,
+    shared_app,
+    type_into,
+)
 
 DRAIN = "fellgate_neutraliser_drain.toml"
 LINE = "210-DR-04"
@@ -20,10 +29,7 @@ async def test_after_an_edit_every_result_view_says_its_result_is_stale_and_undo
     async with app.run_test(size=SIZE) as pilot:
         app.debounce = 0.05
         await settle(pilot)
-        await pilot.press("ctrl+r")
-        await pilot.pause()
-        await app.workers.wait_for_complete()
-        await pilot.pause()
+        await run_to_end(pilot)
         for view in ("f3", "f4", "f5", "f6"):  # build every view
             await pilot.press(view)
             await pilot.pause()
@@ -170,10 +176,7 @@ async def test_the_run_summary_on_the_events_view_reads_whole_at_80_columns(proj
     app = make(project_file(DRAIN))
     async with app.run_test(size=SIZE) as pilot:
         await settle(pilot)
-        await pilot.press("ctrl+r")
-        await pilot.pause()
-        await app.workers.wait_for_complete()
-        await pilot.pause()
+        await run_to_end(pilot)
         await pilot.press("f6")
         await pilot.pause()
         summary = app.screen.query_one("#run-summary")
@@ -192,10 +195,7 @@ async def test_the_events_view_shows_its_first_event_row_with_the_stale_mark_at_
     async with app.run_test(size=SIZE) as pilot:
         app.debounce = 0.05
         await settle(pilot)
-        await pilot.press("ctrl+r")
-        await pilot.pause()
-        await app.workers.wait_for_complete()
-        await pilot.pause()
+        await run_to_end(pilot)
         await choose_entry(pilot, f"lines:{LINE}")
         app.debounce = 30.0
         await type_into(pilot, f"lines.{LINE}.length", "90 m")  # the run is now stale
