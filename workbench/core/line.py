@@ -48,7 +48,7 @@ from workbench.core.friction import (
 )
 from workbench.core.model import G, System
 from workbench.core.topology import Topology, build_topology
-from workbench.core.valve import opening_at, openings_over, relative_flow_coefficient, valve_k
+from workbench.core.valve import openings_over, relative_flow_coefficient, valve_k
 
 _FREE_SURFACE = ("reservoir", "vessel")
 """Node kinds with a free surface that can feed a line (entrance loss applies)."""
@@ -190,15 +190,10 @@ class LineSet:
         row the one a scalar call at that time gives (``np.interp`` evaluates each time
         alone).
         """
-        if np.ndim(t) == 0:
-            out = np.full(self.n, np.nan)
-            for i in self._valve_idx:
-                out[i] = opening_at(self._valves[i], t)
-            return out
         t = np.asarray(t, dtype=float)
-        out = np.full((t.size, self.n), np.nan)
+        out = np.full(t.shape + (self.n,), np.nan)
         for i in self._valve_idx:
-            out[:, i] = openings_over(self._valves[i], t)
+            out[..., i] = openings_over(self._valves[i], t)
         return out
 
     def valve_k(self, openings=None) -> np.ndarray:

@@ -125,19 +125,17 @@ def valve_k(k_open, c):
 
 
 def opening_at(valve: Valve, t: float) -> float:
-    """Relative travel of ``valve`` at time ``t`` [s]: its schedule, or its steady opening.
+    """Relative travel of ``valve`` at time ``t`` [s]: :func:`openings_over` at one time."""
+    return float(openings_over(valve, t))
+
+
+def openings_over(valve: Valve, times) -> np.ndarray:
+    """Relative travel of ``valve`` at each of ``times`` [s] (shaped like ``times``): its
+    schedule, or its steady opening [-].
 
     The schedule is piecewise linear between its points and holds its first and last
     openings before and after them.
     """
-    if valve.schedule is None or not valve.schedule.times:
-        return float(valve.opening)
-    return float(np.interp(t, valve.schedule.times, valve.schedule.openings))
-
-
-def openings_over(valve: Valve, times: np.ndarray) -> np.ndarray:
-    """Relative travel of ``valve`` at each of ``times`` [s]: :func:`opening_at` at every
-    time, in one call [-]."""
     times = np.asarray(times, dtype=float)
     if valve.schedule is None or not valve.schedule.times:
         return np.full(times.shape, float(valve.opening))
