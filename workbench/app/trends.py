@@ -19,26 +19,24 @@ def trend_series(result: Any) -> list[tuple[str, str, str, Any]]:
     Levels and flows are arrays (tanks x times, lines x times) named by ``tank_ids`` and
     ``line_ids``; so are ``feeds``, ``draw_offs`` and ``spills``.
     """
+    def rows(ids: str, values: str):
+        """(element id, its series) pairs of one table of the run (none without a run)."""
+        return zip(_get(result, ids, default=()) or (), _get(result, values, default=()))
+
     found: list[tuple[str, str, str, list[float]]] = []
-    for tank, values in zip(_get(result, "tank_ids", default=()) or (),
-                            _get(result, "levels", default=()) if result is not None else ()):
+    for tank, values in rows("tank_ids", "levels"):
         found.append((f"level:{tank}", f"level {tank}", "length", values))
-    for line, values in zip(_get(result, "line_ids", default=()) or (),
-                            _get(result, "flows", default=()) if result is not None else ()):
+    for line, values in rows("line_ids", "flows"):
         found.append((f"flow:{line}", f"flow {line}", "flow", values))
     # a tank's feed, draw-off and overflow spill, where the run has any
     for name, word in (("feeds", "feed"), ("draw_offs", "draw-off"), ("spills", "spill")):
-        table = _get(result, name, default=()) if result is not None else ()
-        for tank, values in zip(_get(result, "tank_ids", default=()) or (), table):
+        for tank, values in rows("tank_ids", name):
             if any(v != 0.0 for v in values):
                 found.append((f"{name}:{tank}", f"{word} {tank}", "flow", values))
     # the gauge pressure of each tank's gas space (tanks with a vent)
-    for tank, values in zip(_get(result, "gas_tank_ids", default=()) or (),
-                            _get(result, "gas_pressures", default=()) if result is not None else ()):
+    for tank, values in rows("gas_tank_ids", "gas_pressures"):
         found.append((f"gas:{tank}", f"gas pressure {tank}", "pressure", values))
     # a junction's gauge pressure (kept when a site test reads one)
-    for junction, values in zip(_get(result, "junction_ids", default=()) or (),
-                                _get(result, "junction_pressures", default=()) if result is not None
-                                else ()):
+    for junction, values in rows("junction_ids", "junction_pressures"):
         found.append((f"pressure:{junction}", f"pressure {junction}", "pressure", values))
     return found
